@@ -1,0 +1,93 @@
+/* The protocol layer as the server sees it: one JSON-RPC 2.0 request line
+ * in, zero or one response line out, with no socket involved. The server
+ * owns one proto_ctx per daemon and one proto_session per connection. */
+#ifndef RW_PROTO_H
+#define RW_PROTO_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+/* A growable output buffer. `oom` is set (and further appends ignored) when
+ * an allocation fails or the buffer would pass `limit` (0 = no limit). */
+typedef struct proto_buf {
+	char *data;
+	size_t len, cap, limit;
+	int oom;
+} proto_buf;
+
+void proto_buf_init(proto_buf *b);
+/* Frees the storage; the buffer is then empty and reusable. */
+void proto_buf_free(proto_buf *b);
+/* Hands the storage to the caller (free() it); the buffer is left empty. */
+char *proto_buf_take(proto_buf *b, size_t *len);
+int proto_buf_reserve(proto_buf *b, size_t extra);
+void proto_buf_append(proto_buf *b, const char *s, size_t n);
+
+/* Limits the protocol layer knows about. The server enforces the ones on
+ * bytes and connections; the protocol enforces the per-request ones and
+ * reports all of them in service.info. */
+typedef struct proto_limits {
+	size_t max_line;        /* bytes per request line */
+	size_t max_samples;     /* samples per request (0 = no limit) */
+	size_t max_work;        /* samples x angles per request (0 = none) */
+	size_t max_batch;       /* requests in one batch array */
+	int max_depth;          /* JSON nesting depth */
+	size_t max_conns;       /* concurrent connections */
+	size_t out_high_water;  /* unsent bytes per connection: stop reading */
+	size_t out_hard_limit;  /* unsent bytes per connection: close */
+	size_t global_budget;   /* buffered bytes over all connections */
+	double idle_timeout_s;  /* 0 = off */
+} proto_limits;
+
+/* Sets the defaults documented in protocol-docs/limits.md. */
+void proto_limits_default(proto_limits *lim);
+
+/* Server-side counters the protocol reports in service.info. The server
+ * updates them from the loop thread; readers may be other threads. */
+typedef struct proto_server_stats {
+	uint64_t connections_total;
+	uint64_t connections_open;
+	uint64_t connections_refused;
+	uint64_t connections_closed_slow;
+	uint64_t lines_oversized;
+	uint64_t bytes_in, bytes_out;
+	uint64_t buffered_bytes;
+	uint64_t reads_paused;
+	const char *transport;      /* "stdio", "unix:PATH", ... */
+} proto_server_stats;
+
+typedef struct proto_ctx proto_ctx;
+typedef struct proto_session proto_session;
+
+/* Creates the daemon-wide context (limits are copied). Returns NULL when
+ * out of memory; free with proto_ctx_free (NULL is a no-op). */
+proto_ctx *proto_ctx_new(const proto_limits *lim);
+void proto_ctx_free(proto_ctx *ctx);
+/* The server's counters inside ctx, for the server to update. */
+proto_server_stats *proto_ctx_server_stats(proto_ctx *ctx);
+const proto_limits *proto_ctx_limits(const proto_ctx *ctx);
+
+/* A per-connection session (units and other defaults). Returns NULL when
+ * out of memory; free with proto_session_free (NULL is a no-op). */
+proto_session *proto_session_new(proto_ctx *ctx);
+void proto_session_free(proto_session *s);
+
+/* Handles one request line (without its '\n'; a trailing '\r' is
+ * tolerated). Appends the response line, '\n' terminated, to `out`, or
+ * nothing for a notification, an all-notification batch or a blank line.
+ * Returns 0, or -1 when `out` ran out of memory (out->oom set). Safe to
+ * call from a worker thread as long as one session is used by one thread
+ * at a time. */
+int rw_proto_handle(proto_session *s, const char *line, size_t len,
+		    proto_buf *out);
+
+/* Appends an error response with id null: used by the server for lines it
+ * refuses before parsing (too long). `param` and `reason` go into
+ * error.data; either may be NULL. Counts the error. */
+void proto_error_line(proto_ctx *ctx, proto_buf *out, int code,
+		      const char *param, const char *reason);
+
+/* The published caution text (also in README and service.info). */
+extern const char proto_caution[];
+
+#endif

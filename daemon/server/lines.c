@@ -1,0 +1,117 @@
+/* Line framing: see lines.h. Consumed bytes are dropped by moving the
+ * unconsumed tail to the front when it is cheap (the tail is small or
+ * more than half the buffer is consumed), so a pipelined stream of small
+ * lines costs no quadratic copying and a long line is copied O(1) times
+ * per doubling. */
+#include <stdlib.h>
+#include <string.h>
+
+#include "server/lines.h"
+
+void srv_lines_init(srv_lines *lb, size_t max_line)
+{
+	memset(lb, 0, sizeof *lb);
+	lb->max_line = max_line;
+}
+
+void srv_lines_free(srv_lines *lb)
+{
+	free(lb->buf);
+	lb->buf = NULL;
+	lb->start = lb->len = lb->cap = lb->scan = 0;
+}
+
+size_t srv_lines_buffered(const srv_lines *lb)
+{
+	return lb->len - lb->start;
+}
+
+static void compact(srv_lines *lb)
+{
+	size_t keep = lb->len - lb->start;
+	if (lb->start == 0)
+		return;
+	if (keep)
+		memmove(lb->buf, lb->buf + lb->start, keep);
+	lb->len = keep;
+	lb->start = 0;
+}
+
+int srv_lines_append(srv_lines *lb, const char *data, size_t n)
+{
+	if (lb->discarding) {
+		const char *nl = memchr(data, '\n', n);
+		if (!nl)
+			return 0;
+		lb->discarding = 0;
+		n -= (size_t)(nl + 1 - data);
+		data = nl + 1;
+	}
+	if (!n)
+		return 0;
+	if (lb->start && (lb->start >= lb->len - lb->start ||
+			  lb->cap - lb->len < n))
+		compact(lb);
+	if (lb->cap - lb->len < n) {
+		size_t cap = lb->cap ? lb->cap : 4096;
+		char *b;
+		while (cap - lb->len < n) {
+			if (cap > ((size_t)-1) / 2)
+				return -1;
+			cap *= 2;
+		}
+		b = realloc(lb->buf, cap);
+		if (!b)
+			return -1;
+		lb->buf = b;
+		lb->cap = cap;
+	}
+	memcpy(lb->buf + lb->len, data, n);
+	lb->len += n;
+	return 0;
+}
+
+srv_line_status srv_lines_next(srv_lines *lb, const char **line, size_t *len)
+{
+	size_t avail = lb->len - lb->start;
+	const char *p = lb->buf + lb->start;
+	const char *nl;
+
+	if (!avail)
+		return SRV_LINE_NONE;
+	nl = memchr(p + lb->scan, '\n', avail - lb->scan);
+	if (!nl) {
+		lb->scan = avail;
+		if (avail > lb->max_line) {
+			/* Over the limit with no end in sight: drop what we
+			 * hold and skip the rest of the line as it arrives. */
+			lb->start = lb->len = lb->scan = 0;
+			lb->discarding = 1;
+			return SRV_LINE_OVERSIZE;
+		}
+		return SRV_LINE_NONE;
+	}
+	*line = p;
+	*len = (size_t)(nl - p);
+	lb->start += *len + 1;
+	lb->scan = 0;
+	if (lb->start == lb->len)
+		lb->start = lb->len = 0;
+	if (*len > lb->max_line)
+		return SRV_LINE_OVERSIZE;
+	return SRV_LINE_OK;
+}
+
+srv_line_status srv_lines_tail(srv_lines *lb, const char **line, size_t *len)
+{
+	size_t avail = lb->len - lb->start;
+
+	if (!avail || lb->discarding)
+		return SRV_LINE_NONE;
+	*line = lb->buf + lb->start;
+	*len = avail;
+	lb->start = lb->len = lb->scan = 0;
+	if (*len > lb->max_line)
+		return SRV_LINE_OVERSIZE;
+	return SRV_LINE_OK;
+}

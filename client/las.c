@@ -47,8 +47,8 @@ struct cli_las_reader {
 	size_t header_bytes;
 	size_t curves[CLI_LAS_MAX_CURVES]; /* indices into lines */
 	size_t ncurves;
-	char sec;       /* current section letter, 0 before ~V */
-	unsigned seen;  /* SEC_* */
+	char sec;               /* current section letter, 0 before ~V */
+	unsigned seen;          /* SEC_* */
 	unsigned long sec_line; /* line of the current section header */
 	int header_done;
 	int have_vers, have_wrap, wrap;
@@ -72,8 +72,7 @@ static const char empty[] = "";
 
 /* Records the fatal error "line N: ..." and kills the reader. Returns
  * CLI_LAS_ERR. */
-static int fail(cli_las_reader *r, unsigned long lineno, const char *fmt,
-		...)
+static int fail(cli_las_reader *r, unsigned long lineno, const char *fmt, ...)
 {
 	va_list ap;
 	int n;
@@ -93,8 +92,7 @@ static int fail(cli_las_reader *r, unsigned long lineno, const char *fmt,
 }
 
 /* Counts a warning and keeps the text of the first one. */
-static void warn(cli_las_reader *r, unsigned long lineno, const char *fmt,
-		 ...)
+static void warn(cli_las_reader *r, unsigned long lineno, const char *fmt, ...)
 {
 	va_list ap;
 	int n;
@@ -203,7 +201,7 @@ static int eq_nocase(const char *a, const char *b)
 }
 
 const cli_las_line *cli_las_find(const cli_las_reader *r, char sec,
-				 const char *mnem)
+                                 const char *mnem)
 {
 	size_t i;
 
@@ -276,7 +274,7 @@ static char *put_trim(char **dst, const char *b, const char *e)
 /* Appends a kept header line; for items splits the fields. Returns the
  * new line or NULL (reader killed). */
 static cli_las_line *keep_line(cli_las_reader *r, int kind, const char *s,
-			       size_t n)
+                               size_t n)
 {
 	cli_las_line *l;
 	char *mem;
@@ -320,22 +318,22 @@ static int close_section(cli_las_reader *r)
 	if (r->sec == 'V') {
 		if (!r->have_vers)
 			return fail(r, r->sec_line,
-				    "~V section has no VERS item");
+			            "~V section has no VERS item");
 		if (!r->have_wrap)
 			return fail(r, r->sec_line,
-				    "~V section has no WRAP item");
+			            "~V section has no WRAP item");
 	} else if (r->sec == 'W') {
 		static const char *const need[] = {"STRT", "STOP", "STEP",
-						   "NULL"};
+		                                   "NULL"};
 		const int have[] = {r->have_strt, r->have_stop, r->have_step,
-				    r->have_null};
+		                    r->have_null};
 		size_t i;
 
 		for (i = 0; i < 4; i++)
 			if (!have[i])
 				return fail(r, r->sec_line,
-					    "~W section has no %s item",
-					    need[i]);
+				            "~W section has no %s item",
+				            need[i]);
 	} else if (r->sec == 'C' && r->ncurves == 0) {
 		return fail(r, r->sec_line, "~C section has no curves");
 	}
@@ -357,7 +355,7 @@ static unsigned sec_bit(char c)
 
 /* A "~X" line in the header. */
 static int section_line(cli_las_reader *r, const char *s, size_t n,
-			const char *p)
+                        const char *p)
 {
 	char c = (char)toupper((unsigned char)p[1]);
 	unsigned bit = sec_bit(c);
@@ -366,12 +364,12 @@ static int section_line(cli_las_reader *r, const char *s, size_t n,
 		return fail(r, r->lineno, "'~' without a section letter");
 	if (!bit)
 		return fail(r, r->lineno,
-			    "unknown section ~%c (LAS 2.0 has ~V ~W ~C ~P ~O "
-			    "~A)",
-			    isprint((unsigned char)p[1]) ? p[1] : '?');
+		            "unknown section ~%c (LAS 2.0 has ~V ~W ~C ~P ~O "
+		            "~A)",
+		            isprint((unsigned char)p[1]) ? p[1] : '?');
 	if (!r->seen && c != 'V')
 		return fail(r, r->lineno, "first section is ~%c, expected ~V",
-			    c);
+		            c);
 	if (r->seen & bit)
 		return fail(r, r->lineno, "duplicate ~%c section", c);
 	if (close_section(r) != CLI_LAS_OK)
@@ -386,7 +384,7 @@ static int section_line(cli_las_reader *r, const char *s, size_t n,
 	r->sec = c;
 	r->sec_line = r->lineno;
 	if (!keep_line(r, c == 'A' ? CLI_LAS_LINE_DATA : CLI_LAS_LINE_SECTION,
-		       s, n))
+	               s, n))
 		return CLI_LAS_ERR;
 	if (c == 'A') {
 		r->header_done = 1;
@@ -397,11 +395,11 @@ static int section_line(cli_las_reader *r, const char *s, size_t n,
 
 /* Parses a numeric ~W item into *v. */
 static int w_number(cli_las_reader *r, const cli_las_line *l, double *v,
-		    int *have)
+                    int *have)
 {
 	if (!parse_num(l->value, v))
 		return fail(r, r->lineno, "%s value '%.40s' is not a number",
-			    l->mnem, l->value);
+		            l->mnem, l->value);
 	*have = 1;
 	return CLI_LAS_OK;
 }
@@ -414,8 +412,8 @@ static int item_meaning(cli_las_reader *r, const cli_las_line *l)
 	if (r->sec == 'V' && eq_nocase(l->mnem, "VERS")) {
 		if (!parse_num(l->value, &v) || v != 2.0)
 			return fail(r, r->lineno,
-				    "VERS is '%.40s', this reader handles 2.0",
-				    l->value);
+			            "VERS is '%.40s', this reader handles 2.0",
+			            l->value);
 		r->have_vers = 1;
 	} else if (r->sec == 'V' && eq_nocase(l->mnem, "WRAP")) {
 		if (eq_nocase(l->value, "YES"))
@@ -424,8 +422,8 @@ static int item_meaning(cli_las_reader *r, const cli_las_line *l)
 			r->wrap = 0;
 		else
 			return fail(r, r->lineno,
-				    "WRAP is '%.40s', expected YES or NO",
-				    l->value);
+			            "WRAP is '%.40s', expected YES or NO",
+			            l->value);
 		r->have_wrap = 1;
 	} else if (r->sec == 'W' && eq_nocase(l->mnem, "STRT")) {
 		return w_number(r, l, &r->strt, &r->have_strt);
@@ -438,15 +436,14 @@ static int item_meaning(cli_las_reader *r, const cli_las_line *l)
 	} else if (r->sec == 'C') {
 		if (r->ncurves >= CLI_LAS_MAX_CURVES)
 			return fail(r, r->lineno, "more than %u curves",
-				    CLI_LAS_MAX_CURVES);
+			            CLI_LAS_MAX_CURVES);
 		r->curves[r->ncurves++] = r->nlines - 1;
 	}
 	return CLI_LAS_OK;
 }
 
 /* "MNEM.UNIT DATA : DESCRIPTION" in ~V, ~W, ~C or ~P. */
-static int item_line(cli_las_reader *r, const char *s, size_t n,
-		     const char *p)
+static int item_line(cli_las_reader *r, const char *s, size_t n, const char *p)
 {
 	const char *end = s + n, *dot, *colon, *u, *ue, *q, *me;
 	cli_las_line *l;
@@ -454,8 +451,10 @@ static int item_line(cli_las_reader *r, const char *s, size_t n,
 
 	dot = memchr(p, '.', (size_t)(end - p));
 	if (!dot)
-		return fail(r, r->lineno, "%s line has no '.' after the "
-			    "mnemonic", r->sec == 'C' ? "curve" : "header");
+		return fail(r, r->lineno,
+		            "%s line has no '.' after the "
+		            "mnemonic",
+		            r->sec == 'C' ? "curve" : "header");
 	colon = NULL;
 	for (q = end; q > dot + 1;)
 		if (*--q == ':') {
@@ -463,8 +462,9 @@ static int item_line(cli_las_reader *r, const char *s, size_t n,
 			break;
 		}
 	if (!colon)
-		return fail(r, r->lineno, "header line has no ':' before the "
-			    "description");
+		return fail(r, r->lineno,
+		            "header line has no ':' before the "
+		            "description");
 	me = dot; /* the standard layout pads short mnemonics: "FLD ." */
 	while (me > p && is_blank((unsigned char)me[-1]))
 		me--;
@@ -475,8 +475,8 @@ static int item_line(cli_las_reader *r, const char *s, size_t n,
 		return fail(r, r->lineno, "empty mnemonic before '.'");
 	if (q < me)
 		return fail(r, r->lineno, "mnemonic '%.*s' contains '%c'",
-			    (int)(me - p > 40 ? 40 : me - p), p,
-			    *q == ':' ? ':' : ' ');
+		            (int)(me - p > 40 ? 40 : me - p), p,
+		            *q == ':' ? ':' : ' ');
 	u = dot + 1;
 	for (ue = u; ue < colon && !is_blank((unsigned char)*ue); ue++)
 		;
@@ -499,17 +499,17 @@ static int header_line(cli_las_reader *r, const char *s, size_t n)
 	r->header_bytes += n + 1;
 	if (r->header_bytes > CLI_LAS_MAX_HEADER)
 		return fail(r, r->lineno, "header exceeds %u bytes",
-			    CLI_LAS_MAX_HEADER);
+		            CLI_LAS_MAX_HEADER);
 	while (p < end && is_blank((unsigned char)*p))
 		p++;
 	if (p < end && *p == '~')
 		return section_line(r, s, n, p);
 	if (p < end && *p == '#')
 		return keep_line(r, CLI_LAS_LINE_COMMENT, s, n) ? CLI_LAS_OK
-								  : CLI_LAS_ERR;
+		                                                : CLI_LAS_ERR;
 	if (p == end || r->sec == 'O')
 		return keep_line(r, CLI_LAS_LINE_TEXT, s, n) ? CLI_LAS_OK
-							     : CLI_LAS_ERR;
+		                                             : CLI_LAS_ERR;
 	if (!r->sec)
 		return fail(r, r->lineno, "text before the ~V section");
 	return item_line(r, s, n, p);
@@ -535,14 +535,18 @@ static int store_row(cli_las_reader *r)
 		return fail(r, r->row_line, "depth is the NULL value");
 	if (r->nrows == 0) {
 		if (fabs(depth - r->strt) > depth_tol(r, r->strt))
-			warn(r, r->row_line, "first depth %.10g differs from "
-			     "STRT %.10g", depth, r->strt);
+			warn(r, r->row_line,
+			     "first depth %.10g differs from "
+			     "STRT %.10g",
+			     depth, r->strt);
 	} else if (r->step != 0.0) {
 		double d = depth - r->last_depth;
 
 		if (fabs(d - r->step) > depth_tol(r, r->step))
-			warn(r, r->row_line, "depth step %.10g differs from "
-			     "STEP %.10g", d, r->step);
+			warn(r, r->row_line,
+			     "depth step %.10g differs from "
+			     "STEP %.10g",
+			     d, r->step);
 	}
 	for (i = 0; i < r->ncurves; i++)
 		dst[i] = r->acc[i] == r->null_value ? NAN : r->acc[i];
@@ -565,16 +569,19 @@ static int data_line(cli_las_reader *r, char *s, size_t n)
 	if (p == end || *p == '#')
 		return CLI_LAS_OK;
 	if (*p == '~')
-		return fail(r, r->lineno, "section line after ~A (~A must be "
-			    "the last section)");
+		return fail(r, r->lineno,
+		            "section line after ~A (~A must be "
+		            "the last section)");
 	if (r->block_n >= r->block_max)
 		return CLI_LAS_FULL;
 	if (r->nacc == 0)
 		r->row_line = r->lineno;
 	wrapped_first = r->wrap && r->nacc == 0;
 	if (r->wrap && n > WRAP_LINE_MAX)
-		warn(r, r->lineno, "wrapped data line longer than %u "
-		     "characters", WRAP_LINE_MAX);
+		warn(r, r->lineno,
+		     "wrapped data line longer than %u "
+		     "characters",
+		     WRAP_LINE_MAX);
 	room = r->ncurves - r->nacc;
 	while (p < end) {
 		tok = p;
@@ -582,27 +589,34 @@ static int data_line(cli_las_reader *r, char *s, size_t n)
 			p++;
 		*p = '\0'; /* s has room: the buffer holds MAX_LINE + 1 */
 		if (ntok < room && !parse_num(tok, &r->acc[r->nacc + ntok]))
-			return fail(r, r->lineno, "value %zu ('%.32s') is not "
-				    "a number", ntok + 1, tok);
+			return fail(r, r->lineno,
+			            "value %zu ('%.32s') is not "
+			            "a number",
+			            ntok + 1, tok);
 		ntok++;
 		p++;
 		while (p < end && is_blank((unsigned char)*p))
 			p++;
 	}
 	if (wrapped_first && ntok != 1)
-		return fail(r, r->lineno, "wrapped data: depth line has %zu "
-			    "values, expected the depth alone", ntok);
+		return fail(r, r->lineno,
+		            "wrapped data: depth line has %zu "
+		            "values, expected the depth alone",
+		            ntok);
 	if (!r->wrap) {
 		if (ntok != r->ncurves)
-			return fail(r, r->lineno, "data row has %zu values, "
-				    "expected %zu", ntok, r->ncurves);
+			return fail(r, r->lineno,
+			            "data row has %zu values, "
+			            "expected %zu",
+			            ntok, r->ncurves);
 		r->nacc = ntok;
 		return store_row(r);
 	}
 	if (ntok > room)
-		return fail(r, r->lineno, "wrapped row starting at line %lu "
-			    "has more than %zu values", r->row_line,
-			    r->ncurves);
+		return fail(r, r->lineno,
+		            "wrapped row starting at line %lu "
+		            "has more than %zu values",
+		            r->row_line, r->ncurves);
 	r->nacc += ntok;
 	if (r->nacc == r->ncurves)
 		return store_row(r);
@@ -628,8 +642,7 @@ static int process_line(cli_las_reader *r)
 	return rc;
 }
 
-int cli_las_feed(cli_las_reader *r, const void *buf, size_t len,
-		 size_t *used)
+int cli_las_feed(cli_las_reader *r, const void *buf, size_t len, size_t *used)
 {
 	const unsigned char *b = buf;
 	size_t i = 0;
@@ -656,8 +669,10 @@ int cli_las_feed(cli_las_reader *r, const void *buf, size_t len,
 		} else if (b[i] == '\0') {
 			return fail(r, r->lineno + 1, "NUL byte");
 		} else if (r->linelen >= CLI_LAS_MAX_LINE) {
-			return fail(r, r->lineno + 1, "line longer than %u "
-				    "bytes", CLI_LAS_MAX_LINE);
+			return fail(r, r->lineno + 1,
+			            "line longer than %u "
+			            "bytes",
+			            CLI_LAS_MAX_LINE);
 		} else {
 			r->line[r->linelen++] = (char)b[i];
 		}
@@ -687,22 +702,25 @@ int cli_las_finish(cli_las_reader *r)
 	if (!r->header_done) {
 		if (!(r->seen & SEC_V))
 			return fail(r, r->lineno ? r->lineno : 1,
-				    "end of input: no ~V "
-				    "section");
+			            "end of input: no ~V "
+			            "section");
 		if (close_section(r) != CLI_LAS_OK)
 			return CLI_LAS_ERR;
 		if (!(r->seen & SEC_W))
-			return fail(r, r->lineno, "end of input: no ~W "
-				    "section");
+			return fail(r, r->lineno,
+			            "end of input: no ~W "
+			            "section");
 		if (!(r->seen & SEC_C))
-			return fail(r, r->lineno, "end of input: no ~C "
-				    "section");
+			return fail(r, r->lineno,
+			            "end of input: no ~C "
+			            "section");
 		return fail(r, r->lineno, "end of input: no ~A section");
 	}
 	if (r->nacc > 0)
-		return fail(r, r->lineno, "end of input inside the wrapped "
-			    "row starting at line %lu (%zu of %zu values)",
-			    r->row_line, r->nacc, r->ncurves);
+		return fail(r, r->lineno,
+		            "end of input inside the wrapped "
+		            "row starting at line %lu (%zu of %zu values)",
+		            r->row_line, r->nacc, r->ncurves);
 	if (r->nrows > 0 &&
 	    fabs(r->last_depth - r->stop) > depth_tol(r, r->stop))
 		warn(r, r->lineno, "last depth %.10g differs from STOP %.10g",
@@ -719,8 +737,9 @@ int cli_las_read(cli_las_reader *r, FILE *fp)
 	if (r->dead)
 		return CLI_LAS_ERR;
 	if (r->header_done && r->block_max == 0)
-		return fail(r, r->lineno, "no row block set before reading "
-			    "data");
+		return fail(r, r->lineno,
+		            "no row block set before reading "
+		            "data");
 	if (!r->chunk) {
 		r->chunk = malloc(CHUNK);
 		if (!r->chunk)
@@ -729,7 +748,7 @@ int cli_las_read(cli_las_reader *r, FILE *fp)
 	for (;;) {
 		if (r->chunk_off < r->chunk_len) {
 			rc = cli_las_feed(r, r->chunk + r->chunk_off,
-					  r->chunk_len - r->chunk_off, &used);
+			                  r->chunk_len - r->chunk_off, &used);
 			r->chunk_off += used;
 			if (rc == CLI_LAS_FULL)
 				return CLI_LAS_OK;
@@ -763,8 +782,7 @@ static int fmt_value(char *buf, size_t size, double v, int decimals)
 	if (!isfinite(v))
 		return -1;
 	if (a != 0.0 && (a < 0.5 * pow(10.0, -decimals) || a >= 1e15))
-		n = snprintf(buf, size, "%.*e", decimals > 6 ? decimals : 6,
-			     v);
+		n = snprintf(buf, size, "%.*e", decimals > 6 ? decimals : 6, v);
 	else
 		n = snprintf(buf, size, "%.*f", decimals, v);
 	return n < 0 || (size_t)n >= size ? -1 : 0;
@@ -775,13 +793,13 @@ static int werr(char *err, size_t errlen, const char *msg, const char *what)
 {
 	if (err && errlen)
 		snprintf(err, errlen, "%s%s%.40s%s", msg, what ? " '" : "",
-			 what ? what : "", what ? "'" : "");
+		         what ? what : "", what ? "'" : "");
 	return -1;
 }
 
 /* Checks the curves and note the writer would add. */
 static int check_additions(const cli_las_newcurve *add, size_t nadd,
-			   const char *note, char *err, size_t errlen)
+                           const char *note, char *err, size_t errlen)
 {
 	size_t i;
 	const char *p;
@@ -791,16 +809,21 @@ static int check_additions(const cli_las_newcurve *add, size_t nadd,
 
 		if (!m || !*m || *m == '#' || *m == '~' ||
 		    strpbrk(m, " \t.:\r\n"))
-			return werr(err, errlen, "new curve mnemonic must be "
-				    "non-empty, without space '.' ':' or a "
-				    "leading '#' '~':", m ? m : "");
+			return werr(err, errlen,
+			            "new curve mnemonic must be "
+			            "non-empty, without space '.' ':' or a "
+			            "leading '#' '~':",
+			            m ? m : "");
 		if (add[i].unit && strpbrk(add[i].unit, " \t:\r\n"))
-			return werr(err, errlen, "new curve unit must not "
-				    "contain space or ':':", add[i].unit);
+			return werr(err, errlen,
+			            "new curve unit must not "
+			            "contain space or ':':",
+			            add[i].unit);
 		if (add[i].desc && strpbrk(add[i].desc, ":\r\n"))
-			return werr(err, errlen, "new curve description must "
-				    "not contain ':' or a line break:",
-				    add[i].desc);
+			return werr(err, errlen,
+			            "new curve description must "
+			            "not contain ':' or a line break:",
+			            add[i].desc);
 	}
 	for (p = note; p && *p;) {
 		const char *q = p;
@@ -808,8 +831,10 @@ static int check_additions(const cli_las_newcurve *add, size_t nadd,
 		while (*q == ' ' || *q == '\t')
 			q++;
 		if (*q == '~')
-			return werr(err, errlen, "note line must not start "
-				    "with '~'", NULL);
+			return werr(err, errlen,
+			            "note line must not start "
+			            "with '~'",
+			            NULL);
 		q = strchr(p, '\n');
 		if (!q)
 			break;
@@ -824,8 +849,8 @@ static int write_curves(FILE *fp, const cli_las_newcurve *add, size_t nadd)
 
 	for (i = 0; i < nadd; i++)
 		if (fprintf(fp, " %s.%s  : %s\n", add[i].mnem,
-			    add[i].unit ? add[i].unit : "",
-			    add[i].desc ? add[i].desc : "") < 0)
+		            add[i].unit ? add[i].unit : "",
+		            add[i].desc ? add[i].desc : "") < 0)
 			return -1;
 	return 0;
 }
@@ -846,15 +871,14 @@ static int write_note(FILE *fp, const char *note)
 }
 
 int cli_las_write_header(FILE *fp, const cli_las_reader *r,
-			 const cli_las_newcurve *add, size_t nadd,
-			 const char *note, char *err, size_t errlen)
+                         const cli_las_newcurve *add, size_t nadd,
+                         const char *note, char *err, size_t errlen)
 {
 	char prev = 0;
 	size_t i;
 
 	if (!r->header_done || r->dead)
-		return werr(err, errlen, "reader has no complete header",
-			    NULL);
+		return werr(err, errlen, "reader has no complete header", NULL);
 	if (check_additions(add, nadd, note, err, errlen))
 		return -1;
 	for (i = 0; i < r->nlines; i++) {
@@ -877,7 +901,7 @@ int cli_las_write_header(FILE *fp, const cli_las_reader *r,
 		if (l->kind == CLI_LAS_LINE_ITEM && l->section == 'V' &&
 		    eq_nocase(l->mnem, "WRAP") && r->wrap)
 			rc |= fprintf(fp, "WRAP.   NO  : One line per depth "
-				      "step\n") < 0;
+			                  "step\n") < 0;
 		else if (l->kind == CLI_LAS_LINE_DATA && nadd > 0)
 			rc |= fprintf(fp, "~A\n") < 0;
 		else
@@ -888,8 +912,8 @@ int cli_las_write_header(FILE *fp, const cli_las_reader *r,
 	return 0;
 }
 
-int cli_las_write_rows(FILE *fp, const double *rows, size_t nrows,
-		       size_t ncols, double null_value, int decimals)
+int cli_las_write_rows(FILE *fp, const double *rows, size_t nrows, size_t ncols,
+                       double null_value, int decimals)
 {
 	char buf[64];
 	size_t i, j;
@@ -918,10 +942,10 @@ int cli_las_write_rows(FILE *fp, const double *rows, size_t nrows,
 static int csv_name(FILE *fp, const char *mnem, const char *unit)
 {
 	const char *part[4] = {mnem, unit && *unit ? "[" : "",
-			       unit && *unit ? unit : "",
-			       unit && *unit ? "]" : ""};
-	int quote = strpbrk(mnem, ",\"\r\n") ||
-		    (unit && strpbrk(unit, ",\"\r\n"));
+	                       unit && *unit ? unit : "",
+	                       unit && *unit ? "]" : ""};
+	int quote =
+	    strpbrk(mnem, ",\"\r\n") || (unit && strpbrk(unit, ",\"\r\n"));
 	const char *s;
 	size_t i;
 
@@ -938,7 +962,7 @@ static int csv_name(FILE *fp, const char *mnem, const char *unit)
 }
 
 int cli_las_write_csv_header(FILE *fp, const cli_las_reader *r,
-			     const cli_las_newcurve *add, size_t nadd)
+                             const cli_las_newcurve *add, size_t nadd)
 {
 	size_t i, k = 0;
 
@@ -957,7 +981,7 @@ int cli_las_write_csv_header(FILE *fp, const cli_las_reader *r,
 }
 
 int cli_las_write_csv_rows(FILE *fp, const double *rows, size_t nrows,
-			   size_t ncols, int decimals)
+                           size_t ncols, int decimals)
 {
 	char buf[64];
 	size_t i, j;

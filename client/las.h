@@ -82,8 +82,7 @@ size_t cli_las_rows(const cli_las_reader *r);
  * take the rows, cli_las_set_block, call again with the rest; a complete
  * line may be held until then) or CLI_LAS_ERR (the reader is dead; every
  * later call returns CLI_LAS_ERR). Any byte sequence is safe. */
-int cli_las_feed(cli_las_reader *r, const void *buf, size_t len,
-		 size_t *used);
+int cli_las_feed(cli_las_reader *r, const void *buf, size_t len, size_t *used);
 /* Declares end of input: processes a last line without end of line and
  * checks that the file is complete. Returns CLI_LAS_OK, CLI_LAS_FULL (set
  * a new block and call again) or CLI_LAS_ERR. */
@@ -116,7 +115,7 @@ const cli_las_line *cli_las_curve(const cli_las_reader *r, size_t i);
 /* First item with this mnemonic (case-insensitive) in section sec, or
  * NULL. */
 const cli_las_line *cli_las_find(const cli_las_reader *r, char sec,
-				 const char *mnem);
+                                 const char *mnem);
 /* NULL value from ~W, the input WRAP (1 = YES), and STEP (0 = variable). */
 double cli_las_null(const cli_las_reader *r);
 int cli_las_wrapped(const cli_las_reader *r);
@@ -129,26 +128,27 @@ double cli_las_step(const cli_las_reader *r);
  * "~A" line when curves were added. Returns 0, or -1 with a message in
  * err (bad new curve or note line, or a write error). */
 int cli_las_write_header(FILE *fp, const cli_las_reader *r,
-			 const cli_las_newcurve *add, size_t nadd,
-			 const char *note, char *err, size_t errlen);
+                         const cli_las_newcurve *add, size_t nadd,
+                         const char *note, char *err, size_t errlen);
 /* Writes nrows rows of ncols doubles (row-major) as ~A lines, one line
  * per depth, each value " %.*f" with decimals digits (0..15), NaN as
- * null_value in %.15g form (so it reads back as NULL); a non-zero value too small to show a digit at that
- * precision, or of magnitude 1e15 or more, is written in %.*e form so no
- * value is rounded to zero or to a long digit string. Returns 0, -1 on a
- * write error or bad decimals or a non-finite non-NaN value. */
-int cli_las_write_rows(FILE *fp, const double *rows, size_t nrows,
-		       size_t ncols, double null_value, int decimals);
+ * null_value in %.15g form (so it reads back as NULL); a non-zero value too
+ * small to show a digit at that precision, or of magnitude 1e15 or more, is
+ * written in %.*e form so no value is rounded to zero or to a long digit
+ * string. Returns 0, -1 on a write error or bad decimals or a non-finite
+ * non-NaN value. */
+int cli_las_write_rows(FILE *fp, const double *rows, size_t nrows, size_t ncols,
+                       double null_value, int decimals);
 
 /* CSV header row "MNEM[UNIT],..." for the curves of r followed by add
  * (a curve without unit is written "MNEM"); fields with ',' or '"' are
  * quoted. Returns 0 or -1 on a write error. */
 int cli_las_write_csv_header(FILE *fp, const cli_las_reader *r,
-			     const cli_las_newcurve *add, size_t nadd);
+                             const cli_las_newcurve *add, size_t nadd);
 /* CSV data rows, values as in cli_las_write_rows, NaN as an empty field.
  * Returns 0 or -1 on a write error or bad decimals. */
 int cli_las_write_csv_rows(FILE *fp, const double *rows, size_t nrows,
-			   size_t ncols, int decimals);
+                           size_t ncols, int decimals);
 
 #ifdef __cplusplus
 }

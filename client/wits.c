@@ -52,7 +52,7 @@ static int parse_item(const char *s, cli_wits_item *it)
 	if (end == v || *end != '\0' || !isfinite(x))
 		return 0;
 	it->code = (unsigned)((s[0] - '0') * 1000 + (s[1] - '0') * 100 +
-			      (s[2] - '0') * 10 + (s[3] - '0'));
+	                      (s[2] - '0') * 10 + (s[3] - '0'));
 	it->value = x;
 	return 1;
 }

@@ -30,13 +30,13 @@ typedef struct cli_wits_stats {
 	unsigned long records;      /* records delivered */
 	unsigned long items;        /* items delivered */
 	unsigned long bad_records;  /* skipped: a bad or over-long line, or
-				     * too many items */
+	                             * too many items */
 	unsigned long unterminated; /* skipped: "&&" again, or end of input,
-				     * before "!!" */
+	                             * before "!!" */
 	unsigned long empty;        /* "&&" "!!" with no items (not
-				     * delivered) */
+	                             * delivered) */
 	unsigned long bad_lines;    /* lines in a record without 4 digits and
-				     * a finite number */
+	                             * a finite number */
 	unsigned long long_lines;   /* lines over CLI_WITS_MAX_LINE */
 	unsigned long garbage;      /* non-blank lines outside a record */
 } cli_wits_stats;

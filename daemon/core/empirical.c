@@ -17,7 +17,7 @@
 #define MUDROCK_VMIN 1500.0
 #define MUDROCK_VMAX 6000.0
 /* Mudrock line constants, km/s (Castagna et al. 1985). */
-#define MUDROCK_SLOPE 1.16
+#define MUDROCK_SLOPE   1.16
 #define MUDROCK_ICPT_MS 1360.0
 /* Velocity span for Greenberg-Castagna warnings, m/s (common practice). */
 #define GC_VMIN 1500.0
@@ -29,18 +29,18 @@
 /* Upper porosity of the Raymer et al. 1980 low-porosity form. */
 #define RHG_PHI_MAX 0.37
 /* Span of the Han et al. 1986 samples, from memory. */
-#define HAN_PHI_MIN 0.02
-#define HAN_PHI_MAX 0.30
+#define HAN_PHI_MIN  0.02
+#define HAN_PHI_MAX  0.30
 #define HAN_CLAY_MAX 0.50
 
 /* Greenberg & Castagna 1992 regression coefficients {a2, a1, a0} for
  * vs = a2 vp^2 + a1 vp + a0 in km/s, brine-saturated pure lithologies, as
  * quoted in Mavko et al. 2009 sec. 7.9 (from memory). */
 static const double gc_coef[RW_EMP_NLITH][3] = {
-	[RW_EMP_SANDSTONE] = {0.0, 0.80416, -0.85588},
-	[RW_EMP_LIMESTONE] = {-0.05508, 1.01677, -1.03049},
-	[RW_EMP_DOLOMITE] = {0.0, 0.58321, -0.07775},
-	[RW_EMP_SHALE] = {0.0, 0.76969, -0.86735},
+    [RW_EMP_SANDSTONE] = {0.0, 0.80416, -0.85588},
+    [RW_EMP_LIMESTONE] = {-0.05508, 1.01677, -1.03049},
+    [RW_EMP_DOLOMITE] = {0.0, 0.58321, -0.07775},
+    [RW_EMP_SHALE] = {0.0, 0.76969, -0.86735},
 };
 
 /* Han, Nur & Morgan 1986 water-saturated fits, km/s:
@@ -48,11 +48,11 @@ static const double gc_coef[RW_EMP_NLITH][3] = {
  * effective pressure (40 MPa is their headline fit; the others as
  * tabulated in Mavko et al. 2009 sec. 7.9; all from memory). */
 static const double han_coef[RW_EMP_HAN_NSETS][6] = {
-	[RW_EMP_HAN_40MPA] = {5.59, 6.93, 2.18, 3.52, 4.91, 1.89},
-	[RW_EMP_HAN_30MPA] = {5.55, 6.96, 2.18, 3.47, 4.84, 1.87},
-	[RW_EMP_HAN_20MPA] = {5.49, 6.94, 2.17, 3.39, 4.73, 1.81},
-	[RW_EMP_HAN_10MPA] = {5.39, 7.08, 2.13, 3.29, 4.73, 1.74},
-	[RW_EMP_HAN_5MPA] = {5.26, 7.08, 2.02, 3.16, 4.77, 1.64},
+    [RW_EMP_HAN_40MPA] = {5.59, 6.93, 2.18, 3.52, 4.91, 1.89},
+    [RW_EMP_HAN_30MPA] = {5.55, 6.96, 2.18, 3.47, 4.84, 1.87},
+    [RW_EMP_HAN_20MPA] = {5.49, 6.94, 2.17, 3.39, 4.73, 1.81},
+    [RW_EMP_HAN_10MPA] = {5.39, 7.08, 2.13, 3.29, 4.73, 1.74},
+    [RW_EMP_HAN_5MPA] = {5.26, 7.08, 2.02, 3.16, 4.77, 1.64},
 };
 
 /* Sets *w to 0 when w is not NULL. */
@@ -87,8 +87,8 @@ static int ma_fl_ok(double v_ma, double v_fl)
 	return pos(v_ma) && pos(v_fl) && v_fl < v_ma;
 }
 
-int rw_emp_gardner_density(double vp_ms, double a, double b,
-			   double *rho_kgm3, unsigned *warn)
+int rw_emp_gardner_density(double vp_ms, double a, double b, double *rho_kgm3,
+                           unsigned *warn)
 {
 	double rho;
 
@@ -106,7 +106,7 @@ int rw_emp_gardner_density(double vp_ms, double a, double b,
 }
 
 int rw_emp_gardner_vp(double rho_kgm3, double a, double b, double *vp_ms,
-		      unsigned *warn)
+                      unsigned *warn)
 {
 	double vp;
 
@@ -182,7 +182,7 @@ int rw_emp_gc_vs(double vp_ms, int lith, double *vs_ms, unsigned *warn)
 }
 
 int rw_emp_gc_vs_mixed(double vp_ms, const double frac[RW_EMP_NLITH],
-		       double *vs_ms, unsigned *warn)
+                       double *vs_ms, unsigned *warn)
 {
 	double sum = 0.0, arith = 0.0, inv = 0.0, vs;
 	int i;
@@ -217,7 +217,7 @@ int rw_emp_gc_vs_mixed(double vp_ms, const double frac[RW_EMP_NLITH],
 }
 
 int rw_emp_han_velocities(double phi, double clay, int pset, double *vp_ms,
-			  double *vs_ms, unsigned *warn)
+                          double *vs_ms, unsigned *warn)
 {
 	const double *c;
 	double vp, vs;
@@ -244,7 +244,7 @@ int rw_emp_han_velocities(double phi, double clay, int pset, double *vp_ms,
 }
 
 int rw_emp_wyllie_velocity(double phi, double v_ma_ms, double v_fl_ms,
-			   double *v_ms, unsigned *warn)
+                           double *v_ms, unsigned *warn)
 {
 	*v_ms = NAN;
 	warn_clear(warn);
@@ -257,7 +257,7 @@ int rw_emp_wyllie_velocity(double phi, double v_ma_ms, double v_fl_ms,
 }
 
 int rw_emp_wyllie_porosity_dt(double dt_sm, double dt_ma_sm, double dt_fl_sm,
-			      double *phi, unsigned *warn)
+                              double *phi, unsigned *warn)
 {
 	double p;
 
@@ -275,7 +275,7 @@ int rw_emp_wyllie_porosity_dt(double dt_sm, double dt_ma_sm, double dt_fl_sm,
 }
 
 int rw_emp_wyllie_porosity(double v_ms, double v_ma_ms, double v_fl_ms,
-			   double *phi, unsigned *warn)
+                           double *phi, unsigned *warn)
 {
 	*phi = NAN;
 	warn_clear(warn);
@@ -284,11 +284,11 @@ int rw_emp_wyllie_porosity(double v_ms, double v_ma_ms, double v_fl_ms,
 	if (!isfinite(v_ms) || v_ms < v_fl_ms || v_ms > v_ma_ms)
 		return RW_EDOM;
 	return rw_emp_wyllie_porosity_dt(1.0 / v_ms, 1.0 / v_ma_ms,
-					 1.0 / v_fl_ms, phi, warn);
+	                                 1.0 / v_fl_ms, phi, warn);
 }
 
 int rw_emp_rhg_velocity(double phi, double v_ma_ms, double v_fl_ms,
-			double *v_ms, unsigned *warn)
+                        double *v_ms, unsigned *warn)
 {
 	double x = 1.0 - phi;
 
@@ -303,7 +303,7 @@ int rw_emp_rhg_velocity(double phi, double v_ma_ms, double v_fl_ms,
 }
 
 int rw_emp_rhg_porosity(double v_ms, double v_ma_ms, double v_fl_ms,
-			double *phi, unsigned *warn)
+                        double *phi, unsigned *warn)
 {
 	double disc, x, p;
 

@@ -55,8 +55,8 @@ enum {
  * the fit was drawn through, from memory; Mavko et al. 2009, sec. 7.9).
  * errors: RW_EDOM for a non-positive or non-finite argument;
  * RW_ERANGE if the result is not finite. */
-int rw_emp_gardner_density(double vp_ms, double a, double b,
-			   double *rho_kgm3, unsigned *warn);
+int rw_emp_gardner_density(double vp_ms, double a, double b, double *rho_kgm3,
+                           unsigned *warn);
 
 /* Inverse Gardner: vp = (rho / (1000 a))^(1/b) m/s (Gardner et al. 1974).
  * rho_kgm3 > 0, a > 0, b > 0, all finite.
@@ -65,7 +65,7 @@ int rw_emp_gardner_density(double vp_ms, double a, double b,
  * errors: RW_EDOM for a non-positive or non-finite argument;
  * RW_ERANGE if the result is not finite. */
 int rw_emp_gardner_vp(double rho_kgm3, double a, double b, double *vp_ms,
-		      unsigned *warn);
+                      unsigned *warn);
 
 /* Mudrock line, vp = 1.16 vs + 1360 m/s (Castagna et al. 1985,
  * 1.36 km/s), for water-saturated clastic silicate rock.
@@ -105,7 +105,7 @@ int rw_emp_gc_vs(double vp_ms, int lith, double *vs_ms, unsigned *warn);
  * RW_EINVAL when the fractions do not sum to 1; RW_ERANGE when a
  * lithology present gives vs <= 0. */
 int rw_emp_gc_vs_mixed(double vp_ms, const double frac[RW_EMP_NLITH],
-		       double *vs_ms, unsigned *warn);
+                       double *vs_ms, unsigned *warn);
 
 /* Han, Nur & Morgan 1986 water-saturated shaly-sandstone fits
  * vp = A - B phi - C c, vs = D - E phi - F c (km/s) at the effective
@@ -119,7 +119,7 @@ int rw_emp_gc_vs_mixed(double vp_ms, const double frac[RW_EMP_NLITH],
  * errors: RW_EINVAL for an unknown pset; RW_EDOM for phi or clay out of
  * range or non-finite; RW_ERANGE when a fitted velocity is <= 0. */
 int rw_emp_han_velocities(double phi, double clay, int pset, double *vp_ms,
-			  double *vs_ms, unsigned *warn);
+                          double *vs_ms, unsigned *warn);
 
 /* Wyllie et al. 1956 time average, 1/v = phi/v_fl + (1 - phi)/v_ma.
  * 0 < v_fl_ms < v_ma_ms finite, phi in [0, 1].
@@ -127,7 +127,7 @@ int rw_emp_han_velocities(double phi, double clay, int pset, double *vp_ms,
  * average is for consolidated rock and reads high in soft sand).
  * errors: RW_EDOM for arguments out of range or non-finite. */
 int rw_emp_wyllie_velocity(double phi, double v_ma_ms, double v_fl_ms,
-			   double *v_ms, unsigned *warn);
+                           double *v_ms, unsigned *warn);
 
 /* Wyllie et al. 1956 porosity from slowness,
  * phi = (dt - dt_ma) / (dt_fl - dt_ma), slownesses in s/m with
@@ -136,13 +136,13 @@ int rw_emp_wyllie_velocity(double phi, double v_ma_ms, double v_fl_ms,
  * errors: RW_EDOM for arguments out of range or non-finite (a slowness
  * faster than the matrix or slower than the fluid has no porosity). */
 int rw_emp_wyllie_porosity_dt(double dt_sm, double dt_ma_sm, double dt_fl_sm,
-			      double *phi, unsigned *warn);
+                              double *phi, unsigned *warn);
 
 /* Wyllie et al. 1956 porosity from velocity (the slowness form with
  * dt = 1/v). 0 < v_fl_ms < v_ma_ms finite, v_ms in [v_fl_ms, v_ma_ms].
  * warn and errors as rw_emp_wyllie_porosity_dt. */
 int rw_emp_wyllie_porosity(double v_ms, double v_ma_ms, double v_fl_ms,
-			   double *phi, unsigned *warn);
+                           double *phi, unsigned *warn);
 
 /* Raymer, Hunt & Gardner 1980 velocity, v = (1 - phi)^2 v_ma + phi v_fl,
  * their form for phi < 0.37. 0 < v_fl_ms < v_ma_ms finite, phi in [0, 1].
@@ -150,7 +150,7 @@ int rw_emp_wyllie_porosity(double v_ms, double v_ma_ms, double v_fl_ms,
  * they interpolate to a suspension model above it).
  * errors: RW_EDOM for arguments out of range or non-finite. */
 int rw_emp_rhg_velocity(double phi, double v_ma_ms, double v_fl_ms,
-			double *v_ms, unsigned *warn);
+                        double *v_ms, unsigned *warn);
 
 /* Raymer, Hunt & Gardner 1980 porosity from velocity: the root of
  * v_ma x^2 - v_fl x + (v_fl - v) = 0 with x = 1 - phi, taking
@@ -162,7 +162,7 @@ int rw_emp_rhg_velocity(double phi, double v_ma_ms, double v_fl_ms,
  * errors: RW_EDOM for arguments out of range or non-finite, or v below the
  * minimum of the quadratic (no real root). */
 int rw_emp_rhg_porosity(double v_ms, double v_ma_ms, double v_fl_ms,
-			double *phi, unsigned *warn);
+                        double *phi, unsigned *warn);
 
 #ifdef __cplusplus
 }

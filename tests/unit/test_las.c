@@ -57,7 +57,7 @@ struct parsed {
 	cli_las_reader *r;
 	double *rows; /* all rows, malloc'd */
 	size_t nrows, cap;
-	int rc;       /* CLI_LAS_OK or CLI_LAS_ERR */
+	int rc; /* CLI_LAS_OK or CLI_LAS_ERR */
 };
 
 static void take(struct parsed *p, const double *blk)
@@ -75,7 +75,7 @@ static void take(struct parsed *p, const double *blk)
 
 /* Feeds text in chunks of chunk bytes with a block of blk_rows rows. */
 static struct parsed feed_all(const char *text, size_t len, size_t chunk,
-			      size_t blk_rows)
+                              size_t blk_rows)
 {
 	struct parsed p = {0};
 	double *blk = NULL;
@@ -97,7 +97,7 @@ static struct parsed feed_all(const char *text, size_t len, size_t chunk,
 		}
 		if (rc == CLI_LAS_HEADER) {
 			blk = malloc(blk_rows * cli_las_ncurves(p.r) *
-				     sizeof *blk);
+			             sizeof *blk);
 			assert_non_null(blk);
 			cli_las_set_block(p.r, blk, blk_rows);
 		} else if (rc == CLI_LAS_FULL) {
@@ -179,12 +179,12 @@ static void same_rows(const double *a, const double *b, size_t n)
 
 /* Expected data of both sample files, NaN where the file has NULL. */
 static const double sample[6][NC] = {
-	{1500.0, 78.4312, 312.5, 2412.0, 0.2710, 2.81, 216.3, 4.8125},
-	{1500.5, 81.0250, 318.25, 2398.5, 0.2845, 2.77, 217.0, 4.2500},
-	{1501.0, NAN, 301.75, 2431.25, 0.2515, 2.90, 215.8, 6.1250},
-	{1501.5, 64.5000, 288.0, 2457.0, NAN, 2.95, 215.5, 9.8750},
-	{1502.0, 59.1250, 281.5, 2468.75, 0.2105, 3.02, 215.4, 12.5000},
-	{1502.5, 61.7500, NAN, 2461.0, 0.2180, NAN, 215.6, 11.0625},
+    {1500.0, 78.4312, 312.5, 2412.0, 0.2710, 2.81, 216.3, 4.8125},
+    {1500.5, 81.0250, 318.25, 2398.5, 0.2845, 2.77, 217.0, 4.2500},
+    {1501.0, NAN, 301.75, 2431.25, 0.2515, 2.90, 215.8, 6.1250},
+    {1501.5, 64.5000, 288.0, 2457.0, NAN, 2.95, 215.5, 9.8750},
+    {1502.0, 59.1250, 281.5, 2468.75, 0.2105, 3.02, 215.4, 12.5000},
+    {1502.5, 61.7500, NAN, 2461.0, 0.2180, NAN, 215.6, 11.0625},
 };
 
 static void test_samples(void **state)
@@ -247,7 +247,7 @@ static void test_samples(void **state)
 static void test_bytewise(void **state)
 {
 	static const char *const files[] = {"kestrel_ridge_7.las",
-					    "kestrel_ridge_7_wrap.las"};
+	                                    "kestrel_ridge_7_wrap.las"};
 	size_t f, len, chunk;
 
 	(void)state;
@@ -264,7 +264,7 @@ static void test_bytewise(void **state)
 			assert_int_equal(bit.nrows, whole.nrows);
 			same_rows(bit.rows, whole.rows, 6 * NC);
 			assert_int_equal(cli_las_nlines(bit.r),
-					 cli_las_nlines(whole.r));
+			                 cli_las_nlines(whole.r));
 			parsed_free(&bit);
 		}
 		parsed_free(&whole);
@@ -281,7 +281,7 @@ static int skip_b(const cli_las_line *l, const char *added)
 }
 
 static void same_items(const cli_las_reader *a, const cli_las_reader *b,
-		       const char *added)
+                       const char *added)
 {
 	size_t i, j = 0, nb = cli_las_nlines(b);
 
@@ -310,7 +310,7 @@ static void same_items(const cli_las_reader *a, const cli_las_reader *b,
 static void test_roundtrip(void **state)
 {
 	static const cli_las_newcurve add[] = {
-		{"VS", "M/S", "Shear velocity, predicted"},
+	    {"VS", "M/S", "Shear velocity, predicted"},
 	};
 	double rows7[6][NC + 1];
 	struct parsed in, back, plain;
@@ -332,11 +332,10 @@ static void test_roundtrip(void **state)
 	/* plain copy: header and data as read */
 	tmp = tmpfile();
 	assert_non_null(tmp);
-	assert_int_equal(cli_las_write_header(tmp, in.r, NULL, 0, NULL, err,
-					      sizeof err),
-			 0);
+	assert_int_equal(
+	    cli_las_write_header(tmp, in.r, NULL, 0, NULL, err, sizeof err), 0);
 	assert_int_equal(cli_las_write_rows(tmp, in.rows, 6, NC, -999.25, 4),
-			 0);
+	                 0);
 	rewind(tmp);
 	plain = read_file(tmp, 2);
 	fclose(tmp);
@@ -351,13 +350,12 @@ static void test_roundtrip(void **state)
 	tmp = tmpfile();
 	assert_non_null(tmp);
 	assert_int_equal(cli_las_write_header(tmp, in.r, add, 1,
-					      "VS from an empirical relation\n"
-					      "second note line",
-					      err, sizeof err),
-			 0);
-	assert_int_equal(cli_las_write_rows(tmp, &rows7[0][0], 6, NC + 1,
-					    -999.25, 4),
-			 0);
+	                                      "VS from an empirical relation\n"
+	                                      "second note line",
+	                                      err, sizeof err),
+	                 0);
+	assert_int_equal(
+	    cli_las_write_rows(tmp, &rows7[0][0], 6, NC + 1, -999.25, 4), 0);
 	rewind(tmp);
 	back = read_file(tmp, 5);
 	fclose(tmp);
@@ -380,41 +378,40 @@ static void test_roundtrip(void **state)
 	}
 	assert_true(i < cli_las_nlines(back.r));
 	assert_int_equal(cli_las_line_at(back.r, i + 1)->kind,
-			 CLI_LAS_LINE_DATA);
+	                 CLI_LAS_LINE_DATA);
 	/* bad additions are refused with a reason */
 	{
 		static const cli_las_newcurve bad[] = {{"V S", "M/S", ""}};
 
 		tmp = tmpfile();
 		assert_int_equal(cli_las_write_header(tmp, in.r, bad, 1, NULL,
-						      err, sizeof err),
-				 -1);
+		                                      err, sizeof err),
+		                 -1);
 		assert_non_null(strstr(err, "mnemonic"));
 		assert_int_equal(cli_las_write_header(tmp, in.r, NULL, 0,
-						      "ok\n~X bad", err,
-						      sizeof err),
-				 -1);
+		                                      "ok\n~X bad", err,
+		                                      sizeof err),
+		                 -1);
 		assert_non_null(strstr(err, "note"));
 		fclose(tmp);
 	}
 	/* CSV */
 	tmp = tmpfile();
 	assert_int_equal(cli_las_write_csv_header(tmp, in.r, add, 1), 0);
-	assert_int_equal(cli_las_write_csv_rows(tmp, &rows7[0][0], 6, NC + 1,
-						4),
-			 0);
+	assert_int_equal(
+	    cli_las_write_csv_rows(tmp, &rows7[0][0], 6, NC + 1, 4), 0);
 	rewind(tmp);
 	assert_non_null(fgets(line, sizeof line, tmp));
 	assert_string_equal(line, "DEPT[M],GR[GAPI],DT[US/M],RHOB[K/M3],"
-				  "NPHI[V/V],PEF[B/E],CALI[MM],RDEP[OHMM],"
-				  "VS[M/S]\n");
+	                          "NPHI[V/V],PEF[B/E],CALI[MM],RDEP[OHMM],"
+	                          "VS[M/S]\n");
 	assert_non_null(fgets(line, sizeof line, tmp));
 	assert_string_equal(line, "1500.0000,78.4312,312.5000,2412.0000,"
-				  "0.2710,2.8100,216.3000,4.8125,1000.0000\n");
+	                          "0.2710,2.8100,216.3000,4.8125,1000.0000\n");
 	assert_non_null(fgets(line, sizeof line, tmp));
 	assert_non_null(fgets(line, sizeof line, tmp));
 	assert_string_equal(line, "1501.0000,,301.7500,2431.2500,0.2515,"
-				  "2.9000,215.8000,6.1250,1025.0000\n");
+	                          "2.9000,215.8000,6.1250,1025.0000\n");
 	fclose(tmp);
 	/* values too small for the decimals are not rounded to zero */
 	tmp = tmpfile();
@@ -422,9 +419,9 @@ static void test_roundtrip(void **state)
 		const double v[2] = {1.0, 2.5e-7};
 
 		assert_int_equal(cli_las_write_rows(tmp, v, 1, 2, -999.25, 4),
-				 0);
+		                 0);
 		assert_int_equal(cli_las_write_rows(tmp, v, 1, 2, -999.25, 99),
-				 -1);
+		                 -1);
 	}
 	rewind(tmp);
 	assert_non_null(fgets(line, sizeof line, tmp));
@@ -435,12 +432,12 @@ static void test_roundtrip(void **state)
 	parsed_free(&back);
 }
 
-#define HV "~V\n VERS. 2.0 : v\n WRAP. NO : w\n"
+#define HV  "~V\n VERS. 2.0 : v\n WRAP. NO : w\n"
 #define HVW "~V\n VERS. 2.0 : v\n WRAP. YES : w\n"
-#define HW                                                                 \
-	"~W\n STRT.M 10.0 : s\n STOP.M 11.0 : e\n STEP.M 0.5 : d\n"        \
+#define HW                                                                     \
+	"~W\n STRT.M 10.0 : s\n STOP.M 11.0 : e\n STEP.M 0.5 : d\n"            \
 	" NULL. -999.25 : n\n"
-#define HC "~C\n DEPT.M : depth\n GR.GAPI : gamma\n"
+#define HC  "~C\n DEPT.M : depth\n GR.GAPI : gamma\n"
 #define HC3 "~C\n DEPT.M : depth\n GR.GAPI : gamma\n DT.US/M : sonic\n"
 
 /* Each malformed input and the text its error must contain. */
@@ -448,47 +445,47 @@ static const struct {
 	const char *text;
 	const char *msg;
 } bad[] = {
-	{"~W\n STRT.M 1 : s\n", "line 1: first section is ~W, expected ~V"},
-	{" VERS. 2.0 : v\n", "line 1: text before the ~V section"},
-	{"~V\n VERS. 3.0 : v\n", "line 2: VERS is '3.0'"},
-	{"~V\n VERS. 2.0 : v\n" HW, "line 1: ~V section has no WRAP item"},
-	{"~V\n WRAP. NO : w\n" HW, "line 1: ~V section has no VERS item"},
-	{"~V\n VERS. 2.0 : v\n WRAP. MAYBE : w\n", "line 3: WRAP is 'MAYBE'"},
-	{HV "~W\n STRT.M 1 : s\n STOP.M 2 : e\n STEP.M 1 : d\n~C\n",
-	 "line 4: ~W section has no NULL item"},
-	{HV HW "~A\n", "line 9: ~A before ~C"},
-	{HV HC "~A\n", "line 7: ~A before ~W"},
-	{HV HW HC, "line 11: end of input: no ~A section"},
-	{HV HW, "end of input: no ~C section"},
-	{"", "line 1: end of input: no ~V section"},
-	{HV HW "~C\n DEPT M : depth\n", "line 10: curve line has no '.'"},
-	{HV " DATE. today\n", "line 4: header line has no ':'"},
-	{HV " BAD NAME. x : y\n", "line 4: mnemonic 'BAD NAME' contains"},
-	{HV " .M x : y\n", "line 4: empty mnemonic"},
-	{HV HW "~C\n~A\n", "line 9: ~C section has no curves"},
-	{HV HW " STRT.M abc : s\n", "line 9: STRT value 'abc' is not a number"},
-	{HV HV, "line 4: duplicate ~V section"},
-	{HV "~Q\n", "line 4: unknown section ~Q"},
-	{HV "~\n", "line 4: '~' without a section letter"},
-	{HV HW HC "~A\n10.0\n", "line 13: data row has 1 values, expected 2"},
-	{HV HW HC "~A\n10.0 1 2\n", "line 13: data row has 3 values, "
-				    "expected 2"},
-	{HV HW HC "~A\n10.0 1\n10.5 x1\n", "line 14: value 2 ('x1') is not a "
-					   "number"},
-	{HV HW HC "~A\n10.0 nan\n", "line 13: value 2 ('nan') is not"},
-	{HV HW HC "~A\n10.0 0x10\n", "line 13: value 2 ('0x10') is not"},
-	{HV HW HC "~A\n10.0 1e999\n", "line 13: value 2 ('1e999') is not"},
-	{HV HW HC "~A\n-999.25 1\n", "line 13: depth is the NULL value"},
-	{HV HW HC "~A\n10.0 1\n~O\n", "line 14: section line after ~A"},
-	{HVW HW HC3 "~A\n10.0\n1 2\n10.5 1\n",
-	 "line 16: wrapped data: depth line has 2 values"},
-	{HVW HW HC3 "~A\n10.0\n1\n2 3\n",
-	 "line 16: wrapped row starting at line 14 has more than 3 values"},
-	{HVW HW HC3 "~A\n10.0\n1 2\n10.5\n1\n",
-	 "line 17: end of input inside the wrapped row starting at line 16 "
-	 "(2 of 3 values)"},
-	{HV "\n # c\n ~P x\n BAD\n", "line 7: header line has no '.'"},
-	{HV HW HC "~A\n10.0 1\n10.5 2\0\n", "line 14: NUL byte"},
+    {"~W\n STRT.M 1 : s\n", "line 1: first section is ~W, expected ~V"},
+    {" VERS. 2.0 : v\n", "line 1: text before the ~V section"},
+    {"~V\n VERS. 3.0 : v\n", "line 2: VERS is '3.0'"},
+    {"~V\n VERS. 2.0 : v\n" HW, "line 1: ~V section has no WRAP item"},
+    {"~V\n WRAP. NO : w\n" HW, "line 1: ~V section has no VERS item"},
+    {"~V\n VERS. 2.0 : v\n WRAP. MAYBE : w\n", "line 3: WRAP is 'MAYBE'"},
+    {HV "~W\n STRT.M 1 : s\n STOP.M 2 : e\n STEP.M 1 : d\n~C\n",
+     "line 4: ~W section has no NULL item"},
+    {HV HW "~A\n", "line 9: ~A before ~C"},
+    {HV HC "~A\n", "line 7: ~A before ~W"},
+    {HV HW HC, "line 11: end of input: no ~A section"},
+    {HV HW, "end of input: no ~C section"},
+    {"", "line 1: end of input: no ~V section"},
+    {HV HW "~C\n DEPT M : depth\n", "line 10: curve line has no '.'"},
+    {HV " DATE. today\n", "line 4: header line has no ':'"},
+    {HV " BAD NAME. x : y\n", "line 4: mnemonic 'BAD NAME' contains"},
+    {HV " .M x : y\n", "line 4: empty mnemonic"},
+    {HV HW "~C\n~A\n", "line 9: ~C section has no curves"},
+    {HV HW " STRT.M abc : s\n", "line 9: STRT value 'abc' is not a number"},
+    {HV HV, "line 4: duplicate ~V section"},
+    {HV "~Q\n", "line 4: unknown section ~Q"},
+    {HV "~\n", "line 4: '~' without a section letter"},
+    {HV HW HC "~A\n10.0\n", "line 13: data row has 1 values, expected 2"},
+    {HV HW HC "~A\n10.0 1 2\n", "line 13: data row has 3 values, "
+                                "expected 2"},
+    {HV HW HC "~A\n10.0 1\n10.5 x1\n", "line 14: value 2 ('x1') is not a "
+                                       "number"},
+    {HV HW HC "~A\n10.0 nan\n", "line 13: value 2 ('nan') is not"},
+    {HV HW HC "~A\n10.0 0x10\n", "line 13: value 2 ('0x10') is not"},
+    {HV HW HC "~A\n10.0 1e999\n", "line 13: value 2 ('1e999') is not"},
+    {HV HW HC "~A\n-999.25 1\n", "line 13: depth is the NULL value"},
+    {HV HW HC "~A\n10.0 1\n~O\n", "line 14: section line after ~A"},
+    {HVW HW HC3 "~A\n10.0\n1 2\n10.5 1\n",
+     "line 16: wrapped data: depth line has 2 values"},
+    {HVW HW HC3 "~A\n10.0\n1\n2 3\n",
+     "line 16: wrapped row starting at line 14 has more than 3 values"},
+    {HVW HW HC3 "~A\n10.0\n1 2\n10.5\n1\n",
+     "line 17: end of input inside the wrapped row starting at line 16 "
+     "(2 of 3 values)"},
+    {HV "\n # c\n ~P x\n BAD\n", "line 7: header line has no '.'"},
+    {HV HW HC "~A\n10.0 1\n10.5 2\0\n", "line 14: NUL byte"},
 };
 
 static void test_malformed(void **state)
@@ -503,11 +500,10 @@ static void test_malformed(void **state)
 			len += 2; /* the embedded NUL and the newline */
 		p = feed_all(bad[i].text, len, len, 4);
 		if (p.rc != CLI_LAS_ERR)
-			fail_msg("case %zu accepted, want '%s'", i,
-				 bad[i].msg);
+			fail_msg("case %zu accepted, want '%s'", i, bad[i].msg);
 		if (!strstr(cli_las_error(p.r), bad[i].msg))
 			fail_msg("case %zu: got '%s', want '%s'", i,
-				 cli_las_error(p.r), bad[i].msg);
+			         cli_las_error(p.r), bad[i].msg);
 		/* byte by byte gives the same error */
 		parsed_free(&p);
 		p = feed_all(bad[i].text, len, 1, 1);
@@ -521,10 +517,10 @@ static void test_limits_and_warnings(void **state)
 {
 	static const char step_bad[] = HV HW HC "~A\n10.0 1\n11.0 2\n";
 	static const char crlf[] = "~V\r\n VERS. 2.0 : v\r\n WRAP. NO : w\r\n"
-				   "~W\r\n STRT.M 10.0 : s\r\n STOP.M 10.5 : e"
-				   "\r\n STEP.M 0.5 : d\r\n NULL. -999.25 : n"
-				   "\r\n~C\r\n DEPT.M : d\r\n GR.GAPI : g\r\n"
-				   "~A\r\n10.0 1\r\n10.5 -999.25";
+	                           "~W\r\n STRT.M 10.0 : s\r\n STOP.M 10.5 : e"
+	                           "\r\n STEP.M 0.5 : d\r\n NULL. -999.25 : n"
+	                           "\r\n~C\r\n DEPT.M : d\r\n GR.GAPI : g\r\n"
+	                           "~A\r\n10.0 1\r\n10.5 -999.25";
 	struct parsed p;
 	char *big;
 	size_t n;
@@ -537,7 +533,7 @@ static void test_limits_and_warnings(void **state)
 	assert_true(p.rows[2] == 11.0);
 	assert_true(cli_las_warnings(p.r) >= 1);
 	assert_non_null(strstr(cli_las_warning(p.r),
-			       "line 14: depth step 1 differs from STEP 0.5"));
+	                       "line 14: depth step 1 differs from STEP 0.5"));
 	parsed_free(&p);
 	/* CRLF line ends, last line without an end of line, NULL as NaN */
 	p = feed_all(crlf, strlen(crlf), 3, 1);
@@ -565,8 +561,7 @@ static void test_limits_and_warnings(void **state)
 	memcpy(big, HV, strlen(HV));
 	p = feed_all(big, CLI_LAS_MAX_LINE + 200, 1000, 4);
 	assert_int_equal(p.rc, CLI_LAS_ERR);
-	assert_non_null(strstr(cli_las_error(p.r),
-			       "line 4: line longer than"));
+	assert_non_null(strstr(cli_las_error(p.r), "line 4: line longer than"));
 	parsed_free(&p);
 	free(big);
 }
@@ -586,7 +581,8 @@ static void test_garbage(void **state)
 	for (k = 0; k < 400; k++) {
 		memcpy(mut, text, len);
 		for (i = 0; i < 1 + k % 5; i++) {
-			seed = seed * 6364136223846793005ul + 1442695040888963407ul;
+			seed = seed * 6364136223846793005ul +
+			       1442695040888963407ul;
 			mut[(seed >> 33) % len] = (char)(seed >> 17);
 		}
 		p = feed_all(mut, len, 1 + k % 17, 1 + k % 3);
@@ -602,12 +598,12 @@ static void test_garbage(void **state)
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_samples),
-		cmocka_unit_test(test_bytewise),
-		cmocka_unit_test(test_roundtrip),
-		cmocka_unit_test(test_malformed),
-		cmocka_unit_test(test_limits_and_warnings),
-		cmocka_unit_test(test_garbage),
+	    cmocka_unit_test(test_samples),
+	    cmocka_unit_test(test_bytewise),
+	    cmocka_unit_test(test_roundtrip),
+	    cmocka_unit_test(test_malformed),
+	    cmocka_unit_test(test_limits_and_warnings),
+	    cmocka_unit_test(test_garbage),
 	};
 
 	gsl_set_error_handler_off();

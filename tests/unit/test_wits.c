@@ -37,53 +37,53 @@ static void collect(void *ctx, const cli_wits_item *items, size_t n)
  * followed by value) and with a blank, garbage, and one of each malformed
  * kind. */
 static const char stream[] =
-	"&&\n"
-	"01081500.25\n"          /* record 01 item 08 */
-	"0110 1498.75\n"         /* with a blank */
-	"0113-23.5\n"
-	"01211.2e3\n"
-	"!!\n"
-	"HELLO RIG\n"            /* garbage between records */
-	"&&\n"
-	"0108abc\n"              /* non-numeric value */
-	"!!\n"
-	"&&\n"
-	"01081\n"                /* no terminator before the next && */
-	"&&\n"
-	"  0108 1501.00  \n"     /* surrounding blanks tolerated */
-	"0110\t1499.5\n"
-	"!!\n"
-	"&&\n"
-	"01X8 5\n"               /* not 4 digits */
-	"!!\n"
-	"&&\n"
-	"0108 "
-	"1111111111111111111111111111111111111111111111111111111111111111"
-	"1111111111111111111111111111111111111111111111111111111111111111"
-	"1111111111111111111111111111111111111111111111111111111111111111"
-	"1111111111111111111111111111111111111111111111111111111111111111"
-	"\n"                     /* over 256 bytes */
-	"!!\n"
-	"&&\n"
-	"\n"
-	"!!\n"                   /* empty record (a blank line only) */
-	"!!\n"                   /* terminator outside a record */
-	"&&\n"
-	"1201 0.5\n"
-	"1202 nan\n"             /* not a plain number */
-	"!!\n"
-	"&&\n"
-	"0201 7\n"
-	"0202 8\n"
-	"!!";                    /* last line without an end of line */
+    "&&\n"
+    "01081500.25\n"  /* record 01 item 08 */
+    "0110 1498.75\n" /* with a blank */
+    "0113-23.5\n"
+    "01211.2e3\n"
+    "!!\n"
+    "HELLO RIG\n" /* garbage between records */
+    "&&\n"
+    "0108abc\n" /* non-numeric value */
+    "!!\n"
+    "&&\n"
+    "01081\n" /* no terminator before the next && */
+    "&&\n"
+    "  0108 1501.00  \n" /* surrounding blanks tolerated */
+    "0110\t1499.5\n"
+    "!!\n"
+    "&&\n"
+    "01X8 5\n" /* not 4 digits */
+    "!!\n"
+    "&&\n"
+    "0108 "
+    "1111111111111111111111111111111111111111111111111111111111111111"
+    "1111111111111111111111111111111111111111111111111111111111111111"
+    "1111111111111111111111111111111111111111111111111111111111111111"
+    "1111111111111111111111111111111111111111111111111111111111111111"
+    "\n" /* over 256 bytes */
+    "!!\n"
+    "&&\n"
+    "\n"
+    "!!\n" /* empty record (a blank line only) */
+    "!!\n" /* terminator outside a record */
+    "&&\n"
+    "1201 0.5\n"
+    "1202 nan\n" /* not a plain number */
+    "!!\n"
+    "&&\n"
+    "0201 7\n"
+    "0202 8\n"
+    "!!"; /* last line without an end of line */
 
 static const struct {
 	size_t n;
 	cli_wits_item it[4];
 } want[] = {
-	{4, {{108, 1500.25}, {110, 1498.75}, {113, -23.5}, {121, 1200.0}}},
-	{2, {{108, 1501.0}, {110, 1499.5}}},
-	{2, {{201, 7.0}, {202, 8.0}}},
+    {4, {{108, 1500.25}, {110, 1498.75}, {113, -23.5}, {121, 1200.0}}},
+    {2, {{108, 1501.0}, {110, 1499.5}}},
+    {2, {{201, 7.0}, {202, 8.0}}},
 };
 
 static void check_stats(const cli_wits_stats *s)
@@ -93,9 +93,9 @@ static void check_stats(const cli_wits_stats *s)
 	assert_int_equal(s->bad_records, 4); /* abc, 01X8, long, nan */
 	assert_int_equal(s->unterminated, 1);
 	assert_int_equal(s->empty, 1);
-	assert_int_equal(s->bad_lines, 3);   /* abc, 01X8, nan */
+	assert_int_equal(s->bad_lines, 3); /* abc, 01X8, nan */
 	assert_int_equal(s->long_lines, 1);
-	assert_int_equal(s->garbage, 2);     /* HELLO RIG, stray !! */
+	assert_int_equal(s->garbage, 2); /* HELLO RIG, stray !! */
 }
 
 static void check_got(const struct got *g)
@@ -120,12 +120,12 @@ static void same_got(const struct got *a, const struct got *b)
 	for (r = 0; r < a->nrec; r++) {
 		assert_int_equal(a->len[r], b->len[r]);
 		assert_memory_equal(a->it[r], b->it[r],
-				    a->len[r] * sizeof a->it[r][0]);
+		                    a->len[r] * sizeof a->it[r][0]);
 	}
 }
 
 static void run(const char *s, size_t len, size_t split, struct got *g,
-		cli_wits_stats *st)
+                cli_wits_stats *st)
 {
 	static cli_wits_parser p; /* large; kept off the stack */
 
@@ -229,10 +229,10 @@ static void test_noise(void **state)
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_stream),
-		cmocka_unit_test(test_bytewise),
-		cmocka_unit_test(test_crlf),
-		cmocka_unit_test(test_noise),
+	    cmocka_unit_test(test_stream),
+	    cmocka_unit_test(test_bytewise),
+	    cmocka_unit_test(test_crlf),
+	    cmocka_unit_test(test_noise),
 	};
 
 	gsl_set_error_handler_off();

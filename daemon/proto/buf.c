@@ -159,11 +159,75 @@ static void w_sep(proto_call *c, const char *key)
 
 static void w_open(proto_call *c, const char *key, char ch)
 {
+	int d = c->depth + 1;
+	const char *pending = c->key_pending ? c->pending_key : NULL;
+
 	w_sep(c, key);
 	proto_buf_append(c->out, &ch, 1);
-	if (c->depth + 1 < (int)sizeof c->need_comma)
-		c->need_comma[c->depth + 1] = 0;
-	c->depth++;
+	if (d < (int)sizeof c->need_comma) {
+		c->need_comma[d] = 0;
+		/* The path of an array element is its array's path. */
+		c->keys[d] = key ? key : pending ? pending : c->keys[d - 1];
+	}
+	c->depth = d;
+}
+
+/* Records that the value at key (inside the open objects) has kind k, for
+ * the "units" member. Paths are dotted: "fluid_new.k". */
+static void note_unit(proto_call *c, const char *key, proto_kind k)
+{
+	char path[160];
+	size_t used = 0;
+	int top = c->depth < (int)sizeof c->need_comma ? c->depth
+						       : (int)sizeof c->need_comma - 1;
+
+	if (k == PK_NONE)
+		return;
+	c->kinds_used |= 1u << k;
+	if (!key)
+		key = c->keys[top];
+	path[0] = '\0';
+	/* keys[1] is the result object itself (no name). */
+	for (int d = 2; d <= top; d++) {
+		const char *seg = c->keys[d];
+		if (!seg || (d > 2 && c->keys[d - 1] == seg))
+			continue;
+		used += (size_t)snprintf(path + used, sizeof path - used,
+					 "%s.", seg);
+		if (used >= sizeof path)
+			return;
+	}
+	if (key && !(top >= 2 && c->keys[top] == key))
+		snprintf(path + used, sizeof path - used, "%s", key);
+	else if (used)
+		path[used - 1] = '\0';
+	if (!path[0])
+		return;
+	for (size_t i = 0; i < c->n_unit_notes; i++)
+		if (strcmp(c->unit_notes[i].path, path) == 0)
+			return;
+	if (c->n_unit_notes == c->cap_unit_notes) {
+		size_t cap = c->cap_unit_notes ? 2 * c->cap_unit_notes : 32;
+		proto_unit_note *n = proto_alloc(c, cap * sizeof *n);
+		if (!n) {
+			c->out->oom = 1;
+			return;
+		}
+		if (c->n_unit_notes)
+			memcpy(n, c->unit_notes,
+			       c->n_unit_notes * sizeof *n);
+		c->unit_notes = n;
+		c->cap_unit_notes = cap;
+	}
+	char *copy = proto_alloc(c, strlen(path) + 1);
+	if (!copy) {
+		c->out->oom = 1;
+		return;
+	}
+	memcpy(copy, path, strlen(path) + 1);
+	c->unit_notes[c->n_unit_notes].path = copy;
+	c->unit_notes[c->n_unit_notes].kind = k;
+	c->n_unit_notes++;
 }
 
 void proto_w_obj_begin(proto_call *c, const char *key)
@@ -192,6 +256,7 @@ void proto_w_key(proto_call *c, const char *key)
 {
 	w_sep(c, key);
 	c->key_pending = 1;
+	c->pending_key = key;
 }
 
 static void w_number(proto_call *c, proto_kind k, double v)
@@ -199,16 +264,16 @@ static void w_number(proto_call *c, proto_kind k, double v)
 	char tmp[32];
 	size_t n;
 
-	if (k != PK_NONE) {
+	if (k != PK_NONE)
 		v = proto_from_internal(&c->units, k, v);
-		c->kinds_used |= 1u << k;
-	}
 	n = proto_fmt_double(tmp, v);
 	proto_buf_append(c->out, tmp, n);
 }
 
 void proto_w_num(proto_call *c, const char *key, proto_kind k, double v)
 {
+	const char *pk = c->key_pending ? c->pending_key : NULL;
+	note_unit(c, key ? key : pk, k);
 	w_sep(c, key);
 	w_number(c, k, v);
 }
@@ -265,9 +330,8 @@ void proto_w_vec(proto_call *c, const char *key, proto_kind k,
 		proto_w_num(c, key, k, n ? values[0] : NAN);
 		return;
 	}
+	note_unit(c, key ? key : c->key_pending ? c->pending_key : NULL, k);
 	w_sep(c, key);
-	if (k != PK_NONE)
-		c->kinds_used |= 1u << k;
 	/* Reserve roughly: 24 bytes per number is the %.17g worst case. */
 	if (n < SIZE_MAX / 26)
 		proto_buf_reserve(c->out, n * 25 + 2);
@@ -309,9 +373,8 @@ void proto_w_flags(proto_call *c, const char *key, const uint32_t *flags,
 void proto_w_units(proto_call *c)
 {
 	proto_w_obj_begin(c, "units");
-	for (int k = 1; k < PK_COUNT; k++)
-		if (c->kinds_used & (1u << k))
-			proto_w_str(c, proto_kind_name((proto_kind)k),
-				    proto_unit_name(&c->units, (proto_kind)k));
+	for (size_t i = 0; i < c->n_unit_notes; i++)
+		proto_w_str(c, c->unit_notes[i].path,
+			    proto_unit_name(&c->units, c->unit_notes[i].kind));
 	proto_w_obj_end(c);
 }

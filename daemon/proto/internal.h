@@ -176,6 +176,11 @@ typedef struct proto_args {
 /* ---- the call ----------------------------------------------------------- */
 typedef struct proto_method proto_method;
 
+typedef struct proto_unit_note {
+	const char *path;
+	proto_kind kind;
+} proto_unit_note;
+
 typedef struct proto_call {
 	proto_ctx *ctx;
 	proto_session *session;
@@ -187,8 +192,12 @@ typedef struct proto_call {
 	/* result writer state */
 	int depth;
 	int key_pending;
+	const char *pending_key;
 	unsigned char need_comma[32];
+	const char *keys[32];      /* key of each open object/array */
 	uint32_t kinds_used;       /* bit per proto_kind written */
+	proto_unit_note *unit_notes; /* field path -> kind, for "units" */
+	size_t n_unit_notes, cap_unit_notes;
 	/* error state */
 	int err_code;
 	char err_param[128];
@@ -279,8 +288,9 @@ void proto_w_vec(proto_call *c, const char *key, proto_kind k,
 /* Writes QC flags the same way. */
 void proto_w_flags(proto_call *c, const char *key, const uint32_t *flags,
 		   size_t n, int as_array);
-/* Writes the "units" member: the unit of every kind written so far. Called
- * by the handler as the last member of its result object. */
+/* Writes the "units" member: for every field written so far with a
+ * dimension, its dotted path ("vp", "fluid_new.k") and unit. Called by
+ * the handler as the last member of its result object. */
 void proto_w_units(proto_call *c);
 
 /* Formats a double as the shortest of %.15g / %.17g that reads back

@@ -177,7 +177,9 @@ int rw_reflect_fatti(const rw_reflect_medium *upper,
  *       + K^2 (1/2 sec^2 - 2 sin^2) dmu/mu + (1/2 - 1/4 sec^2) drho/rho,
  * K = vs/vp of the means, lambda and mu the Lame moduli (mean in the
  * denominators), at the INCIDENCE angle. A mean lambda of zero (Poisson's
- * ratio 0 on average) makes dlambda/lambda undefined: RW_EDOM. */
+ * ratio 0 on average; to rounding, |lambda| <= 1e-12 (lambda + 2 mu))
+ * makes dlambda/lambda undefined: RW_EDOM. Near it the form loses
+ * accuracy (both factors of the lambda term are small and uncertain). */
 int rw_reflect_gray_lmr(const rw_reflect_medium *upper,
                         const rw_reflect_medium *lower, double theta_rad,
                         double *r);

@@ -3,7 +3,8 @@
  * and back, and the PP reflection coefficient of an interface between two
  * VTI media after Ruger 1997. Units: stiffnesses Pa, velocities m/s,
  * density kg/m^3, angles radians; Thomsen's epsilon, delta and gamma are
- * dimensionless. Stiffnesses use Voigt indices with 3 the symmetry axis. */
+ * dimensionless. Stiffnesses use Voigt indices with 3 the symmetry axis.
+ * Equation numbers are from memory. */
 #ifndef ROCKWIRE_ANISO_H
 #define ROCKWIRE_ANISO_H
 

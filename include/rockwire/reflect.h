@@ -48,9 +48,11 @@ typedef struct rw_reflect_pcoefs {
 int rw_reflect_medium_check(const rw_reflect_medium *m);
 
 /* Exact P-wave reflection and transmission coefficients (Zoeppritz 1919)
- * in the explicit form of Aki & Richards 1980, eq. 5.39 (their Box 5.1 in
- * the 2002 edition), for incidence angle theta_rad in [0, pi/2] in the
- * upper medium.
+ * in the explicit form of Aki & Richards 1980, eq. 5.39 (equation and
+ * section numbers in this file are from memory of the first edition), for
+ * incidence angle theta_rad in [0, pi/2] in the upper medium. The solid
+ * formulas are checked against an independent numpy solve of the boundary
+ * conditions (tests/reference/test_zoeppritz_numpy.py).
  *
  * Conventions (those of Aki & Richards 1980, sec. 5.2):
  * - x horizontal, z positive DOWN; the interface is z = 0.

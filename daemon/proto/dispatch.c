@@ -14,6 +14,7 @@
 
 static const proto_method *const families[] = {
 	proto_service_methods,
+	proto_session_methods,
 	proto_elastic_methods,
 };
 
@@ -53,10 +54,6 @@ struct proto_ctx {
 	atomic_ullong errors[N_CODES];
 };
 
-struct proto_session {
-	proto_ctx *ctx;
-	proto_units units;
-};
 
 void proto_limits_default(proto_limits *lim)
 {
@@ -112,6 +109,8 @@ proto_session *proto_session_new(proto_ctx *ctx)
 
 void proto_session_free(proto_session *s)
 {
+	if (s)
+		cJSON_Delete(s->defaults);
 	free(s);
 }
 
@@ -342,6 +341,7 @@ static void run_method(proto_session *s, const proto_method *m,
 		       const cJSON *params, const cJSON *id, proto_buf *out)
 {
 	proto_call c;
+	cJSON *merged = (cJSON *)params;
 	size_t mark = out->len;
 
 	memset(&c, 0, sizeof c);
@@ -362,14 +362,21 @@ static void run_method(proto_session *s, const proto_method *m,
 				       cJSON_GetObjectItemCaseSensitive(
 					   params, "units"),
 				       "units", &c.units) &&
-		   !proto_args_parse(&c, params, "", m->params, &c.args)) {
+		   !proto__session_merge(&c, params, &merged) &&
+		   (!m->params ||
+		    !proto_args_parse(&c, merged, "", m->params, &c.args))) {
+		c.params = merged;
 		if (m->handler(&c) == 0 && !c.err_code && !out->oom) {
 			proto_buf_append(out, "}", 1);
 			proto__arena_free(&c);
+			if (merged != params)
+				cJSON_Delete(merged);
 			return;
 		}
 	}
 	proto__arena_free(&c);
+	if (merged != params)
+		cJSON_Delete(merged);
 	if (out->oom) {
 		/* Drop the partial result and report it in the small room we
 		 * keep: the limit is lifted for the error line. */

@@ -210,11 +210,29 @@ typedef int (*proto_handler)(proto_call *c);
 struct proto_method {
 	const char *name;
 	proto_handler handler;
-	const proto_param *params;   /* terminated by {NULL} */
+	const proto_param *params;   /* terminated by {NULL}; an empty list
+					takes no parameters; NULL means the
+					handler checks c->params itself */
 	const char *summary;
 };
 
+/* A connection's session: units and default parameters that later
+ * requests on the connection inherit (session.set). */
+struct proto_session {
+	proto_ctx *ctx;
+	proto_units units;
+	cJSON *defaults;     /* object of parameter defaults, or NULL */
+};
+
+/* Builds the parameters a method sees: the request's own, plus session
+ * defaults for the method's parameters the request does not give. *merged
+ * is params itself when nothing is inherited, else a new object of
+ * references that the caller deletes. 0 or -1 after proto_fail. */
+int proto__session_merge(proto_call *c, const cJSON *params,
+			 cJSON **merged);
+
 /* Each family file defines its table, terminated by {NULL}. */
+extern const proto_method proto_session_methods[];
 extern const proto_method proto_service_methods[];
 extern const proto_method proto_elastic_methods[];
 

@@ -93,10 +93,12 @@ static int info(proto_call *c)
 	return 0;
 }
 
+static const proto_param no_params[] = {{NULL, PT_ANY, PK_NONE, 0, 0}};
+
 const proto_method proto_service_methods[] = {
-	{"rpc.discover", discover, NULL,
+	{"rpc.discover", discover, no_params,
 	 "The OpenRPC document describing every method."},
-	{"service.info", info, NULL,
+	{"service.info", info, no_params,
 	 "Version, limits, units, QC legend, counters and the caution."},
 	{NULL, NULL, NULL, NULL},
 };

@@ -1,0 +1,294 @@
+/* `rockwire call` and `rockwire send`: one request from the command line,
+ * or a pipelined stream of NDJSON requests. */
+#include <errno.h>
+#include <fcntl.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include <cjson/cJSON.h>
+
+#include "cli.h"
+
+/* Sets params[path] = value where path may be dotted ("units.velocity").
+ * The value is JSON when it parses as JSON, else a string. */
+static int set_param(cJSON *params, const char *arg)
+{
+	const char *eq = strchr(arg, '=');
+	char key[256];
+	cJSON *obj = params, *val;
+	const char *seg = arg;
+
+	if (!eq || eq == arg) {
+		fprintf(stderr, "rockwire call: '%s' is not name=value\n", arg);
+		return -1;
+	}
+	val = cJSON_Parse(eq + 1);
+	if (!val)
+		val = cJSON_CreateString(eq + 1);
+	if (!val)
+		return -1;
+	for (;;) {
+		const char *dot = memchr(seg, '.', (size_t)(eq - seg));
+		size_t n = (size_t)((dot ? dot : eq) - seg);
+		cJSON *next;
+		if (n == 0 || n >= sizeof key) {
+			fprintf(stderr, "rockwire call: bad name in '%s'\n",
+				arg);
+			cJSON_Delete(val);
+			return -1;
+		}
+		memcpy(key, seg, n);
+		key[n] = '\0';
+		next = cJSON_GetObjectItemCaseSensitive(obj, key);
+		if (!dot) {
+			if (next)
+				cJSON_DeleteItemFromObjectCaseSensitive(obj,
+									key);
+			cJSON_AddItemToObject(obj, key, val);
+			return 0;
+		}
+		if (!next) {
+			next = cJSON_AddObjectToObject(obj, key);
+		} else if (!cJSON_IsObject(next)) {
+			fprintf(stderr,
+				"rockwire call: '%s' is both a value and an "
+				"object\n",
+				key);
+			cJSON_Delete(val);
+			return -1;
+		}
+		obj = next;
+		seg = dot + 1;
+	}
+}
+
+static const char *unit_of(const cJSON *units, const char *name)
+{
+	const cJSON *u = cJSON_GetObjectItemCaseSensitive(units, name);
+	return cJSON_IsString(u) ? u->valuestring : NULL;
+}
+
+/* Prints the top-level numeric arrays of a result as aligned columns with
+ * units in the header; scalars are printed above the table. Returns 0, or
+ * -1 when the result has no arrays to tabulate. */
+static int print_table(const cJSON *result, FILE *f)
+{
+	const cJSON *units = cJSON_GetObjectItemCaseSensitive(result, "units");
+	const cJSON *m;
+	const cJSON *cols[128];
+	size_t ncol = 0, nrow = 0;
+	char head[128];
+
+	if (!cJSON_IsObject(result))
+		return -1;
+	cJSON_ArrayForEach(m, result)
+	{
+		if (cJSON_IsArray(m) && ncol < 128) {
+			size_t n = (size_t)cJSON_GetArraySize(m);
+			const cJSON *e0 = cJSON_GetArrayItem(m, 0);
+			if (e0 && !cJSON_IsNumber(e0) && !cJSON_IsNull(e0))
+				continue;
+			if (!ncol || n == nrow) {
+				cols[ncol++] = m;
+				nrow = n;
+			}
+		} else if (cJSON_IsNumber(m) || cJSON_IsString(m) ||
+			   cJSON_IsBool(m)) {
+			const char *u = unit_of(units, m->string);
+			char *s = cJSON_PrintUnformatted(m);
+			fprintf(f, "# %s = %s%s%s\n", m->string, s ? s : "?",
+				u ? " " : "", u ? u : "");
+			cJSON_free(s);
+		}
+	}
+	if (!ncol)
+		return -1;
+	for (size_t j = 0; j < ncol; j++) {
+		const char *u = unit_of(units, cols[j]->string);
+		snprintf(head, sizeof head, u ? "%s[%s]" : "%s",
+			 cols[j]->string, u);
+		fprintf(f, "%*s", j ? 14 : 12, head);
+	}
+	fputc('\n', f);
+	for (size_t i = 0; i < nrow; i++) {
+		for (size_t j = 0; j < ncol; j++) {
+			const cJSON *e = cJSON_GetArrayItem(cols[j], (int)i);
+			int w = j ? 14 : 12;
+			if (cJSON_IsNumber(e)) {
+				double v = e->valuedouble;
+				if (v == floor(v) && fabs(v) < 1e9)
+					fprintf(f, "%*.0f", w, v);
+				else if (fabs(v) >= 1e5 || fabs(v) < 1e-3)
+					fprintf(f, "%*.5g", w, v);
+				else
+					fprintf(f, "%*.4f", w, v);
+			} else {
+				fprintf(f, "%*s", w, "null");
+			}
+		}
+		fputc('\n', f);
+	}
+	return 0;
+}
+
+/* Prints a response: the result to stdout, an error to stderr. Returns the
+ * exit code. */
+static int print_response(const char *line, int table)
+{
+	cJSON *r = cJSON_Parse(line);
+	const cJSON *res, *err;
+	int rc = CLI_EXIT_OK;
+
+	if (!r) {
+		fprintf(stderr, "rockwire: unreadable response: %.200s\n",
+			line);
+		return CLI_EXIT_IO;
+	}
+	res = cJSON_GetObjectItemCaseSensitive(r, "result");
+	err = cJSON_GetObjectItemCaseSensitive(r, "error");
+	if (err) {
+		const cJSON *code = cJSON_GetObjectItemCaseSensitive(err, "code");
+		const cJSON *msg = cJSON_GetObjectItemCaseSensitive(err,
+								    "message");
+		const cJSON *data = cJSON_GetObjectItemCaseSensitive(err, "data");
+		const cJSON *param = cJSON_GetObjectItemCaseSensitive(data,
+								      "param");
+		const cJSON *why = cJSON_GetObjectItemCaseSensitive(data,
+								    "reason");
+		fprintf(stderr, "rockwire: error %d: %s", code ? code->valueint : 0,
+			cJSON_IsString(msg) ? msg->valuestring : "?");
+		if (cJSON_IsString(param))
+			fprintf(stderr, ": %s", param->valuestring);
+		if (cJSON_IsString(why))
+			fprintf(stderr, ": %s", why->valuestring);
+		fputc('\n', stderr);
+		rc = CLI_EXIT_RPC_ERROR;
+	} else if (table && print_table(res, stdout) == 0) {
+		/* printed */
+	} else {
+		char *s = isatty(1) ? cJSON_Print(res)
+				    : cJSON_PrintUnformatted(res);
+		if (s) {
+			fputs(s, stdout);
+			fputc('\n', stdout);
+			cJSON_free(s);
+		}
+	}
+	cJSON_Delete(r);
+	return rc;
+}
+
+int cli_cmd_call(const cli_opts *o, int argc, char **argv)
+{
+	cJSON *req = NULL, *params = NULL;
+	const char *method = NULL, *pjson = NULL;
+	int table = 0, rc = CLI_EXIT_USAGE, got;
+	cli_conn c;
+	char *line, *text = NULL;
+	size_t len;
+
+	for (int i = 0; i < argc; i++) {
+		if (strcmp(argv[i], "--table") == 0)
+			table = 1;
+		else if (strcmp(argv[i], "--params") == 0 && i + 1 < argc)
+			pjson = argv[++i];
+		else if (strncmp(argv[i], "--params=", 9) == 0)
+			pjson = argv[i] + 9;
+		else if (argv[i][0] == '-' && argv[i][1] == '-') {
+			fprintf(stderr, "rockwire call: unknown option %s\n",
+				argv[i]);
+			return CLI_EXIT_USAGE;
+		} else if (!method)
+			method = argv[i];
+	}
+	if (!method) {
+		fprintf(stderr, "usage: rockwire call METHOD [name=value ...] "
+				"[--params JSON] [--table]\n");
+		return CLI_EXIT_USAGE;
+	}
+	params = pjson ? cJSON_Parse(pjson) : cJSON_CreateObject();
+	if (!params || !cJSON_IsObject(params)) {
+		fprintf(stderr, "rockwire call: --params must be a JSON "
+				"object\n");
+		goto out;
+	}
+	int seen_method = 0;
+	for (int i = 0; i < argc; i++) {
+		if (strcmp(argv[i], "--params") == 0) {
+			i++;
+			continue;
+		}
+		if (argv[i][0] == '-' && argv[i][1] == '-')
+			continue;
+		if (!seen_method && strcmp(argv[i], method) == 0) {
+			seen_method = 1;
+			continue;
+		}
+		if (set_param(params, argv[i]))
+			goto out;
+	}
+	req = cJSON_CreateObject();
+	cJSON_AddStringToObject(req, "jsonrpc", "2.0");
+	cJSON_AddNumberToObject(req, "id", 1);
+	cJSON_AddStringToObject(req, "method", method);
+	cJSON_AddItemToObject(req, "params", params);
+	params = NULL;
+	text = cJSON_PrintUnformatted(req);
+	if (!text)
+		goto out;
+	if (cli_connect(o, &c)) {
+		rc = CLI_EXIT_CONNECT;
+		goto out;
+	}
+	if (cli_write_all(&c, text, strlen(text)) ||
+	    cli_write_all(&c, "\n", 1)) {
+		cli_disconnect(&c);
+		rc = CLI_EXIT_IO;
+		goto out;
+	}
+	cli_close_write(&c);
+	got = cli_read_line(&c, &line, &len, -1);
+	if (got == 1)
+		rc = print_response(line, table);
+	else {
+		fprintf(stderr, "rockwire: no response from %s\n", c.desc);
+		rc = CLI_EXIT_IO;
+	}
+	cli_disconnect(&c);
+out:
+	cJSON_free(text);
+	cJSON_Delete(req);
+	cJSON_Delete(params);
+	return rc;
+}
+
+int cli_cmd_send(const cli_opts *o, int argc, char **argv)
+{
+	const char *file = argc > 0 ? argv[0] : "-";
+	cli_conn c;
+	int fd, rc;
+
+	if (argc > 1) {
+		fprintf(stderr, "usage: rockwire send [FILE|-]\n");
+		return CLI_EXIT_USAGE;
+	}
+	fd = strcmp(file, "-") == 0 ? 0 : open(file, O_RDONLY | O_CLOEXEC);
+	if (fd < 0) {
+		fprintf(stderr, "rockwire send: %s: %s\n", file,
+			strerror(errno));
+		return CLI_EXIT_IO;
+	}
+	if (cli_connect(o, &c)) {
+		if (fd)
+			close(fd);
+		return CLI_EXIT_CONNECT;
+	}
+	rc = cli_pump(&c, fd, 1) ? CLI_EXIT_IO : CLI_EXIT_OK;
+	if (fd)
+		close(fd);
+	cli_disconnect(&c);
+	return rc;
+}

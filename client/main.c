@@ -1,0 +1,80 @@
+/* rockwire: the command-line client. A thin getopt_long front end over the
+ * protocol: global options, then a subcommand. */
+#include <getopt.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "cli.h"
+
+#ifndef RW_VERSION
+#define RW_VERSION "0.0.0"
+#endif
+
+static void usage(FILE *f)
+{
+	fprintf(f,
+		"usage: rockwire [--socket PATH] [--spawn] [--daemon PATH] "
+		"COMMAND ...\n"
+		"\n"
+		"Commands:\n"
+		"  call METHOD [name=value ...] [--params JSON] [--table]\n"
+		"        one request; values are JSON when they parse as JSON,\n"
+		"        else strings; dotted names nest (units.velocity=km/s)\n"
+		"  send [FILE|-]\n"
+		"        NDJSON requests in, responses out, pipelined\n"
+		"\n"
+		"Connects to --socket PATH or the default socket\n"
+		"($XDG_RUNTIME_DIR/rockwire.sock, else /tmp/rockwire-<uid>.sock);\n"
+		"when nothing listens there, or with --spawn, runs a private\n"
+		"rockwired --stdio (found via --daemon, $ROCKWIRED, beside this\n"
+		"program, or PATH).\n"
+		"\n"
+		"Exit codes: 0 ok, 1 the daemon answered with an error, 2 usage,\n"
+		"3 no daemon reachable, 4 I/O failure.\n"
+		"\n"
+		"Screening estimates only: not a substitute for qualified review,\n"
+		"local regulations and licensed practice; never the sole basis\n"
+		"for well-control decisions.\n");
+}
+
+int main(int argc, char **argv)
+{
+	static const struct option opts[] = {
+		{"socket", required_argument, NULL, 's'},
+		{"spawn", no_argument, NULL, 'S'},
+		{"daemon", required_argument, NULL, 'd'},
+		{"help", no_argument, NULL, 'h'},
+		{"version", no_argument, NULL, 'V'},
+		{NULL, 0, NULL, 0},
+	};
+	cli_opts o;
+	int c;
+
+	memset(&o, 0, sizeof o);
+	o.argv0 = argv[0];
+	/* Stop at the first non-option: the subcommand owns the rest. */
+	while ((c = getopt_long(argc, argv, "+", opts, NULL)) != -1) {
+		switch (c) {
+		case 's': o.socket_path = optarg; break;
+		case 'S': o.spawn = 1; break;
+		case 'd': o.daemon_path = optarg; break;
+		case 'h': usage(stdout); return 0;
+		case 'V': printf("rockwire %s\n", RW_VERSION); return 0;
+		default: usage(stderr); return CLI_EXIT_USAGE;
+		}
+	}
+	if (optind >= argc) {
+		usage(stderr);
+		return CLI_EXIT_USAGE;
+	}
+	const char *cmd = argv[optind];
+	argc -= optind + 1;
+	argv += optind + 1;
+	if (strcmp(cmd, "call") == 0)
+		return cli_cmd_call(&o, argc, argv);
+	if (strcmp(cmd, "send") == 0)
+		return cli_cmd_send(&o, argc, argv);
+	fprintf(stderr, "rockwire: unknown command '%s'\n", cmd);
+	usage(stderr);
+	return CLI_EXIT_USAGE;
+}

@@ -2,7 +2,6 @@
  * or a pipelined stream of NDJSON requests. */
 #include <errno.h>
 #include <fcntl.h>
-#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -79,7 +78,7 @@ static int print_table(const cJSON *result, FILE *f)
 	const cJSON *units = cJSON_GetObjectItemCaseSensitive(result, "units");
 	const cJSON *m;
 	const cJSON *cols[128];
-	size_t ncol = 0, nrow = 0;
+	size_t ncol = 0, nrow = 0, nscalar = 0;
 	char head[128];
 
 	if (!cJSON_IsObject(result))
@@ -102,10 +101,11 @@ static int print_table(const cJSON *result, FILE *f)
 			fprintf(f, "# %s = %s%s%s\n", m->string, s ? s : "?",
 				u ? " " : "", u ? u : "");
 			cJSON_free(s);
+			nscalar++;
 		}
 	}
 	if (!ncol)
-		return -1;
+		return nscalar ? 0 : -1;
 	for (size_t j = 0; j < ncol; j++) {
 		const char *u = unit_of(units, cols[j]->string);
 		snprintf(head, sizeof head, u ? "%s[%s]" : "%s",
@@ -118,13 +118,7 @@ static int print_table(const cJSON *result, FILE *f)
 			const cJSON *e = cJSON_GetArrayItem(cols[j], (int)i);
 			int w = j ? 14 : 12;
 			if (cJSON_IsNumber(e)) {
-				double v = e->valuedouble;
-				if (v == floor(v) && fabs(v) < 1e9)
-					fprintf(f, "%*.0f", w, v);
-				else if (fabs(v) >= 1e5 || fabs(v) < 1e-3)
-					fprintf(f, "%*.5g", w, v);
-				else
-					fprintf(f, "%*.4f", w, v);
+				fprintf(f, " %*.7g", w - 1, e->valuedouble);
 			} else {
 				fprintf(f, "%*s", w, "null");
 			}

@@ -90,9 +90,10 @@ size_t proto_fmt_double(char *buf, double v)
 		n = snprintf(buf, 32, "%lld", (long long)v);
 		return (size_t)n;
 	}
+	/* 15 significant digits: beyond any measured quantity, and free of
+	 * the binary noise that 17 digits show after unit conversions
+	 * (100 us/ft in, 100.00000000000001 out). */
 	n = snprintf(buf, 32, "%.15g", v);
-	if (strtod(buf, NULL) != v)
-		n = snprintf(buf, 32, "%.17g", v);
 	return (size_t)n;
 }
 

@@ -311,8 +311,8 @@ void proto_w_flags(proto_call *c, const char *key, const uint32_t *flags,
  * the handler as the last member of its result object. */
 void proto_w_units(proto_call *c);
 
-/* Formats a double as the shortest of %.15g / %.17g that reads back
- * exactly; non-finite gives "null". Returns the length (buf >= 32). */
+/* Formats a double with 15 significant digits (integers exactly);
+ * non-finite gives "null". Returns the length (buf >= 32). */
 size_t proto_fmt_double(char *buf, double v);
 
 /* ---- context and session internals ------------------------------------- */

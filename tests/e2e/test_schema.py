@@ -24,6 +24,12 @@ t.ok(p.returncode == 0, "openrpc.json is up to date with its fragments: %s"
 with open(doc_path) as f:
     doc = json.load(f)
 t.ok(doc.get("openrpc", "").startswith("1."), "openrpc version 1.x")
+p = subprocess.run(["/usr/bin/python3",
+                    os.path.join(SRC, "protocol-docs", "build-qc-flags"),
+                    os.environ.get("RW_BUILD", "build"), "--check"],
+                   capture_output=True)
+t.ok(p.returncode == 0, "qc-flags.md matches the daemon's legend: %s"
+     % p.stderr.decode().strip()[-200:])
 for m in doc["methods"]:
     for prm in m["params"]:
         try:

@@ -16,6 +16,9 @@ static const proto_method *const families[] = {
 	proto_service_methods,
 	proto_session_methods,
 	proto_elastic_methods,
+	proto_fluid_methods,
+	proto_mineral_methods,
+	proto_rock_methods,
 };
 
 const proto_method *proto_method_at(size_t i)

@@ -94,6 +94,13 @@ typedef struct proto_qc_info {
 #define QC_RHO_RANGE         (1u << 5)  /* implausible density */
 #define QC_VP_RANGE          (1u << 6)  /* implausible vp */
 #define QC_VS_RANGE          (1u << 7)  /* implausible vs */
+/* Fluids and Gassmann (8-15), fluid.c and rock.c. */
+#define QC_FLUID_CALIBRATION (1u << 8)  /* fluid input outside B&W fit */
+#define QC_FLUID_GOR_EXCESS  (1u << 9)  /* GOR above what oil dissolves */
+#define QC_FLUID_BOILING     (1u << 10) /* p below water's boiling p */
+#define QC_FLUID_FAILED      (1u << 11) /* correlation unphysical: null */
+#define QC_GASSMANN_KDRY     (1u << 12) /* K_dry < 0 or > K_min: null */
+#define QC_GASSMANN_PHI_LOW  (1u << 13) /* porosity < 0.05: ill-posed */
 
 /* Plausibility ranges for sedimentary rock (internal units), shared by
  * the elastic and log families; overridable per request (`qc` object). */
@@ -235,6 +242,9 @@ int proto__session_merge(proto_call *c, const cJSON *params,
 extern const proto_method proto_session_methods[];
 extern const proto_method proto_service_methods[];
 extern const proto_method proto_elastic_methods[];
+extern const proto_method proto_fluid_methods[];
+extern const proto_method proto_mineral_methods[];
+extern const proto_method proto_rock_methods[];
 
 /* Looks a method up by name; NULL when unknown. */
 const proto_method *proto_method_find(const char *name);

@@ -27,6 +27,31 @@ const proto_qc_info proto_qc_legend[] = {
 	{QC_VS_RANGE, "vs_implausible", QC_IMPLAUSIBLE,
 	 "vs outside the plausibility range (default 0-4500 m/s, common "
 	 "practice; params qc.vs_min, qc.vs_max)"},
+	{QC_FLUID_CALIBRATION, "fluid_outside_calibration", QC_RANGE,
+	 "a pore-fluid input (pressure, temperature, salinity, gas gravity, "
+	 "oil API, gas pseudo-reduced p or T) is outside the range Batzle & "
+	 "Wang 1992 fitted; the value is extrapolated (ranges in "
+	 "fluids.md)"},
+	{QC_FLUID_GOR_EXCESS, "gor_above_saturation", QC_IMPLAUSIBLE,
+	 "the oil's GOR exceeds the gas it can dissolve at this pressure "
+	 "and temperature (Batzle & Wang 1992 eq. 21): free gas would be "
+	 "present, so a single live-oil phase is not the real state"},
+	{QC_FLUID_BOILING, "water_boiling", QC_IMPLAUSIBLE,
+	 "pressure below the boiling pressure of pure water at this "
+	 "temperature (IAPWS-IF97 eq. 30): the brine would be vapour; the "
+	 "liquid correlation is extrapolated"},
+	{QC_FLUID_FAILED, "fluid_unphysical", QC_IMPOSSIBLE,
+	 "a fluid correlation gives no physical value here (non-positive "
+	 "density or velocity far outside its fit); outputs that need it "
+	 "are null"},
+	{QC_GASSMANN_KDRY, "dry_frame_impossible", QC_IMPOSSIBLE,
+	 "Gassmann's dry-frame bulk modulus is below 0 or above the "
+	 "mineral's: the logs, porosity, mineral and fluid are inconsistent; "
+	 "k_dry is reported, the substituted rock is null"},
+	{QC_GASSMANN_PHI_LOW, "porosity_low_gassmann", QC_RANGE,
+	 "porosity below 0.05: Gassmann's substitution is ill-conditioned "
+	 "(errors in the mineral modulus and logs are amplified roughly as "
+	 "1/porosity; common practice)"},
 	{0, NULL, QC_INPUT, NULL},
 };
 

@@ -19,6 +19,8 @@ static const proto_method *const families[] = {
 	proto_fluid_methods,
 	proto_mineral_methods,
 	proto_rock_methods,
+	proto_log_methods,
+	proto_rock_empirical_methods,
 };
 
 const proto_method *proto_method_at(size_t i)

@@ -101,6 +101,15 @@ typedef struct proto_qc_info {
 #define QC_FLUID_FAILED      (1u << 11) /* correlation unphysical: null */
 #define QC_GASSMANN_KDRY     (1u << 12) /* K_dry < 0 or > K_min: null */
 #define QC_GASSMANN_PHI_LOW  (1u << 13) /* porosity < 0.05: ill-posed */
+/* Well logs (log.process, rock.empirical), bits 24-31. */
+#define QC_DRHO_HIGH      (1u << 24) /* |drho| above drho_limit */
+#define QC_WASHOUT        (1u << 25) /* caliper - bit size > washout_limit */
+#define QC_VS_PREDICTED   (1u << 26) /* vs predicted, not measured */
+#define QC_RHO_PREDICTED  (1u << 27) /* density predicted, not measured */
+#define QC_LOG_MISSING    (1u << 28) /* an input curve is null here */
+#define QC_EMP_RANGE      (1u << 29) /* empirical relation extrapolated */
+#define QC_SUBST_FAILED   (1u << 30) /* substituted outputs null */
+#define QC_SUBST_CAUTION  (1u << 31) /* Gassmann or fluid-range caution */
 
 /* Plausibility ranges for sedimentary rock (internal units), shared by
  * the elastic and log families; overridable per request (`qc` object). */
@@ -245,6 +254,8 @@ extern const proto_method proto_elastic_methods[];
 extern const proto_method proto_fluid_methods[];
 extern const proto_method proto_mineral_methods[];
 extern const proto_method proto_rock_methods[];
+extern const proto_method proto_log_methods[];
+extern const proto_method proto_rock_empirical_methods[];
 
 /* Looks a method up by name; NULL when unknown. */
 const proto_method *proto_method_find(const char *name);

@@ -52,6 +52,34 @@ const proto_qc_info proto_qc_legend[] = {
 	 "porosity below 0.05: Gassmann's substitution is ill-conditioned "
 	 "(errors in the mineral modulus and logs are amplified roughly as "
 	 "1/porosity; common practice)"},
+	{QC_DRHO_HIGH, "density_correction_high", QC_INPUT,
+	 "|drho| above drho_limit (default 0.05 g/cm3, the strict end of "
+	 "the 0.05-0.10 g/cm3 common practice): the density log is doubtful "
+	 "(replaced by a prediction only with rho_replace_bad)"},
+	{QC_WASHOUT, "washout", QC_INPUT,
+	 "caliper exceeds bit size by more than washout_limit (default "
+	 "1 in = 0.0254 m, common practice): pad and sonic readings are "
+	 "doubtful"},
+	{QC_VS_PREDICTED, "vs_predicted", QC_PREDICTED,
+	 "vs was predicted from vp (vs_predicted_by in the result names the "
+	 "relation), not measured"},
+	{QC_RHO_PREDICTED, "density_predicted", QC_PREDICTED,
+	 "density was predicted from vp (rho_predicted_by names the "
+	 "relation), not measured"},
+	{QC_LOG_MISSING, "input_missing", QC_INPUT,
+	 "an input curve is null (missing) at this sample; outputs that need "
+	 "it are null unless predicted"},
+	{QC_EMP_RANGE, "empirical_extrapolated", QC_RANGE,
+	 "an empirical relation was used outside the range it was fitted on "
+	 "(protocol-docs/logs.md lists the ranges)"},
+	{QC_SUBST_FAILED, "substitution_failed", QC_IMPOSSIBLE,
+	 "Gassmann substitution impossible at this sample (missing or "
+	 "unphysical input, fluid outside the correlations' domain); "
+	 "substituted outputs are null"},
+	{QC_SUBST_CAUTION, "substitution_caution", QC_RANGE,
+	 "substitution computed with a caution: dry-frame K < 0 or above "
+	 "the mineral's, porosity below 0.05, or a fluid property outside "
+	 "its fitted range"},
 	{0, NULL, QC_INPUT, NULL},
 };
 

@@ -1,7 +1,10 @@
 /* rockwired: the rockwire daemon. Parses the command line and runs the
- * server on a Unix socket or on stdin/stdout. */
+ * server on Unix sockets, loopback TCP, sockets passed by the service
+ * manager, or stdin/stdout. */
 #include <errno.h>
 #include <getopt.h>
+#include <math.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -18,30 +21,62 @@
 static void usage(FILE *f)
 {
 	fprintf(f,
-		"usage: rockwired [--stdio | --socket PATH] [options]\n"
+		"usage: rockwired [--stdio | --socket PATH | --listen SPEC...]"
+		" [options]\n"
 		"\n"
 		"Rock-physics calculator daemon: line-delimited JSON-RPC 2.0.\n"
 		"\n"
 		"  --stdio              serve requests on stdin, answer on stdout\n"
-		"  --socket PATH        listen on a Unix socket (default:\n"
+		"  --socket PATH        listen on a Unix socket (same as --listen\n"
+		"                       unix:PATH). With no listener given:\n"
+		"                       sockets passed by the service manager\n"
+		"                       (LISTEN_FDS), else\n"
 		"                       $XDG_RUNTIME_DIR/rockwire.sock, else\n"
-		"                       /tmp/rockwire-<uid>.sock)\n"
+		"                       /tmp/rockwire-<uid>.sock\n"
+		"  --listen SPEC        unix:PATH or tcp:HOST:PORT (HOST numeric\n"
+		"                       or localhost, [V6] for IPv6; port 0 picks\n"
+		"                       one); repeatable, up to 8\n"
+		"  --allow-remote       allow TCP beyond loopback (the protocol\n"
+		"                       has no authentication)\n"
 		"  --socket-mode MODE   octal permission bits (default 0600)\n"
-		"  --max-line BYTES     longest request line (default 64 MiB)\n"
+		"  --log FILE           log to FILE instead of stderr; SIGHUP\n"
+		"                       reopens it\n"
+		"\n"
+		"Limits (see protocol-docs/limits.md; all shown by "
+		"service.info):\n"
+		"  --max-line BYTES     longest request line (default 64M)\n"
 		"  --max-samples N      samples per request (default 0 = no limit)\n"
 		"  --max-work N         samples x angles per request (0 = none)\n"
 		"  --max-batch N        requests per batch (default 10000)\n"
 		"  --max-depth N        JSON nesting depth (default 64)\n"
 		"  --max-connections N  concurrent connections (default 1024)\n"
+		"  --high-water BYTES   unsent answers (or buffered input) per\n"
+		"                       connection before reading pauses\n"
+		"                       (default 1M)\n"
+		"  --max-output BYTES   hard bound on unsent answers per\n"
+		"                       connection: past it a client must keep\n"
+		"                       reading (default 32M; 0 = off)\n"
+		"  --stall-timeout S    ... at least 64 KiB per S seconds, or it\n"
+		"                       is closed as slow (default 30)\n"
+		"  --budget BYTES       bytes buffered over all connections\n"
+		"                       before all reads wait (default 2G; 0 =\n"
+		"                       off)\n"
+		"  --idle-timeout S     close a connection idle this long\n"
+		"                       (default 0 = never)\n"
+		"  --drain-timeout S    on SIGTERM, close what is left after S\n"
+		"                       seconds (default 8)\n"
 		"  --lines-per-turn N   fairness: lines per connection per loop\n"
 		"                       turn (default 20)\n"
 		"  --offload BYTES      lines this long run in the thread pool\n"
-		"                       (default 262144; 0 = never)\n"
+		"                       (default 256K; 0 = never)\n"
 		"  --help, --version\n"
 		"\n"
+		"Signals: SIGTERM/SIGINT stop accepting, answer what was read\n"
+		"and exit 0 (a second one closes at once); SIGHUP reopens the\n"
+		"log. With NOTIFY_SOCKET set, READY=1 and STOPPING=1 are sent.\n"
 		"Exit codes: 0 clean shutdown, 2 usage, 3 cannot listen (path\n"
 		"busy or a live daemon on it), 4 runtime failure.\n"
-		"Logs go to stderr, one line per event.\n"
+		"Logs go to stderr (or --log), one line per event.\n"
 		"\n"
 		"Screening estimates only: not a substitute for qualified review,\n"
 		"local regulations and licensed practice; never the sole basis\n"
@@ -53,39 +88,66 @@ static int parse_size(const char *s, size_t *out)
 {
 	char *end;
 	unsigned long long v;
+	int shift = 0;
 
 	errno = 0;
-	if (!*s || *s == '-')
+	if (*s < '0' || *s > '9')
 		return -1;
 	v = strtoull(s, &end, 10);
 	if (errno || end == s)
 		return -1;
 	switch (*end) {
-	case 'K': case 'k': v <<= 10, end++; break;
-	case 'M': case 'm': v <<= 20, end++; break;
-	case 'G': case 'g': v <<= 30, end++; break;
+	case 'K': case 'k': shift = 10, end++; break;
+	case 'M': case 'm': shift = 20, end++; break;
+	case 'G': case 'g': shift = 30, end++; break;
 	default: break;
 	}
-	if (*end)
+	if (*end || v > ((unsigned long long)SIZE_MAX >> shift))
 		return -1;
-	*out = (size_t)v;
+	*out = (size_t)(v << shift);
+	return 0;
+}
+
+/* Parses seconds: a finite decimal in [0, 1e6]. */
+static int parse_seconds(const char *s, double *out)
+{
+	char *end;
+	double v;
+
+	errno = 0;
+	if (!*s)
+		return -1;
+	v = strtod(s, &end);
+	if (errno || *end || !isfinite(v) || v < 0 || v > 1e6)
+		return -1;
+	*out = v;
 	return 0;
 }
 
 int main(int argc, char **argv)
 {
 	enum { O_MODE = 256, O_LINE, O_SAMPLES, O_WORK, O_BATCH, O_DEPTH,
-	       O_CONNS, O_TURN, O_OFFLOAD };
+	       O_CONNS, O_TURN, O_OFFLOAD, O_HIGH, O_HARD, O_BUDGET,
+	       O_LISTEN, O_REMOTE, O_LOG, O_IDLE, O_STALL, O_DRAIN };
 	static const struct option opts[] = {
 		{"stdio", no_argument, NULL, 'i'},
 		{"socket", required_argument, NULL, 's'},
+		{"listen", required_argument, NULL, O_LISTEN},
+		{"allow-remote", no_argument, NULL, O_REMOTE},
 		{"socket-mode", required_argument, NULL, O_MODE},
+		{"log", required_argument, NULL, O_LOG},
 		{"max-line", required_argument, NULL, O_LINE},
 		{"max-samples", required_argument, NULL, O_SAMPLES},
 		{"max-work", required_argument, NULL, O_WORK},
 		{"max-batch", required_argument, NULL, O_BATCH},
 		{"max-depth", required_argument, NULL, O_DEPTH},
 		{"max-connections", required_argument, NULL, O_CONNS},
+		{"high-water", required_argument, NULL, O_HIGH},
+		{"max-output", required_argument, NULL, O_HARD},
+		{"budget", required_argument, NULL, O_BUDGET},
+		{"idle-timeout", required_argument, NULL, O_IDLE},
+		{"stall-timeout", required_argument, NULL, O_STALL},
+		{"drain-timeout", required_argument, NULL, O_DRAIN},
 		{"lines-per-turn", required_argument, NULL, O_TURN},
 		{"offload", required_argument, NULL, O_OFFLOAD},
 		{"help", no_argument, NULL, 'h'},
@@ -93,8 +155,9 @@ int main(int argc, char **argv)
 		{NULL, 0, NULL, 0},
 	};
 	srv_config cfg;
-	char path[512];
+	static char unix_spec[SRV_MAX_LISTEN][600];
 	size_t v;
+	double secs;
 	int o;
 
 	gsl_set_error_handler_off();
@@ -103,7 +166,44 @@ int main(int argc, char **argv)
 		const char *name = NULL;
 		switch (o) {
 		case 'i': cfg.use_stdio = 1; continue;
-		case 's': cfg.socket_path = optarg; continue;
+		case 's':
+		case O_LISTEN:
+			if (cfg.n_listen >= SRV_MAX_LISTEN) {
+				fprintf(stderr, "rockwired: at most %d "
+					"listeners\n", SRV_MAX_LISTEN);
+				return 2;
+			}
+			if (o == 's') {
+				if (!*optarg || strlen(optarg) >= 500) {
+					fprintf(stderr, "rockwired: --socket: "
+						"empty or too long path\n");
+					return 2;
+				}
+				snprintf(unix_spec[cfg.n_listen],
+					 sizeof unix_spec[0], "unix:%s",
+					 optarg);
+				cfg.listen[cfg.n_listen] =
+					unix_spec[cfg.n_listen];
+				cfg.n_listen++;
+			} else if (strncmp(optarg, "unix:", 5) == 0 ||
+				   strncmp(optarg, "tcp:", 4) == 0) {
+				cfg.listen[cfg.n_listen++] = optarg;
+			} else {
+				fprintf(stderr, "rockwired: --listen: '%s' is "
+					"not unix:PATH or tcp:HOST:PORT\n",
+					optarg);
+				return 2;
+			}
+			continue;
+		case O_REMOTE: cfg.allow_remote = 1; continue;
+		case O_LOG:
+			if (!*optarg) {
+				fprintf(stderr, "rockwired: --log: empty "
+					"path\n");
+				return 2;
+			}
+			cfg.log_path = optarg;
+			continue;
 		case 'h': usage(stdout); return 0;
 		case 'V': printf("rockwired %s\n", RW_VERSION); return 0;
 		case O_MODE: {
@@ -121,6 +221,25 @@ int main(int argc, char **argv)
 			cfg.socket_mode = (unsigned)m;
 			continue;
 		}
+		case O_IDLE:
+		case O_STALL:
+		case O_DRAIN:
+			name = o == O_IDLE    ? "--idle-timeout"
+			       : o == O_STALL ? "--stall-timeout"
+					      : "--drain-timeout";
+			if (parse_seconds(optarg, &secs) < 0) {
+				fprintf(stderr, "rockwired: %s: '%s' is not a "
+					"number of seconds in [0, 1e6]\n",
+					name, optarg);
+				return 2;
+			}
+			if (o == O_IDLE)
+				cfg.limits.idle_timeout_s = secs;
+			else if (o == O_STALL)
+				cfg.stall_timeout_s = secs;
+			else
+				cfg.drain_timeout_s = secs;
+			continue;
 		default: break;
 		}
 		switch (o) {
@@ -132,12 +251,21 @@ int main(int argc, char **argv)
 		case O_CONNS: name = "--max-connections"; break;
 		case O_TURN: name = "--lines-per-turn"; break;
 		case O_OFFLOAD: name = "--offload"; break;
+		case O_HIGH: name = "--high-water"; break;
+		case O_HARD: name = "--max-output"; break;
+		case O_BUDGET: name = "--budget"; break;
 		default: usage(stderr); return 2;
 		}
 		if (parse_size(optarg, &v) < 0) {
 			fprintf(stderr, "rockwired: %s: '%s' is not a "
 				"non-negative integer (K, M, G suffixes "
 				"allowed)\n", name, optarg);
+			return 2;
+		}
+		if ((o == O_LINE || o == O_DEPTH || o == O_CONNS ||
+		     o == O_HIGH) && v == 0) {
+			fprintf(stderr, "rockwired: %s must be at least 1\n",
+				name);
 			return 2;
 		}
 		switch (o) {
@@ -151,11 +279,9 @@ int main(int argc, char **argv)
 		case O_TURN: cfg.lines_per_turn = v ? (int)(v > 100000 ? 100000 : v) : 1;
 			break;
 		case O_OFFLOAD: cfg.offload_bytes = v; break;
-		}
-		if ((o == O_LINE || o == O_DEPTH || o == O_CONNS) && v == 0) {
-			fprintf(stderr, "rockwired: %s must be at least 1\n",
-				name);
-			return 2;
+		case O_HIGH: cfg.limits.out_high_water = v; break;
+		case O_HARD: cfg.limits.out_hard_limit = v; break;
+		case O_BUDGET: cfg.limits.global_budget = v; break;
 		}
 	}
 	if (optind < argc) {
@@ -164,12 +290,22 @@ int main(int argc, char **argv)
 		usage(stderr);
 		return 2;
 	}
-	if (cfg.use_stdio && cfg.socket_path) {
-		fprintf(stderr, "rockwired: --stdio and --socket exclude each "
-			"other\n");
+	if (cfg.use_stdio && cfg.n_listen) {
+		fprintf(stderr, "rockwired: --stdio excludes --socket and "
+			"--listen\n");
 		return 2;
 	}
-	if (!cfg.use_stdio && !cfg.socket_path)
-		cfg.socket_path = srv_default_socket_path(path, sizeof path);
+	if (cfg.limits.out_hard_limit &&
+	    cfg.limits.out_hard_limit < cfg.limits.out_high_water) {
+		fprintf(stderr, "rockwired: --max-output (%zu) must be at "
+			"least --high-water (%zu)\n",
+			cfg.limits.out_hard_limit, cfg.limits.out_high_water);
+		return 2;
+	}
+	if (cfg.limits.out_hard_limit && cfg.stall_timeout_s <= 0) {
+		fprintf(stderr, "rockwired: --stall-timeout must be above 0 "
+			"(use --max-output 0 to turn the rule off)\n");
+		return 2;
+	}
 	return srv_run(&cfg);
 }

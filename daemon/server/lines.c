@@ -8,6 +8,8 @@
 
 #include "server/lines.h"
 
+#define SHRINK_ABOVE (1u << 20)
+
 void srv_lines_init(srv_lines *lb, size_t max_line)
 {
 	memset(lb, 0, sizeof *lb);
@@ -39,6 +41,13 @@ static void compact(srv_lines *lb)
 
 int srv_lines_append(srv_lines *lb, const char *data, size_t n)
 {
+	if (lb->start == lb->len && lb->cap > SHRINK_ABOVE) {
+		/* Empty after a long line: give the big buffer back so an
+		 * idle connection does not keep its high-water memory. */
+		free(lb->buf);
+		lb->buf = NULL;
+		lb->start = lb->len = lb->cap = lb->scan = 0;
+	}
 	if (lb->discarding) {
 		const char *nl = memchr(data, '\n', n);
 		if (!nl)
@@ -100,6 +109,23 @@ srv_line_status srv_lines_next(srv_lines *lb, const char **line, size_t *len)
 	if (*len > lb->max_line)
 		return SRV_LINE_OVERSIZE;
 	return SRV_LINE_OK;
+}
+
+int srv_lines_has_line(srv_lines *lb)
+{
+	size_t avail = lb->len - lb->start;
+	const char *p = lb->buf + lb->start;
+	const char *nl;
+
+	if (avail <= lb->scan)
+		return 0;
+	nl = memchr(p + lb->scan, '\n', avail - lb->scan);
+	if (!nl) {
+		lb->scan = avail;
+		return 0;
+	}
+	lb->scan = (size_t)(nl - p);
+	return 1;
 }
 
 srv_line_status srv_lines_tail(srv_lines *lb, const char **line, size_t *len)

@@ -22,7 +22,8 @@ typedef enum srv_line_status {
 
 void srv_lines_init(srv_lines *lb, size_t max_line);
 void srv_lines_free(srv_lines *lb);
-/* Appends received bytes. While an oversized line is being skipped, bytes
+/* Appends received bytes. A buffer left empty after holding more than
+ * 1 MiB is released first. While an oversized line is being skipped, bytes
  * up to and including its '\n' are dropped here. Returns 0, or -1 when out
  * of memory. */
 int srv_lines_append(srv_lines *lb, const char *data, size_t n);
@@ -33,6 +34,9 @@ srv_line_status srv_lines_next(srv_lines *lb, const char **line,
 /* Takes what is left as a final line at end of input (no '\n'); returns
  * SRV_LINE_NONE when nothing is left or the tail is being discarded. */
 srv_line_status srv_lines_tail(srv_lines *lb, const char **line, size_t *len);
+/* 1 when a complete line is buffered (a later srv_lines_next returns
+ * it). Scans each byte once however often it is called. */
+int srv_lines_has_line(srv_lines *lb);
 /* Bytes held. */
 size_t srv_lines_buffered(const srv_lines *lb);
 

@@ -1,5 +1,6 @@
 /* The libuv server: listeners, connections, line dispatch, ordered writes
- * with backpressure, the thread-pool path for heavy lines, and shutdown.
+ * with backpressure and bounds, the thread-pool path for heavy lines, and
+ * shutdown.
  *
  * A connection is one input and one output: a socket (both on one
  * handle), or stdin and stdout in --stdio mode, each of which may be a
@@ -10,8 +11,20 @@
  * per connection is in flight at a time, which keeps responses in request
  * order without sequence numbers. A connection is freed only when its last
  * handle has closed and no write, read or work request still refers to it
- * (`refs`), never inside its own callback chain. */
+ * (`refs`), never inside its own callback chain: whoever runs code on a
+ * connection after something that may close it holds a reference.
+ *
+ * Memory bounds (protocol-docs/limits.md): a connection stops being read
+ * while more than the high-water mark of its answers waits unsent, or
+ * while more than the high-water mark of its input is buffered with a
+ * complete line among it; past the hard bound it must keep its answers
+ * moving or it is closed as slow; and all connections stop being read
+ * while the bytes buffered over all of them pass the global budget. */
+#include <arpa/inet.h>
 #include <errno.h>
+#include <fcntl.h>
+#include <netdb.h>
+#include <netinet/in.h>
 #include <signal.h>
 #include <stdarg.h>
 #include <stdio.h>
@@ -26,14 +39,18 @@
 #include <uv.h>
 
 #include "server/lines.h"
+#include "server/sd.h"
 #include "server/srv.h"
 
 #define READ_CHUNK 65536
+#define TICK_MS 250                 /* idle and slow-reader checks */
+#define STALL_PROGRESS (64u << 10)  /* bytes that count as progress */
 
 typedef struct srv srv;
 typedef struct conn conn;
 
 enum io_kind { IO_NONE, IO_STREAM, IO_FILE };
+enum lst_kind { LST_UNIX, LST_TCP };
 
 typedef union any_handle {
 	uv_handle_t h;
@@ -70,16 +87,28 @@ struct conn {
 	char *wdata;              /* the write in flight */
 	size_t wlen, woff;
 	int writing;
+	uint64_t out_handed;      /* bytes handed to stream writes */
+	uint64_t out_done;        /* bytes known written */
 
 	srv_lines lines;
 	proto_session *session;
 
+	int is_socket;            /* accepted from a listener (not stdio) */
 	int reading;              /* input is being read */
 	int eof;                  /* no more input will come */
+	int drop_tail;            /* at eof, a line without '\n' is dropped */
 	int paused;               /* unsent output above the high-water mark */
+	int in_full;              /* buffered input above the high-water mark */
+	int budget_wait;          /* reads wait for the global budget */
 	int closing;
 	int busy;                 /* a line is in the thread pool */
 	int refs;
+
+	size_t acct;              /* bytes counted in stats->buffered_bytes */
+	uint64_t active_ms;       /* last byte in or out */
+	uint64_t stall_ms;        /* start of the current progress window */
+	uint64_t stall_mark;      /* out_sent at stall_ms */
+	uint64_t seen_sent;       /* out_sent at the last tick */
 
 	uv_work_t work;
 	char *work_line;
@@ -87,8 +116,20 @@ struct conn {
 	proto_buf work_out;
 	int work_rc;
 
-	char name[48];
+	char name[80];
 };
+
+typedef struct srv_listener {
+	srv *srv;
+	any_handle h;
+	enum lst_kind kind;
+	int open;
+	int activated;            /* passed in by the service manager */
+	char *path;               /* Unix path we created, to remove */
+	dev_t dev;
+	ino_t ino;
+	char name[128];
+} srv_listener;
 
 struct srv {
 	uv_loop_t *loop;
@@ -99,18 +140,20 @@ struct srv {
 	conn *ready_head, *ready_tail;
 	uv_idle_t idle;
 	int idle_active;
-	uv_pipe_t listener;
+	srv_listener lst[SRV_MAX_LISTEN];
+	int n_lst;
 	int listening;
-	char *sock_path;          /* the path we created, to remove at exit */
-	dev_t sock_dev;
-	ino_t sock_ino;
 	uv_signal_t sig_int, sig_term, sig_hup;
 	uv_timer_t drain_timer;
+	uv_timer_t tick;
+	srv_notify notify;
+	int stop_notified;
 	int stopping;
+	int over_budget;
 	int exit_code;
 	unsigned long next_id;
 	char read_buf[READ_CHUNK];
-	char transport[160];
+	char transport[320];
 };
 
 /* ---- logging ------------------------------------------------------------ */
@@ -132,6 +175,24 @@ void srv_log(const char *level, const char *fmt, ...)
 		level, msg);
 }
 
+int srv_log_open(const char *path)
+{
+	int fd = open(path, O_WRONLY | O_APPEND | O_CREAT | O_CLOEXEC, 0600);
+	int err;
+
+	if (fd < 0)
+		return -1;
+	if (fd != STDERR_FILENO && dup2(fd, STDERR_FILENO) < 0) {
+		err = errno;
+		close(fd);
+		errno = err;
+		return -1;
+	}
+	if (fd != STDERR_FILENO)
+		close(fd);
+	return 0;
+}
+
 /* ---- configuration ------------------------------------------------------ */
 
 void srv_config_default(srv_config *cfg)
@@ -141,6 +202,7 @@ void srv_config_default(srv_config *cfg)
 	cfg->lines_per_turn = 20;
 	cfg->offload_bytes = 256 * 1024;
 	cfg->drain_timeout_s = 8.0;
+	cfg->stall_timeout_s = 30.0;
 	proto_limits_default(&cfg->limits);
 }
 
@@ -154,12 +216,74 @@ char *srv_default_socket_path(char *buf, size_t size)
 	return buf;
 }
 
-/* ---- connection lifetime ------------------------------------------------ */
+/* ---- accounting --------------------------------------------------------- */
 
 static void srv_maybe_finish(srv *s);
 static void conn_schedule(conn *c);
 static void conn_flush(conn *c);
 static void conn_close(conn *c);
+static void conn_update_read(conn *c);
+
+static size_t conn_unsent(const conn *c)
+{
+	return c->pending.len + (c->wlen - c->woff);
+}
+
+/* Bytes written to the peer so far, including progress inside a stream
+ * write that libuv is still working through. */
+static uint64_t conn_sent(const conn *c)
+{
+	if (c->writing && c->out_kind == IO_STREAM && !c->closing)
+		return c->out_handed -
+		       uv_stream_get_write_queue_size(c->out_stream);
+	return c->out_done;
+}
+
+/* Global budget: past it every connection stops reading; reading resumes
+ * below three quarters of it. */
+static void budget_check(srv *s)
+{
+	size_t budget = s->cfg->limits.global_budget;
+	uint64_t now = s->stats->buffered_bytes;
+	conn *c;
+
+	if (!budget)
+		return;
+	if (!s->over_budget && now > budget) {
+		s->over_budget = 1;
+		srv_log("warning",
+			"%llu bytes buffered over all connections, past the "
+			"budget of %zu: reads wait",
+			(unsigned long long)now, budget);
+		for (c = s->conns; c; c = c->next) {
+			c->budget_wait = 1;
+			conn_update_read(c);
+		}
+	} else if (s->over_budget && now <= budget / 4 * 3) {
+		s->over_budget = 0;
+		srv_log("info", "buffered bytes back under the budget: reading");
+		for (c = s->conns; c; c = c->next) {
+			c->budget_wait = 0;
+			conn_update_read(c);
+		}
+	}
+}
+
+/* Brings this connection's share of buffered_bytes up to date. */
+static void conn_account(conn *c)
+{
+	srv *s = c->srv;
+	size_t now = c->closing ? 0
+				: srv_lines_buffered(&c->lines) +
+					  conn_unsent(c) + c->work_len;
+
+	s->stats->buffered_bytes += now;
+	s->stats->buffered_bytes -= c->acct;
+	c->acct = now;
+	budget_check(s);
+}
+
+/* ---- connection lifetime ------------------------------------------------ */
 
 static void conn_unref(conn *c)
 {
@@ -168,6 +292,8 @@ static void conn_unref(conn *c)
 	if (--c->refs > 0)
 		return;
 	/* Last reference: unlink and free. */
+	s->stats->buffered_bytes -= c->acct;
+	c->acct = 0;
 	if (c->prev)
 		c->prev->next = c->next;
 	else
@@ -184,6 +310,7 @@ static void conn_unref(conn *c)
 	free(c->in_buf);
 	proto_session_free(c->session);
 	free(c);
+	budget_check(s);
 	srv_maybe_finish(s);
 }
 
@@ -205,6 +332,8 @@ static conn *conn_new(srv *s, const char *kind)
 	}
 	c->srv = s;
 	c->in_fd = c->out_fd = -1;
+	c->budget_wait = s->over_budget;
+	c->active_ms = c->stall_ms = uv_now(s->loop);
 	srv_lines_init(&c->lines, s->cfg->limits.max_line);
 	proto_buf_init(&c->pending);
 	proto_buf_init(&c->work_out);
@@ -216,11 +345,6 @@ static conn *conn_new(srv *s, const char *kind)
 	s->stats->connections_total++;
 	s->stats->connections_open++;
 	return c;
-}
-
-static size_t conn_unsent(const conn *c)
-{
-	return c->pending.len + (c->wlen - c->woff);
 }
 
 static void ready_remove(conn *c)
@@ -243,12 +367,15 @@ static void ready_remove(conn *c)
 	c->in_ready = 0;
 }
 
+/* Closes the connection. It may be freed before this returns unless the
+ * caller holds a reference. */
 static void conn_close(conn *c)
 {
 	if (c->closing)
 		return;
 	c->closing = 1;
 	ready_remove(c);
+	conn_account(c);
 	if (c->in_open && c->in_kind == IO_STREAM) {
 		c->in_open = 0;
 		uv_close(&c->in.h, on_handle_closed);
@@ -270,15 +397,55 @@ static void read_stop(conn *c)
 	c->reading = 0;
 }
 
+static void on_eof(conn *c);
+static void file_read_next(conn *c);
+static void on_alloc(uv_handle_t *h, size_t suggested, uv_buf_t *buf);
+static void on_read(uv_stream_t *st, ssize_t nread, const uv_buf_t *buf);
+
+static void read_start(conn *c)
+{
+	if (c->reading || c->eof || c->closing)
+		return;
+	c->reading = 1;
+	if (c->in_kind == IO_STREAM) {
+		int rc = uv_read_start(&c->in.s, on_alloc, on_read);
+		if (rc < 0) {
+			srv_log("warning", "%s: read start: %s", c->name,
+				uv_strerror(rc));
+			c->reading = 0;
+			on_eof(c);
+		}
+	} else if (c->in_kind == IO_FILE) {
+		file_read_next(c);
+	}
+}
+
+/* Reads while nothing holds the connection back: its own unsent output,
+ * its own buffered input, or the global budget. */
+static void conn_update_read(conn *c)
+{
+	size_t high = c->srv->cfg->limits.out_high_water;
+
+	c->in_full = high && srv_lines_buffered(&c->lines) > high &&
+		     srv_lines_has_line(&c->lines);
+	if (c->paused || c->in_full || c->budget_wait)
+		read_stop(c);
+	else
+		read_start(c);
+}
+
 static void conn_feed(conn *c, const char *data, size_t n)
 {
 	c->srv->stats->bytes_in += n;
+	c->active_ms = uv_now(c->srv->loop);
 	if (srv_lines_append(&c->lines, data, n)) {
 		srv_log("error", "%s: out of memory buffering input; closing",
 			c->name);
 		conn_close(c);
 		return;
 	}
+	conn_account(c);
+	conn_update_read(c);
 	conn_schedule(c);
 }
 
@@ -316,8 +483,6 @@ static void on_read(uv_stream_t *st, ssize_t nread, const uv_buf_t *buf)
 	}
 }
 
-static void file_read_next(conn *c);
-
 static void on_file_read(uv_fs_t *req)
 {
 	conn *c = req->data;
@@ -325,22 +490,20 @@ static void on_file_read(uv_fs_t *req)
 
 	uv_fs_req_cleanup(req);
 	c->in_inflight = 0;
-	if (c->closing) {
-		conn_unref(c);
-		return;
+	if (!c->closing) {
+		if (n > 0) {
+			c->in_off += n;
+			conn_feed(c, c->in_buf, (size_t)n);
+			if (!c->closing && c->reading)
+				file_read_next(c);
+		} else {
+			if (n < 0)
+				srv_log("warning", "%s: read: %s", c->name,
+					uv_strerror((int)n));
+			on_eof(c);
+		}
 	}
-	c->refs--; /* the request's; the connection's own is still held */
-	if (n > 0) {
-		c->in_off += n;
-		conn_feed(c, c->in_buf, (size_t)n);
-		if (!c->closing && c->reading && !c->paused)
-			file_read_next(c);
-	} else {
-		if (n < 0)
-			srv_log("warning", "%s: read: %s", c->name,
-				uv_strerror((int)n));
-		on_eof(c);
-	}
+	conn_unref(c); /* the request's */
 }
 
 static void file_read_next(conn *c)
@@ -363,24 +526,6 @@ static void file_read_next(conn *c)
 	}
 }
 
-static void read_start(conn *c)
-{
-	if (c->reading || c->eof || c->closing)
-		return;
-	c->reading = 1;
-	if (c->in_kind == IO_STREAM) {
-		int rc = uv_read_start(&c->in.s, on_alloc, on_read);
-		if (rc < 0) {
-			srv_log("warning", "%s: read start: %s", c->name,
-				uv_strerror(rc));
-			c->reading = 0;
-			on_eof(c);
-		}
-	} else if (c->in_kind == IO_FILE) {
-		file_read_next(c);
-	}
-}
-
 /* ---- writing ------------------------------------------------------------ */
 
 static void update_pause(conn *c)
@@ -388,13 +533,14 @@ static void update_pause(conn *c)
 	size_t unsent = conn_unsent(c);
 	size_t high = c->srv->cfg->limits.out_high_water;
 
+	conn_account(c);
 	if (!c->paused && unsent > high) {
 		c->paused = 1;
 		c->srv->stats->reads_paused++;
-		read_stop(c);
+		conn_update_read(c);
 	} else if (c->paused && unsent <= high / 2) {
 		c->paused = 0;
-		read_start(c);
+		conn_update_read(c);
 		conn_schedule(c);
 	}
 }
@@ -407,7 +553,8 @@ static void conn_check_done(conn *c)
 	conn_close(c);
 }
 
-/* A write finished: status < 0 is an error, else `n` bytes went out. */
+/* A write finished: status < 0 is an error, else `n` bytes went out.
+ * The caller holds a reference. */
 static void write_done(conn *c, int status, size_t n)
 {
 	c->writing = 0;
@@ -424,11 +571,13 @@ static void write_done(conn *c, int status, size_t n)
 		return;
 	}
 	c->srv->stats->bytes_out += n;
+	c->out_done += n;
 	free(c->wdata);
 	c->wdata = NULL;
 	c->wlen = c->woff = 0;
 	if (c->closing)
 		return;
+	c->active_ms = uv_now(c->srv->loop);
 	conn_flush(c);
 	update_pause(c);
 	conn_check_done(c);
@@ -453,9 +602,10 @@ static void on_file_written(uv_fs_t *req)
 	if (n >= 0 && !c->closing && c->woff + (size_t)n < c->wlen) {
 		/* A short write: send the rest. */
 		c->woff += (size_t)n;
+		c->out_done += (size_t)n;
 		c->srv->stats->bytes_out += (size_t)n;
-		c->refs--;
 		file_write_next(c);
+		conn_unref(c);
 		return;
 	}
 	write_done(c, n < 0 ? (int)n : 0, n < 0 ? 0 : (size_t)n);
@@ -497,9 +647,11 @@ static void conn_flush(conn *c)
 	c->wreq.data = c;
 	c->refs++;
 	c->writing = 1;
+	c->out_handed += c->wlen;
 	rc = uv_write(&c->wreq, c->out_stream, &b, 1, on_stream_written);
 	if (rc < 0) {
 		c->refs--;
+		c->out_handed -= c->wlen;
 		write_done(c, rc, 0);
 	}
 }
@@ -520,6 +672,7 @@ static void on_work_done(uv_work_t *w, int status)
 	(void)status;
 	free(c->work_line);
 	c->work_line = NULL;
+	c->work_len = 0;
 	c->busy = 0;
 	if (!c->closing) {
 		if (c->work_out.oom)
@@ -537,6 +690,7 @@ static void on_work_done(uv_work_t *w, int status)
 		proto_buf_free(&c->work_out);
 		conn_flush(c);
 		update_pause(c);
+		conn_update_read(c);
 		conn_schedule(c);
 		conn_check_done(c);
 	}
@@ -564,6 +718,7 @@ static void dispatch_line(conn *c, const char *line, size_t len)
 			c->refs--;
 			free(c->work_line);
 			c->work_line = NULL;
+			c->work_len = 0;
 		}
 	}
 	if (rw_proto_handle(c->session, line, len, &c->pending)) {
@@ -585,7 +740,8 @@ static void oversize(conn *c)
 	proto_error_line(c->srv->ctx, &c->pending, -32600, NULL, why);
 }
 
-/* Dispatches up to `budget` lines. Returns 1 when more may be ready. */
+/* Dispatches up to `budget` lines. Returns 1 when more may be ready. The
+ * caller holds a reference. */
 static int conn_dispatch(conn *c, int budget)
 {
 	const char *line;
@@ -593,8 +749,18 @@ static int conn_dispatch(conn *c, int budget)
 
 	while (budget-- > 0 && !c->busy && !c->paused && !c->closing) {
 		srv_line_status st = srv_lines_next(&c->lines, &line, &len);
-		if (st == SRV_LINE_NONE && c->eof)
+		if (st == SRV_LINE_NONE && c->eof) {
 			st = srv_lines_tail(&c->lines, &line, &len);
+			if (st != SRV_LINE_NONE && c->drop_tail) {
+				/* Shutdown cut this line short: it is not a
+				 * request, so it is not answered. */
+				srv_log("info",
+					"%s: dropped %zu bytes of an "
+					"unfinished line at shutdown",
+					c->name, len);
+				break;
+			}
+		}
 		if (st == SRV_LINE_NONE)
 			break;
 		if (st == SRV_LINE_OVERSIZE)
@@ -605,6 +771,8 @@ static int conn_dispatch(conn *c, int budget)
 	}
 	conn_flush(c);
 	update_pause(c);
+	if (!c->closing)
+		conn_update_read(c);
 	conn_check_done(c);
 	return !c->closing && !c->busy && !c->paused &&
 	       srv_lines_buffered(&c->lines) > 0;
@@ -614,18 +782,20 @@ static void on_idle(uv_idle_t *h)
 {
 	srv *s = h->data;
 	conn *c, *last = s->ready_tail;
+	int done = 0;
 
 	/* One pass over the connections that were ready at the start. */
-	while ((c = s->ready_head)) {
+	while (!done && (c = s->ready_head)) {
 		s->ready_head = c->ready_next;
 		if (!s->ready_head)
 			s->ready_tail = NULL;
 		c->ready_next = NULL;
 		c->in_ready = 0;
+		done = c == last;
+		c->refs++;
 		if (conn_dispatch(c, s->cfg->lines_per_turn))
 			conn_schedule(c);
-		if (c == last)
-			break;
+		conn_unref(c);
 	}
 	if (!s->ready_head && s->idle_active) {
 		uv_idle_stop(&s->idle);
@@ -648,9 +818,63 @@ static void conn_schedule(conn *c)
 	else
 		s->ready_head = c;
 	s->ready_tail = c;
-	if (!s->idle_active) {
+	if (!s->idle_active && !uv_is_closing((uv_handle_t *)&s->idle)) {
 		uv_idle_start(&s->idle, on_idle);
 		s->idle_active = 1;
+	}
+}
+
+/* ---- idle and slow connections ------------------------------------------ */
+
+/* The slow-reader rule (protocol-docs/limits.md): a socket connection
+ * holding more than the hard bound of unsent output, or any paused one
+ * while the global budget is exhausted, must get at least STALL_PROGRESS
+ * bytes out per stall window, else it is closed. A client that reads a
+ * huge answer keeps it alive however large that answer is. */
+static void conn_tick(conn *c, uint64_t now)
+{
+	const srv_config *cfg = c->srv->cfg;
+	uint64_t sent = conn_sent(c);
+	size_t unsent = conn_unsent(c);
+	size_t hard = cfg->limits.out_hard_limit;
+	uint64_t stall = (uint64_t)(cfg->stall_timeout_s * 1000);
+	uint64_t idle = (uint64_t)(cfg->limits.idle_timeout_s * 1000);
+	int held = (hard && unsent > hard) ||
+		   (c->srv->over_budget && c->paused);
+
+	if (sent != c->seen_sent) {
+		c->seen_sent = sent;
+		c->active_ms = now;
+	}
+	if (!held || sent - c->stall_mark >= STALL_PROGRESS) {
+		c->stall_ms = now;
+		c->stall_mark = sent;
+	} else if (now - c->stall_ms >= stall) {
+		c->srv->stats->connections_closed_slow++;
+		srv_log("warning",
+			"%s: closed as slow: %zu bytes of answers unsent and "
+			"under %u bytes taken in %.1f s",
+			c->name, unsent, STALL_PROGRESS, cfg->stall_timeout_s);
+		conn_close(c);
+		return;
+	}
+	if (idle && !c->busy && now - c->active_ms >= idle) {
+		srv_log("info", "%s: closed after %.1f s idle", c->name,
+			cfg->limits.idle_timeout_s);
+		conn_close(c);
+	}
+}
+
+static void on_tick(uv_timer_t *t)
+{
+	srv *s = t->data;
+	uint64_t now = uv_now(s->loop);
+	conn *c, *next;
+
+	for (c = s->conns; c; c = next) {
+		next = c->next;
+		if (c->is_socket && !c->closing)
+			conn_tick(c, now);
 	}
 }
 
@@ -711,32 +935,60 @@ static int start_stdio(srv *s)
 		goto fail;
 	c->out_open = c->out_kind == IO_STREAM;
 	c->out_stream = &c->outh.s;
-	read_start(c);
+	conn_update_read(c);
 	return 0;
 fail:
 	conn_close(c);
 	return -1;
 }
 
-/* ---- Unix socket -------------------------------------------------------- */
+/* ---- listeners ---------------------------------------------------------- */
+
+static void peer_name(conn *c, enum lst_kind kind)
+{
+	struct sockaddr_storage ss;
+	char host[INET6_ADDRSTRLEN] = "?";
+	int len = sizeof ss, port = 0;
+	size_t n = strlen(c->name);
+
+	if (kind != LST_TCP ||
+	    uv_tcp_getpeername(&c->in.tcp, (struct sockaddr *)&ss, &len) < 0)
+		return;
+	if (ss.ss_family == AF_INET) {
+		struct sockaddr_in *a = (struct sockaddr_in *)&ss;
+		inet_ntop(AF_INET, &a->sin_addr, host, sizeof host);
+		port = ntohs(a->sin_port);
+	} else if (ss.ss_family == AF_INET6) {
+		struct sockaddr_in6 *a = (struct sockaddr_in6 *)&ss;
+		inet_ntop(AF_INET6, &a->sin6_addr, host, sizeof host);
+		port = ntohs(a->sin6_port);
+	}
+	snprintf(c->name + n, sizeof c->name - n, "(%s:%d)", host, port);
+}
 
 static void on_connection(uv_stream_t *server, int status)
 {
-	srv *s = server->data;
+	srv_listener *l = server->data;
+	srv *s = l->srv;
 	conn *c;
 	int rc;
 
 	if (status < 0) {
-		srv_log("warning", "accept: %s", uv_strerror(status));
+		srv_log("warning", "%s: accept: %s", l->name,
+			uv_strerror(status));
 		return;
 	}
-	c = conn_new(s, "unix");
+	c = conn_new(s, l->kind == LST_TCP ? "tcp" : "unix");
 	if (!c) {
 		srv_log("error", "accept: out of memory");
 		return;
 	}
 	c->refs = 1;
-	uv_pipe_init(s->loop, &c->in.pipe, 0);
+	c->is_socket = 1;
+	if (l->kind == LST_TCP)
+		uv_tcp_init(s->loop, &c->in.tcp);
+	else
+		uv_pipe_init(s->loop, &c->in.pipe, 0);
 	c->in.h.data = c;
 	c->refs++;
 	c->in_open = 1;
@@ -745,9 +997,13 @@ static void on_connection(uv_stream_t *server, int status)
 	c->out_stream = &c->in.s;
 	rc = uv_accept(server, &c->in.s);
 	if (rc < 0) {
-		srv_log("warning", "accept: %s", uv_strerror(rc));
+		srv_log("warning", "%s: accept: %s", l->name, uv_strerror(rc));
 		conn_close(c);
 		return;
+	}
+	if (l->kind == LST_TCP) {
+		uv_tcp_nodelay(&c->in.tcp, 1);
+		peer_name(c, l->kind);
 	}
 	if (s->stats->connections_open > s->cfg->limits.max_conns) {
 		s->stats->connections_refused++;
@@ -760,7 +1016,7 @@ static void on_connection(uv_stream_t *server, int status)
 		conn_flush(c);
 		return;
 	}
-	read_start(c);
+	conn_update_read(c);
 }
 
 /* Reclaims a stale socket file at path: only when it is a socket and
@@ -817,56 +1073,338 @@ static int reclaim_stale(const char *path)
 	return 0;
 }
 
+static srv_listener *listener_new(srv *s, enum lst_kind kind)
+{
+	srv_listener *l;
+
+	if (s->n_lst >= SRV_MAX_LISTEN) {
+		srv_log("error", "more than %d listeners", SRV_MAX_LISTEN);
+		return NULL;
+	}
+	l = &s->lst[s->n_lst];
+	memset(l, 0, sizeof *l);
+	l->srv = s;
+	l->kind = kind;
+	if (kind == LST_TCP)
+		uv_tcp_init(s->loop, &l->h.tcp);
+	else
+		uv_pipe_init(s->loop, &l->h.pipe, 0);
+	l->h.h.data = l;
+	l->open = 1;
+	s->n_lst++;
+	return l;
+}
+
+static int listener_listen(srv_listener *l)
+{
+	int rc = uv_listen(&l->h.s, 128, on_connection);
+
+	if (rc < 0) {
+		srv_log("error", "listen %s: %s", l->name, uv_strerror(rc));
+		return -1;
+	}
+	return 0;
+}
+
 static int start_unix(srv *s, const char *path, unsigned mode)
 {
+	srv_listener *l;
 	struct stat st;
 	mode_t old;
 	int rc;
 
 	if (reclaim_stale(path) < 0)
 		return -1;
-	uv_pipe_init(s->loop, &s->listener, 0);
-	s->listener.data = s;
+	if (!(l = listener_new(s, LST_UNIX)))
+		return -1;
+	snprintf(l->name, sizeof l->name, "unix:%s", path);
 	/* The socket is created with the final mode: umask around bind, so
 	 * it is never briefly wider than asked. */
 	old = umask((mode_t)(~mode & 0777));
-	rc = uv_pipe_bind(&s->listener, path);
+	rc = uv_pipe_bind(&l->h.pipe, path);
 	umask(old);
 	if (rc < 0) {
 		srv_log("error", "bind %s: %s", path, uv_strerror(rc));
-		uv_close((uv_handle_t *)&s->listener, NULL);
 		return -1;
 	}
 	if (lstat(path, &st) == 0) {
-		s->sock_dev = st.st_dev;
-		s->sock_ino = st.st_ino;
+		l->dev = st.st_dev;
+		l->ino = st.st_ino;
 	}
-	s->sock_path = strdup(path);
-	rc = uv_listen((uv_stream_t *)&s->listener, 128, on_connection);
-	if (rc < 0) {
-		srv_log("error", "listen %s: %s", path, uv_strerror(rc));
-		uv_close((uv_handle_t *)&s->listener, NULL);
+	l->path = strdup(path);
+	if (listener_listen(l) < 0)
 		return -1;
-	}
-	s->listening = 1;
-	snprintf(s->transport, sizeof s->transport, "unix:%s", path);
-	s->stats->transport = s->transport;
 	srv_log("info", "listening on %s (mode %04o)", path, mode);
 	return 0;
 }
 
-static void remove_socket(srv *s)
+/* 1 when the address is loopback: 127.0.0.0/8, ::1, or ::ffff:127.x. */
+static int is_loopback(const struct sockaddr *sa)
+{
+	if (sa->sa_family == AF_INET) {
+		const struct sockaddr_in *a = (const struct sockaddr_in *)sa;
+		return (ntohl(a->sin_addr.s_addr) >> 24) == 127;
+	}
+	if (sa->sa_family == AF_INET6) {
+		const struct sockaddr_in6 *a =
+			(const struct sockaddr_in6 *)sa;
+		const unsigned char *b = a->sin6_addr.s6_addr;
+		if (IN6_IS_ADDR_LOOPBACK(&a->sin6_addr))
+			return 1;
+		return IN6_IS_ADDR_V4MAPPED(&a->sin6_addr) && b[12] == 127;
+	}
+	return 0;
+}
+
+static void addr_text(const struct sockaddr *sa, char *buf, size_t size)
+{
+	char host[INET6_ADDRSTRLEN] = "?";
+
+	if (sa->sa_family == AF_INET6) {
+		const struct sockaddr_in6 *a =
+			(const struct sockaddr_in6 *)sa;
+		inet_ntop(AF_INET6, &a->sin6_addr, host, sizeof host);
+		snprintf(buf, size, "tcp:[%s]:%d", host, ntohs(a->sin6_port));
+	} else {
+		const struct sockaddr_in *a = (const struct sockaddr_in *)sa;
+		inet_ntop(AF_INET, &a->sin_addr, host, sizeof host);
+		snprintf(buf, size, "tcp:%s:%d", host, ntohs(a->sin_port));
+	}
+}
+
+static void warn_no_auth(const srv_listener *l, int loopback)
+{
+	if (loopback)
+		srv_log("warning",
+			"%s: the protocol has no authentication: any local "
+			"user can connect to this port",
+			l->name);
+	else
+		srv_log("warning",
+			"%s: listening beyond loopback (--allow-remote): the "
+			"protocol has no authentication or encryption; anyone "
+			"who can reach this address can use the daemon",
+			l->name);
+}
+
+/* Parses "HOST:PORT" or "[V6]:PORT" and listens there. */
+static int start_tcp(srv *s, const char *spec)
+{
+	char host[128];
+	const char *port, *h = spec;
+	size_t hl;
+	struct addrinfo hints, *ai = NULL;
+	struct sockaddr_storage ss;
+	int len = sizeof ss, rc, loop;
+	srv_listener *l;
+
+	if (*h == '[') {
+		const char *e = strchr(h, ']');
+		if (!e || e[1] != ':')
+			goto bad;
+		hl = (size_t)(e - h - 1);
+		h++;
+		port = e + 2;
+	} else {
+		const char *e = strrchr(h, ':');
+		if (!e)
+			goto bad;
+		hl = (size_t)(e - h);
+		port = e + 1;
+	}
+	if (!hl || hl >= sizeof host || !*port)
+		goto bad;
+	memcpy(host, h, hl);
+	host[hl] = '\0';
+	memset(&hints, 0, sizeof hints);
+	hints.ai_socktype = SOCK_STREAM;
+	hints.ai_flags = AI_NUMERICSERV | AI_PASSIVE;
+	if (strcmp(host, "localhost") == 0)
+		snprintf(host, sizeof host, "127.0.0.1");
+	hints.ai_flags |= AI_NUMERICHOST;
+	if ((rc = getaddrinfo(host, port, &hints, &ai)) != 0 || !ai) {
+		srv_log("error",
+			"--listen tcp:%s: not a numeric address and port (%s)",
+			spec, gai_strerror(rc));
+		return -1;
+	}
+	loop = is_loopback(ai->ai_addr);
+	if (!loop && !s->cfg->allow_remote) {
+		srv_log("error",
+			"--listen tcp:%s: not a loopback address; the protocol "
+			"has no authentication, so give --allow-remote to "
+			"listen beyond this host",
+			spec);
+		freeaddrinfo(ai);
+		return -1;
+	}
+	if (!(l = listener_new(s, LST_TCP))) {
+		freeaddrinfo(ai);
+		return -1;
+	}
+	snprintf(l->name, sizeof l->name, "tcp:%s", spec);
+	rc = uv_tcp_bind(&l->h.tcp, ai->ai_addr,
+			 ai->ai_family == AF_INET6 ? UV_TCP_IPV6ONLY : 0);
+	freeaddrinfo(ai);
+	if (rc < 0) {
+		srv_log("error", "bind tcp:%s: %s", spec, uv_strerror(rc));
+		return -1;
+	}
+	if (listener_listen(l) < 0)
+		return -1;
+	/* Name it by the bound address, so port 0 shows the real port. */
+	if (uv_tcp_getsockname(&l->h.tcp, (struct sockaddr *)&ss, &len) == 0)
+		addr_text((struct sockaddr *)&ss, l->name, sizeof l->name);
+	srv_log("info", "listening on %s", l->name);
+	warn_no_auth(l, loop);
+	return 0;
+bad:
+	srv_log("error", "--listen tcp:%s: expected HOST:PORT or [V6]:PORT",
+		spec);
+	return -1;
+}
+
+/* Adopts one socket passed by the service manager. */
+static int start_activated(srv *s, int fd)
+{
+	struct sockaddr_storage ss;
+	socklen_t len = sizeof ss;
+	int type = 0, acc = 0, rc;
+	socklen_t tl = sizeof type, al = sizeof acc;
+	srv_listener *l;
+
+	if (getsockname(fd, (struct sockaddr *)&ss, &len) < 0 ||
+	    getsockopt(fd, SOL_SOCKET, SO_TYPE, &type, &tl) < 0 ||
+	    getsockopt(fd, SOL_SOCKET, SO_ACCEPTCONN, &acc, &al) < 0) {
+		srv_log("error", "activated fd %d: not a socket: %s", fd,
+			strerror(errno));
+		return -1;
+	}
+	if (type != SOCK_STREAM || !acc) {
+		srv_log("error",
+			"activated fd %d: not a listening stream socket", fd);
+		return -1;
+	}
+	if (ss.ss_family == AF_UNIX) {
+		struct sockaddr_un *u = (struct sockaddr_un *)&ss;
+		if (!(l = listener_new(s, LST_UNIX)))
+			return -1;
+		if (len > offsetof(struct sockaddr_un, sun_path) &&
+		    u->sun_path[0])
+			snprintf(l->name, sizeof l->name, "unix:%.*s",
+				 (int)(len - offsetof(struct sockaddr_un,
+						      sun_path)),
+				 u->sun_path);
+		else
+			snprintf(l->name, sizeof l->name, "unix:fd%d", fd);
+		rc = uv_pipe_open(&l->h.pipe, fd);
+	} else if (ss.ss_family == AF_INET || ss.ss_family == AF_INET6) {
+		int loop = is_loopback((struct sockaddr *)&ss);
+		if (!loop && !s->cfg->allow_remote) {
+			char a[128];
+			addr_text((struct sockaddr *)&ss, a, sizeof a);
+			srv_log("error",
+				"activated %s: not a loopback address; give "
+				"--allow-remote to serve it",
+				a);
+			return -1;
+		}
+		if (!(l = listener_new(s, LST_TCP)))
+			return -1;
+		addr_text((struct sockaddr *)&ss, l->name, sizeof l->name);
+		rc = uv_tcp_open(&l->h.tcp, fd);
+		if (rc == 0)
+			warn_no_auth(l, loop);
+	} else {
+		srv_log("error", "activated fd %d: unsupported address family",
+			fd);
+		return -1;
+	}
+	l->activated = 1;
+	if (rc < 0) {
+		srv_log("error", "activated %s: %s", l->name, uv_strerror(rc));
+		return -1;
+	}
+	if (listener_listen(l) < 0)
+		return -1;
+	srv_log("info", "listening on %s (passed by the service manager)",
+		l->name);
+	return 0;
+}
+
+static void transport_text(srv *s)
+{
+	size_t n = 0;
+
+	s->transport[0] = '\0';
+	for (int i = 0; i < s->n_lst && n < sizeof s->transport; i++) {
+		int w = snprintf(s->transport + n, sizeof s->transport - n,
+				 "%s%s", i ? " " : "", s->lst[i].name);
+		if (w < 0)
+			break;
+		n += (size_t)w;
+	}
+	s->stats->transport = s->transport;
+}
+
+static int start_listeners(srv *s)
+{
+	const srv_config *cfg = s->cfg;
+	int fds[SRV_MAX_LISTEN], nfd, ignored;
+	char path[512];
+
+	nfd = srv__listen_fds(fds, SRV_MAX_LISTEN, &ignored);
+	if (ignored)
+		srv_log("warning",
+			"LISTEN_FDS/LISTEN_PID present but %s; ignored",
+			nfd ? "more sockets than supported"
+			    : "not meant for this process");
+	for (int i = 0; i < nfd; i++)
+		if (start_activated(s, fds[i]) < 0)
+			return -1;
+	for (int i = 0; i < cfg->n_listen; i++) {
+		const char *spec = cfg->listen[i];
+		int rc;
+		if (strncmp(spec, "unix:", 5) == 0)
+			rc = start_unix(s, spec + 5, cfg->socket_mode);
+		else if (strncmp(spec, "tcp:", 4) == 0)
+			rc = start_tcp(s, spec + 4);
+		else {
+			srv_log("error", "--listen %s: expected unix:PATH or "
+				"tcp:HOST:PORT", spec);
+			rc = -1;
+		}
+		if (rc < 0)
+			return -1;
+	}
+	if (!nfd && !cfg->n_listen &&
+	    start_unix(s, srv_default_socket_path(path, sizeof path),
+		       cfg->socket_mode) < 0)
+		return -1;
+	s->listening = 1;
+	transport_text(s);
+	return 0;
+}
+
+static void close_listeners(srv *s)
 {
 	struct stat st;
 
-	if (!s->sock_path)
-		return;
-	/* Remove only the socket we created, not one that replaced it. */
-	if (lstat(s->sock_path, &st) == 0 && st.st_dev == s->sock_dev &&
-	    st.st_ino == s->sock_ino)
-		unlink(s->sock_path);
-	free(s->sock_path);
-	s->sock_path = NULL;
+	for (int i = 0; i < s->n_lst; i++) {
+		srv_listener *l = &s->lst[i];
+		if (l->open) {
+			l->open = 0;
+			uv_close(&l->h.h, NULL);
+		}
+		/* Remove only the socket we created, not one that replaced
+		 * it, and never one the service manager owns. */
+		if (l->path && lstat(l->path, &st) == 0 &&
+		    st.st_dev == l->dev && st.st_ino == l->ino)
+			unlink(l->path);
+		free(l->path);
+		l->path = NULL;
+	}
+	s->listening = 0;
 }
 
 /* ---- shutdown ----------------------------------------------------------- */
@@ -877,6 +1415,14 @@ static void close_if_open(uv_handle_t *h)
 		uv_close(h, NULL);
 }
 
+static void notify_stopping(srv *s)
+{
+	if (s->stop_notified)
+		return;
+	s->stop_notified = 1;
+	srv__notify_send(&s->notify, "STOPPING=1");
+}
+
 static void srv_maybe_finish(srv *s)
 {
 	if (!s->stopping && !(s->cfg->use_stdio && !s->listening))
@@ -884,48 +1430,60 @@ static void srv_maybe_finish(srv *s)
 	if (s->conns)
 		return;
 	/* Nothing left: close our own handles; the loop then ends. */
+	notify_stopping(s);
 	close_if_open((uv_handle_t *)&s->sig_int);
 	close_if_open((uv_handle_t *)&s->sig_term);
 	close_if_open((uv_handle_t *)&s->sig_hup);
 	close_if_open((uv_handle_t *)&s->idle);
 	close_if_open((uv_handle_t *)&s->drain_timer);
+	close_if_open((uv_handle_t *)&s->tick);
+}
+
+static void close_all(srv *s)
+{
+	conn *c, *next;
+
+	for (c = s->conns; c; c = next) {
+		c->refs++;
+		conn_close(c);
+		next = c->next;
+		conn_unref(c);
+	}
 }
 
 static void on_drain_timeout(uv_timer_t *t)
 {
 	srv *s = t->data;
-	conn *c, *next;
 
 	srv_log("warning", "drain timeout: closing remaining connections");
-	for (c = s->conns; c; c = next) {
-		next = c->next;
-		conn_close(c);
-	}
+	close_all(s);
 }
 
 static void srv_stop(srv *s, const char *why)
 {
 	conn *c, *next;
 
-	if (s->stopping)
+	if (s->stopping) {
+		srv_log("warning", "%s again: closing remaining connections",
+			why);
+		close_all(s);
 		return;
+	}
 	s->stopping = 1;
 	srv_log("info", "%s: stopping; answering what was already read", why);
-	if (s->listening) {
-		s->listening = 0;
-		uv_close((uv_handle_t *)&s->listener, NULL);
-	}
-	remove_socket(s);
+	notify_stopping(s);
+	close_listeners(s);
 	/* Stop reading everywhere; lines already buffered are still
 	 * answered (a partial last line without '\n' is not a request). */
 	for (c = s->conns; c; c = next) {
-		next = c->next;
+		c->refs++;
 		read_stop(c);
-		if (c->in_kind == IO_FILE)
-			c->reading = 0;
 		c->eof = 1;
+		c->drop_tail = 1;
 		conn_schedule(c);
 		conn_check_done(c);
+		next = c->next;
+		conn_unref(c);
 	}
 	uv_timer_start(&s->drain_timer, on_drain_timeout,
 		       (uint64_t)(s->cfg->drain_timeout_s * 1000), 0);
@@ -937,7 +1495,16 @@ static void on_signal(uv_signal_t *h, int signum)
 	srv *s = h->data;
 
 	if (signum == SIGHUP) {
-		srv_log("info", "SIGHUP: logs go to stderr; nothing to reopen");
+		if (!s->cfg->log_path) {
+			srv_log("info", "SIGHUP: logs go to stderr; nothing to "
+				"reopen");
+		} else if (srv_log_open(s->cfg->log_path) < 0) {
+			srv_log("warning", "SIGHUP: cannot reopen %s: %s; "
+				"logging to the old file",
+				s->cfg->log_path, strerror(errno));
+		} else {
+			srv_log("info", "SIGHUP: log reopened");
+		}
 		return;
 	}
 	srv_stop(s, signum == SIGINT ? "SIGINT" : "SIGTERM");
@@ -947,8 +1514,14 @@ int srv_run(const srv_config *cfg)
 {
 	srv *s;
 	int rc = SRV_EXIT_OK;
+	char msg[400];
 
 	signal(SIGPIPE, SIG_IGN);
+	if (cfg->log_path && srv_log_open(cfg->log_path) < 0) {
+		srv_log("error", "--log %s: %s", cfg->log_path,
+			strerror(errno));
+		return SRV_EXIT_RUNTIME;
+	}
 	s = calloc(1, sizeof *s);
 	if (!s)
 		return SRV_EXIT_RUNTIME;
@@ -959,12 +1532,18 @@ int srv_run(const srv_config *cfg)
 		free(s);
 		return SRV_EXIT_RUNTIME;
 	}
+	if (srv__notify_open(&s->notify) < 0)
+		srv_log("warning", "NOTIFY_SOCKET unusable; not notifying");
 	s->stats = proto_ctx_server_stats(s->ctx);
 	uv_idle_init(s->loop, &s->idle);
 	s->idle.data = s;
 	uv_timer_init(s->loop, &s->drain_timer);
 	s->drain_timer.data = s;
 	uv_unref((uv_handle_t *)&s->drain_timer);
+	uv_timer_init(s->loop, &s->tick);
+	s->tick.data = s;
+	uv_timer_start(&s->tick, on_tick, TICK_MS, TICK_MS);
+	uv_unref((uv_handle_t *)&s->tick);
 	uv_signal_init(s->loop, &s->sig_int);
 	uv_signal_init(s->loop, &s->sig_term);
 	uv_signal_init(s->loop, &s->sig_hup);
@@ -977,21 +1556,28 @@ int srv_run(const srv_config *cfg)
 		s->stats->transport = "stdio";
 		if (start_stdio(s) < 0)
 			rc = SRV_EXIT_RUNTIME;
-	} else if (start_unix(s, cfg->socket_path, cfg->socket_mode) < 0) {
+	} else if (start_listeners(s) < 0) {
 		rc = SRV_EXIT_LISTEN;
 	}
 	if (rc != SRV_EXIT_OK) {
 		s->stopping = 1;
-		for (conn *c = s->conns, *n; c; c = n) {
-			n = c->next;
-			conn_close(c);
-		}
-		srv_maybe_finish(s);
+		s->stop_notified = 1;
+		close_listeners(s);
+		close_all(s);
 	} else {
-		srv_maybe_finish(s);
+		snprintf(msg, sizeof msg, "READY=1\nSTATUS=serving %s",
+			 s->stats->transport);
+		if (srv__notify_send(&s->notify, msg) < 0)
+			srv_log("warning", "readiness notification failed: %s",
+				strerror(errno));
 	}
+	srv_maybe_finish(s);
 	uv_run(s->loop, UV_RUN_DEFAULT);
-	remove_socket(s);
+	close_listeners(s);
+	/* Listeners that failed half-way are closed above; let them go. */
+	uv_run(s->loop, UV_RUN_NOWAIT);
+	notify_stopping(s);
+	srv__notify_close(&s->notify);
 	if (uv_loop_close(s->loop) != 0)
 		srv_log("warning", "loop closed with handles still open");
 	uv_tty_reset_mode();

@@ -1,6 +1,7 @@
-/* The server layer: accepts connections (Unix socket, stdio, and later
- * TCP), frames lines, hands each to the protocol layer, writes responses
- * in order with backpressure, and shuts down cleanly on signals. */
+/* The server layer: accepts connections (Unix sockets, loopback TCP,
+ * sockets handed over by the service manager, or stdio), frames lines,
+ * hands each to the protocol layer, writes responses in order with
+ * backpressure and bounds, and shuts down cleanly on signals. */
 #ifndef RW_SRV_H
 #define RW_SRV_H
 
@@ -14,14 +15,26 @@
 #define SRV_EXIT_LISTEN 3   /* cannot listen: path busy, live daemon, ... */
 #define SRV_EXIT_RUNTIME 4  /* loop or I/O failure */
 
+/* Listeners given on the command line, plus those passed in by socket
+ * activation (LISTEN_FDS), at most this many in all. */
+#define SRV_MAX_LISTEN 8
+
 typedef struct srv_config {
 	int use_stdio;              /* serve stdin/stdout */
-	const char *socket_path;    /* Unix socket to listen on, or NULL */
-	unsigned socket_mode;       /* permission bits, default 0600 */
+	/* "unix:PATH" or "tcp:HOST:PORT" ("tcp:[V6]:PORT"); HOST is a
+	 * numeric address or "localhost". */
+	const char *listen[SRV_MAX_LISTEN];
+	int n_listen;
+	int allow_remote;           /* TCP on a non-loopback address */
+	unsigned socket_mode;       /* Unix socket permission bits (0600) */
+	const char *log_path;       /* log file (reopened on SIGHUP), or
+				       NULL for stderr */
 	int lines_per_turn;         /* fairness: lines dispatched per turn */
 	size_t offload_bytes;       /* lines at least this long go to the
 				       thread pool (0 = never) */
 	double drain_timeout_s;     /* on SIGTERM: give up after this */
+	double stall_timeout_s;     /* slow-reader rule: no write progress
+				       for this long past the hard bound */
 	proto_limits limits;
 } srv_config;
 
@@ -30,10 +43,15 @@ void srv_config_default(srv_config *cfg);
  * /tmp/rockwire-<uid>.sock. Writes into buf; returns buf. */
 char *srv_default_socket_path(char *buf, size_t size);
 /* Runs the daemon until it is told to stop (signal, or EOF in stdio mode).
- * Returns an SRV_EXIT_* code. */
+ * With no listener and no --stdio, listens on sockets passed by the
+ * service manager, else on the default socket path. Returns an
+ * SRV_EXIT_* code. */
 int srv_run(const srv_config *cfg);
 
-/* One log line on stderr: "rockwired[pid]: level: message". */
+/* Points stderr at the log file `path` (append, created 0600). Returns 0,
+ * or -1 with errno set, stderr unchanged. */
+int srv_log_open(const char *path);
+/* One log line on stderr: "TIME rockwired[pid]: level: message". */
 void srv_log(const char *level, const char *fmt, ...)
 	__attribute__((format(printf, 2, 3)));
 

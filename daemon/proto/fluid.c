@@ -209,17 +209,16 @@ static int parse_phases(proto_call *c, const proto_args *a,
 			    sub_vec(c, d, &sub, "gas_gravity", &d->ggas))
 				return -1;
 			d->live = d->gor.present;
+			snprintf(full, sizeof full, "%sgas_gravity", pp);
 			if (d->gor.present && !d->ggas.present)
 				return proto_fail(
-				    c, PROTO_INVALID_PARAMS,
-				    arena_path(c, pp, "gas_gravity"),
+				    c, PROTO_INVALID_PARAMS, full,
 				    "required with gor: the gravity of the "
 				    "dissolved gas (Batzle & Wang 1992 eqs. "
 				    "21-24)");
 			if (!d->gor.present && d->ggas.present)
 				return proto_fail(
-				    c, PROTO_INVALID_PARAMS,
-				    arena_path(c, pp, "gas_gravity"),
+				    c, PROTO_INVALID_PARAMS, full,
 				    "only used for live oil: give gor as well, "
 				    "or drop gas_gravity for a dead oil");
 		}

@@ -16,6 +16,8 @@ static const proto_method *const families[] = {
 	proto_service_methods,
 	proto_session_methods,
 	proto_elastic_methods,
+	proto_thomsen_methods,
+	proto_reflect_methods,
 	proto_fluid_methods,
 	proto_mineral_methods,
 	proto_rock_methods,

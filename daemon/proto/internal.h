@@ -94,6 +94,13 @@ typedef struct proto_qc_info {
 #define QC_RHO_RANGE         (1u << 5)  /* implausible density */
 #define QC_VP_RANGE          (1u << 6)  /* implausible vp */
 #define QC_VS_RANGE          (1u << 7)  /* implausible vs */
+/* Reflectivity (16-23), reflect.c and thomsen.c. */
+#define QC_REFL_MEDIUM         (1u << 16) /* impossible medium: null */
+#define QC_REFL_POSTCRITICAL   (1u << 17) /* at/past P critical angle */
+#define QC_REFL_UNDEFINED      (1u << 18) /* an approximation has no value */
+#define QC_REFL_NO_CRIT_P      (1u << 19) /* no P critical angle: null */
+#define QC_REFL_NO_CRIT_S      (1u << 20) /* no S critical angle: null */
+#define QC_ANISO_UNSTABLE      (1u << 22) /* VTI medium not stable: null */
 /* Fluids and Gassmann (8-15), fluid.c and rock.c. */
 #define QC_FLUID_CALIBRATION (1u << 8)  /* fluid input outside B&W fit */
 #define QC_FLUID_GOR_EXCESS  (1u << 9)  /* GOR above what oil dissolves */
@@ -251,6 +258,8 @@ int proto__session_merge(proto_call *c, const cJSON *params,
 extern const proto_method proto_session_methods[];
 extern const proto_method proto_service_methods[];
 extern const proto_method proto_elastic_methods[];
+extern const proto_method proto_thomsen_methods[];
+extern const proto_method proto_reflect_methods[];
 extern const proto_method proto_fluid_methods[];
 extern const proto_method proto_mineral_methods[];
 extern const proto_method proto_rock_methods[];

@@ -80,6 +80,29 @@ const proto_qc_info proto_qc_legend[] = {
 	 "substitution computed with a caution: dry-frame K < 0 or above "
 	 "the mineral's, porosity below 0.05, or a fluid property outside "
 	 "its fitted range"},
+	{QC_REFL_MEDIUM, "medium_impossible", QC_IMPOSSIBLE,
+	 "a medium of the interface or sample is impossible (vp <= 0, "
+	 "rho <= 0, vs < 0, 3 vp^2 <= 4 vs^2, or a VTI medium the Thomsen "
+	 "checks refuse); its reflectivity outputs are null"},
+	{QC_REFL_POSTCRITICAL, "postcritical", QC_RANGE,
+	 "incidence at or past the P critical angle (and so past any S "
+	 "one): the exact coefficients are complex (their _im and _phase "
+	 "members), the linearised forms are not valid there and are null"},
+	{QC_REFL_UNDEFINED, "approximation_undefined", QC_RANGE,
+	 "a requested formula has no value for this sample although the "
+	 "media are possible (90 deg incidence, gray_lmr with a mean lambda "
+	 "of 0, EI of a fluid at a non-zero angle, overflow); that value is "
+	 "null, the others are given"},
+	{QC_REFL_NO_CRIT_P, "no_critical_p", QC_INPUT,
+	 "vp of the lower medium is not above vp of the upper: there is no P "
+	 "critical angle and critical_p is null"},
+	{QC_REFL_NO_CRIT_S, "no_critical_s", QC_INPUT,
+	 "vs of the lower medium is not above vp of the upper (or it is a "
+	 "fluid): there is no S critical angle and critical_s is null"},
+	{QC_ANISO_UNSTABLE, "stiffness_unstable", QC_IMPOSSIBLE,
+	 "the VTI stiffness is not positive definite, C33 <= C44, vs0 is "
+	 "not in (0, vp0), delta admits no real C13, or a fluid (vs0 = 0) is "
+	 "given anisotropy; outputs are null"},
 	{0, NULL, QC_INPUT, NULL},
 };
 

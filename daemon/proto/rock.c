@@ -10,6 +10,7 @@
 #include <string.h>
 
 #include "proto/internal.h"
+#include "rockwire/elastic.h"
 #include "rockwire/rock.h"
 #include "rockwire/status.h"
 
@@ -138,6 +139,17 @@ static uint32_t from_logs(double vp, double vs, double rho, double phi,
 	}
 	if (st != RW_OK || bad) {
 		subst_nan(&s->r, st == RW_OK);
+		if (st == RW_ERANGE && bad) {
+			/* The frame failed in the second Gassmann step: still
+			 * report the impossible K_dry it came from. */
+			rw_elastic e;
+			double kd;
+			if (rw_elastic_from_velocities(vp, vs, rho, &e,
+						       NULL) == RW_OK &&
+			    rw_rock_gassmann_dry(e.k, s->k_min, s->k_fl, phi,
+						 &kd, NULL) == RW_OK)
+				s->r.k_dry_pa = kd;
+		}
 		return f;
 	}
 	s->pct[0] = pct(s->r.vp_ms, vp);

@@ -24,6 +24,7 @@ import subprocess
 import sys
 
 import iapws
+import numpy as np
 
 BUILD = os.environ.get("RW_BUILD", "build")
 PSI_MPA = 0.45359237 * 9.80665 / 0.0254 ** 2 / 1e6  # NIST SP 811, exact

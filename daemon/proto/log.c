@@ -315,6 +315,10 @@ static int process(proto_call *c)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "mineral",
 				  "used only for fluid substitution "
 				  "(fluid_in_place and fluid_new)");
+	if (!subst && phi->present)
+		return proto_fail(c, PROTO_INVALID_PARAMS, "porosity",
+				  "used only for fluid substitution "
+				  "(fluid_in_place and fluid_new)");
 	if (subst) {
 		if (!phi->present)
 			return proto_fail(c, PROTO_INVALID_PARAMS, "porosity",
@@ -465,6 +469,11 @@ static int process(proto_call *c)
 				st = rw_rock_fluid_subst(v_p, v_s, rho, ph,
 							 k_min, kfo, rfo, kfn,
 							 rfn, &sb, &gw);
+			if (gw & (RW_ROCK_WARN_KDRY_NEG |
+				  RW_ROCK_WARN_KDRY_GT_KMIN))
+				fl |= QC_GASSMANN_KDRY;
+			if (gw & RW_ROCK_WARN_PHI_LOW)
+				fl |= QC_GASSMANN_PHI_LOW;
 			/* A dry frame softer than nothing or stiffer than its
 			 * mineral means the inputs contradict Gassmann: no
 			 * substituted values (as rock.substitute). */

@@ -1,0 +1,44 @@
+/* Cross-file helpers of the streaming subcommands (`rockwire log`,
+ * `rockwire feed`): building request parameters from name=value options,
+ * number formatting, and a non-blocking request/response pipeline over a
+ * cli_conn with a bounded number of requests in flight. */
+#ifndef RW_CLI_LOGIO_H
+#define RW_CLI_LOGIO_H
+
+#include <stddef.h>
+
+#include <cjson/cJSON.h>
+
+#include "cli.h"
+
+/* Sets params[name] = value for "name=value" (dotted names nest); the
+ * value is JSON when it parses as JSON, else a string. `who` prefixes
+ * messages. 0, or -1 with a message on stderr. */
+int cli__param_set(cJSON *params, const char *arg, const char *who);
+
+/* Formats v as the shortest of %.15g / %.17g that reads back exactly
+ * (digits <= 0) or with `digits` significant digits; "null" for NaN when
+ * null_text is NULL, else null_text. Returns the length (buf >= 40). */
+size_t cli__fmt_num(char *buf, double v, int digits, const char *null_text);
+
+/* A growable byte buffer. */
+typedef struct cli_buf {
+	char *data;
+	size_t len, cap, off; /* off: bytes already written out */
+} cli_buf;
+int cli__buf_put(cli_buf *b, const char *s, size_t n);
+int cli__buf_puts(cli_buf *b, const char *s);
+void cli__buf_free(cli_buf *b);
+
+/* Moves bytes both ways once: writes what it can of `out` (non-blocking)
+ * and, when the daemon has something, hands each complete response line
+ * to on_line(ctx, line, len) (return non-zero to stop). want_read says
+ * whether to wait for responses. Waits at most timeout_ms (-1 forever).
+ * Returns 0, 1 when the daemon closed, -1 on error or when on_line
+ * stopped. */
+int cli__pipe_step(cli_conn *c, cli_buf *out, int want_read, int extra_fd,
+		   int *extra_ready, int timeout_ms,
+		   int (*on_line)(void *ctx, char *line, size_t len),
+		   void *ctx);
+
+#endif

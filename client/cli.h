@@ -47,6 +47,10 @@ int cli_pump(cli_conn *c, int in_fd, int out_fd);
 
 int cli_cmd_call(const cli_opts *o, int argc, char **argv);
 int cli_cmd_send(const cli_opts *o, int argc, char **argv);
+/* `rockwire log FILE.las` (client/logcmd.c) and `rockwire feed`
+ * (client/feed.c); argv holds the subcommand's arguments. */
+int cli_cmd_log(const cli_opts *o, int argc, char **argv);
+int cli_cmd_feed(const cli_opts *o, int argc, char **argv);
 
 /* Exit codes of rockwire (documented in --help). */
 #define CLI_EXIT_OK 0

@@ -22,6 +22,12 @@ static void usage(FILE *f)
 		"        else strings; dotted names nest (units.velocity=km/s)\n"
 		"  send [FILE|-]\n"
 		"        NDJSON requests in, responses out, pipelined\n"
+		"  log FILE.las [-o OUT] [--format las|csv] [--curve IN=MNEM]\n"
+		"        [--set NAME=VALUE] [--params JSON] [--summary] ...\n"
+		"        well-log file through log.process, curves added\n"
+		"  feed [--connect HOST:PORT] [--map CODE=INPUT] [--format\n"
+		"        ndjson|csv] [--set NAME=VALUE] ...\n"
+		"        WITS level 0 stream (stdin or TCP) through log.process\n"
 		"\n"
 		"Connects to --socket PATH or the default socket\n"
 		"($XDG_RUNTIME_DIR/rockwire.sock, else /tmp/rockwire-<uid>.sock);\n"
@@ -74,6 +80,10 @@ int main(int argc, char **argv)
 		return cli_cmd_call(&o, argc, argv);
 	if (strcmp(cmd, "send") == 0)
 		return cli_cmd_send(&o, argc, argv);
+	if (strcmp(cmd, "log") == 0)
+		return cli_cmd_log(&o, argc, argv);
+	if (strcmp(cmd, "feed") == 0)
+		return cli_cmd_feed(&o, argc, argv);
 	fprintf(stderr, "rockwire: unknown command '%s'\n", cmd);
 	usage(stderr);
 	return CLI_EXIT_USAGE;

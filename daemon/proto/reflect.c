@@ -28,26 +28,26 @@
  * (include/rockwire/reflect.h and protocol-docs/reflect.md). */
 enum { M_ZOEPPRITZ = 0, M_COUNT = 9 };
 static const char *const method_names[] = {
-	"zoeppritz", "aki_richards", "shuey2",   "shuey3",       "hilterman",
-	"fatti",     "gray_lmr",     "gray_kmr", "smith_gidlow", NULL};
+    "zoeppritz", "aki_richards", "shuey2",   "shuey3",       "hilterman",
+    "fatti",     "gray_lmr",     "gray_kmr", "smith_gidlow", NULL};
 /* Result member of each linearised method ("rpp_" + name). */
 static const char *const method_keys[] = {
-	NULL,       "rpp_aki_richards", "rpp_shuey2",   "rpp_shuey3",
-	"rpp_hilterman", "rpp_fatti",   "rpp_gray_lmr", "rpp_gray_kmr",
-	"rpp_smith_gidlow"};
+    NULL,           "rpp_aki_richards", "rpp_shuey2",
+    "rpp_shuey3",   "rpp_hilterman",    "rpp_fatti",
+    "rpp_gray_lmr", "rpp_gray_kmr",     "rpp_smith_gidlow"};
 
 typedef int (*lin_fn)(const rw_reflect_medium *, const rw_reflect_medium *,
-		      double, double *);
+                      double, double *);
 static const lin_fn method_fns[] = {
-	NULL,
-	rw_reflect_aki_richards,
-	rw_reflect_shuey2,
-	rw_reflect_shuey3,
-	rw_reflect_hilterman,
-	rw_reflect_fatti,
-	rw_reflect_gray_lmr,
-	rw_reflect_gray_kmr,
-	rw_reflect_smith_gidlow,
+    NULL,
+    rw_reflect_aki_richards,
+    rw_reflect_shuey2,
+    rw_reflect_shuey3,
+    rw_reflect_hilterman,
+    rw_reflect_fatti,
+    rw_reflect_gray_lmr,
+    rw_reflect_gray_kmr,
+    rw_reflect_smith_gidlow,
 };
 
 /* The chosen methods in request order. */
@@ -74,14 +74,15 @@ static int methods_parse(proto_call *c, const proto_args *a, method_set *ms)
 	if (cJSON_IsString(v) ||
 	    (cJSON_IsArray(v) && cJSON_GetArraySize(v) > 0)) {
 		const cJSON *first = cJSON_IsString(v) ? v : v->child;
-		for (e = first; e; e = cJSON_IsString(v) ? NULL : e->next, i++) {
+		for (e = first; e;
+		     e = cJSON_IsString(v) ? NULL : e->next, i++) {
 			int k;
 			if (!cJSON_IsString(e))
-				return proto_fail(c, PROTO_INVALID_PARAMS,
-						  "methods",
-						  "element %zu must be a method "
-						  "name (a string)",
-						  i);
+				return proto_fail(
+				    c, PROTO_INVALID_PARAMS, "methods",
+				    "element %zu must be a method "
+				    "name (a string)",
+				    i);
 			for (k = 0; method_names[k]; k++)
 				if (strcmp(method_names[k], e->valuestring) ==
 				    0)
@@ -106,14 +107,14 @@ static int methods_parse(proto_call *c, const proto_args *a, method_set *ms)
 		return 0;
 	}
 	return proto_fail(c, PROTO_INVALID_PARAMS, "methods",
-			  "must be a method name or a non-empty array of "
-			  "method names");
+	                  "must be a method name or a non-empty array of "
+	                  "method names");
 }
 
 /* Checks every element of an angle vector against [lo, hi] (radians;
  * hi_open excludes hi). The message quotes the value in the call's unit. */
 static int angles_check(proto_call *c, const proto_vec *v, const char *name,
-			double lo, double hi, int hi_open)
+                        double lo, double hi, int hi_open)
 {
 	for (size_t i = 0; v->present && i < v->n; i++) {
 		double x = v->v[i];
@@ -156,14 +157,14 @@ static uint32_t medium_flags(const rw_reflect_medium *m)
  * data[(o * n_inner + i) * stride]) with each dimension an array only when
  * its input was one. */
 static void w_grid(proto_call *c, const char *key, proto_kind k,
-		   const double *data, size_t n_outer, size_t n_inner,
-		   size_t stride, int outer_arr, int inner_arr)
+                   const double *data, size_t n_outer, size_t n_inner,
+                   size_t stride, int outer_arr, int inner_arr)
 {
 	if (outer_arr && inner_arr) {
 		proto_w_arr_begin(c, key);
 		for (size_t o = 0; o < n_outer; o++)
 			proto_w_vec(c, NULL, k, data + o * n_inner * stride,
-				    n_inner, stride, 1);
+			            n_inner, stride, 1);
 		proto_w_arr_end(c);
 	} else if (outer_arr) {
 		proto_w_vec(c, key, k, data, n_outer, n_inner * stride, 1);
@@ -173,8 +174,8 @@ static void w_grid(proto_call *c, const char *key, proto_kind k,
 }
 
 static void w_grid_flags(proto_call *c, const char *key, const uint32_t *f,
-			 size_t n_outer, size_t n_inner, int outer_arr,
-			 int inner_arr)
+                         size_t n_outer, size_t n_inner, int outer_arr,
+                         int inner_arr)
 {
 	if (outer_arr && inner_arr) {
 		proto_w_arr_begin(c, key);
@@ -184,7 +185,7 @@ static void w_grid_flags(proto_call *c, const char *key, const uint32_t *f,
 	} else {
 		/* one dimension is 1: the flags are contiguous */
 		proto_w_flags(c, key, f, n_outer * n_inner,
-			      outer_arr || inner_arr);
+		              outer_arr || inner_arr);
 	}
 }
 
@@ -194,18 +195,18 @@ static double *doubles(proto_call *c, size_t n)
 	double *d = proto_alloc_doubles(c, n ? n : 1);
 	if (!d)
 		proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-			   "out of memory for %zu values", n);
+		           "out of memory for %zu values", n);
 	return d;
 }
 
 static uint32_t *flag_alloc(proto_call *c, size_t n)
 {
 	uint32_t *f = n < SIZE_MAX / sizeof *f
-			  ? proto_alloc(c, (n ? n : 1) * sizeof *f)
-			  : NULL;
+	                  ? proto_alloc(c, (n ? n : 1) * sizeof *f)
+	                  : NULL;
 	if (!f)
 		proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-			   "out of memory for %zu flags", n);
+		           "out of memory for %zu flags", n);
 	else
 		memset(f, 0, (n ? n : 1) * sizeof *f);
 	return f;
@@ -233,9 +234,9 @@ static int media_parse(proto_call *c, const proto_param *spec, media_pair *mp)
 	const char *fu, *fl;
 
 	if (proto_args_parse(c, proto_item_of(&c->args, "upper"), "upper.",
-			     spec, &mp->up) ||
+	                     spec, &mp->up) ||
 	    proto_args_parse(c, proto_item_of(&c->args, "lower"), "lower.",
-			     spec, &mp->lo))
+	                     spec, &mp->lo))
 		return -1;
 	fu = first_array(&mp->up);
 	fl = first_array(&mp->lo);
@@ -243,9 +244,9 @@ static int media_parse(proto_call *c, const proto_param *spec, media_pair *mp)
 		char full[64];
 		snprintf(full, sizeof full, "lower.%s", fl);
 		return proto_fail(c, PROTO_INVALID_PARAMS, full,
-				  "array length %zu does not match length %zu "
-				  "of 'upper.%s'",
-				  mp->lo.n[0], mp->up.n[0], fu);
+		                  "array length %zu does not match length %zu "
+		                  "of 'upper.%s'",
+		                  mp->lo.n[0], mp->up.n[0], fu);
 	}
 	mp->arr = fu || fl;
 	mp->n = fu ? mp->up.n[0] : mp->lo.n[0];
@@ -269,9 +270,9 @@ static rw_reflect_medium medium_at(const proto_args *a, size_t i)
  * medium_bad: the interface has an impossible medium (everything null).
  * crit_p, crit_s: critical angles (HUGE_VAL for none). */
 static uint32_t eval_angle(const rw_reflect_medium *u,
-			   const rw_reflect_medium *l, double theta,
-			   double crit_p, double crit_s, const method_set *ms,
-			   double *zz, double *lin, int medium_bad)
+                           const rw_reflect_medium *l, double theta,
+                           double crit_p, double crit_s, const method_set *ms,
+                           double *zz, double *lin, int medium_bad)
 {
 	uint32_t f = 0;
 	int post = theta >= crit_p;
@@ -293,7 +294,7 @@ static uint32_t eval_angle(const rw_reflect_medium *u,
 		if (id == M_ZOEPPRITZ) {
 			rw_reflect_pcoefs pc;
 			const rw_reflect_cplx *z[4] = {&pc.rpp, &pc.rps,
-						       &pc.tpp, &pc.tps};
+			                               &pc.tpp, &pc.tps};
 			if (rw_reflect_zoeppritz(u, l, theta, &pc) != RW_OK) {
 				f |= QC_REFL_UNDEFINED;
 				continue;
@@ -326,16 +327,16 @@ static uint32_t eval_angle(const rw_reflect_medium *u,
 }
 
 static const proto_param iso_medium_spec[] = {
-	{"vp", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
-	{"vs", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
-	{"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"vp", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
+    {"vs", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
+    {"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 static const proto_param class_spec[] = {
-	{"a_small", PT_NUM, PK_NONE, 0, 0},
-	{"theta_max", PT_NUM, PK_ANGLE, 0, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"a_small", PT_NUM, PK_NONE, 0, 0},
+    {"theta_max", PT_NUM, PK_ANGLE, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 /* The angle vector of a call, with 0 as the default. */
@@ -350,18 +351,18 @@ static const proto_vec *angle_vec(const proto_args *a)
 /* ---- reflect.interface -------------------------------------------------- */
 
 static const proto_param interface_params[] = {
-	{"upper", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
-	{"lower", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
-	{"angle", PT_NUMS, PK_ANGLE, 0, 1},
-	{"methods", PT_ANY, PK_NONE, 0, 0},
-	{"class", PT_OBJ, PK_NONE, 0, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"upper", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
+    {"lower", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
+    {"angle", PT_NUMS, PK_ANGLE, 0, 1},
+    {"methods", PT_ANY, PK_NONE, 0, 0},
+    {"class", PT_OBJ, PK_NONE, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 static const char *const zz_keys[16] = {
-	"rpp_re", "rpp_im", "rpp_abs", "rpp_phase", "rps_re", "rps_im",
-	"rps_abs", "rps_phase", "tpp_re", "tpp_im", "tpp_abs", "tpp_phase",
-	"tps_re", "tps_im", "tps_abs", "tps_phase"};
+    "rpp_re",  "rpp_im",    "rpp_abs", "rpp_phase", "rps_re",  "rps_im",
+    "rps_abs", "rps_phase", "tpp_re",  "tpp_im",    "tpp_abs", "tpp_phase",
+    "tps_re",  "tps_im",    "tps_abs", "tps_phase"};
 
 /* Class thresholds from the `class` object. 0 or -1. */
 static int class_parse(proto_call *c, rw_avo_class_params *cp)
@@ -370,17 +371,17 @@ static int class_parse(proto_call *c, rw_avo_class_params *cp)
 
 	*cp = rw_reflect_avo_defaults();
 	if (proto_args_parse(c, proto_item_of(&c->args, "class"), "class.",
-			     class_spec, &a))
+	                     class_spec, &a))
 		return -1;
 	cp->a_small = proto_num_or(&a, "a_small", cp->a_small);
 	cp->theta_max_rad = proto_num_or(&a, "theta_max", cp->theta_max_rad);
 	if (!(cp->a_small >= 0))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "class.a_small",
-				  "must be >= 0 (a band of intercepts around "
-				  "zero)");
+		                  "must be >= 0 (a band of intercepts around "
+		                  "zero)");
 	if (!(cp->theta_max_rad > 0 && cp->theta_max_rad < M_PI_2))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "class.theta_max",
-				  "must lie in (0, 90) deg");
+		                  "must lie in (0, 90) deg");
 	return 0;
 }
 
@@ -396,9 +397,8 @@ static int interface(proto_call *c)
 	uint32_t *qc, *qci;
 	const char **cls;
 
-	if (media_parse(c, iso_medium_spec, &mp) || methods_parse(c, &c->args,
-								 &ms) ||
-	    class_parse(c, &cp))
+	if (media_parse(c, iso_medium_spec, &mp) ||
+	    methods_parse(c, &c->args, &ms) || class_parse(c, &cp))
 		return -1;
 	ang = angle_vec(&c->args);
 	if (angles_check(c, ang, "angle", 0, M_PI_2, 0))
@@ -408,20 +408,20 @@ static int interface(proto_call *c)
 	ang_arr = ang->is_array;
 	if (na && ni > SIZE_MAX / na)
 		return proto_fail(c, PROTO_LIMIT_EXCEEDED, NULL,
-				  "interfaces x angles overflows");
+		                  "interfaces x angles overflows");
 	nn = ni * na;
 	if (proto_check_size(c, ni, nn))
 		return -1;
 	if (ms.exact && nn > SIZE_MAX / 16)
 		return proto_fail(c, PROTO_LIMIT_EXCEEDED, NULL,
-				  "interfaces x angles overflows");
+		                  "interfaces x angles overflows");
 	if ((ms.exact && !(zz = doubles(c, 16 * nn))) ||
 	    !(lin = doubles(c, (size_t)ms.n * nn)) ||
 	    !(abc = doubles(c, 3 * ni)) || !(crit = doubles(c, 2 * ni)) ||
 	    !(qc = flag_alloc(c, nn)) || !(qci = flag_alloc(c, ni)) ||
 	    !(cls = proto_alloc(c, ni * sizeof *cls + 1)))
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory");
+		                  "out of memory");
 	for (size_t i = 0; i < ni; i++) {
 		rw_reflect_medium u = medium_at(&mp.up, i);
 		rw_reflect_medium l = medium_at(&mp.lo, i);
@@ -437,11 +437,10 @@ static int interface(proto_call *c)
 		if (!bad) {
 			rw_reflect_critical_angles(&u, &l, &cpp, &csp);
 			rw_reflect_shuey_terms(&u, &l, &abc[3 * i],
-					       &abc[3 * i + 1],
-					       &abc[3 * i + 2]);
-			if (rw_reflect_avo_classify(abc[3 * i],
-						    abc[3 * i + 1], &cp,
-						    &k) == RW_OK)
+			                       &abc[3 * i + 1],
+			                       &abc[3 * i + 2]);
+			if (rw_reflect_avo_classify(abc[3 * i], abc[3 * i + 1],
+			                            &cp, &k) == RW_OK)
 				cls[i] = rw_reflect_avo_class_name(k);
 			if (isinf(cpp))
 				qci[i] |= QC_REFL_NO_CRIT_P;
@@ -452,11 +451,10 @@ static int interface(proto_call *c)
 		crit[2 * i + 1] = csp;
 		for (size_t j = 0; j < na; j++) {
 			size_t s = i * na + j;
-			qc[s] = fm | eval_angle(&u, &l, proto_at(ang, j),
-						 bad ? NAN : cpp,
-						 bad ? NAN : csp, &ms,
-						 zz ? zz + 16 * s : NULL, tmp,
-						 bad);
+			qc[s] = fm | eval_angle(
+			                 &u, &l, proto_at(ang, j),
+			                 bad ? NAN : cpp, bad ? NAN : csp, &ms,
+			                 zz ? zz + 16 * s : NULL, tmp, bad);
 			for (int m = 0; m < ms.n; m++)
 				lin[(size_t)m * nn + s] = tmp[m];
 		}
@@ -473,8 +471,8 @@ static int interface(proto_call *c)
 				       zz + k, ni, na, 16, mp.arr, ang_arr);
 			continue;
 		}
-		w_grid(c, method_keys[ms.id[m]], PK_NONE,
-		       lin + (size_t)m * nn, ni, na, 1, mp.arr, ang_arr);
+		w_grid(c, method_keys[ms.id[m]], PK_NONE, lin + (size_t)m * nn,
+		       ni, na, 1, mp.arr, ang_arr);
 	}
 	w_grid_flags(c, "qc", qc, ni, na, mp.arr, ang_arr);
 	proto_w_vec(c, "intercept", PK_NONE, abc, ni, 3, mp.arr);
@@ -504,22 +502,22 @@ static int interface(proto_call *c)
 /* ---- reflect.series ----------------------------------------------------- */
 
 static const proto_param series_params[] = {
-	{"vp", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
-	{"vs", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
-	{"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
-	{"depth", PT_NUMS, PK_LENGTH, 0, 0},
-	{"time", PT_NUMS, PK_NONE, 0, 0},
-	{"position", PT_STR, PK_NONE, 0, 0},
-	{"angle", PT_NUMS, PK_ANGLE, 0, 1},
-	{"methods", PT_ANY, PK_NONE, 0, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"vp", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
+    {"vs", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
+    {"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
+    {"depth", PT_NUMS, PK_LENGTH, 0, 0},
+    {"time", PT_NUMS, PK_NONE, 0, 0},
+    {"position", PT_STR, PK_NONE, 0, 0},
+    {"angle", PT_NUMS, PK_ANGLE, 0, 1},
+    {"methods", PT_ANY, PK_NONE, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 /* Checks that a position log is an array of the log's length, strictly
  * increasing, and writes the interface positions to out (n - 1 values):
  * halfway between samples, or the top of the lower layer. */
-static int positions(proto_call *c, const char *name, int layer_top,
-		     size_t n, double *out)
+static int positions(proto_call *c, const char *name, int layer_top, size_t n,
+                     double *out)
 {
 	const proto_vec *z = proto_vec_of(&c->args, name);
 
@@ -527,18 +525,18 @@ static int positions(proto_call *c, const char *name, int layer_top,
 		return 0;
 	if (!z->is_array)
 		return proto_fail(c, PROTO_INVALID_PARAMS, name,
-				  "must be an array with one value per "
-				  "sample of the log");
+		                  "must be an array with one value per "
+		                  "sample of the log");
 	for (size_t i = 1; i < n; i++) {
 		if (!(z->v[i] > z->v[i - 1]))
 			return proto_fail(c, PROTO_INVALID_PARAMS, name,
-					  "element %zu is not greater than "
-					  "element %zu: the log must be "
-					  "ordered downwards, strictly "
-					  "increasing",
-					  i, i - 1);
-		out[i - 1] = layer_top ? z->v[i]
-				       : 0.5 * (z->v[i - 1] + z->v[i]);
+			                  "element %zu is not greater than "
+			                  "element %zu: the log must be "
+			                  "ordered downwards, strictly "
+			                  "increasing",
+			                  i, i - 1);
+		out[i - 1] =
+		    layer_top ? z->v[i] : 0.5 * (z->v[i - 1] + z->v[i]);
 	}
 	return 0;
 }
@@ -559,9 +557,9 @@ static int series(proto_call *c)
 
 	if (!a->any_array[0] || n < 2)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "vp",
-				  "a series needs arrays of at least 2 samples "
-				  "(one interface); use reflect.interface for "
-				  "single interfaces");
+		                  "a series needs arrays of at least 2 samples "
+		                  "(one interface); use reflect.interface for "
+		                  "single interfaces");
 	if ((pos = proto_enum_of(c, a, "position", pos_names, 0)) < 0 ||
 	    methods_parse(c, a, &ms))
 		return -1;
@@ -573,7 +571,7 @@ static int series(proto_call *c)
 	ang_arr = ang->is_array;
 	if (ni > SIZE_MAX / 16 / na)
 		return proto_fail(c, PROTO_LIMIT_EXCEEDED, NULL,
-				  "interfaces x angles overflows");
+		                  "interfaces x angles overflows");
 	nn = ni * na;
 	if (proto_check_size(c, n, nn))
 		return -1;
@@ -583,15 +581,15 @@ static int series(proto_call *c)
 	    !(ztim = doubles(c, ni)) || !(qc = flag_alloc(c, nn)) ||
 	    !(qci = flag_alloc(c, ni)))
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory");
+		                  "out of memory");
 	if (positions(c, "depth", pos, n, zdep) ||
 	    positions(c, "time", pos, n, ztim))
 		return -1;
 	for (size_t i = 0; i < ni; i++) {
 		rw_reflect_medium u = {proto_at(vp, i), proto_at(vs, i),
-				       proto_at(rho, i)};
+		                       proto_at(rho, i)};
 		rw_reflect_medium l = {proto_at(vp, i + 1), proto_at(vs, i + 1),
-				       proto_at(rho, i + 1)};
+		                       proto_at(rho, i + 1)};
 		uint32_t fm = medium_flags(&u) | medium_flags(&l);
 		int bad = (fm & QC_REFL_MEDIUM) != 0;
 		double cpp = NAN, csp = NAN, tmp[M_COUNT], zt[16];
@@ -601,13 +599,13 @@ static int series(proto_call *c)
 		if (!bad) {
 			rw_reflect_critical_angles(&u, &l, &cpp, &csp);
 			rw_reflect_shuey_terms(&u, &l, &ab[2 * i],
-					       &ab[2 * i + 1], NULL);
+			                       &ab[2 * i + 1], NULL);
 		}
 		for (size_t j = 0; j < na; j++) {
 			/* layout [angle][interface]: one log per angle */
 			size_t s = j * ni + i;
 			qc[s] = fm | eval_angle(&u, &l, proto_at(ang, j), cpp,
-						 csp, &ms, zt, tmp, bad);
+			                        csp, &ms, zt, tmp, bad);
 			if (zz) {
 				zz[2 * s] = zt[0];
 				zz[2 * s + 1] = zt[1];
@@ -626,14 +624,13 @@ static int series(proto_call *c)
 		proto_w_vec(c, "time", PK_NONE, ztim, ni, 1, 1);
 	for (int m = 0; m < ms.n; m++) {
 		if (ms.id[m] == M_ZOEPPRITZ) {
-			w_grid(c, "rpp_re", PK_NONE, zz, na, ni, 2, ang_arr,
+			w_grid(c, "rpp_re", PK_NONE, zz, na, ni, 2, ang_arr, 1);
+			w_grid(c, "rpp_im", PK_NONE, zz + 1, na, ni, 2, ang_arr,
 			       1);
-			w_grid(c, "rpp_im", PK_NONE, zz + 1, na, ni, 2,
-			       ang_arr, 1);
 			continue;
 		}
-		w_grid(c, method_keys[ms.id[m]], PK_NONE,
-		       lin + (size_t)m * nn, na, ni, 1, ang_arr, 1);
+		w_grid(c, method_keys[ms.id[m]], PK_NONE, lin + (size_t)m * nn,
+		       na, ni, 1, ang_arr, 1);
 	}
 	w_grid_flags(c, "qc", qc, na, ni, ang_arr, 1);
 	proto_w_vec(c, "intercept", PK_NONE, ab, ni, 2, 1);
@@ -647,21 +644,21 @@ static int series(proto_call *c)
 /* ---- reflect.impedance -------------------------------------------------- */
 
 static const proto_param impedance_params[] = {
-	{"vp", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
-	{"vs", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
-	{"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
-	{"angle", PT_NUMS, PK_ANGLE, 0, 1},
-	{"chi", PT_NUMS, PK_ANGLE, 0, 2},
-	{"k", PT_ANY, PK_NONE, 0, 0},
-	{"ref", PT_OBJ, PK_NONE, 0, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"vp", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
+    {"vs", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
+    {"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
+    {"angle", PT_NUMS, PK_ANGLE, 0, 1},
+    {"chi", PT_NUMS, PK_ANGLE, 0, 2},
+    {"k", PT_ANY, PK_NONE, 0, 0},
+    {"ref", PT_OBJ, PK_NONE, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 static const proto_param ref_spec[] = {
-	{"vp", PT_NUM, PK_VELOCITY, 0, 0},
-	{"vs", PT_NUM, PK_VELOCITY, 0, 0},
-	{"rho", PT_NUM, PK_DENSITY, 0, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"vp", PT_NUM, PK_VELOCITY, 0, 0},
+    {"vs", PT_NUM, PK_VELOCITY, 0, 0},
+    {"rho", PT_NUM, PK_DENSITY, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 static int impedance(proto_call *c)
@@ -684,23 +681,23 @@ static int impedance(proto_call *c)
 
 	if (!ang->present && !chi->present)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "angle",
-				  "give angle (for EI), chi (for EEI) or both");
+		                  "give angle (for EI), chi (for EEI) or both");
 	if (angles_check(c, ang, "angle", 0, M_PI_2, 1) ||
 	    angles_check(c, chi, "chi", -M_PI_2, M_PI_2, 0))
 		return -1;
 	if (kj) {
-		if (cJSON_IsString(kj) && strcmp(kj->valuestring, "sample") == 0)
+		if (cJSON_IsString(kj) &&
+		    strcmp(kj->valuestring, "sample") == 0)
 			k_sample = 1;
 		else if (cJSON_IsNumber(kj) && kj->valuedouble >= 0 &&
-			 kj->valuedouble < 0.75)
+		         kj->valuedouble < 0.75)
 			k = kj->valuedouble, k_given = 1;
 		else
 			return proto_fail(c, PROTO_INVALID_PARAMS, "k",
-					  "must be a number in [0, 0.75) (K = "
-					  "(vs/vp)^2) or \"sample\"");
+			                  "must be a number in [0, 0.75) (K = "
+			                  "(vs/vp)^2) or \"sample\"");
 	}
-	if (proto_args_parse(c, proto_item_of(a, "ref"), "ref.", ref_spec,
-			     &ra))
+	if (proto_args_parse(c, proto_item_of(a, "ref"), "ref.", ref_spec, &ra))
 		return -1;
 	if (proto_check_size(c, n, n * (na + nc ? na + nc : 1)))
 		return -1;
@@ -708,11 +705,11 @@ static int impedance(proto_call *c)
 	    !(ein = doubles(c, n * (na ? na : 1))) ||
 	    !(eei = doubles(c, n * (nc ? nc : 1))) || !(qc = flag_alloc(c, n)))
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory");
+		                  "out of memory");
 	/* Defaults: means over the possible samples (protocol-docs). */
 	for (size_t i = 0; i < n; i++) {
 		rw_reflect_medium m = {proto_at(vp, i), proto_at(vs, i),
-				       proto_at(rho, i)};
+		                       proto_at(rho, i)};
 		qc[i] = medium_flags(&m);
 		if (qc[i] & QC_REFL_MEDIUM)
 			continue;
@@ -732,10 +729,10 @@ static int impedance(proto_call *c)
 	for (int j = 0; j < 3; j++)
 		if (proto_vec_of(&ra, rn[j] + 4)->present && !(rv[j] > 0))
 			return proto_fail(c, PROTO_INVALID_PARAMS, rn[j],
-					  "must be > 0");
+			                  "must be > 0");
 	for (size_t i = 0; i < n; i++) {
 		rw_reflect_medium m = {proto_at(vp, i), proto_at(vs, i),
-				       proto_at(rho, i)};
+		                       proto_at(rho, i)};
 		int bad = (qc[i] & QC_REFL_MEDIUM) != 0;
 		for (size_t j = 0; j < na; j++) {
 			double th = ang->v[j];
@@ -745,14 +742,14 @@ static int impedance(proto_call *c)
 				continue;
 			if (rw_reflect_ei(&m, th, k, &ei[s]) != RW_OK ||
 			    rw_reflect_ei_norm(&m, th, k, &ref, &ein[s]) !=
-				RW_OK)
+			        RW_OK)
 				qc[i] |= QC_REFL_UNDEFINED;
 		}
 		for (size_t j = 0; j < nc; j++) {
 			size_t s = j * n + i;
 			eei[s] = NAN;
 			if (!bad && rw_reflect_eei(&m, chi->v[j], k, &ref,
-						   &eei[s]) != RW_OK)
+			                           &eei[s]) != RW_OK)
 				qc[i] |= QC_REFL_UNDEFINED;
 		}
 	}
@@ -771,8 +768,8 @@ static int impedance(proto_call *c)
 	proto_w_num(c, "ref_rho", PK_DENSITY, ref.rho_kgm3);
 	if (na) {
 		w_grid(c, "ei", PK_NONE, ei, na, n, 1, ang->is_array, arr);
-		w_grid(c, "ei_norm", PK_IMPEDANCE, ein, na, n, 1,
-		       ang->is_array, arr);
+		w_grid(c, "ei_norm", PK_IMPEDANCE, ein, na, n, 1, ang->is_array,
+		       arr);
 	}
 	if (nc)
 		w_grid(c, "eei", PK_IMPEDANCE, eei, nc, n, 1, chi->is_array,
@@ -786,20 +783,20 @@ static int impedance(proto_call *c)
 /* ---- reflect.vti -------------------------------------------------------- */
 
 static const proto_param vti_medium_spec[] = {
-	{"vp0", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
-	{"vs0", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
-	{"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
-	{"epsilon", PT_NUMS, PK_NONE, PP_REQUIRED | PP_NULLS, 0},
-	{"delta", PT_NUMS, PK_NONE, PP_REQUIRED | PP_NULLS, 0},
-	{"gamma", PT_NUMS, PK_NONE, PP_NULLS, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"vp0", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
+    {"vs0", PT_NUMS, PK_VELOCITY, PP_REQUIRED | PP_NULLS, 0},
+    {"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
+    {"epsilon", PT_NUMS, PK_NONE, PP_REQUIRED | PP_NULLS, 0},
+    {"delta", PT_NUMS, PK_NONE, PP_REQUIRED | PP_NULLS, 0},
+    {"gamma", PT_NUMS, PK_NONE, PP_NULLS, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 static const proto_param vti_params[] = {
-	{"upper", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
-	{"lower", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
-	{"angle", PT_NUMS, PK_ANGLE, 0, 1},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"upper", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
+    {"lower", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
+    {"angle", PT_NUMS, PK_ANGLE, 0, 1},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 static rw_aniso_thomsen thomsen_at(const proto_args *a, size_t i)
@@ -858,14 +855,14 @@ static int vti(proto_call *c)
 	na = ang->n;
 	if (ni > SIZE_MAX / na)
 		return proto_fail(c, PROTO_LIMIT_EXCEEDED, NULL,
-				  "interfaces x angles overflows");
+		                  "interfaces x angles overflows");
 	nn = ni * na;
 	if (proto_check_size(c, ni, nn))
 		return -1;
 	if (!(r = doubles(c, nn)) || !(ri = doubles(c, nn)) ||
 	    !(qc = flag_alloc(c, nn)))
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory");
+		                  "out of memory");
 	for (size_t i = 0; i < ni; i++) {
 		rw_aniso_thomsen u = thomsen_at(&mp.up, i);
 		rw_aniso_thomsen l = thomsen_at(&mp.lo, i);
@@ -900,15 +897,15 @@ static int vti(proto_call *c)
 }
 
 const proto_method proto_reflect_methods[] = {
-	{"reflect.interface", interface, interface_params,
-	 "Exact Zoeppritz and linearised PP reflectivity, intercept, "
-	 "gradient, AVO class and critical angles of interfaces."},
-	{"reflect.series", series, series_params,
-	 "Angle-dependent reflectivity of every interface of a blocked log."},
-	{"reflect.impedance", impedance, impedance_params,
-	 "Elastic impedance (EI, normalised EI) and extended elastic "
-	 "impedance logs."},
-	{"reflect.vti", vti, vti_params,
-	 "Ruger PP reflectivity between two VTI media."},
-	{NULL, NULL, NULL, NULL},
+    {"reflect.interface", interface, interface_params,
+     "Exact Zoeppritz and linearised PP reflectivity, intercept, "
+     "gradient, AVO class and critical angles of interfaces."},
+    {"reflect.series", series, series_params,
+     "Angle-dependent reflectivity of every interface of a blocked log."},
+    {"reflect.impedance", impedance, impedance_params,
+     "Elastic impedance (EI, normalised EI) and extended elastic "
+     "impedance logs."},
+    {"reflect.vti", vti, vti_params,
+     "Ruger PP reflectivity between two VTI media."},
+    {NULL, NULL, NULL, NULL},
 };

@@ -9,32 +9,34 @@
 #include "rockwire/aniso.h"
 #include "rockwire/status.h"
 
-#define N(name, kind) {name, PT_NUMS, kind, PP_NULLS, 0}
+#define N(name, kind)                                                          \
+	{                                                                      \
+		name, PT_NUMS, kind, PP_NULLS, 0                               \
+	}
 
 static const proto_param thomsen_params[] = {
-	{"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
-	N("c11", PK_MODULUS),
-	N("c13", PK_MODULUS),
-	N("c33", PK_MODULUS),
-	N("c44", PK_MODULUS),
-	N("c66", PK_MODULUS),
-	N("vp0", PK_VELOCITY),
-	N("vs0", PK_VELOCITY),
-	N("epsilon", PK_NONE),
-	N("delta", PK_NONE),
-	N("gamma", PK_NONE),
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
+    N("c11", PK_MODULUS),
+    N("c13", PK_MODULUS),
+    N("c33", PK_MODULUS),
+    N("c44", PK_MODULUS),
+    N("c66", PK_MODULUS),
+    N("vp0", PK_VELOCITY),
+    N("vs0", PK_VELOCITY),
+    N("epsilon", PK_NONE),
+    N("delta", PK_NONE),
+    N("gamma", PK_NONE),
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
-static const char *const stiff_names[5] = {"c11", "c13", "c33", "c44",
-					   "c66"};
+static const char *const stiff_names[5] = {"c11", "c13", "c33", "c44", "c66"};
 static const char *const thom_names[5] = {"vp0", "vs0", "epsilon", "delta",
-					  "gamma"};
+                                          "gamma"};
 
 /* Counts the members of a set that are present; *first_missing and
  * *first_present name them (NULL when none). */
 static int count_set(const proto_args *a, const char *const names[5],
-		     const char **first_missing, const char **first_present)
+                     const char **first_missing, const char **first_present)
 {
 	int n = 0;
 
@@ -71,29 +73,30 @@ static int thomsen(proto_call *c)
 
 	if (ns && nt)
 		return proto_fail(c, PROTO_INVALID_PARAMS, tp,
-				  "give either the stiffnesses (c11, c13, c33, "
-				  "c44, c66) or vp0, vs0, epsilon, delta, "
-				  "gamma, not both (%s was given too)",
-				  sp);
+		                  "give either the stiffnesses (c11, c13, c33, "
+		                  "c44, c66) or vp0, vs0, epsilon, delta, "
+		                  "gamma, not both (%s was given too)",
+		                  sp);
 	if (!ns && !nt)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "c11",
-				  "give the stiffnesses c11, c13, c33, c44, "
-				  "c66, or vp0, vs0, epsilon, delta, gamma");
+		                  "give the stiffnesses c11, c13, c33, c44, "
+		                  "c66, or vp0, vs0, epsilon, delta, gamma");
 	if (forward ? ns < 5 : nt < 5)
 		return proto_fail(c, PROTO_INVALID_PARAMS, forward ? sm : tm,
-				  "required with %s: give all five of %s",
-				  forward ? sp : tp,
-				  forward ? "c11, c13, c33, c44, c66"
-					  : "vp0, vs0, epsilon, delta, gamma");
+		                  "required with %s: give all five of %s",
+		                  forward ? sp : tp,
+		                  forward ? "c11, c13, c33, c44, c66"
+		                          : "vp0, vs0, epsilon, delta, gamma");
 	if (proto_check_size(c, n, n))
 		return -1;
 	res = proto_alloc(c, n * sizeof *res);
 	qc = proto_alloc(c, n * sizeof *qc);
 	if (!res || !qc)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory for %zu samples", n);
+		                  "out of memory for %zu samples", n);
 	for (int k = 0; k < 5; k++)
-		v[k] = proto_vec_of(a, forward ? stiff_names[k] : thom_names[k]);
+		v[k] =
+		    proto_vec_of(a, forward ? stiff_names[k] : thom_names[k]);
 	for (size_t i = 0; i < n; i++) {
 		double x[5], r = proto_at(rho, i);
 		rw_aniso_vti s;
@@ -121,32 +124,32 @@ static int thomsen(proto_call *c)
 		}
 		if (st == RW_OK)
 			qc[i] = 2.0 * t.vs0_ms * t.vs0_ms > t.vp0_ms * t.vp0_ms
-				    ? QC_NU_NEGATIVE
-				    : 0;
+			            ? QC_NU_NEGATIVE
+			            : 0;
 		else if (!finite)
 			qc[i] = QC_INPUT_INVALID;
 		else if (!(r > 0))
 			qc[i] = QC_RHO_NONPOSITIVE;
 		else
 			qc[i] = QC_ANISO_UNSTABLE;
-		res[i] = (row){s.c11_pa, s.c13_pa, s.c33_pa, s.c44_pa,
-			       s.c66_pa, t.vp0_ms, t.vs0_ms,
-			       st == RW_OK ? r : NAN, t.epsilon, t.delta,
-			       t.gamma};
+		res[i] =
+		    (row){s.c11_pa,  s.c13_pa, s.c33_pa, s.c44_pa,
+		          s.c66_pa,  t.vp0_ms, t.vs0_ms, st == RW_OK ? r : NAN,
+		          t.epsilon, t.delta,  t.gamma};
 	}
 	proto_w_obj_begin(c, NULL);
 	proto_w_int(c, "n", (long long)n);
 	{
 		static const char *const names[11] = {
-			"c11", "c13", "c33", "c44",   "c66",  "vp0",
-			"vs0", "rho", "epsilon", "delta", "gamma"};
+		    "c11", "c13", "c33",     "c44",   "c66",  "vp0",
+		    "vs0", "rho", "epsilon", "delta", "gamma"};
 		static const proto_kind kinds[11] = {
-			PK_MODULUS,  PK_MODULUS,  PK_MODULUS, PK_MODULUS,
-			PK_MODULUS,  PK_VELOCITY, PK_VELOCITY, PK_DENSITY,
-			PK_NONE,     PK_NONE,     PK_NONE};
+		    PK_MODULUS, PK_MODULUS,  PK_MODULUS,  PK_MODULUS,
+		    PK_MODULUS, PK_VELOCITY, PK_VELOCITY, PK_DENSITY,
+		    PK_NONE,    PK_NONE,     PK_NONE};
 		for (int k = 0; k < 11; k++)
 			proto_w_vec(c, names[k], kinds[k], &res[0].c11 + k, n,
-				    sizeof *res / sizeof(double), arr);
+			            sizeof *res / sizeof(double), arr);
 	}
 	proto_w_flags(c, "qc", qc, n, arr);
 	proto_w_units(c);
@@ -155,8 +158,8 @@ static int thomsen(proto_call *c)
 }
 
 const proto_method proto_thomsen_methods[] = {
-	{"elastic.thomsen", thomsen, thomsen_params,
-	 "Thomsen epsilon, delta, gamma, vp0, vs0 of a VTI medium from its "
-	 "stiffnesses, or the stiffnesses from them."},
-	{NULL, NULL, NULL, NULL},
+    {"elastic.thomsen", thomsen, thomsen_params,
+     "Thomsen epsilon, delta, gamma, vp0, vs0 of a VTI medium from its "
+     "stiffnesses, or the stiffnesses from them."},
+    {NULL, NULL, NULL, NULL},
 };

@@ -21,22 +21,22 @@
 #include "rockwire/rock.h"
 #include "rockwire/status.h"
 
-#define REQ(method, params)                                                  \
-	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"" method                 \
+#define REQ(method, params)                                                    \
+	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"" method                   \
 	"\",\"params\":" params "}"
 
 /* QC bits as documented in protocol-docs/reflect.md (the test uses the
  * published numbers, not the daemon's macros). */
 #define B_INPUT_INVALID (1u << 0)
-#define B_RHO_NONPOS (1u << 1)
+#define B_RHO_NONPOS    (1u << 1)
 #define B_NU_IMPOSSIBLE (1u << 2)
-#define B_NU_NEGATIVE (1u << 4)
-#define B_MEDIUM (1u << 16)
-#define B_POSTCRIT (1u << 17)
-#define B_UNDEFINED (1u << 18)
-#define B_NO_CRIT_P (1u << 19)
-#define B_NO_CRIT_S (1u << 20)
-#define B_UNSTABLE (1u << 22)
+#define B_NU_NEGATIVE   (1u << 4)
+#define B_MEDIUM        (1u << 16)
+#define B_POSTCRIT      (1u << 17)
+#define B_UNDEFINED     (1u << 18)
+#define B_NO_CRIT_P     (1u << 19)
+#define B_NO_CRIT_S     (1u << 20)
+#define B_UNSTABLE      (1u << 22)
 
 static const double DEG = 3.14159265358979323846 / 180.0;
 
@@ -64,17 +64,17 @@ static cJSON *ok_call(harness *h, const char *line)
 }
 
 static void expect_error(harness *h, const char *line, int code,
-			 const char *param)
+                         const char *param)
 {
 	cJSON *r = h_call(h, line);
 	if (!r)
 		fail_msg("no JSON response for %s: '%s'", line, h->out.data);
 	if (h_code(r) != code)
 		fail_msg("%s: code %d, want %d (%s)", line, h_code(r), code,
-			 h->out.data);
+		         h->out.data);
 	if (param && strcmp(h_param(r), param) != 0)
 		fail_msg("%s: param '%s', want '%s' (%s)", line, h_param(r),
-			 param, h->out.data);
+		         param, h->out.data);
 	cJSON_Delete(r);
 }
 
@@ -119,8 +119,8 @@ static const char *str(const cJSON *r, const char *m, int i)
 
 static const char *unit(const cJSON *r, const char *m)
 {
-	const cJSON *u = cJSON_GetObjectItemCaseSensitive(h_result(r, "units"),
-							  m);
+	const cJSON *u =
+	    cJSON_GetObjectItemCaseSensitive(h_result(r, "units"), m);
 	return cJSON_IsString(u) ? u->valuestring : "";
 }
 
@@ -136,9 +136,9 @@ static void test_interface_shapes(void **state)
 
 	/* one interface, angles array: arrays over angles */
 	r = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":" SH ",\"lower\":" SD
-			   ",\"angle\":[0,10,20],\"methods\":[\"zoeppritz\","
-			   "\"shuey3\"]}"));
+	                   "{\"upper\":" SH ",\"lower\":" SD
+	                   ",\"angle\":[0,10,20],\"methods\":[\"zoeppritz\","
+	                   "\"shuey3\"]}"));
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "rpp_re")), 3);
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "rpp_shuey3")), 3);
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "qc")), 3);
@@ -150,7 +150,7 @@ static void test_interface_shapes(void **state)
 	/* normal incidence: (Z2 - Z1) / (Z2 + Z1), Aki & Richards 1980
 	 * sec. 5.2 (a fact of the trade) */
 	assert_true(fabs(num(r, "rpp_re", 0, -1) -
-			 (4400.0 - 5400.0) / (4400.0 + 5400.0)) < 1e-12);
+	                 (4400.0 - 5400.0) / (4400.0 + 5400.0)) < 1e-12);
 	assert_true(fabs(num(r, "rpp_phase", 0, -1) - 180.0) < 1e-9);
 	assert_true(fabs(num(r, "rps_re", 0, -1)) < 1e-15);
 	assert_true(fabs(num(r, "rps_phase", 0, -1)) < 1e-15);
@@ -158,14 +158,14 @@ static void test_interface_shapes(void **state)
 
 	/* many interfaces, many angles: [interface][angle] */
 	r = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":{\"vp\":[2400,2400],\"vs\":1000,"
-			   "\"rho\":2.25},\"lower\":{\"vp\":[2200,2600],"
-			   "\"vs\":1300,\"rho\":2.0},\"angle\":[0,10,20,30],"
-			   "\"methods\":\"aki_richards\"}"));
+	                   "{\"upper\":{\"vp\":[2400,2400],\"vs\":1000,"
+	                   "\"rho\":2.25},\"lower\":{\"vp\":[2200,2600],"
+	                   "\"vs\":1300,\"rho\":2.0},\"angle\":[0,10,20,30],"
+	                   "\"methods\":\"aki_richards\"}"));
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "rpp_aki_richards")),
-			 2);
-	assert_int_equal(
-	    cJSON_GetArraySize(at(r, "rpp_aki_richards", 1, -1)), 4);
+	                 2);
+	assert_int_equal(cJSON_GetArraySize(at(r, "rpp_aki_richards", 1, -1)),
+	                 4);
 	assert_int_equal(cJSON_GetArraySize(at(r, "qc", 1, -1)), 4);
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "class")), 2);
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "critical_p")), 2);
@@ -173,7 +173,7 @@ static void test_interface_shapes(void **state)
 	/* the second interface has a faster lower medium: Snell's law
 	 * asin(vp1 / vp2) */
 	assert_true(fabs(num(r, "critical_p", 1, -1) -
-			 asin(2400.0 / 2600.0) / DEG) < 1e-9);
+	                 asin(2400.0 / 2600.0) / DEG) < 1e-9);
 	assert_true(is_null(r, "critical_p", 0, -1));
 	assert_true(flags(r, "qc_interface", 0, -1) & B_NO_CRIT_P);
 	assert_false(flags(r, "qc_interface", 1, -1) & B_NO_CRIT_P);
@@ -182,16 +182,16 @@ static void test_interface_shapes(void **state)
 
 	/* many interfaces, one angle: arrays over interfaces */
 	r = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":" SH ",\"lower\":{\"vp\":[2200,2600],"
-			   "\"vs\":1300,\"rho\":2.0},\"angle\":15}"));
+	                   "{\"upper\":" SH ",\"lower\":{\"vp\":[2200,2600],"
+	                   "\"vs\":1300,\"rho\":2.0},\"angle\":15}"));
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "rpp_re")), 2);
 	assert_true(cJSON_IsNumber(at(r, "rpp_re", 1, -1)));
 	assert_true(cJSON_IsNumber(h_result(r, "angle")));
 	cJSON_Delete(r);
 
 	/* no angle: normal incidence, scalars */
-	r = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":" SH ",\"lower\":" SD "}"));
+	r = ok_call(
+	    h, REQ("reflect.interface", "{\"upper\":" SH ",\"lower\":" SD "}"));
 	assert_true(cJSON_IsNumber(h_result(r, "rpp_re")));
 	assert_int_equal((int)num(r, "angle", -1, -1), 0);
 	cJSON_Delete(r);
@@ -203,24 +203,24 @@ static void test_interface_units(void **state)
 	cJSON *a, *b;
 
 	a = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":" SH ",\"lower\":{\"vp\":2900,\"vs\":"
-			   "1500,\"rho\":2.3},\"angle\":[30,60],\"methods\":"
-			   "[\"zoeppritz\",\"fatti\"]}"));
+	                   "{\"upper\":" SH ",\"lower\":{\"vp\":2900,\"vs\":"
+	                   "1500,\"rho\":2.3},\"angle\":[30,60],\"methods\":"
+	                   "[\"zoeppritz\",\"fatti\"]}"));
 	b = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":{\"vp\":2.4,\"vs\":1.0,\"rho\":2250},"
-			   "\"lower\":{\"vp\":2.9,\"vs\":1.5,\"rho\":2300},"
-			   "\"angle\":[0.5235987755982988,1.0471975511965976],"
-			   "\"methods\":[\"zoeppritz\",\"fatti\"],\"units\":{"
-			   "\"velocity\":\"km/s\",\"angle\":\"rad\","
-			   "\"density\":\"kg/m3\"}}"));
+	                   "{\"upper\":{\"vp\":2.4,\"vs\":1.0,\"rho\":2250},"
+	                   "\"lower\":{\"vp\":2.9,\"vs\":1.5,\"rho\":2300},"
+	                   "\"angle\":[0.5235987755982988,1.0471975511965976],"
+	                   "\"methods\":[\"zoeppritz\",\"fatti\"],\"units\":{"
+	                   "\"velocity\":\"km/s\",\"angle\":\"rad\","
+	                   "\"density\":\"kg/m3\"}}"));
 	for (int j = 0; j < 2; j++) {
 		assert_true(fabs(num(a, "rpp_re", j, -1) -
-				 num(b, "rpp_re", j, -1)) < 1e-12);
+		                 num(b, "rpp_re", j, -1)) < 1e-12);
 		assert_true(fabs(num(a, "rpp_phase", j, -1) * DEG -
-				 num(b, "rpp_phase", j, -1)) < 1e-12);
+		                 num(b, "rpp_phase", j, -1)) < 1e-12);
 	}
 	assert_true(fabs(num(a, "critical_p", -1, -1) * DEG -
-			 num(b, "critical_p", -1, -1)) < 1e-12);
+	                 num(b, "critical_p", -1, -1)) < 1e-12);
 	assert_string_equal(unit(b, "critical_p"), "rad");
 	assert_string_equal(unit(b, "angle"), "rad");
 	/* 60 deg is past asin(2.4 / 2.9) = 55.9 deg: the exact coefficient
@@ -241,12 +241,12 @@ static void test_interface_units(void **state)
 static void test_interface_energy(void **state)
 {
 	harness *h = *state;
-	const double vp1 = 1500, r1 = 1000, vp2 = 3000, vs2 = 1600,
-		     r2 = 2300;
-	cJSON *r = ok_call(h, REQ("reflect.interface",
-				  "{\"upper\":{\"vp\":1500,\"vs\":0,\"rho\":1.0},"
-				  "\"lower\":{\"vp\":3000,\"vs\":1600,\"rho\":2.3},"
-				  "\"angle\":[0,10,20,29]}"));
+	const double vp1 = 1500, r1 = 1000, vp2 = 3000, vs2 = 1600, r2 = 2300;
+	cJSON *r =
+	    ok_call(h, REQ("reflect.interface",
+	                   "{\"upper\":{\"vp\":1500,\"vs\":0,\"rho\":1.0},"
+	                   "\"lower\":{\"vp\":3000,\"vs\":1600,\"rho\":2.3},"
+	                   "\"angle\":[0,10,20,29]}"));
 	const double th[4] = {0, 10, 20, 29};
 
 	for (int j = 0; j < 4; j++) {
@@ -254,18 +254,18 @@ static void test_interface_energy(void **state)
 		double c1 = cos(t), c2 = sqrt(1 - p * p * vp2 * vp2);
 		double cj = sqrt(1 - p * p * vs2 * vs2);
 		double e = pow(num(r, "rpp_abs", j, -1), 2) +
-			   r2 * vp2 * c2 * pow(num(r, "tpp_abs", j, -1), 2) /
-			       (r1 * vp1 * c1) +
-			   r2 * vs2 * cj * pow(num(r, "tps_abs", j, -1), 2) /
-			       (r1 * vp1 * c1);
+		           r2 * vp2 * c2 * pow(num(r, "tpp_abs", j, -1), 2) /
+		               (r1 * vp1 * c1) +
+		           r2 * vs2 * cj * pow(num(r, "tps_abs", j, -1), 2) /
+		               (r1 * vp1 * c1);
 		assert_true(fabs(e - 1.0) < 1e-10);
 		/* a fluid upper medium reflects no S wave */
 		assert_true(fabs(num(r, "rps_abs", j, -1)) < 1e-15);
 	}
-	assert_true(fabs(num(r, "critical_p", -1, -1) -
-			 asin(vp1 / vp2) / DEG) < 1e-9);
-	assert_true(fabs(num(r, "critical_s", -1, -1) -
-			 asin(vp1 / vs2) / DEG) < 1e-9);
+	assert_true(fabs(num(r, "critical_p", -1, -1) - asin(vp1 / vp2) / DEG) <
+	            1e-9);
+	assert_true(fabs(num(r, "critical_s", -1, -1) - asin(vp1 / vs2) / DEG) <
+	            1e-9);
 	cJSON_Delete(r);
 }
 
@@ -277,10 +277,11 @@ static void test_interface_energy(void **state)
 static void test_interface_total_reflection(void **state)
 {
 	harness *h = *state;
-	cJSON *r = ok_call(h, REQ("reflect.interface",
-				  "{\"upper\":{\"vp\":1500,\"vs\":0,\"rho\":1.0},"
-				  "\"lower\":{\"vp\":2500,\"vs\":0,\"rho\":2.0},"
-				  "\"angle\":[50,70]}"));
+	cJSON *r =
+	    ok_call(h, REQ("reflect.interface",
+	                   "{\"upper\":{\"vp\":1500,\"vs\":0,\"rho\":1.0},"
+	                   "\"lower\":{\"vp\":2500,\"vs\":0,\"rho\":2.0},"
+	                   "\"angle\":[50,70]}"));
 	const double th[2] = {50, 70};
 
 	for (int j = 0; j < 2; j++) {
@@ -290,7 +291,7 @@ static void test_interface_total_reflection(void **state)
 		double phase = -2.0 * atan(1000.0 * q2 / (2000.0 * q1));
 		assert_true(fabs(num(r, "rpp_abs", j, -1) - 1.0) < 1e-12);
 		assert_true(fabs(num(r, "rpp_phase", j, -1) * DEG - phase) <
-			    1e-10);
+		            1e-10);
 		assert_true(flags(r, "qc", j, -1) & B_POSTCRIT);
 	}
 	cJSON_Delete(r);
@@ -305,24 +306,24 @@ static void test_interface_linear_close(void **state)
 {
 	harness *h = *state;
 	static const char *const keys[] = {
-		"rpp_aki_richards", "rpp_shuey3", "rpp_fatti", "rpp_gray_lmr",
-		"rpp_gray_kmr",     "rpp_shuey2", "rpp_hilterman",
-		"rpp_smith_gidlow"};
+	    "rpp_aki_richards", "rpp_shuey3",      "rpp_fatti",
+	    "rpp_gray_lmr",     "rpp_gray_kmr",    "rpp_shuey2",
+	    "rpp_hilterman",    "rpp_smith_gidlow"};
 	cJSON *r = ok_call(
 	    h, REQ("reflect.interface",
-		   "{\"upper\":{\"vp\":3000,\"vs\":1500,\"rho\":2.4},"
-		   "\"lower\":{\"vp\":3300,\"vs\":1650,\"rho\":2.4579},"
-		   "\"angle\":[0,10,20,25],\"methods\":[\"zoeppritz\","
-		   "\"aki_richards\",\"shuey2\",\"shuey3\",\"hilterman\","
-		   "\"fatti\",\"gray_lmr\",\"gray_kmr\",\"smith_gidlow\"]}"));
+	           "{\"upper\":{\"vp\":3000,\"vs\":1500,\"rho\":2.4},"
+	           "\"lower\":{\"vp\":3300,\"vs\":1650,\"rho\":2.4579},"
+	           "\"angle\":[0,10,20,25],\"methods\":[\"zoeppritz\","
+	           "\"aki_richards\",\"shuey2\",\"shuey3\",\"hilterman\","
+	           "\"fatti\",\"gray_lmr\",\"gray_kmr\",\"smith_gidlow\"]}"));
 
 	for (size_t k = 0; k < sizeof keys / sizeof keys[0]; k++)
 		for (int j = 0; j < 4; j++) {
-			double d = num(r, keys[k], j, -1) -
-				   num(r, "rpp_re", j, -1);
+			double d =
+			    num(r, keys[k], j, -1) - num(r, "rpp_re", j, -1);
 			if (fabs(d) > 0.01)
 				fail_msg("%s at angle %d off by %g", keys[k], j,
-					 d);
+				         d);
 		}
 	assert_int_equal(flags(r, "qc", 3, -1), 0);
 	cJSON_Delete(r);
@@ -336,10 +337,10 @@ static void test_interface_qc(void **state)
 	/* an impossible medium (3 vp^2 <= 4 vs^2), a null sample, a negative
 	 * density, and a negative Poisson's ratio */
 	r = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":" SH ",\"lower\":{\"vp\":[2000,null,"
-			   "2000,2000],\"vs\":[1800,1000,1000,1500],\"rho\":"
-			   "[2.2,2.2,-1,2.2]},\"angle\":[0,20],\"methods\":"
-			   "[\"zoeppritz\",\"shuey3\"]}"));
+	                   "{\"upper\":" SH ",\"lower\":{\"vp\":[2000,null,"
+	                   "2000,2000],\"vs\":[1800,1000,1000,1500],\"rho\":"
+	                   "[2.2,2.2,-1,2.2]},\"angle\":[0,20],\"methods\":"
+	                   "[\"zoeppritz\",\"shuey3\"]}"));
 	assert_true(flags(r, "qc", 0, 0) & B_MEDIUM);
 	assert_true(flags(r, "qc", 0, 0) & B_NU_IMPOSSIBLE);
 	assert_true(is_null(r, "rpp_re", 0, 0));
@@ -357,8 +358,8 @@ static void test_interface_qc(void **state)
 	/* 90 deg: exact coefficient -1 (grazing incidence), linearised
 	 * forms undefined */
 	r = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":90,"
-			   "\"methods\":[\"zoeppritz\",\"shuey2\"]}"));
+	                   "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":90,"
+	                   "\"methods\":[\"zoeppritz\",\"shuey2\"]}"));
 	assert_true(fabs(num(r, "rpp_re", -1, -1) + 1.0) < 1e-9);
 	assert_true(is_null(r, "rpp_shuey2", -1, -1));
 	assert_true(flags(r, "qc", -1, -1) & B_UNDEFINED);
@@ -367,25 +368,25 @@ static void test_interface_qc(void **state)
 	/* gray_lmr is undefined for a mean lambda of zero (vs = vp/sqrt 2
 	 * on both sides); the other methods are still given */
 	r = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":{\"vp\":2000,\"vs\":1414.2135623730951,"
-			   "\"rho\":2.2},\"lower\":{\"vp\":2200,\"vs\":"
-			   "1555.6349186104046,\"rho\":2.3},\"angle\":10,"
-			   "\"methods\":[\"gray_lmr\",\"gray_kmr\"]}"));
+	                   "{\"upper\":{\"vp\":2000,\"vs\":1414.2135623730951,"
+	                   "\"rho\":2.2},\"lower\":{\"vp\":2200,\"vs\":"
+	                   "1555.6349186104046,\"rho\":2.3},\"angle\":10,"
+	                   "\"methods\":[\"gray_lmr\",\"gray_kmr\"]}"));
 	assert_true(is_null(r, "rpp_gray_lmr", -1, -1));
 	assert_false(is_null(r, "rpp_gray_kmr", -1, -1));
 	assert_true(flags(r, "qc", -1, -1) & B_UNDEFINED);
 	cJSON_Delete(r);
 
 	r = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":{\"vp\":2000,\"vs\":900,\"rho\":2.2},"
-			   "\"lower\":{\"vp\":1900,\"vs\":1300,\"rho\":2.5},"
-			   "\"angle\":[0,70],\"methods\":[\"zoeppritz\","
-			   "\"shuey3\"]}"));
+	                   "{\"upper\":{\"vp\":2000,\"vs\":900,\"rho\":2.2},"
+	                   "\"lower\":{\"vp\":1900,\"vs\":1300,\"rho\":2.5},"
+	                   "\"angle\":[0,70],\"methods\":[\"zoeppritz\","
+	                   "\"shuey3\"]}"));
 	/* vp2 < vp1: no P critical angle; vs2 < vp1: no S one either */
 	assert_int_equal(flags(r, "qc", 1, -1), 0);
 	assert_false(is_null(r, "rpp_shuey3", 1, -1));
 	assert_int_equal(flags(r, "qc_interface", -1, -1),
-			 B_NO_CRIT_P | B_NO_CRIT_S);
+	                 B_NO_CRIT_P | B_NO_CRIT_S);
 	cJSON_Delete(r);
 }
 
@@ -395,15 +396,16 @@ static void test_interface_qc(void **state)
 static void test_interface_postcritical(void **state)
 {
 	harness *h = *state;
-	cJSON *r = ok_call(h, REQ("reflect.interface",
-				  "{\"upper\":{\"vp\":1500,\"vs\":0,\"rho\":1.0},"
-				  "\"lower\":{\"vp\":3500,\"vs\":2000,\"rho\":"
-				  "2.4},\"angle\":[20,30,60],\"methods\":["
-				  "\"zoeppritz\",\"aki_richards\"]}"));
+	cJSON *r =
+	    ok_call(h, REQ("reflect.interface",
+	                   "{\"upper\":{\"vp\":1500,\"vs\":0,\"rho\":1.0},"
+	                   "\"lower\":{\"vp\":3500,\"vs\":2000,\"rho\":"
+	                   "2.4},\"angle\":[20,30,60],\"methods\":["
+	                   "\"zoeppritz\",\"aki_richards\"]}"));
 	/* P critical asin(1500/3500) = 25.4 deg, S critical asin(0.75) =
 	 * 48.6 deg */
 	assert_true(num(r, "critical_p", -1, -1) <
-		    num(r, "critical_s", -1, -1));
+	            num(r, "critical_s", -1, -1));
 	assert_int_equal(flags(r, "qc", 0, -1), 0);
 	assert_false(is_null(r, "rpp_aki_richards", 0, -1));
 	for (int j = 1; j < 3; j++) {
@@ -426,78 +428,96 @@ static void test_interface_errors(void **state)
 	const int E = -32602;
 
 	expect_error(h, REQ("reflect.interface", "{\"lower\":" SD "}"), E,
-		     "upper");
+	             "upper");
 	expect_error(h, REQ("reflect.interface", "{\"upper\":" SH "}"), E,
-		     "lower");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":{\"vp\":1,\"vs\":1},\"lower\":" SD "}"),
-		     E, "upper.rho");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":{\"vp\":\"x\",\"vs\":1,"
-			    "\"rho\":2}}"),
-		     E, "lower.vp");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":{\"vp\":2,\"vs\":1,"
-			    "\"rho\":2,\"vq\":1}}"),
-		     E, "lower.vq");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":{\"vp\":[1,2],\"vs\":1,\"rho\":2},"
-			    "\"lower\":{\"vp\":2,\"vs\":[1,2,3],\"rho\":2}}"),
-		     E, "lower.vs");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":{\"vp\":[1,2],\"vs\":[1,2,3],\"rho\":2},"
-			    "\"lower\":" SD "}"),
-		     E, "upper.vs");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":[0,"
-			    "95]}"),
-		     E, "angle");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":-1}"),
-		     E, "angle");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":"
-			    "\"30\"}"),
-		     E, "angle");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":"
-			    "\"shuey\"}"),
-		     E, "methods");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":["
-			    "\"shuey2\",\"shuey2\"]}"),
-		     E, "methods");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":["
-			    "\"shuey2\",3]}"),
-		     E, "methods");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":[]}"),
-		     E, "methods");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":7}"),
-		     E, "methods");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"class\":{"
-			    "\"a_small\":-0.1}}"),
-		     E, "class.a_small");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"class\":{"
-			    "\"theta_max\":90}}"),
-		     E, "class.theta_max");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"class\":{"
-			    "\"theta\":30}}"),
-		     E, "class.theta");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"class\":3}"),
-		     E, "class");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":" SH ",\"lower\":" SD ",\"upper2\":1}"),
-		     E, "upper2");
-	expect_error(h, REQ("reflect.interface",
-			    "{\"upper\":[1,2],\"lower\":" SD "}"),
-		     E, "upper");
+	             "lower");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":{\"vp\":1,\"vs\":1},\"lower\":" SD "}"),
+	             E, "upper.rho");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":{\"vp\":\"x\",\"vs\":1,"
+	                 "\"rho\":2}}"),
+	             E, "lower.vp");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":{\"vp\":2,\"vs\":1,"
+	                 "\"rho\":2,\"vq\":1}}"),
+	             E, "lower.vq");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":{\"vp\":[1,2],\"vs\":1,\"rho\":2},"
+	                 "\"lower\":{\"vp\":2,\"vs\":[1,2,3],\"rho\":2}}"),
+	             E, "lower.vs");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":{\"vp\":[1,2],\"vs\":[1,2,3],\"rho\":2},"
+	                 "\"lower\":" SD "}"),
+	             E, "upper.vs");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":[0,"
+	                 "95]}"),
+	             E, "angle");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":-1}"),
+	             E, "angle");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":"
+	                 "\"30\"}"),
+	             E, "angle");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":"
+	                 "\"shuey\"}"),
+	             E, "methods");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":["
+	                 "\"shuey2\",\"shuey2\"]}"),
+	             E, "methods");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":["
+	                 "\"shuey2\",3]}"),
+	             E, "methods");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":[]}"),
+	             E, "methods");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"methods\":7}"),
+	             E, "methods");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"class\":{"
+	                 "\"a_small\":-0.1}}"),
+	             E, "class.a_small");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"class\":{"
+	                 "\"theta_max\":90}}"),
+	             E, "class.theta_max");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"class\":{"
+	                 "\"theta\":30}}"),
+	             E, "class.theta");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"class\":3}"),
+	             E, "class");
+	expect_error(h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":" SH ",\"lower\":" SD ",\"upper2\":1}"),
+	             E, "upper2");
+	expect_error(
+	    h, REQ("reflect.interface", "{\"upper\":[1,2],\"lower\":" SD "}"),
+	    E, "upper");
 }
 
 static void test_interface_limit(void **state)
@@ -512,20 +532,22 @@ static void test_interface_limit(void **state)
 	h.s = proto_session_new(h.ctx);
 	proto_buf_init(&h.out);
 	/* 3 interfaces x 4 angles = 12 > 10 */
-	expect_error(&h, REQ("reflect.interface",
-			     "{\"upper\":{\"vp\":[2,2,2],\"vs\":1,\"rho\":2},"
-			     "\"lower\":" SD ",\"angle\":[0,1,2,3]}"),
-		     -32001, NULL);
+	expect_error(&h,
+	             REQ("reflect.interface",
+	                 "{\"upper\":{\"vp\":[2,2,2],\"vs\":1,\"rho\":2},"
+	                 "\"lower\":" SD ",\"angle\":[0,1,2,3]}"),
+	             -32001, NULL);
 	/* 2 x 4 = 8 passes */
 	cJSON *r = ok_call(&h, REQ("reflect.interface",
-				   "{\"upper\":{\"vp\":[2000,2100],\"vs\":1000,"
-				   "\"rho\":2},\"lower\":" SD
-				   ",\"angle\":[0,1,2,3]}"));
+	                           "{\"upper\":{\"vp\":[2000,2100],\"vs\":1000,"
+	                           "\"rho\":2},\"lower\":" SD
+	                           ",\"angle\":[0,1,2,3]}"));
 	cJSON_Delete(r);
-	expect_error(&h, REQ("reflect.series",
-			     "{\"vp\":[2000,2100,2200,2300],\"vs\":1000,"
-			     "\"rho\":2,\"angle\":[0,1,2,3]}"),
-		     -32001, NULL);
+	expect_error(&h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2000,2100,2200,2300],\"vs\":1000,"
+	                 "\"rho\":2,\"angle\":[0,1,2,3]}"),
+	             -32001, NULL);
 	h_free(&h);
 }
 
@@ -536,7 +558,7 @@ static void test_interface_class_params(void **state)
 	harness *h = *state;
 	/* A = 1/2 (dvp/vp + drho/rho): about +0.045 here */
 	const char *base = "{\"upper\":{\"vp\":2800,\"vs\":1300,\"rho\":2.3},"
-			   "\"lower\":{\"vp\":3000,\"vs\":1700,\"rho\":2.4}";
+	                   "\"lower\":{\"vp\":3000,\"vs\":1700,\"rho\":2.4}";
 	char line[512];
 	cJSON *r;
 
@@ -548,9 +570,9 @@ static void test_interface_class_params(void **state)
 	assert_true(fabs(num(r, "class_a_small", -1, -1) - 0.02) < 1e-15);
 	cJSON_Delete(r);
 	snprintf(line, sizeof line,
-		 REQ("reflect.interface", "%s,\"class\":{\"a_small\":0.06,"
-					  "\"theta_max\":40}}"),
-		 base);
+	         REQ("reflect.interface", "%s,\"class\":{\"a_small\":0.06,"
+	                                  "\"theta_max\":40}}"),
+	         base);
 	r = ok_call(h, line);
 	/* |A| <= 0.06 and A + B sin^2(40) < 0: polarity reversal, IIp */
 	assert_string_equal(str(r, "class", -1), "IIp");
@@ -569,18 +591,18 @@ static void test_interface_class_params(void **state)
  * and Castagna, Swan & Foster 1998): the impedance-matched brine sand is
  * class II, the same sand with gas class III, the tight sand class I with
  * either fluid; gas lowers both AI and vp/vs. */
-static void class_of(harness *h, const rw_rock_subst *sand, char *cls,
-		     size_t n, double *a, double *b)
+static void class_of(harness *h, const rw_rock_subst *sand, char *cls, size_t n,
+                     double *a, double *b)
 {
 	char line[512];
 	cJSON *r;
 
 	snprintf(line, sizeof line,
-		 REQ("reflect.interface",
-		     "{\"upper\":{\"vp\":2900,\"vs\":1350,\"rho\":2450},"
-		     "\"lower\":{\"vp\":%.17g,\"vs\":%.17g,\"rho\":%.17g},"
-		     "\"units\":{\"density\":\"kg/m3\"}}"),
-		 sand->vp_ms, sand->vs_ms, sand->rho_kgm3);
+	         REQ("reflect.interface",
+	             "{\"upper\":{\"vp\":2900,\"vs\":1350,\"rho\":2450},"
+	             "\"lower\":{\"vp\":%.17g,\"vs\":%.17g,\"rho\":%.17g},"
+	             "\"units\":{\"density\":\"kg/m3\"}}"),
+	         sand->vp_ms, sand->vs_ms, sand->rho_kgm3);
 	r = ok_call(h, line);
 	snprintf(cls, n, "%s", str(r, "class", -1));
 	*a = num(r, "intercept", -1, -1);
@@ -594,36 +616,36 @@ static void test_avo_classes_fluid_subst(void **state)
 	rw_fluid_phase brine, gas;
 	rw_rock_subst soft_b, soft_g, tight_b, tight_g;
 	const double k_quartz = 36.6e9; /* Mavko et al. 2009 table, from
-					 * memory */
+	                                 * memory */
 	char cls[16];
 	double a, b;
 
 	assert_int_equal(rw_fluid_brine_props(30, 80, 0.08, &brine, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_int_equal(rw_fluid_gas_props(30, 80, 0.65, &gas, NULL, NULL),
-			 RW_OK);
+	                 RW_OK);
 	/* soft sand "measured" with brine: phi 0.25; tight sand phi 0.08 */
 	soft_b = (rw_rock_subst){3150, 1650, 2230, 0, 0, 0};
 	tight_b = (rw_rock_subst){4300, 2650, 2520, 0, 0, 0};
 	assert_int_equal(rw_rock_fluid_subst(3150, 1650, 2230, 0.25, k_quartz,
-					     brine.k_pa, brine.rho_kgm3,
-					     gas.k_pa, gas.rho_kgm3, &soft_g,
-					     NULL),
-			 RW_OK);
+	                                     brine.k_pa, brine.rho_kgm3,
+	                                     gas.k_pa, gas.rho_kgm3, &soft_g,
+	                                     NULL),
+	                 RW_OK);
 	assert_int_equal(rw_rock_fluid_subst(4300, 2650, 2520, 0.08, k_quartz,
-					     brine.k_pa, brine.rho_kgm3,
-					     gas.k_pa, gas.rho_kgm3, &tight_g,
-					     NULL),
-			 RW_OK);
+	                                     brine.k_pa, brine.rho_kgm3,
+	                                     gas.k_pa, gas.rho_kgm3, &tight_g,
+	                                     NULL),
+	                 RW_OK);
 	/* a lighter fluid lowers AI and vp/vs (Gassmann: K falls, mu
 	 * stays, density falls less than K) */
 	assert_true(soft_g.vp_ms * soft_g.rho_kgm3 <
-		    soft_b.vp_ms * soft_b.rho_kgm3);
+	            soft_b.vp_ms * soft_b.rho_kgm3);
 	assert_true(soft_g.vp_ms / soft_g.vs_ms < soft_b.vp_ms / soft_b.vs_ms);
 	assert_true(tight_g.vp_ms * tight_g.rho_kgm3 <
-		    tight_b.vp_ms * tight_b.rho_kgm3);
+	            tight_b.vp_ms * tight_b.rho_kgm3);
 	assert_true(tight_g.vp_ms / tight_g.vs_ms <
-		    tight_b.vp_ms / tight_b.vs_ms);
+	            tight_b.vp_ms / tight_b.vs_ms);
 
 	class_of(h, &soft_b, cls, sizeof cls, &a, &b);
 	assert_string_equal(cls, "II");
@@ -643,9 +665,9 @@ static void test_avo_class_iv(void **state)
 {
 	harness *h = *state;
 	cJSON *r = ok_call(h, REQ("reflect.interface",
-				  "{\"upper\":{\"vp\":3300,\"vs\":1900,\"rho\":"
-				  "2.45},\"lower\":{\"vp\":2600,\"vs\":1550,"
-				  "\"rho\":2.1}}"));
+	                          "{\"upper\":{\"vp\":3300,\"vs\":1900,\"rho\":"
+	                          "2.45},\"lower\":{\"vp\":2600,\"vs\":1550,"
+	                          "\"rho\":2.1}}"));
 	assert_true(num(r, "intercept", -1, -1) < -0.02);
 	assert_true(num(r, "gradient", -1, -1) >= 0);
 	assert_string_equal(str(r, "class", -1), "IV");
@@ -660,11 +682,11 @@ static void test_series(void **state)
 	cJSON *r, *q;
 
 	r = ok_call(h, REQ("reflect.series",
-			   "{\"vp\":[2400,2200,2600,null],\"vs\":[1000,1300,"
-			   "1200,1200],\"rho\":[2.25,2.0,2.3,2.3],\"depth\":["
-			   "1000,1010,1030,1031],\"time\":[1.0,1.008,1.02,"
-			   "1.021],\"angle\":[0,30],\"methods\":[\"zoeppritz\","
-			   "\"shuey3\"]}"));
+	                   "{\"vp\":[2400,2200,2600,null],\"vs\":[1000,1300,"
+	                   "1200,1200],\"rho\":[2.25,2.0,2.3,2.3],\"depth\":["
+	                   "1000,1010,1030,1031],\"time\":[1.0,1.008,1.02,"
+	                   "1.021],\"angle\":[0,30],\"methods\":[\"zoeppritz\","
+	                   "\"shuey3\"]}"));
 	assert_int_equal((int)num(r, "n_interfaces", -1, -1), 3);
 	/* layout [angle][interface] */
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "rpp_re")), 2);
@@ -682,12 +704,12 @@ static void test_series(void **state)
 	assert_false(is_null(r, "rpp_re", 1, 1));
 	/* same numbers as reflect.interface for the same pair */
 	q = ok_call(h, REQ("reflect.interface",
-			   "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":[0,"
-			   "30],\"methods\":[\"zoeppritz\",\"shuey3\"]}"));
+	                   "{\"upper\":" SH ",\"lower\":" SD ",\"angle\":[0,"
+	                   "30],\"methods\":[\"zoeppritz\",\"shuey3\"]}"));
 	for (int j = 0; j < 2; j++) {
 		assert_true(num(r, "rpp_re", j, 0) == num(q, "rpp_re", j, -1));
 		assert_true(num(r, "rpp_shuey3", j, 0) ==
-			    num(q, "rpp_shuey3", j, -1));
+		            num(q, "rpp_shuey3", j, -1));
 	}
 	assert_true(num(r, "intercept", 0, -1) == num(q, "intercept", -1, -1));
 	cJSON_Delete(q);
@@ -695,10 +717,10 @@ static void test_series(void **state)
 
 	/* layer tops; one angle: arrays over interfaces */
 	r = ok_call(h, REQ("reflect.series",
-			   "{\"vp\":[2400,2200,2600],\"vs\":[1000,1300,1200],"
-			   "\"rho\":[2.25,2.0,2.3],\"depth\":[1000,1010,1030],"
-			   "\"position\":\"layer_top\",\"angle\":20,"
-			   "\"units\":{\"length\":\"ft\"}}"));
+	                   "{\"vp\":[2400,2200,2600],\"vs\":[1000,1300,1200],"
+	                   "\"rho\":[2.25,2.0,2.3],\"depth\":[1000,1010,1030],"
+	                   "\"position\":\"layer_top\",\"angle\":20,"
+	                   "\"units\":{\"length\":\"ft\"}}"));
 	assert_true(fabs(num(r, "depth", 0, -1) - 1010) < 1e-9);
 	assert_true(fabs(num(r, "depth", 1, -1) - 1030) < 1e-9);
 	assert_string_equal(unit(r, "depth"), "ft");
@@ -712,49 +734,59 @@ static void test_series_errors(void **state)
 	harness *h = *state;
 	const int E = -32602;
 
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":2400,\"vs\":1000,\"rho\":2.2}"),
-		     E, "vp");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400],\"vs\":1000,\"rho\":2.2}"),
-		     E, "vp");
-	expect_error(h, REQ("reflect.series", "{\"vp\":[2400,2500],\"vs\":1000}"),
-		     E, "rho");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400,2500],\"vs\":[1000,1,2],\"rho\":2.2}"),
-		     E, "vs");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
-			    "\"depth\":[10,10]}"),
-		     E, "depth");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
-			    "\"depth\":10}"),
-		     E, "depth");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
-			    "\"depth\":[1,2,3]}"),
-		     E, "depth");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
-			    "\"depth\":[1,null]}"),
-		     E, "depth");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
-			    "\"time\":[2,1]}"),
-		     E, "time");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
-			    "\"position\":\"top\"}"),
-		     E, "position");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
-			    "\"angle\":[0,91]}"),
-		     E, "angle");
-	expect_error(h, REQ("reflect.series",
-			    "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
-			    "\"methods\":[\"ruger\"]}"),
-		     E, "methods");
+	expect_error(
+	    h, REQ("reflect.series", "{\"vp\":2400,\"vs\":1000,\"rho\":2.2}"),
+	    E, "vp");
+	expect_error(
+	    h, REQ("reflect.series", "{\"vp\":[2400],\"vs\":1000,\"rho\":2.2}"),
+	    E, "vp");
+	expect_error(h,
+	             REQ("reflect.series", "{\"vp\":[2400,2500],\"vs\":1000}"),
+	             E, "rho");
+	expect_error(h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2400,2500],\"vs\":[1000,1,2],\"rho\":2.2}"),
+	             E, "vs");
+	expect_error(h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
+	                 "\"depth\":[10,10]}"),
+	             E, "depth");
+	expect_error(h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
+	                 "\"depth\":10}"),
+	             E, "depth");
+	expect_error(h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
+	                 "\"depth\":[1,2,3]}"),
+	             E, "depth");
+	expect_error(h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
+	                 "\"depth\":[1,null]}"),
+	             E, "depth");
+	expect_error(h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
+	                 "\"time\":[2,1]}"),
+	             E, "time");
+	expect_error(h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
+	                 "\"position\":\"top\"}"),
+	             E, "position");
+	expect_error(h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
+	                 "\"angle\":[0,91]}"),
+	             E, "angle");
+	expect_error(h,
+	             REQ("reflect.series",
+	                 "{\"vp\":[2400,2500],\"vs\":1000,\"rho\":2.2,"
+	                 "\"methods\":[\"ruger\"]}"),
+	             E, "methods");
 }
 
 /* ---- reflect.impedance ------------------------------------------------- */
@@ -765,9 +797,9 @@ static void test_impedance(void **state)
 	cJSON *r;
 
 	r = ok_call(h, REQ("reflect.impedance",
-			   "{\"vp\":[2400,2200,2600,1500],\"vs\":[1000,1300,"
-			   "1200,0],\"rho\":[2.25,2.0,2.3,1.0],\"angle\":[0,"
-			   "30],\"chi\":[0,45]}"));
+	                   "{\"vp\":[2400,2200,2600,1500],\"vs\":[1000,1300,"
+	                   "1200,0],\"rho\":[2.25,2.0,2.3,1.0],\"angle\":[0,"
+	                   "30],\"chi\":[0,45]}"));
 	/* layout [angle][sample] */
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "ei_norm")), 2);
 	assert_int_equal(cJSON_GetArraySize(at(r, "ei_norm", 0, -1)), 4);
@@ -786,8 +818,8 @@ static void test_impedance(void **state)
 	assert_true(fabs(num(r, "ref_vs", -1, -1) - 875.0) < 1e-9);
 	{
 		double k = (pow(1000.0 / 2400, 2) + pow(1300.0 / 2200, 2) +
-			    pow(1200.0 / 2600, 2)) /
-			   4;
+		            pow(1200.0 / 2600, 2)) /
+		           4;
 		assert_true(fabs(num(r, "k", -1, -1) - k) < 1e-12);
 	}
 	/* the fluid has no EI at 30 deg with k > 0: null, flagged */
@@ -804,19 +836,19 @@ static void test_impedance(void **state)
 	 * (EI2 - EI1) / (EI2 + EI1) ~ A + B sin^2 + C (tan^2 - sin^2)
 	 * (shuey3 with the same K); the difference is second order. */
 	r = ok_call(h, REQ("reflect.impedance",
-			   "{\"vp\":[3000,3150],\"vs\":[1500,1600],\"rho\":"
-			   "[2.40,2.45],\"angle\":25,\"k\":0.25}"));
+	                   "{\"vp\":[3000,3150],\"vs\":[1500,1600],\"rho\":"
+	                   "[2.40,2.45],\"angle\":25,\"k\":0.25}"));
 	{
 		double e1 = num(r, "ei_norm", 0, -1),
 		       e2 = num(r, "ei_norm", 1, -1);
 		cJSON *q = ok_call(
 		    h, REQ("reflect.interface",
-			   "{\"upper\":{\"vp\":3000,\"vs\":1500,\"rho\":2.40},"
-			   "\"lower\":{\"vp\":3150,\"vs\":1600,\"rho\":2.45},"
-			   "\"angle\":25,\"methods\":\"shuey3\"}"));
+		           "{\"upper\":{\"vp\":3000,\"vs\":1500,\"rho\":2.40},"
+		           "\"lower\":{\"vp\":3150,\"vs\":1600,\"rho\":2.45},"
+		           "\"angle\":25,\"methods\":\"shuey3\"}"));
 		/* vs/vp of the means is 1550 / 3075, K = 0.254 ~ 0.25 */
 		assert_true(fabs((e2 - e1) / (e2 + e1) -
-				 num(q, "rpp_shuey3", -1, -1)) < 2e-3);
+		                 num(q, "rpp_shuey3", -1, -1)) < 2e-3);
 		cJSON_Delete(q);
 	}
 	assert_true(fabs(num(r, "k", -1, -1) - 0.25) < 1e-15);
@@ -824,10 +856,10 @@ static void test_impedance(void **state)
 
 	/* explicit reference and per-sample K */
 	r = ok_call(h, REQ("reflect.impedance",
-			   "{\"vp\":2.4,\"vs\":1.2,\"rho\":2300,\"angle\":0,"
-			   "\"k\":\"sample\",\"ref\":{\"vp\":2.0,\"vs\":1.0,"
-			   "\"rho\":2000},\"units\":{\"velocity\":\"km/s\","
-			   "\"density\":\"kg/m3\",\"impedance\":\"kg/m2s\"}}"));
+	                   "{\"vp\":2.4,\"vs\":1.2,\"rho\":2300,\"angle\":0,"
+	                   "\"k\":\"sample\",\"ref\":{\"vp\":2.0,\"vs\":1.0,"
+	                   "\"rho\":2000},\"units\":{\"velocity\":\"km/s\","
+	                   "\"density\":\"kg/m3\",\"impedance\":\"kg/m2s\"}}"));
 	assert_string_equal(str(r, "k", -1), "sample");
 	assert_true(fabs(num(r, "ei_norm", -1, -1) - 2400.0 * 2300.0) < 1e-6);
 	assert_true(fabs(num(r, "ref_vp", -1, -1) - 2.0) < 1e-15);
@@ -843,34 +875,40 @@ static void test_impedance_errors(void **state)
 
 	expect_error(h, REQ("reflect.impedance", "{" LOG "}"), E, "angle");
 	expect_error(h, REQ("reflect.impedance", "{" LOG ",\"angle\":90}"), E,
-		     "angle");
+	             "angle");
 	expect_error(h, REQ("reflect.impedance", "{" LOG ",\"chi\":[0,100]}"),
-		     E, "chi");
-	expect_error(h, REQ("reflect.impedance",
-			    "{" LOG ",\"angle\":10,\"k\":0.8}"),
-		     E, "k");
-	expect_error(h, REQ("reflect.impedance",
-			    "{" LOG ",\"angle\":10,\"k\":\"mean\"}"),
-		     E, "k");
-	expect_error(h, REQ("reflect.impedance",
-			    "{" LOG ",\"angle\":10,\"k\":[0.2]}"),
-		     E, "k");
-	expect_error(h, REQ("reflect.impedance",
-			    "{" LOG ",\"angle\":10,\"ref\":{\"vs\":0}}"),
-		     E, "ref.vs");
-	expect_error(h, REQ("reflect.impedance",
-			    "{" LOG ",\"angle\":10,\"ref\":{\"vp\":[1,2]}}"),
-		     E, "ref.vp");
-	expect_error(h, REQ("reflect.impedance",
-			    "{" LOG ",\"angle\":10,\"ref\":{\"ai\":1}}"),
-		     E, "ref.ai");
-	expect_error(h, REQ("reflect.impedance",
-			    "{\"vp\":[2400,2500],\"vs\":[1000],\"rho\":2.2,"
-			    "\"angle\":10}"),
-		     E, "vs");
-	expect_error(h, REQ("reflect.impedance",
-			    "{\"vp\":[2400,2500],\"rho\":2.2,\"angle\":10}"),
-		     E, "vs");
+	             E, "chi");
+	expect_error(
+	    h, REQ("reflect.impedance", "{" LOG ",\"angle\":10,\"k\":0.8}"), E,
+	    "k");
+	expect_error(
+	    h,
+	    REQ("reflect.impedance", "{" LOG ",\"angle\":10,\"k\":\"mean\"}"),
+	    E, "k");
+	expect_error(
+	    h, REQ("reflect.impedance", "{" LOG ",\"angle\":10,\"k\":[0.2]}"),
+	    E, "k");
+	expect_error(h,
+	             REQ("reflect.impedance",
+	                 "{" LOG ",\"angle\":10,\"ref\":{\"vs\":0}}"),
+	             E, "ref.vs");
+	expect_error(h,
+	             REQ("reflect.impedance",
+	                 "{" LOG ",\"angle\":10,\"ref\":{\"vp\":[1,2]}}"),
+	             E, "ref.vp");
+	expect_error(h,
+	             REQ("reflect.impedance",
+	                 "{" LOG ",\"angle\":10,\"ref\":{\"ai\":1}}"),
+	             E, "ref.ai");
+	expect_error(h,
+	             REQ("reflect.impedance",
+	                 "{\"vp\":[2400,2500],\"vs\":[1000],\"rho\":2.2,"
+	                 "\"angle\":10}"),
+	             E, "vs");
+	expect_error(h,
+	             REQ("reflect.impedance",
+	                 "{\"vp\":[2400,2500],\"rho\":2.2,\"angle\":10}"),
+	             E, "vs");
 #undef LOG
 }
 
@@ -885,18 +923,18 @@ static void test_vti(void **state)
 	 * the anisotropic terms add 1/2 d(delta) sin^2 + 1/2 d(epsilon)
 	 * sin^2 tan^2 to the isotropic form (d = lower - upper) */
 	r = ok_call(h, REQ("reflect.vti",
-			   "{\"upper\":{\"vp0\":2400,\"vs0\":1000,\"rho\":2.25,"
-			   "\"epsilon\":0.12,\"delta\":0.06,\"gamma\":0.1},"
-			   "\"lower\":{\"vp0\":2200,\"vs0\":1300,\"rho\":2.0,"
-			   "\"epsilon\":0,\"delta\":0},\"angle\":[0,20,35]}"));
+	                   "{\"upper\":{\"vp0\":2400,\"vs0\":1000,\"rho\":2.25,"
+	                   "\"epsilon\":0.12,\"delta\":0.06,\"gamma\":0.1},"
+	                   "\"lower\":{\"vp0\":2200,\"vs0\":1300,\"rho\":2.0,"
+	                   "\"epsilon\":0,\"delta\":0},\"angle\":[0,20,35]}"));
 	assert_true(fabs(num(r, "rpp_ruger", 0, -1) -
-			 (4400.0 - 5400.0) / (4400.0 + 5400.0)) < 1e-12);
+	                 (4400.0 - 5400.0) / (4400.0 + 5400.0)) < 1e-12);
 	for (int j = 1; j < 3; j++) {
 		double t = (j == 1 ? 20 : 35) * DEG;
 		double s2 = sin(t) * sin(t), t2 = tan(t) * tan(t);
 		double d = 0.5 * (0 - 0.06) * s2 + 0.5 * (0 - 0.12) * s2 * t2;
 		assert_true(fabs(num(r, "rpp_ruger", j, -1) -
-				 num(r, "rpp_isotropic", j, -1) - d) < 1e-12);
+		                 num(r, "rpp_isotropic", j, -1) - d) < 1e-12);
 	}
 	assert_int_equal(flags(r, "qc", 2, -1), 0);
 	cJSON_Delete(r);
@@ -904,12 +942,12 @@ static void test_vti(void **state)
 	/* broadcasting over interfaces; a fluid with anisotropy and an
 	 * unstable medium are impossible; km/s and rad */
 	r = ok_call(h, REQ("reflect.vti",
-			   "{\"upper\":{\"vp0\":[2.4,1.5,2.4],\"vs0\":[1.0,0,"
-			   "1.0],\"rho\":2.25,\"epsilon\":[0.1,0.1,0.1],"
-			   "\"delta\":[0.05,0,-0.45]},\"lower\":{\"vp0\":2.2,"
-			   "\"vs0\":1.3,\"rho\":2.0,\"epsilon\":0,\"delta\":0},"
-			   "\"angle\":0.3,\"units\":{\"velocity\":\"km/s\","
-			   "\"angle\":\"rad\"}}"));
+	                   "{\"upper\":{\"vp0\":[2.4,1.5,2.4],\"vs0\":[1.0,0,"
+	                   "1.0],\"rho\":2.25,\"epsilon\":[0.1,0.1,0.1],"
+	                   "\"delta\":[0.05,0,-0.45]},\"lower\":{\"vp0\":2.2,"
+	                   "\"vs0\":1.3,\"rho\":2.0,\"epsilon\":0,\"delta\":0},"
+	                   "\"angle\":0.3,\"units\":{\"velocity\":\"km/s\","
+	                   "\"angle\":\"rad\"}}"));
 	assert_int_equal(cJSON_GetArraySize(h_result(r, "rpp_ruger")), 3);
 	assert_false(is_null(r, "rpp_ruger", 0, -1));
 	assert_true(is_null(r, "rpp_ruger", 1, -1));
@@ -924,30 +962,36 @@ static void test_vti_errors(void **state)
 {
 	harness *h = *state;
 	const int E = -32602;
-#define VU "{\"vp0\":2400,\"vs0\":1000,\"rho\":2.25,\"epsilon\":0.1," \
-	   "\"delta\":0.05}"
+#define VU                                                                     \
+	"{\"vp0\":2400,\"vs0\":1000,\"rho\":2.25,\"epsilon\":0.1,"             \
+	"\"delta\":0.05}"
 
 	expect_error(h, REQ("reflect.vti", "{\"upper\":" VU "}"), E, "lower");
-	expect_error(h, REQ("reflect.vti",
-			    "{\"upper\":" VU ",\"lower\":{\"vp0\":2400,\"vs0\":"
-			    "1000,\"rho\":2.25,\"epsilon\":0.1}}"),
-		     E, "lower.delta");
-	expect_error(h, REQ("reflect.vti",
-			    "{\"upper\":" VU ",\"lower\":" VU ",\"angle\":90}"),
-		     E, "angle");
-	expect_error(h, REQ("reflect.vti",
-			    "{\"upper\":" VU ",\"lower\":{\"vp\":2400,\"vs0\":"
-			    "1000,\"rho\":2.25,\"epsilon\":0.1,\"delta\":0}}"),
-		     E, "lower.vp");
-	expect_error(h, REQ("reflect.vti",
-			    "{\"upper\":{\"vp0\":[1,2],\"vs0\":1,\"rho\":2,"
-			    "\"epsilon\":0,\"delta\":0},\"lower\":{\"vp0\":[1,2,"
-			    "3],\"vs0\":1,\"rho\":2,\"epsilon\":0,\"delta\":0}}"),
-		     E, "lower.vp0");
-	expect_error(h, REQ("reflect.vti",
-			    "{\"upper\":" VU ",\"lower\":" VU ",\"methods\":"
-			    "\"ruger\"}"),
-		     E, "methods");
+	expect_error(h,
+	             REQ("reflect.vti",
+	                 "{\"upper\":" VU ",\"lower\":{\"vp0\":2400,\"vs0\":"
+	                 "1000,\"rho\":2.25,\"epsilon\":0.1}}"),
+	             E, "lower.delta");
+	expect_error(h,
+	             REQ("reflect.vti",
+	                 "{\"upper\":" VU ",\"lower\":" VU ",\"angle\":90}"),
+	             E, "angle");
+	expect_error(h,
+	             REQ("reflect.vti",
+	                 "{\"upper\":" VU ",\"lower\":{\"vp\":2400,\"vs0\":"
+	                 "1000,\"rho\":2.25,\"epsilon\":0.1,\"delta\":0}}"),
+	             E, "lower.vp");
+	expect_error(h,
+	             REQ("reflect.vti",
+	                 "{\"upper\":{\"vp0\":[1,2],\"vs0\":1,\"rho\":2,"
+	                 "\"epsilon\":0,\"delta\":0},\"lower\":{\"vp0\":[1,2,"
+	                 "3],\"vs0\":1,\"rho\":2,\"epsilon\":0,\"delta\":0}}"),
+	             E, "lower.vp0");
+	expect_error(h,
+	             REQ("reflect.vti",
+	                 "{\"upper\":" VU ",\"lower\":" VU ",\"methods\":"
+	                 "\"ruger\"}"),
+	             E, "methods");
 #undef VU
 }
 
@@ -955,24 +999,24 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 #define T(f) cmocka_unit_test_setup_teardown(f, setup, teardown)
-		T(test_interface_shapes),
-		T(test_interface_units),
-		T(test_interface_energy),
-		T(test_interface_total_reflection),
-		T(test_interface_linear_close),
-		T(test_interface_qc),
-		T(test_interface_postcritical),
-		T(test_interface_errors),
-		cmocka_unit_test(test_interface_limit),
-		T(test_interface_class_params),
-		T(test_avo_classes_fluid_subst),
-		T(test_avo_class_iv),
-		T(test_series),
-		T(test_series_errors),
-		T(test_impedance),
-		T(test_impedance_errors),
-		T(test_vti),
-		T(test_vti_errors),
+	    T(test_interface_shapes),
+	    T(test_interface_units),
+	    T(test_interface_energy),
+	    T(test_interface_total_reflection),
+	    T(test_interface_linear_close),
+	    T(test_interface_qc),
+	    T(test_interface_postcritical),
+	    T(test_interface_errors),
+	    cmocka_unit_test(test_interface_limit),
+	    T(test_interface_class_params),
+	    T(test_avo_classes_fluid_subst),
+	    T(test_avo_class_iv),
+	    T(test_series),
+	    T(test_series_errors),
+	    T(test_impedance),
+	    T(test_impedance_errors),
+	    T(test_vti),
+	    T(test_vti_errors),
 #undef T
 	};
 	gsl_set_error_handler_off();

@@ -23,65 +23,70 @@ static const char *const mix_names[] = {"wood", "brie", "voigt", NULL};
  * for gas and brine in sands (from memory). */
 #define BRIE_EXPONENT_DEFAULT 3.0
 
-#define NUMS(name, kind, fl) {name, PT_NUMS, kind, fl, 0}
-#define DESC_MEMBERS                                                       \
-	{"brine", PT_OBJ, PK_NONE, 0, 0}, {"gas", PT_OBJ, PK_NONE, 0, 0},  \
-	    {"oil", PT_OBJ, PK_NONE, 0, 0},                                \
-	    {"saturation", PT_OBJ, PK_NONE, 0, 0},                         \
-	    {"mix", PT_STR, PK_NONE, 0, 0},                                \
-	    {"brie_exponent", PT_NUM, PK_NONE, 0, 0}
+#define NUMS(name, kind, fl)                                                   \
+	{                                                                      \
+		name, PT_NUMS, kind, fl, 0                                     \
+	}
+#define DESC_MEMBERS                                                           \
+	{"brine", PT_OBJ, PK_NONE, 0, 0}, {"gas", PT_OBJ, PK_NONE, 0, 0},      \
+	    {"oil", PT_OBJ, PK_NONE, 0, 0},                                    \
+	    {"saturation", PT_OBJ, PK_NONE, 0, 0},                             \
+	    {"mix", PT_STR, PK_NONE, 0, 0},                                    \
+	{                                                                      \
+		"brie_exponent", PT_NUM, PK_NONE, 0, 0                         \
+	}
 
 static const proto_param properties_params[] = {
-	NUMS("pressure", PK_PRESSURE, PP_REQUIRED | PP_NULLS),
-	NUMS("temperature", PK_TEMPERATURE, PP_REQUIRED | PP_NULLS),
-	DESC_MEMBERS,
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    NUMS("pressure", PK_PRESSURE, PP_REQUIRED | PP_NULLS),
+    NUMS("temperature", PK_TEMPERATURE, PP_REQUIRED | PP_NULLS),
+    DESC_MEMBERS,
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 /* A fluid description inside rock.substitute: the same members, or an
  * explicit k and rho. */
 static const proto_param desc_params[] = {
-	DESC_MEMBERS,
-	NUMS("k", PK_MODULUS, 0),
-	NUMS("rho", PK_DENSITY, 0),
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    DESC_MEMBERS,
+    NUMS("k", PK_MODULUS, 0),
+    NUMS("rho", PK_DENSITY, 0),
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 static const proto_param brine_params[] = {
-	NUMS("salinity", PK_SALINITY, PP_REQUIRED),
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    NUMS("salinity", PK_SALINITY, PP_REQUIRED),
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 static const proto_param gas_params[] = {
-	NUMS("gravity", PK_NONE, PP_REQUIRED),
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    NUMS("gravity", PK_NONE, PP_REQUIRED),
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 static const proto_param oil_params[] = {
-	NUMS("api", PK_NONE, PP_REQUIRED),
-	NUMS("gor", PK_GOR, 0),
-	NUMS("gas_gravity", PK_NONE, 0),
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    NUMS("api", PK_NONE, PP_REQUIRED),
+    NUMS("gor", PK_GOR, 0),
+    NUMS("gas_gravity", PK_NONE, 0),
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 static const proto_param sat_params[] = {
-	NUMS("brine", PK_NONE, 0),
-	NUMS("gas", PK_NONE, 0),
-	NUMS("oil", PK_NONE, 0),
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    NUMS("brine", PK_NONE, 0),
+    NUMS("gas", PK_NONE, 0),
+    NUMS("oil", PK_NONE, 0),
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 /* A parsed fluid description (arena memory of the call). */
 struct proto_fluid_desc {
-	int explicit_kr;         /* k and rho given */
-	proto_vec k, rho;        /* explicit */
-	int has[N_PH];           /* phase described */
+	int explicit_kr;  /* k and rho given */
+	proto_vec k, rho; /* explicit */
+	int has[N_PH];    /* phase described */
 	proto_vec sal, grav, api, gor, ggas;
-	int live;                /* oil.gor given */
-	proto_vec sat[N_PH];     /* saturations (n 0 = phase absent) */
-	double one;              /* backing store of an implied 1 */
+	int live;            /* oil.gor given */
+	proto_vec sat[N_PH]; /* saturations (n 0 = phase absent) */
+	double one;          /* backing store of an implied 1 */
 	int mix;
 	double brie_e;
-	size_t n;                /* broadcast length (1 when all scalar) */
+	size_t n; /* broadcast length (1 when all scalar) */
 	int any_array;
-	char len_from[160];      /* path of the array that set n */
+	char len_from[160]; /* path of the array that set n */
 };
 
 /* Per-sample result of a description. */
@@ -92,19 +97,19 @@ typedef struct fluid_sample {
 	uint32_t qc;
 } fluid_sample;
 _Static_assert(sizeof(fluid_sample) % sizeof(double) == 0,
-	       "fluid_sample members are read with a stride of doubles");
+               "fluid_sample members are read with a stride of doubles");
 
 /* Joins vector v (path `path`) into the broadcast length of d. */
 static int join_len(proto_call *c, struct proto_fluid_desc *d,
-		    const proto_vec *v, const char *path)
+                    const proto_vec *v, const char *path)
 {
 	if (!v->present || !v->is_array)
 		return 0;
 	if (d->any_array && v->n != d->n)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "array length %zu does not match length %zu "
-				  "of '%s'",
-				  v->n, d->n, d->len_from);
+		                  "array length %zu does not match length %zu "
+		                  "of '%s'",
+		                  v->n, d->n, d->len_from);
 	if (!d->any_array) {
 		d->any_array = 1;
 		d->n = v->n;
@@ -116,7 +121,7 @@ static int join_len(proto_call *c, struct proto_fluid_desc *d,
 /* Parses a nested object with spec and copies member `name` (if any) to
  * *out, joining its length. */
 static int sub_vec(proto_call *c, struct proto_fluid_desc *d,
-		   const proto_args *a, const char *name, proto_vec *out)
+                   const proto_args *a, const char *name, proto_vec *out)
 {
 	char full[160];
 
@@ -127,7 +132,7 @@ static int sub_vec(proto_call *c, struct proto_fluid_desc *d,
 
 /* Makes a path string in the call's arena: prefix + name + ".". */
 static const char *arena_path(proto_call *c, const char *prefix,
-			      const char *name)
+                              const char *name)
 {
 	size_t n = strlen(prefix) + strlen(name) + 2;
 	char *s = proto_alloc(c, n);
@@ -139,7 +144,7 @@ static const char *arena_path(proto_call *c, const char *prefix,
 /* Checks the saturations of every sample: each in [0, 1], the sum 1
  * within 1e-6 (the tolerance of the core's mixing functions). */
 static int check_saturations(proto_call *c, struct proto_fluid_desc *d,
-			     const char *path)
+                             const char *path)
 {
 	char full[160];
 
@@ -150,12 +155,12 @@ static int check_saturations(proto_call *c, struct proto_fluid_desc *d,
 			if (v >= 0.0 && v <= 1.0)
 				continue;
 			snprintf(full, sizeof full, "%ssaturation.%s", path,
-				 phase_names[p]);
+			         phase_names[p]);
 			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-					  "%s%zu: saturation %.9g is outside "
-					  "[0, 1]",
-					  s->is_array ? "element " : "value ",
-					  i, v);
+			                  "%s%zu: saturation %.9g is outside "
+			                  "[0, 1]",
+			                  s->is_array ? "element " : "value ",
+			                  i, v);
 		}
 	}
 	for (size_t i = 0; i < d->n; i++) {
@@ -166,9 +171,9 @@ static int check_saturations(proto_call *c, struct proto_fluid_desc *d,
 		if (fabs(sum - 1.0) > 1e-6) {
 			snprintf(full, sizeof full, "%ssaturation", path);
 			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-					  "saturations sum to %.9g at sample "
-					  "%zu, not 1 (tolerance 1e-6)",
-					  sum, i);
+			                  "saturations sum to %.9g at sample "
+			                  "%zu, not 1 (tolerance 1e-6)",
+			                  sum, i);
 		}
 	}
 	return 0;
@@ -177,10 +182,10 @@ static int check_saturations(proto_call *c, struct proto_fluid_desc *d,
 /* Parses the phase members, saturations and mixing rule of `a` (params
  * or a nested description whose path is a->path). */
 static int parse_phases(proto_call *c, const proto_args *a,
-			struct proto_fluid_desc *d)
+                        struct proto_fluid_desc *d)
 {
-	static const proto_param *const specs[N_PH] = {brine_params,
-						      gas_params, oil_params};
+	static const proto_param *const specs[N_PH] = {brine_params, gas_params,
+	                                               oil_params};
 	const char *path = a->path;
 	char full[160];
 	proto_args sub;
@@ -194,7 +199,7 @@ static int parse_phases(proto_call *c, const proto_args *a,
 		pp = arena_path(c, path, phase_names[p]);
 		if (!pp)
 			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-					  "out of memory");
+			                  "out of memory");
 		if (proto_args_parse(c, o, pp, specs[p], &sub))
 			return -1;
 		d->has[p] = 1;
@@ -225,15 +230,15 @@ static int parse_phases(proto_call *c, const proto_args *a,
 	}
 	if (!nph)
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-				  *path ? path : "brine",
-				  "describe at least one phase: brine, gas or "
-				  "oil");
+		                  *path ? path : "brine",
+		                  "describe at least one phase: brine, gas or "
+		                  "oil");
 	const cJSON *so = proto_item_of(a, "saturation");
 	if (so) {
 		const char *sp = arena_path(c, path, "saturation");
 		if (!sp)
 			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-					  "out of memory");
+			                  "out of memory");
 		if (proto_args_parse(c, so, sp, sat_params, &sub))
 			return -1;
 		for (int p = 0; p < N_PH; p++) {
@@ -256,8 +261,8 @@ static int parse_phases(proto_call *c, const proto_args *a,
 	} else if (nph > 1) {
 		snprintf(full, sizeof full, "%ssaturation", path);
 		return proto_fail(c, PROTO_INVALID_PARAMS, full,
-				  "required when more than one phase is "
-				  "described");
+		                  "required when more than one phase is "
+		                  "described");
 	} else {
 		d->one = 1.0;
 		for (int p = 0; p < N_PH; p++)
@@ -273,18 +278,18 @@ static int parse_phases(proto_call *c, const proto_args *a,
 	snprintf(full, sizeof full, "%sbrie_exponent", path);
 	if (proto_vec_of(a, "brie_exponent")->present && d->mix != MIX_BRIE)
 		return proto_fail(c, PROTO_INVALID_PARAMS, full,
-				  "only used with mix \"brie\"");
+		                  "only used with mix \"brie\"");
 	d->brie_e = proto_num_or(a, "brie_exponent", BRIE_EXPONENT_DEFAULT);
 	if (!(d->brie_e >= 1.0))
 		return proto_fail(c, PROTO_INVALID_PARAMS, full,
-				  "%.9g is below 1: the Brie et al. 1995 mix "
-				  "would exceed the Voigt bound",
-				  d->brie_e);
+		                  "%.9g is below 1: the Brie et al. 1995 mix "
+		                  "would exceed the Voigt bound",
+		                  d->brie_e);
 	if (d->mix == MIX_BRIE && !d->has[PH_BRINE]) {
 		snprintf(full, sizeof full, "%smix", path);
 		return proto_fail(c, PROTO_INVALID_PARAMS, full,
-				  "brie needs a brine phase (the water of "
-				  "S_w^e, Brie et al. 1995)");
+		                  "brie needs a brine phase (the water of "
+		                  "S_w^e, Brie et al. 1995)");
 	}
 	return check_saturations(c, d, path);
 }
@@ -306,8 +311,8 @@ static uint32_t warn_qc(unsigned w)
 {
 	uint32_t f = 0;
 	if (w & (RW_FLUID_WARN_T_RANGE | RW_FLUID_WARN_P_RANGE |
-		 RW_FLUID_WARN_SAL_RANGE | RW_FLUID_WARN_G_RANGE |
-		 RW_FLUID_WARN_API_RANGE | RW_FLUID_WARN_PR_RANGE))
+	         RW_FLUID_WARN_SAL_RANGE | RW_FLUID_WARN_G_RANGE |
+	         RW_FLUID_WARN_API_RANGE | RW_FLUID_WARN_PR_RANGE))
 		f |= QC_FLUID_CALIBRATION;
 	if (w & RW_FLUID_WARN_GOR_MAX)
 		f |= QC_FLUID_GOR_EXCESS;
@@ -330,7 +335,7 @@ static void phase_nan(rw_fluid_phase *p)
 
 /* Evaluates sample i of a phase description at p (MPa), t (degC). */
 static void eval_sample(const struct proto_fluid_desc *d, size_t i, double p,
-			double t, fluid_sample *s)
+                        double t, fluid_sample *s)
 {
 	rw_fluid_phase ph[N_PH];
 	double sat[N_PH];
@@ -350,13 +355,13 @@ static void eval_sample(const struct proto_fluid_desc *d, size_t i, double p,
 	if (d->has[PH_BRINE]) {
 		w = 0;
 		st = rw_fluid_brine_props(p, t, proto_at(&d->sal, i),
-					  &s->ph[PH_BRINE], &w);
+		                          &s->ph[PH_BRINE], &w);
 		s->qc |= warn_qc(w) | status_qc(st);
 	}
 	if (d->has[PH_GAS]) {
 		w = 0;
 		st = rw_fluid_gas_props(p, t, proto_at(&d->grav, i),
-					&s->ph[PH_GAS], &s->z, &w);
+		                        &s->ph[PH_GAS], &s->z, &w);
 		s->qc |= warn_qc(w) | status_qc(st);
 	}
 	if (d->has[PH_OIL]) {
@@ -367,7 +372,7 @@ static void eval_sample(const struct proto_fluid_desc *d, size_t i, double p,
 			    proto_at(&d->ggas, i), &s->ph[PH_OIL], &s->b0, &w);
 		else
 			st = rw_fluid_deadoil_props(p, t, proto_at(&d->api, i),
-						    &s->ph[PH_OIL], &w);
+			                            &s->ph[PH_OIL], &w);
 		s->qc |= warn_qc(w) | status_qc(st);
 	}
 	/* Mix the phases present in the sample; a phase at zero saturation
@@ -401,25 +406,23 @@ static void eval_sample(const struct proto_fluid_desc *d, size_t i, double p,
 
 /* ---- the description shared with rock.substitute ---------------------- */
 
-struct proto_fluid_desc *proto__fluid_desc_parse(proto_call *c,
-						 const cJSON *obj,
-						 const char *path);
+struct proto_fluid_desc *
+proto__fluid_desc_parse(proto_call *c, const cJSON *obj, const char *path);
 size_t proto__fluid_desc_len(const struct proto_fluid_desc *d, int *is_array,
-			     const char **len_from);
+                             const char **len_from);
 int proto__fluid_desc_needs_pt(const struct proto_fluid_desc *d);
 void proto__fluid_desc_eval(const struct proto_fluid_desc *d, size_t i,
-			    double p_mpa, double t_degc, double *k_pa,
-			    double *rho_kgm3, uint32_t *qc);
+                            double p_mpa, double t_degc, double *k_pa,
+                            double *rho_kgm3, uint32_t *qc);
 const double *proto__fluid_desc_sat(const struct proto_fluid_desc *d,
-				    const char *phase, size_t *n,
-				    int *is_array);
+                                    const char *phase, size_t *n,
+                                    int *is_array);
 
 /* Parses a fluid description object at `path` ("fluid."): either
  * {k, rho} (explicit, both required, k > 0 and rho > 0) or phases with
  * saturations and a mixing rule. NULL after proto_fail. */
-struct proto_fluid_desc *proto__fluid_desc_parse(proto_call *c,
-						 const cJSON *obj,
-						 const char *path)
+struct proto_fluid_desc *
+proto__fluid_desc_parse(proto_call *c, const cJSON *obj, const char *path)
 {
 	struct proto_fluid_desc *d = desc_new(c);
 	proto_args a;
@@ -437,25 +440,24 @@ struct proto_fluid_desc *proto__fluid_desc_parse(proto_call *c,
 		if (bad) {
 			snprintf(full, sizeof full, "%s%s", path, bad);
 			proto_fail(c, PROTO_INVALID_PARAMS, full,
-				   "give either k and rho, or a description "
-				   "by phases, not both");
+			           "give either k and rho, or a description "
+			           "by phases, not both");
 			return NULL;
 		}
 		for (int m = 0; m < 2; m++) {
 			const proto_vec *v = m ? &d->rho : &d->k;
 			snprintf(full, sizeof full, "%s%s", path,
-				 m ? "rho" : "k");
+			         m ? "rho" : "k");
 			if (!v->present) {
 				proto_fail(c, PROTO_INVALID_PARAMS, full,
-					   "required with %s", m ? "k" : "rho");
+				           "required with %s", m ? "k" : "rho");
 				return NULL;
 			}
 			for (size_t i = 0; i < v->n; i++)
 				if (!(v->v[i] > 0.0)) {
-					proto_fail(c, PROTO_INVALID_PARAMS,
-						   full,
-						   "element %zu: must be > 0",
-						   i);
+					proto_fail(
+					    c, PROTO_INVALID_PARAMS, full,
+					    "element %zu: must be > 0", i);
 					return NULL;
 				}
 			if (join_len(c, d, v, full))
@@ -470,7 +472,7 @@ struct proto_fluid_desc *proto__fluid_desc_parse(proto_call *c,
 }
 
 size_t proto__fluid_desc_len(const struct proto_fluid_desc *d, int *is_array,
-			     const char **len_from)
+                             const char **len_from)
 {
 	*is_array = d->any_array;
 	*len_from = d->len_from;
@@ -486,8 +488,8 @@ int proto__fluid_desc_needs_pt(const struct proto_fluid_desc *d)
  * mixture at p_mpa, t_degc (ignored for an explicit fluid). NaN outputs
  * when the fluid cannot be computed (*qc says why). */
 void proto__fluid_desc_eval(const struct proto_fluid_desc *d, size_t i,
-			    double p_mpa, double t_degc, double *k_pa,
-			    double *rho_kgm3, uint32_t *qc)
+                            double p_mpa, double t_degc, double *k_pa,
+                            double *rho_kgm3, uint32_t *qc)
 {
 	fluid_sample s;
 
@@ -506,8 +508,7 @@ void proto__fluid_desc_eval(const struct proto_fluid_desc *d, size_t i,
 /* The saturation vector of a phase ("brine", "gas", "oil"); NULL when the
  * phase is absent or the fluid explicit. */
 const double *proto__fluid_desc_sat(const struct proto_fluid_desc *d,
-				    const char *phase, size_t *n,
-				    int *is_array)
+                                    const char *phase, size_t *n, int *is_array)
 {
 	for (int p = 0; p < N_PH; p++)
 		if (strcmp(phase, phase_names[p]) == 0 && d->has[p] &&
@@ -549,7 +550,7 @@ static int properties(proto_call *c)
 	sat = proto_alloc_doubles(c, n);
 	if (!s || !qc || !sat)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory for %zu samples", n);
+		                  "out of memory for %zu samples", n);
 	for (size_t i = 0; i < n; i++) {
 		eval_sample(d, i, proto_at(p, i), proto_at(t, i), &s[i]);
 		qc[i] = s[i].qc;
@@ -560,9 +561,9 @@ static int properties(proto_call *c)
 	if (d->mix == MIX_BRIE)
 		proto_w_num(c, "brie_exponent", PK_NONE, d->brie_e);
 	proto_w_vec(c, "pressure", PK_PRESSURE, p->v, n, p->n == 1 ? 0 : 1,
-		    arr);
+	            arr);
 	proto_w_vec(c, "temperature", PK_TEMPERATURE, t->v, n,
-		    t->n == 1 ? 0 : 1, arr);
+	            t->n == 1 ? 0 : 1, arr);
 	for (int k = 0; k < N_PH; k++) {
 		char key[32];
 		const proto_vec *sv = &d->sat[k];
@@ -576,26 +577,26 @@ static int properties(proto_call *c)
 	for (int k = 0; k < N_PH; k++) {
 		/* Keys must outlive the writer's unit notes: static names. */
 		static const char *const keys[N_PH][3] = {
-			{"brine_rho", "brine_k", "brine_v"},
-			{"gas_rho", "gas_k", "gas_v"},
-			{"oil_rho", "oil_k", "oil_v"}};
+		    {"brine_rho", "brine_k", "brine_v"},
+		    {"gas_rho", "gas_k", "gas_v"},
+		    {"oil_rho", "oil_k", "oil_v"}};
 		if (!d->has[k])
 			continue;
-		proto_w_vec(c, keys[k][0], PK_DENSITY, &s[0].ph[k].rho_kgm3,
-			    n, stride, arr);
+		proto_w_vec(c, keys[k][0], PK_DENSITY, &s[0].ph[k].rho_kgm3, n,
+		            stride, arr);
 		proto_w_vec(c, keys[k][1], PK_MODULUS, &s[0].ph[k].k_pa, n,
-			    stride, arr);
+		            stride, arr);
 		proto_w_vec(c, keys[k][2], PK_VELOCITY, &s[0].ph[k].v_ms, n,
-			    stride, arr);
+		            stride, arr);
 		if (k == PH_GAS)
 			proto_w_vec(c, "gas_z", PK_NONE, &s[0].z, n, stride,
-				    arr);
+			            arr);
 		if (k == PH_OIL && d->live)
 			proto_w_vec(c, "oil_b0", PK_NONE, &s[0].b0, n, stride,
-				    arr);
+			            arr);
 	}
 	proto_w_vec(c, "mix_rho", PK_DENSITY, &s[0].mix.rho_kgm3, n, stride,
-		    arr);
+	            arr);
 	proto_w_vec(c, "mix_k", PK_MODULUS, &s[0].mix.k_pa, n, stride, arr);
 	proto_w_vec(c, "mix_v", PK_VELOCITY, &s[0].mix.v_ms, n, stride, arr);
 	proto_w_flags(c, "qc", qc, n, arr);
@@ -605,8 +606,8 @@ static int properties(proto_call *c)
 }
 
 const proto_method proto_fluid_methods[] = {
-	{"fluid.properties", properties, properties_params,
-	 "Brine, gas and oil properties at pressure and temperature (Batzle "
-	 "& Wang 1992) and their mixture by saturation."},
-	{NULL, NULL, NULL, NULL},
+    {"fluid.properties", properties, properties_params,
+     "Brine, gas and oil properties at pressure and temperature (Batzle "
+     "& Wang 1992) and their mixture by saturation."},
+    {NULL, NULL, NULL, NULL},
 };

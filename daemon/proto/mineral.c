@@ -14,66 +14,62 @@
 #include "rockwire/status.h"
 
 /* Method names in RW_MIX_* order, then "all" (mineral.mix only). */
-static const char *const method_names[] = {"voigt",    "reuss",
-					   "hill",     "hs_upper",
-					   "hs_lower", "all",
-					   NULL};
-static const char *const rock_method_names[] = {
-	"voigt", "reuss", "hill", "hs_upper", "hs_lower", NULL};
+static const char *const method_names[] = {
+    "voigt", "reuss", "hill", "hs_upper", "hs_lower", "all", NULL};
+static const char *const rock_method_names[] = {"voigt",    "reuss",    "hill",
+                                                "hs_upper", "hs_lower", NULL};
 #define METHOD_ALL 5
 #define N_METHODS  5
 
 static const proto_param list_params[] = {
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 static const proto_param mix_params[] = {
-	{"constituents", PT_ARR, PK_NONE, PP_REQUIRED, 0},
-	{"method", PT_STR, PK_NONE, 0, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"constituents", PT_ARR, PK_NONE, PP_REQUIRED, 0},
+    {"method", PT_STR, PK_NONE, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 static const proto_param constituent_params[] = {
-	{"mineral", PT_STR, PK_NONE, 0, 0},
-	{"k", PT_NUMS, PK_MODULUS, 0, 0},
-	{"mu", PT_NUMS, PK_MODULUS, 0, 0},
-	{"rho", PT_NUMS, PK_DENSITY, 0, 0},
-	{"fraction", PT_NUMS, PK_NONE, PP_REQUIRED, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"mineral", PT_STR, PK_NONE, 0, 0},
+    {"k", PT_NUMS, PK_MODULUS, 0, 0},
+    {"mu", PT_NUMS, PK_MODULUS, 0, 0},
+    {"rho", PT_NUMS, PK_DENSITY, 0, 0},
+    {"fraction", PT_NUMS, PK_NONE, PP_REQUIRED, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 /* The mineral of rock.substitute when given as an object. */
 static const proto_param rock_mineral_params[] = {
-	{"k", PT_NUMS, PK_MODULUS, 0, 0},
-	{"rho", PT_NUMS, PK_DENSITY, 0, 0},
-	{"constituents", PT_ARR, PK_NONE, 0, 0},
-	{"method", PT_STR, PK_NONE, 0, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"k", PT_NUMS, PK_MODULUS, 0, 0},        {"rho", PT_NUMS, PK_DENSITY, 0, 0},
+    {"constituents", PT_ARR, PK_NONE, 0, 0}, {"method", PT_STR, PK_NONE, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 /* A parsed mineral description (arena memory of the call). */
 struct proto_mineral_desc {
-	int explicit_kr;           /* {k, rho} (rock only) */
-	proto_vec k1, rho1;        /* explicit */
-	size_t m;                  /* constituents */
+	int explicit_kr;    /* {k, rho} (rock only) */
+	proto_vec k1, rho1; /* explicit */
+	size_t m;           /* constituents */
 	proto_vec *k, *mu, *rho, *f;
 	double *tk, *tmu, *trho, *tf; /* per-sample scratch, m each */
-	int method;                /* RW_MIX_* (rock) */
+	int method;                   /* RW_MIX_* (rock) */
 	size_t n;
 	int any_array;
 	char len_from[160];
 };
 
 static int join_len(proto_call *c, struct proto_mineral_desc *d,
-		    const proto_vec *v, const char *path)
+                    const proto_vec *v, const char *path)
 {
 	if (!v->present || !v->is_array)
 		return 0;
 	if (d->any_array && v->n != d->n)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "array length %zu does not match length %zu "
-				  "of '%s'",
-				  v->n, d->n, d->len_from);
+		                  "array length %zu does not match length %zu "
+		                  "of '%s'",
+		                  v->n, d->n, d->len_from);
 	if (!d->any_array) {
 		d->any_array = 1;
 		d->n = v->n;
@@ -84,17 +80,17 @@ static int join_len(proto_call *c, struct proto_mineral_desc *d,
 
 /* Every element of v at least lo (or above lo when strict). */
 static int check_min(proto_call *c, const proto_vec *v, const char *path,
-		     double lo, int strict)
+                     double lo, int strict)
 {
 	for (size_t i = 0; i < v->n; i++) {
 		double x = v->v[i];
 		if (strict ? x > lo : x >= lo)
 			continue;
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "%s%zu: %.9g must be %s %g (internal "
-				  "units)",
-				  v->is_array ? "element " : "value ", i, x,
-				  strict ? ">" : ">=", lo);
+		                  "%s%zu: %.9g must be %s %g (internal "
+		                  "units)",
+		                  v->is_array ? "element " : "value ", i, x,
+		                  strict ? ">" : ">=", lo);
 	}
 	return 0;
 }
@@ -106,20 +102,19 @@ static int unknown_mineral(proto_call *c, const char *path, const char *name)
 	rw_mineral m;
 
 	list[0] = '\0';
-	for (size_t i = 0; i < rw_mineral_count() && used < sizeof list;
-	     i++) {
+	for (size_t i = 0; i < rw_mineral_count() && used < sizeof list; i++) {
 		int w;
 		rw_mineral_get(i, &m);
 		w = snprintf(list + used, sizeof list - used, "%s%s",
-			     i ? ", " : "", m.name);
+		             i ? ", " : "", m.name);
 		if (w < 0)
 			break;
 		used += (size_t)w;
 	}
 	return proto_fail(c, PROTO_INVALID_PARAMS, path,
-			  "unknown mineral '%s'; built in: %s (see "
-			  "mineral.list), or give k, mu and rho",
-			  name, list);
+	                  "unknown mineral '%s'; built in: %s (see "
+	                  "mineral.list), or give k, mu and rho",
+	                  name, list);
 }
 
 static proto_vec scalar_vec(proto_call *c, double x)
@@ -147,9 +142,8 @@ static struct proto_mineral_desc *desc_new(proto_call *c)
 
 /* Parses a constituents array at `path` ("constituents" or
  * "mineral.constituents") into d. */
-static int parse_constituents(proto_call *c, const cJSON *arr,
-			      const char *path,
-			      struct proto_mineral_desc *d)
+static int parse_constituents(proto_call *c, const cJSON *arr, const char *path,
+                              struct proto_mineral_desc *d)
 {
 	size_t m = (size_t)cJSON_GetArraySize(arr), j = 0;
 	const cJSON *e;
@@ -157,7 +151,7 @@ static int parse_constituents(proto_call *c, const cJSON *arr,
 
 	if (m == 0)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "empty: give at least one constituent");
+		                  "empty: give at least one constituent");
 	d->m = m;
 	d->k = proto_alloc(c, m * sizeof *d->k);
 	d->mu = proto_alloc(c, m * sizeof *d->mu);
@@ -170,7 +164,7 @@ static int parse_constituents(proto_call *c, const cJSON *arr,
 	if (!d->k || !d->mu || !d->rho || !d->f || !d->tk || !d->tmu ||
 	    !d->trho || !d->tf)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, path,
-				  "out of memory for %zu constituents", m);
+		                  "out of memory for %zu constituents", m);
 	cJSON_ArrayForEach(e, arr)
 	{
 		size_t plen = strlen(path) + 32;
@@ -180,14 +174,14 @@ static int parse_constituents(proto_call *c, const cJSON *arr,
 
 		if (!pp)
 			return proto_fail(c, PROTO_INTERNAL_ERROR, path,
-					  "out of memory");
+			                  "out of memory");
 		snprintf(pp, plen, "%s[%zu].", path, j);
 		if (!cJSON_IsObject(e)) {
 			snprintf(full, sizeof full, "%s[%zu]", path, j);
 			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-					  "must be an object {mineral, "
-					  "fraction} or {k, mu, rho, "
-					  "fraction}");
+			                  "must be an object {mineral, "
+			                  "fraction} or {k, mu, rho, "
+			                  "fraction}");
 		}
 		if (proto_args_parse(c, e, pp, constituent_params, &a))
 			return -1;
@@ -197,8 +191,8 @@ static int parse_constituents(proto_call *c, const cJSON *arr,
 			rw_mineral mn;
 			for (int q = 1; q <= 3; q++) {
 				const char *mem = q == 1   ? "k"
-						  : q == 2 ? "mu"
-							   : "rho";
+				                  : q == 2 ? "mu"
+				                           : "rho";
 				if (!proto_vec_of(&a, mem)->present)
 					continue;
 				snprintf(full, sizeof full, "%s%s", pp, mem);
@@ -214,15 +208,15 @@ static int parse_constituents(proto_call *c, const cJSON *arr,
 			d->mu[j] = scalar_vec(c, mn.mu_pa);
 			d->rho[j] = scalar_vec(c, mn.rho_kgm3);
 			if (!d->k[j].v || !d->mu[j].v || !d->rho[j].v)
-				return proto_fail(c, PROTO_INTERNAL_ERROR,
-						  path, "out of memory");
+				return proto_fail(c, PROTO_INTERNAL_ERROR, path,
+				                  "out of memory");
 		} else {
 			for (int q = 0; q < 3; q++) {
 				static const char *const mem[] = {"k", "mu",
-								  "rho"};
+				                                  "rho"};
 				proto_vec *dst = q == 0   ? &d->k[j]
-						 : q == 1 ? &d->mu[j]
-							  : &d->rho[j];
+				                 : q == 1 ? &d->mu[j]
+				                          : &d->rho[j];
 				*dst = *proto_vec_of(&a, mem[q]);
 				snprintf(full, sizeof full, "%s%s", pp, mem[q]);
 				if (!dst->present)
@@ -243,8 +237,8 @@ static int parse_constituents(proto_call *c, const cJSON *arr,
 				    c, PROTO_INVALID_PARAMS, full,
 				    "%s%zu: volume fraction %.9g is outside "
 				    "[0, 1]",
-				    d->f[j].is_array ? "element " : "value ",
-				    i, x);
+				    d->f[j].is_array ? "element " : "value ", i,
+				    x);
 		}
 		if (join_len(c, d, &d->f[j], full))
 			return -1;
@@ -256,9 +250,9 @@ static int parse_constituents(proto_call *c, const cJSON *arr,
 			sum += proto_at(&d->f[j], i);
 		if (fabs(sum - 1.0) > 1e-6)
 			return proto_fail(c, PROTO_INVALID_PARAMS, path,
-					  "volume fractions sum to %.9g at "
-					  "sample %zu, not 1 (tolerance 1e-6)",
-					  sum, i);
+			                  "volume fractions sum to %.9g at "
+			                  "sample %zu, not 1 (tolerance 1e-6)",
+			                  sum, i);
 	}
 	return 0;
 }
@@ -276,21 +270,19 @@ static void load_sample(const struct proto_mineral_desc *d, size_t i)
 
 /* ---- the description shared with rock.substitute ---------------------- */
 
-struct proto_mineral_desc *proto__mineral_desc_parse(proto_call *c,
-						     const cJSON *item,
-						     const char *path);
+struct proto_mineral_desc *
+proto__mineral_desc_parse(proto_call *c, const cJSON *item, const char *path);
 size_t proto__mineral_desc_len(const struct proto_mineral_desc *d,
-			       int *is_array, const char **len_from);
+                               int *is_array, const char **len_from);
 int proto__mineral_desc_has_rho(const struct proto_mineral_desc *d);
 int proto__mineral_desc_eval(const struct proto_mineral_desc *d, size_t i,
-			     double *k_pa, double *rho_kgm3);
+                             double *k_pa, double *rho_kgm3);
 
 /* Parses the mineral of rock.substitute at `path` ("mineral"): a table
  * name, {k, rho} (k > 0, rho > 0; rho optional) or {constituents,
  * method} (method default "hill"). NULL after proto_fail. */
-struct proto_mineral_desc *proto__mineral_desc_parse(proto_call *c,
-						     const cJSON *item,
-						     const char *path)
+struct proto_mineral_desc *
+proto__mineral_desc_parse(proto_call *c, const cJSON *item, const char *path)
 {
 	struct proto_mineral_desc *d = desc_new(c);
 	char full[256], sub[192];
@@ -310,15 +302,15 @@ struct proto_mineral_desc *proto__mineral_desc_parse(proto_call *c,
 		d->rho1 = scalar_vec(c, mn.rho_kgm3);
 		if (!d->k1.v || !d->rho1.v) {
 			proto_fail(c, PROTO_INTERNAL_ERROR, path,
-				   "out of memory");
+			           "out of memory");
 			return NULL;
 		}
 		return d;
 	}
 	if (!cJSON_IsObject(item)) {
 		proto_fail(c, PROTO_INVALID_PARAMS, path,
-			   "must be a mineral name (see mineral.list), "
-			   "{k, rho} or {constituents, method}");
+		           "must be a mineral name (see mineral.list), "
+		           "{k, rho} or {constituents, method}");
 		return NULL;
 	}
 	snprintf(sub, sizeof sub, "%s.", path);
@@ -332,12 +324,12 @@ struct proto_mineral_desc *proto__mineral_desc_parse(proto_call *c,
 				continue;
 			snprintf(full, sizeof full, "%s%s", sub, mem);
 			proto_fail(c, PROTO_INVALID_PARAMS, full,
-				   "give either constituents or k and rho, "
-				   "not both");
+			           "give either constituents or k and rho, "
+			           "not both");
 			return NULL;
 		}
 		d->method = proto_enum_of(c, &a, "method", rock_method_names,
-					  RW_MIX_HILL);
+		                          RW_MIX_HILL);
 		snprintf(full, sizeof full, "%sconstituents", sub);
 		if (d->method < 0 || parse_constituents(c, arr, full, d))
 			return NULL;
@@ -346,7 +338,7 @@ struct proto_mineral_desc *proto__mineral_desc_parse(proto_call *c,
 	if (proto_item_of(&a, "method")) {
 		snprintf(full, sizeof full, "%smethod", sub);
 		proto_fail(c, PROTO_INVALID_PARAMS, full,
-			   "only used with constituents");
+		           "only used with constituents");
 		return NULL;
 	}
 	d->k1 = *proto_vec_of(&a, "k");
@@ -354,22 +346,22 @@ struct proto_mineral_desc *proto__mineral_desc_parse(proto_call *c,
 	snprintf(full, sizeof full, "%sk", sub);
 	if (!d->k1.present) {
 		proto_fail(c, PROTO_INVALID_PARAMS, full,
-			   "required: the mineral bulk modulus (or give "
-			   "a name or constituents)");
+		           "required: the mineral bulk modulus (or give "
+		           "a name or constituents)");
 		return NULL;
 	}
 	if (check_min(c, &d->k1, full, 0.0, 1) || join_len(c, d, &d->k1, full))
 		return NULL;
 	snprintf(full, sizeof full, "%srho", sub);
 	if (d->rho1.present && (check_min(c, &d->rho1, full, 0.0, 1) ||
-				join_len(c, d, &d->rho1, full)))
+	                        join_len(c, d, &d->rho1, full)))
 		return NULL;
 	d->explicit_kr = 1;
 	return d;
 }
 
 size_t proto__mineral_desc_len(const struct proto_mineral_desc *d,
-			       int *is_array, const char **len_from)
+                               int *is_array, const char **len_from)
 {
 	*is_array = d->any_array;
 	*len_from = d->len_from;
@@ -385,7 +377,7 @@ int proto__mineral_desc_has_rho(const struct proto_mineral_desc *d)
  * sample i. Returns the core status of the mix (RW_OK for a table or
  * explicit mineral). */
 int proto__mineral_desc_eval(const struct proto_mineral_desc *d, size_t i,
-			     double *k_pa, double *rho_kgm3)
+                             double *k_pa, double *rho_kgm3)
 {
 	if (d->explicit_kr) {
 		*k_pa = proto_at(&d->k1, i);
@@ -394,7 +386,7 @@ int proto__mineral_desc_eval(const struct proto_mineral_desc *d, size_t i,
 	}
 	load_sample(d, i);
 	return rw_mineral_mix(d->method, d->m, d->tk, d->tmu, d->trho, d->tf,
-			      k_pa, NULL, rho_kgm3);
+	                      k_pa, NULL, rho_kgm3);
 }
 
 /* ---- mineral.list ------------------------------------------------------- */
@@ -407,7 +399,7 @@ static int list(proto_call *c)
 
 	if (!v)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory");
+		                  "out of memory");
 	proto_w_obj_begin(c, NULL);
 	proto_w_int(c, "n", (long long)n);
 	proto_w_arr_begin(c, "name");
@@ -438,10 +430,9 @@ static int list(proto_call *c)
 static int mix(proto_call *c)
 {
 	static const char *const kkeys[N_METHODS] = {
-		"k_voigt", "k_reuss", "k_hill", "k_hs_upper", "k_hs_lower"};
+	    "k_voigt", "k_reuss", "k_hill", "k_hs_upper", "k_hs_lower"};
 	static const char *const mkeys[N_METHODS] = {
-		"mu_voigt", "mu_reuss", "mu_hill", "mu_hs_upper",
-		"mu_hs_lower"};
+	    "mu_voigt", "mu_reuss", "mu_hill", "mu_hs_upper", "mu_hs_lower"};
 	const proto_args *a = &c->args;
 	struct proto_mineral_desc *d = desc_new(c);
 	int method, lo, hi;
@@ -453,7 +444,7 @@ static int mix(proto_call *c)
 	method = proto_enum_of(c, a, "method", method_names, METHOD_ALL);
 	if (method < 0 ||
 	    parse_constituents(c, proto_item_of(a, "constituents"),
-			       "constituents", d))
+	                       "constituents", d))
 		return -1;
 	n = d->n;
 	lo = method == METHOD_ALL ? 0 : method;
@@ -465,14 +456,14 @@ static int mix(proto_call *c)
 	rho = proto_alloc_doubles(c, n);
 	if (!k || !mu || !rho)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory for %zu samples", n);
+		                  "out of memory for %zu samples", n);
 	for (size_t i = 0; i < n; i++) {
 		load_sample(d, i);
 		for (int q = lo; q < hi; q++) {
 			/* Inputs were checked, so the core cannot fail here;
 			 * a failure would show as null. */
 			rw_mineral_mix(q, d->m, d->tk, d->tmu, d->trho, d->tf,
-				       &k[q * n + i], &mu[q * n + i], &rho[i]);
+			               &k[q * n + i], &mu[q * n + i], &rho[i]);
 		}
 	}
 	proto_w_obj_begin(c, NULL);
@@ -481,15 +472,15 @@ static int mix(proto_call *c)
 	if (method == METHOD_ALL) {
 		for (int q = 0; q < N_METHODS; q++) {
 			proto_w_vec(c, kkeys[q], PK_MODULUS, k + q * n, n, 1,
-				    d->any_array);
+			            d->any_array);
 			proto_w_vec(c, mkeys[q], PK_MODULUS, mu + q * n, n, 1,
-				    d->any_array);
+			            d->any_array);
 		}
 	} else {
 		proto_w_vec(c, "k", PK_MODULUS, k + method * n, n, 1,
-			    d->any_array);
+		            d->any_array);
 		proto_w_vec(c, "mu", PK_MODULUS, mu + method * n, n, 1,
-			    d->any_array);
+		            d->any_array);
 	}
 	proto_w_vec(c, "rho", PK_DENSITY, rho, n, 1, d->any_array);
 	proto_w_units(c);
@@ -498,9 +489,10 @@ static int mix(proto_call *c)
 }
 
 const proto_method proto_mineral_methods[] = {
-	{"mineral.list", list, list_params, "The built-in mineral table with sources."},
-	{"mineral.mix", mix, mix_params,
-	 "Voigt, Reuss, Hill and Hashin-Shtrikman mixing of constituents by "
-	 "volume fraction."},
-	{NULL, NULL, NULL, NULL},
+    {"mineral.list", list, list_params,
+     "The built-in mineral table with sources."},
+    {"mineral.mix", mix, mix_params,
+     "Voigt, Reuss, Hill and Hashin-Shtrikman mixing of constituents by "
+     "volume fraction."},
+    {NULL, NULL, NULL, NULL},
 };

@@ -18,42 +18,43 @@
  * the protocol layer; contracts beside their definitions). */
 struct proto_fluid_desc;
 struct proto_mineral_desc;
-struct proto_fluid_desc *proto__fluid_desc_parse(proto_call *c,
-						 const cJSON *obj,
-						 const char *path);
+struct proto_fluid_desc *
+proto__fluid_desc_parse(proto_call *c, const cJSON *obj, const char *path);
 size_t proto__fluid_desc_len(const struct proto_fluid_desc *d, int *is_array,
-			     const char **len_from);
+                             const char **len_from);
 int proto__fluid_desc_needs_pt(const struct proto_fluid_desc *d);
 void proto__fluid_desc_eval(const struct proto_fluid_desc *d, size_t i,
-			    double p_mpa, double t_degc, double *k_pa,
-			    double *rho_kgm3, uint32_t *qc);
+                            double p_mpa, double t_degc, double *k_pa,
+                            double *rho_kgm3, uint32_t *qc);
 const double *proto__fluid_desc_sat(const struct proto_fluid_desc *d,
-				    const char *phase, size_t *n,
-				    int *is_array);
-struct proto_mineral_desc *proto__mineral_desc_parse(proto_call *c,
-						     const cJSON *item,
-						     const char *path);
+                                    const char *phase, size_t *n,
+                                    int *is_array);
+struct proto_mineral_desc *
+proto__mineral_desc_parse(proto_call *c, const cJSON *item, const char *path);
 size_t proto__mineral_desc_len(const struct proto_mineral_desc *d,
-			       int *is_array, const char **len_from);
+                               int *is_array, const char **len_from);
 int proto__mineral_desc_has_rho(const struct proto_mineral_desc *d);
 int proto__mineral_desc_eval(const struct proto_mineral_desc *d, size_t i,
-			     double *k_pa, double *rho_kgm3);
+                             double *k_pa, double *rho_kgm3);
 
-#define NUMS(name, kind, fl) {name, PT_NUMS, kind, (fl) | PP_NULLS, 0}
+#define NUMS(name, kind, fl)                                                   \
+	{                                                                      \
+		name, PT_NUMS, kind, (fl) | PP_NULLS, 0                        \
+	}
 
 static const proto_param substitute_params[] = {
-	NUMS("vp", PK_VELOCITY, 0),
-	NUMS("vs", PK_VELOCITY, 0),
-	NUMS("rho", PK_DENSITY, 0),
-	NUMS("k_dry", PK_MODULUS, 0),
-	NUMS("mu_dry", PK_MODULUS, 0),
-	NUMS("porosity", PK_NONE, PP_REQUIRED),
-	{"mineral", PT_ANY, PK_NONE, PP_REQUIRED, 0},
-	{"fluid", PT_OBJ, PK_NONE, 0, 0},
-	{"fluid_new", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
-	NUMS("pressure", PK_PRESSURE, 0),
-	NUMS("temperature", PK_TEMPERATURE, 0),
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    NUMS("vp", PK_VELOCITY, 0),
+    NUMS("vs", PK_VELOCITY, 0),
+    NUMS("rho", PK_DENSITY, 0),
+    NUMS("k_dry", PK_MODULUS, 0),
+    NUMS("mu_dry", PK_MODULUS, 0),
+    NUMS("porosity", PK_NONE, PP_REQUIRED),
+    {"mineral", PT_ANY, PK_NONE, PP_REQUIRED, 0},
+    {"fluid", PT_OBJ, PK_NONE, 0, 0},
+    {"fluid_new", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
+    NUMS("pressure", PK_PRESSURE, 0),
+    NUMS("temperature", PK_TEMPERATURE, 0),
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 /* Per-sample result; all doubles so members are read with a stride. */
@@ -70,16 +71,15 @@ typedef struct dim {
 	char from[160];
 } dim;
 
-static int dim_join(proto_call *c, dim *d, size_t n, int arr,
-		    const char *path)
+static int dim_join(proto_call *c, dim *d, size_t n, int arr, const char *path)
 {
 	if (!arr)
 		return 0;
 	if (d->arr && n != d->n)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "array length %zu does not match length %zu "
-				  "of '%s'",
-				  n, d->n, d->from);
+		                  "array length %zu does not match length %zu "
+		                  "of '%s'",
+		                  n, d->n, d->from);
 	if (!d->arr) {
 		d->arr = 1;
 		d->n = n;
@@ -117,14 +117,14 @@ static double pct(double new_v, double old_v)
 
 /* One sample from logs: vp, vs, rho measured with the fluid in place. */
 static uint32_t from_logs(double vp, double vs, double rho, double phi,
-			  subst_sample *s)
+                          subst_sample *s)
 {
 	unsigned w = 0;
 	int st, bad = 0;
 	uint32_t f;
 
-	st = rw_rock_fluid_subst(vp, vs, rho, phi, s->k_min, s->k_fl,
-				 s->rho_fl, s->k_new, s->rho_new, &s->r, &w);
+	st = rw_rock_fluid_subst(vp, vs, rho, phi, s->k_min, s->k_fl, s->rho_fl,
+	                         s->k_new, s->rho_new, &s->r, &w);
 	f = warn_qc(w, &bad);
 	if (st == RW_EDOM) {
 		/* Say which input: the fluids and phi were checked before. */
@@ -144,10 +144,10 @@ static uint32_t from_logs(double vp, double vs, double rho, double phi,
 			 * report the impossible K_dry it came from. */
 			rw_elastic e;
 			double kd;
-			if (rw_elastic_from_velocities(vp, vs, rho, &e,
-						       NULL) == RW_OK &&
+			if (rw_elastic_from_velocities(vp, vs, rho, &e, NULL) ==
+			        RW_OK &&
 			    rw_rock_gassmann_dry(e.k, s->k_min, s->k_fl, phi,
-						 &kd, NULL) == RW_OK)
+			                         &kd, NULL) == RW_OK)
 				s->r.k_dry_pa = kd;
 		}
 		return f;
@@ -163,7 +163,7 @@ static uint32_t from_logs(double vp, double vs, double rho, double phi,
 
 /* One sample from a dry frame. */
 static uint32_t from_frame(double k_dry, double mu_dry, double phi,
-			   subst_sample *s)
+                           subst_sample *s)
 {
 	unsigned w = 0;
 	int st, bad = 0;
@@ -179,7 +179,7 @@ static uint32_t from_frame(double k_dry, double mu_dry, double phi,
 		return QC_MODULUS_NEGATIVE;
 	}
 	st = rw_rock_gassmann_frame(k_dry, mu_dry, phi, s->k_min, s->rho_min,
-				    s->k_new, s->rho_new, &s->r, &w);
+	                            s->k_new, s->rho_new, &s->r, &w);
 	f = warn_qc(w, &bad);
 	if (st == RW_EDOM)
 		f |= QC_INPUT_INVALID;
@@ -205,35 +205,36 @@ static int check_mode(proto_call *c, const proto_args *a, int *logs)
 		nf += proto_vec_of(a, fm[i])->present;
 	if (nl && nf)
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-				  proto_vec_of(a, "k_dry")->present ? "k_dry"
-								    : "mu_dry",
-				  "give vp, vs and rho (a measured rock) or "
-				  "k_dry and mu_dry (a dry frame), not both");
+		                  proto_vec_of(a, "k_dry")->present ? "k_dry"
+		                                                    : "mu_dry",
+		                  "give vp, vs and rho (a measured rock) or "
+		                  "k_dry and mu_dry (a dry frame), not both");
 	if (!nl && !nf)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "vp",
-				  "required: give vp, vs and rho (a measured "
-				  "rock) or k_dry and mu_dry (a dry frame)");
+		                  "required: give vp, vs and rho (a measured "
+		                  "rock) or k_dry and mu_dry (a dry frame)");
 	*logs = nl > 0;
 	for (int i = 0; nl && i < 3; i++)
 		if (!proto_vec_of(a, lm[i])->present)
 			return proto_fail(c, PROTO_INVALID_PARAMS, lm[i],
-					  "required with %s: a measured rock "
-					  "needs vp, vs and rho",
-					  nl == 1 ? "the other log" : "the "
-								      "others");
+			                  "required with %s: a measured rock "
+			                  "needs vp, vs and rho",
+			                  nl == 1 ? "the other log"
+			                          : "the "
+			                            "others");
 	for (int i = 0; nf && i < 2; i++)
 		if (!proto_vec_of(a, fm[i])->present)
 			return proto_fail(c, PROTO_INVALID_PARAMS, fm[i],
-					  "required: a dry frame needs k_dry "
-					  "and mu_dry");
+			                  "required: a dry frame needs k_dry "
+			                  "and mu_dry");
 	if (*logs && !proto_item_of(a, "fluid"))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "fluid",
-				  "required: the fluid in place when vp, vs "
-				  "and rho were measured");
+		                  "required: the fluid in place when vp, vs "
+		                  "and rho were measured");
 	if (!*logs && proto_item_of(a, "fluid"))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "fluid",
-				  "a dry frame holds no fluid: give the "
-				  "saturating fluid as fluid_new");
+		                  "a dry frame holds no fluid: give the "
+		                  "saturating fluid as fluid_new");
 	return 0;
 }
 
@@ -241,11 +242,9 @@ static int substitute(proto_call *c)
 {
 	static const char *const ph[3] = {"brine", "gas", "oil"};
 	static const char *const satkeys[3] = {
-		"fluid_new_sat_brine", "fluid_new_sat_gas",
-		"fluid_new_sat_oil"};
-	static const char *const pctkeys[5] = {"dvp_pct", "dvs_pct",
-					       "drho_pct", "dai_pct",
-					       "dvpvs_pct"};
+	    "fluid_new_sat_brine", "fluid_new_sat_gas", "fluid_new_sat_oil"};
+	static const char *const pctkeys[5] = {"dvp_pct", "dvs_pct", "drho_pct",
+	                                       "dai_pct", "dvpvs_pct"};
 	const proto_args *a = &c->args;
 	struct proto_fluid_desc *fo = NULL, *fn;
 	struct proto_mineral_desc *md;
@@ -267,43 +266,43 @@ static int substitute(proto_call *c)
 	if (check_mode(c, a, &logs))
 		return -1;
 	md = proto__mineral_desc_parse(c, proto_item_of(a, "mineral"),
-				       "mineral");
+	                               "mineral");
 	if (!md)
 		return -1;
 	if (!logs && !proto__mineral_desc_has_rho(md))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "mineral.rho",
-				  "required for a dry frame: the rock density "
-				  "is (1 - phi) rho_min + phi rho_fluid");
+		                  "required for a dry frame: the rock density "
+		                  "is (1 - phi) rho_min + phi rho_fluid");
 	if (logs) {
 		fo = proto__fluid_desc_parse(c, proto_item_of(a, "fluid"),
-					     "fluid.");
+		                             "fluid.");
 		if (!fo)
 			return -1;
 	}
 	fn = proto__fluid_desc_parse(c, proto_item_of(a, "fluid_new"),
-				     "fluid_new.");
+	                             "fluid_new.");
 	if (!fn)
 		return -1;
 	needs_pt = proto__fluid_desc_needs_pt(fn) ||
-		   (fo && proto__fluid_desc_needs_pt(fo));
+	           (fo && proto__fluid_desc_needs_pt(fo));
 	for (int q = 0; q < 2; q++) {
 		const char *name = q ? "temperature" : "pressure";
 		int given = proto_vec_of(a, name)->present;
 		if (needs_pt && !given)
 			return proto_fail(c, PROTO_INVALID_PARAMS, name,
-					  "required: a fluid is described by "
-					  "phases, whose properties (Batzle & "
-					  "Wang 1992) depend on pore pressure "
-					  "and temperature");
+			                  "required: a fluid is described by "
+			                  "phases, whose properties (Batzle & "
+			                  "Wang 1992) depend on pore pressure "
+			                  "and temperature");
 		if (!needs_pt && given)
 			return proto_fail(c, PROTO_INVALID_PARAMS, name,
-					  "not used: every fluid is given as "
-					  "explicit k and rho");
+			                  "not used: every fluid is given as "
+			                  "explicit k and rho");
 	}
 	/* One sample dimension across params, fluids and the mineral. */
 	for (size_t i = 0; i < a->count; i++)
 		if (dim_join(c, &d, a->vec[i].n, a->vec[i].is_array,
-			     a->spec[i].name))
+		             a->spec[i].name))
 			return -1;
 	ln = proto__mineral_desc_len(md, &arr, &from);
 	if (dim_join(c, &d, ln, arr, from))
@@ -324,7 +323,7 @@ static int substitute(proto_call *c)
 	qc = proto_alloc(c, n * sizeof *qc);
 	if (!s || !qc)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory for %zu samples", n);
+		                  "out of memory for %zu samples", n);
 	for (size_t i = 0; i < n; i++) {
 		double pi = needs_pt ? proto_at(p, i) : NAN;
 		double ti = needs_pt ? proto_at(t, i) : NAN;
@@ -337,9 +336,9 @@ static int substitute(proto_call *c)
 		x->k_fl = x->rho_fl = NAN;
 		if (fo)
 			proto__fluid_desc_eval(fo, i, pi, ti, &x->k_fl,
-					       &x->rho_fl, &q1);
+			                       &x->rho_fl, &q1);
 		proto__fluid_desc_eval(fn, i, pi, ti, &x->k_new, &x->rho_new,
-				       &q2);
+		                       &q2);
 		qc[i] = q1 | q2;
 		if (proto__mineral_desc_eval(md, i, &x->k_min, &x->rho_min) !=
 		    RW_OK)
@@ -356,10 +355,10 @@ static int substitute(proto_call *c)
 		}
 		if (logs)
 			qc[i] |= from_logs(proto_at(vp, i), proto_at(vs, i),
-					   proto_at(rho, i), f, x);
+			                   proto_at(rho, i), f, x);
 		else
-			qc[i] |= from_frame(proto_at(kd, i), proto_at(mud, i),
-					    f, x);
+			qc[i] |=
+			    from_frame(proto_at(kd, i), proto_at(mud, i), f, x);
 	}
 	proto_w_obj_begin(c, NULL);
 	proto_w_int(c, "n", (long long)n);
@@ -372,27 +371,27 @@ static int substitute(proto_call *c)
 	proto_w_vec(c, "k_dry", PK_MODULUS, &s[0].r.k_dry_pa, n, stride, arr);
 	if (logs) {
 		proto_w_vec(c, "fluid_k", PK_MODULUS, &s[0].k_fl, n, stride,
-			    arr);
-		proto_w_vec(c, "fluid_rho", PK_DENSITY, &s[0].rho_fl, n,
-			    stride, arr);
+		            arr);
+		proto_w_vec(c, "fluid_rho", PK_DENSITY, &s[0].rho_fl, n, stride,
+		            arr);
 	}
 	proto_w_vec(c, "fluid_new_k", PK_MODULUS, &s[0].k_new, n, stride, arr);
 	proto_w_vec(c, "fluid_new_rho", PK_DENSITY, &s[0].rho_new, n, stride,
-		    arr);
+	            arr);
 	proto_w_vec(c, "mineral_k", PK_MODULUS, &s[0].k_min, n, stride, arr);
 	proto_w_vec(c, "mineral_rho", PK_DENSITY, &s[0].rho_min, n, stride,
-		    arr);
+	            arr);
 	for (int k = 0; k < 3; k++) {
 		size_t sn;
 		int sa;
 		const double *sv = proto__fluid_desc_sat(fn, ph[k], &sn, &sa);
 		if (sv)
 			proto_w_vec(c, satkeys[k], PK_NONE, sv, n,
-				    sn == 1 ? 0 : 1, arr);
+			            sn == 1 ? 0 : 1, arr);
 	}
 	for (int k = 0; logs && k < 5; k++)
 		proto_w_vec(c, pctkeys[k], PK_NONE, &s[0].pct[k], n, stride,
-			    arr);
+		            arr);
 	proto_w_flags(c, "qc", qc, n, arr);
 	proto_w_units(c);
 	proto_w_obj_end(c);
@@ -400,7 +399,7 @@ static int substitute(proto_call *c)
 }
 
 const proto_method proto_rock_methods[] = {
-	{"rock.substitute", substitute, substitute_params,
-	 "Gassmann 1951 fluid substitution from logs or a dry frame."},
-	{NULL, NULL, NULL, NULL},
+    {"rock.substitute", substitute, substitute_params,
+     "Gassmann 1951 fluid substitution from logs or a dry frame."},
+    {NULL, NULL, NULL, NULL},
 };

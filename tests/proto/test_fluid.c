@@ -74,7 +74,7 @@ static const cJSON *result_of(const cJSON *resp)
 /* Calls and checks that the call fails with -32602 naming `param` and
  * (when want is not NULL) a reason containing `want`. */
 static void expect_invalid(const char *line, const char *param,
-			   const char *want)
+                           const char *want)
 {
 	cJSON *r = call(line);
 	const cJSON *e = cJSON_GetObjectItemCaseSensitive(r, "error");
@@ -86,10 +86,9 @@ static void expect_invalid(const char *line, const char *param,
 	if (!cJSON_IsObject(e) ||
 	    cJSON_GetObjectItemCaseSensitive(e, "code")->valueint != -32602 ||
 	    !cJSON_IsString(p) || strcmp(p->valuestring, param) != 0 ||
-	    !cJSON_IsString(why) ||
-	    (want && !strstr(why->valuestring, want)))
+	    !cJSON_IsString(why) || (want && !strstr(why->valuestring, want)))
 		fail_msg("want -32602 on '%s' (%s) for %s\ngot %s", param,
-			 want ? want : "any reason", line, s);
+		         want ? want : "any reason", line, s);
 	cJSON_free(s);
 	cJSON_Delete(r);
 }
@@ -145,11 +144,11 @@ static int array_len(const cJSON *res, const char *key)
  * 9.80665 m/s^2 / (0.0254 m)^2; degF = degC x 9/5 + 32; 1 bbl = 42 US gal
  * of 231 in^3; 1 ft = 0.3048 m. */
 #define PSI_MPA (0.45359237 * 9.80665 / (0.0254 * 0.0254) / 1e6)
-#define SCF_BBL_LL (0.3048 * 0.3048 * 0.3048 / (42.0 * 231.0 * 0.0254 * \
-					       0.0254 * 0.0254))
+#define SCF_BBL_LL                                                             \
+	(0.3048 * 0.3048 * 0.3048 / (42.0 * 231.0 * 0.0254 * 0.0254 * 0.0254))
 
-#define REQ(params)                                                        \
-	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"fluid.properties\","   \
+#define REQ(params)                                                            \
+	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"fluid.properties\","       \
 	"\"params\":" params "}"
 
 /* A depth profile: p an array, T an array, salinity scalar; each sample
@@ -158,7 +157,7 @@ static int array_len(const cJSON *res, const char *key)
 static void test_profile_broadcast(void **state)
 {
 	cJSON *r = call(REQ("{\"pressure\":[10,20,30,40],\"temperature\":"
-			    "[40,55,70,85],\"brine\":{\"salinity\":60000}}"));
+	                    "[40,55,70,85],\"brine\":{\"salinity\":60000}}"));
 	const cJSON *res = result_of(r);
 	static const double p[] = {10, 20, 30, 40}, t[] = {40, 55, 70, 85};
 	rw_fluid_phase b;
@@ -168,11 +167,10 @@ static void test_profile_broadcast(void **state)
 	assert_int_equal(array_len(res, "brine_rho"), 4);
 	assert_int_equal(array_len(res, "sat_brine"), 4);
 	for (int i = 0; i < 4; i++) {
-		assert_int_equal(rw_fluid_brine_props(p[i], t[i], 0.06, &b,
-						      NULL),
-				 RW_OK);
+		assert_int_equal(
+		    rw_fluid_brine_props(p[i], t[i], 0.06, &b, NULL), RW_OK);
 		assert_rel(num_at(res, "brine_rho", i), b.rho_kgm3 / 1000,
-			   1e-12);
+		           1e-12);
 		assert_rel(num_at(res, "brine_k", i), b.k_pa / 1e9, 1e-12);
 		assert_rel(num_at(res, "brine_v", i), b.v_ms, 1e-12);
 		/* One phase: the mixture is the phase. */
@@ -194,11 +192,11 @@ static void test_profile_broadcast(void **state)
 static void test_units_psi_degf(void **state)
 {
 	cJSON *a = call(REQ("{\"pressure\":3000,\"temperature\":176,"
-			    "\"brine\":{\"salinity\":35},\"gas\":"
-			    "{\"gravity\":0.7},\"saturation\":{\"brine\":0.6,"
-			    "\"gas\":0.4},\"units\":{\"pressure\":\"psi\","
-			    "\"temperature\":\"degF\",\"salinity\":\"g/kg\","
-			    "\"density\":\"kg/m3\",\"modulus\":\"MPa\"}}"));
+	                    "\"brine\":{\"salinity\":35},\"gas\":"
+	                    "{\"gravity\":0.7},\"saturation\":{\"brine\":0.6,"
+	                    "\"gas\":0.4},\"units\":{\"pressure\":\"psi\","
+	                    "\"temperature\":\"degF\",\"salinity\":\"g/kg\","
+	                    "\"density\":\"kg/m3\",\"modulus\":\"MPa\"}}"));
 	const cJSON *ra = result_of(a);
 	rw_fluid_phase b, g;
 	double pm = 3000 * PSI_MPA, tc = (176 - 32) * 5.0 / 9.0;
@@ -206,7 +204,7 @@ static void test_units_psi_degf(void **state)
 	(void)state;
 	assert_int_equal(rw_fluid_brine_props(pm, tc, 0.035, &b, NULL), RW_OK);
 	assert_int_equal(rw_fluid_gas_props(pm, tc, 0.7, &g, NULL, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_rel(num(ra, "pressure"), 3000, 1e-12);
 	assert_rel(num(ra, "temperature"), 176, 1e-12);
 	assert_rel(num(ra, "brine_rho"), b.rho_kgm3, 1e-12);
@@ -228,12 +226,12 @@ static void test_gor_scf_bbl(void **state)
 
 	(void)state;
 	a = call(REQ("{\"pressure\":30,\"temperature\":90,\"oil\":{\"api\":"
-		     "38,\"gor\":500,\"gas_gravity\":0.75},\"units\":{\"gor\":"
-		     "\"scf/bbl\"}}"));
+	             "38,\"gor\":500,\"gas_gravity\":0.75},\"units\":{\"gor\":"
+	             "\"scf/bbl\"}}"));
 	snprintf(line, sizeof line,
-		 REQ("{\"pressure\":30,\"temperature\":90,\"oil\":{\"api\":38,"
-		     "\"gor\":%.17g,\"gas_gravity\":0.75}}"),
-		 500 * SCF_BBL_LL);
+	         REQ("{\"pressure\":30,\"temperature\":90,\"oil\":{\"api\":38,"
+	             "\"gor\":%.17g,\"gas_gravity\":0.75}}"),
+	         500 * SCF_BBL_LL);
 	b = call(line);
 	ra = result_of(a);
 	rb = result_of(b);
@@ -244,7 +242,7 @@ static void test_gor_scf_bbl(void **state)
 	 * and eq. 20b): a dead oil of the same API is faster. */
 	cJSON_Delete(b);
 	b = call(REQ("{\"pressure\":30,\"temperature\":90,\"oil\":{\"api\":"
-		     "38}}"));
+	             "38}}"));
 	rb = result_of(b);
 	assert_true(num(rb, "oil_v") > num(ra, "oil_v"));
 	assert_null(cJSON_GetObjectItemCaseSensitive(rb, "oil_b0"));
@@ -261,19 +259,19 @@ static void test_gor_scf_bbl(void **state)
 static void test_physical_limits(void **state)
 {
 	cJSON *r = call(REQ("{\"pressure\":0.1,\"temperature\":60,\"gas\":"
-			    "{\"gravity\":0.6},\"units\":{\"density\":"
-			    "\"kg/m3\",\"modulus\":\"Pa\"}}"));
+	                    "{\"gravity\":0.6},\"units\":{\"density\":"
+	                    "\"kg/m3\",\"modulus\":\"Pa\"}}"));
 	const cJSON *res = result_of(r);
 	double ideal = 0.1e6 * 0.6 * 0.0289644 / (8.314462618 * 333.15);
 
 	(void)state;
 	assert_rel(num(res, "gas_rho"), ideal, 0.02);
 	assert_true(num(res, "gas_k") / 0.1e6 > 1.2 &&
-		    num(res, "gas_k") / 0.1e6 < 1.4);
+	            num(res, "gas_k") / 0.1e6 < 1.4);
 	assert_rel(num(res, "gas_z"), 1.0, 0.02);
 	cJSON_Delete(r);
 	r = call(REQ("{\"pressure\":0.101325,\"temperature\":60,\"oil\":"
-		     "{\"api\":30},\"units\":{\"temperature\":\"degF\"}}"));
+	             "{\"api\":30},\"units\":{\"temperature\":\"degF\"}}"));
 	res = result_of(r);
 	assert_rel(num(res, "oil_rho"), 141.5 / (30 + 131.5), 0.01);
 	cJSON_Delete(r);
@@ -295,18 +293,18 @@ static void test_mixing_rules(void **state)
 		double kb, kg, rb, rg, want;
 
 		snprintf(line, sizeof line,
-			 REQ("{\"pressure\":20,\"temperature\":70,\"brine\":"
-			     "{\"salinity\":100000},\"gas\":{\"gravity\":0.65},"
-			     "\"saturation\":{\"brine\":0.7,\"gas\":0.3},"
-			     "\"mix\":\"%s\"%s}"),
-			 mix[m], m == 2 ? ",\"brie_exponent\":5" : "");
+		         REQ("{\"pressure\":20,\"temperature\":70,\"brine\":"
+		             "{\"salinity\":100000},\"gas\":{\"gravity\":0.65},"
+		             "\"saturation\":{\"brine\":0.7,\"gas\":0.3},"
+		             "\"mix\":\"%s\"%s}"),
+		         mix[m], m == 2 ? ",\"brie_exponent\":5" : "");
 		r = call(line);
 		res = result_of(r);
 		kb = num(res, "brine_k"), kg = num(res, "gas_k");
 		rb = num(res, "brine_rho"), rg = num(res, "gas_rho");
 		want = m == 0   ? 1 / (0.7 / kb + 0.3 / kg)
 		       : m == 1 ? 0.7 * kb + 0.3 * kg
-				: (kb - kg) * pow(0.7, 5) + kg;
+		                : (kb - kg) * pow(0.7, 5) + kg;
 		assert_rel(num(res, "mix_k"), want, 1e-12);
 		assert_rel(num(res, "mix_rho"), 0.7 * rb + 0.3 * rg, 1e-12);
 		assert_string_equal(
@@ -324,10 +322,10 @@ static void test_mixing_rules(void **state)
 static void test_saturation_sweep(void **state)
 {
 	cJSON *r = call(REQ("{\"pressure\":25,\"temperature\":75,\"brine\":"
-			    "{\"salinity\":50000},\"gas\":{\"gravity\":0.6},"
-			    "\"oil\":{\"api\":35},\"saturation\":{\"brine\":"
-			    "[1,0.75,0.5,0.25,0],\"gas\":[0,0.25,0.5,0.75,1],"
-			    "\"oil\":0}}"));
+	                    "{\"salinity\":50000},\"gas\":{\"gravity\":0.6},"
+	                    "\"oil\":{\"api\":35},\"saturation\":{\"brine\":"
+	                    "[1,0.75,0.5,0.25,0],\"gas\":[0,0.25,0.5,0.75,1],"
+	                    "\"oil\":0}}"));
 	const cJSON *res = result_of(r);
 
 	(void)state;
@@ -339,7 +337,7 @@ static void test_saturation_sweep(void **state)
 	assert_rel(num_at(res, "mix_k", 4), num_at(res, "gas_k", 4), 1e-12);
 	for (int i = 1; i < 5; i++)
 		assert_true(num_at(res, "mix_k", i) <
-			    num_at(res, "mix_k", i - 1));
+		            num_at(res, "mix_k", i - 1));
 	cJSON_Delete(r);
 }
 
@@ -352,7 +350,7 @@ static void test_saturation_sweep(void **state)
 static void test_qc_flags(void **state)
 {
 	cJSON *r = call(REQ("{\"pressure\":[30,0.2,null],\"temperature\":150,"
-			    "\"brine\":{\"salinity\":30000}}"));
+	                    "\"brine\":{\"salinity\":30000}}"));
 	const cJSON *res = result_of(r);
 
 	(void)state;
@@ -365,14 +363,14 @@ static void test_qc_flags(void **state)
 	assert_true(isfinite(num_at(res, "brine_rho", 1)));
 	cJSON_Delete(r);
 	r = call(REQ("{\"pressure\":5,\"temperature\":60,\"oil\":{\"api\":"
-		     "35,\"gor\":200,\"gas_gravity\":0.7}}"));
+	             "35,\"gor\":200,\"gas_gravity\":0.7}}"));
 	res = result_of(r);
 	assert_true(qc_at(res, 0) & QC_FLUID_GOR_EXCESS);
 	assert_true(isfinite(num(res, "oil_v")));
 	cJSON_Delete(r);
 	r = call(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-		     "{\"salinity\":[0.1,0.5]},\"units\":{\"salinity\":"
-		     "\"fraction\"}}"));
+	             "{\"salinity\":[0.1,0.5]},\"units\":{\"salinity\":"
+	             "\"fraction\"}}"));
 	res = result_of(r);
 	assert_int_equal(qc_at(res, 0), 0);
 	assert_true(qc_at(res, 1) & QC_INPUT_INVALID);
@@ -385,91 +383,91 @@ static void test_errors(void **state)
 {
 	(void)state;
 	expect_invalid(REQ("{\"temperature\":60,\"brine\":{\"salinity\":0}}"),
-		       "pressure", "required");
+	               "pressure", "required");
 	expect_invalid(REQ("{\"pressure\":20,\"brine\":{\"salinity\":0}}"),
-		       "temperature", "required");
+	               "temperature", "required");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60}"), "brine",
-		       "at least one phase");
+	               "at least one phase");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":{}}"),
-		       "brine.salinity", "required");
+	               "brine.salinity", "required");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0,\"temp\":3}}"),
-		       "brine.temp", "unknown");
+	                   "{\"salinity\":0,\"temp\":3}}"),
+	               "brine.temp", "unknown");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"gas\":0.6}"),
-		       "gas", "object");
+	               "gas", "object");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"gas\":{}}"),
-		       "gas.gravity", "required");
+	               "gas.gravity", "required");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"oil\":"
-			   "{\"gor\":50,\"gas_gravity\":0.7}}"),
-		       "oil.api", "required");
+	                   "{\"gor\":50,\"gas_gravity\":0.7}}"),
+	               "oil.api", "required");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"oil\":"
-			   "{\"api\":30,\"gor\":50}}"),
-		       "oil.gas_gravity", "required with gor");
+	                   "{\"api\":30,\"gor\":50}}"),
+	               "oil.gas_gravity", "required with gor");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"oil\":"
-			   "{\"api\":30,\"gas_gravity\":0.7}}"),
-		       "oil.gas_gravity", "live oil");
+	                   "{\"api\":30,\"gas_gravity\":0.7}}"),
+	               "oil.gas_gravity", "live oil");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0},\"gas\":{\"gravity\":0.6}}"),
-		       "saturation", "more than one phase");
+	                   "{\"salinity\":0},\"gas\":{\"gravity\":0.6}}"),
+	               "saturation", "more than one phase");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
-			   "\"saturation\":{\"brine\":1}}"),
-		       "saturation.gas", "required");
+	                   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
+	                   "\"saturation\":{\"brine\":1}}"),
+	               "saturation.gas", "required");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0},\"saturation\":{\"brine\":0.5,"
-			   "\"oil\":0.5}}"),
-		       "saturation.oil", "no oil phase");
+	                   "{\"salinity\":0},\"saturation\":{\"brine\":0.5,"
+	                   "\"oil\":0.5}}"),
+	               "saturation.oil", "no oil phase");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
-			   "\"saturation\":{\"brine\":[0.5,0.6],\"gas\":0.4}}"),
-		       "saturation", "sum to 0.9 at sample 0");
+	                   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
+	                   "\"saturation\":{\"brine\":[0.5,0.6],\"gas\":0.4}}"),
+	               "saturation", "sum to 0.9 at sample 0");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
-			   "\"saturation\":{\"brine\":1.2,\"gas\":-0.2}}"),
-		       "saturation.brine", "outside [0, 1]");
+	                   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
+	                   "\"saturation\":{\"brine\":1.2,\"gas\":-0.2}}"),
+	               "saturation.brine", "outside [0, 1]");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0},\"mix\":\"average\"}"),
-		       "mix", "wood, brie, voigt");
+	                   "{\"salinity\":0},\"mix\":\"average\"}"),
+	               "mix", "wood, brie, voigt");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0},\"brie_exponent\":3}"),
-		       "brie_exponent", "only used with mix");
+	                   "{\"salinity\":0},\"brie_exponent\":3}"),
+	               "brie_exponent", "only used with mix");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
-			   "\"saturation\":{\"brine\":0.5,\"gas\":0.5},"
-			   "\"mix\":\"brie\",\"brie_exponent\":0.5}"),
-		       "brie_exponent", "below 1");
+	                   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
+	                   "\"saturation\":{\"brine\":0.5,\"gas\":0.5},"
+	                   "\"mix\":\"brie\",\"brie_exponent\":0.5}"),
+	               "brie_exponent", "below 1");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"gas\":"
-			   "{\"gravity\":0.6},\"oil\":{\"api\":30},"
-			   "\"saturation\":{\"gas\":0.5,\"oil\":0.5},"
-			   "\"mix\":\"brie\"}"),
-		       "mix", "brine phase");
+	                   "{\"gravity\":0.6},\"oil\":{\"api\":30},"
+	                   "\"saturation\":{\"gas\":0.5,\"oil\":0.5},"
+	                   "\"mix\":\"brie\"}"),
+	               "mix", "brine phase");
 	expect_invalid(REQ("{\"pressure\":[20,30],\"temperature\":60,"
-			   "\"brine\":{\"salinity\":0},\"gas\":{\"gravity\":"
-			   "0.6},\"saturation\":{\"brine\":[1,0.5,0],\"gas\":"
-			   "[0,0.5,1]}}"),
-		       "pressure", "does not match length 3");
+	                   "\"brine\":{\"salinity\":0},\"gas\":{\"gravity\":"
+	                   "0.6},\"saturation\":{\"brine\":[1,0.5,0],\"gas\":"
+	                   "[0,0.5,1]}}"),
+	               "pressure", "does not match length 3");
 	expect_invalid(REQ("{\"pressure\":[20,30],\"temperature\":[60,70,80],"
-			   "\"brine\":{\"salinity\":0}}"),
-		       "temperature", "does not match");
+	                   "\"brine\":{\"salinity\":0}}"),
+	               "temperature", "does not match");
 	expect_invalid(REQ("{\"pressure\":\"20\",\"temperature\":60,"
-			   "\"brine\":{\"salinity\":0}}"),
-		       "pressure", "number");
+	                   "\"brine\":{\"salinity\":0}}"),
+	               "pressure", "number");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
-			   "{\"salinity\":0},\"units\":{\"gor\":\"bbl/scf\"}}"),
-		       "units", "scf/bbl");
+	                   "{\"salinity\":0},\"units\":{\"gor\":\"bbl/scf\"}}"),
+	               "units", "scf/bbl");
 }
 
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_profile_broadcast),
-		cmocka_unit_test(test_units_psi_degf),
-		cmocka_unit_test(test_gor_scf_bbl),
-		cmocka_unit_test(test_physical_limits),
-		cmocka_unit_test(test_mixing_rules),
-		cmocka_unit_test(test_saturation_sweep),
-		cmocka_unit_test(test_qc_flags),
-		cmocka_unit_test(test_errors),
+	    cmocka_unit_test(test_profile_broadcast),
+	    cmocka_unit_test(test_units_psi_degf),
+	    cmocka_unit_test(test_gor_scf_bbl),
+	    cmocka_unit_test(test_physical_limits),
+	    cmocka_unit_test(test_mixing_rules),
+	    cmocka_unit_test(test_saturation_sweep),
+	    cmocka_unit_test(test_qc_flags),
+	    cmocka_unit_test(test_errors),
 	};
 
 	gsl_set_error_handler_off();

@@ -71,7 +71,7 @@ static const cJSON *result_of(const cJSON *resp)
 /* Calls and checks that the call fails with -32602 naming `param` and
  * (when want is not NULL) a reason containing `want`. */
 static void expect_invalid(const char *line, const char *param,
-			   const char *want)
+                           const char *want)
 {
 	cJSON *r = call(line);
 	const cJSON *e = cJSON_GetObjectItemCaseSensitive(r, "error");
@@ -83,10 +83,9 @@ static void expect_invalid(const char *line, const char *param,
 	if (!cJSON_IsObject(e) ||
 	    cJSON_GetObjectItemCaseSensitive(e, "code")->valueint != -32602 ||
 	    !cJSON_IsString(p) || strcmp(p->valuestring, param) != 0 ||
-	    !cJSON_IsString(why) ||
-	    (want && !strstr(why->valuestring, want)))
+	    !cJSON_IsString(why) || (want && !strstr(why->valuestring, want)))
 		fail_msg("want -32602 on '%s' (%s) for %s\ngot %s", param,
-			 want ? want : "any reason", line, s);
+		         want ? want : "any reason", line, s);
 	cJSON_free(s);
 	cJSON_Delete(r);
 }
@@ -133,8 +132,8 @@ static int array_len(const cJSON *res, const char *key)
 	return cJSON_IsArray(v) ? cJSON_GetArraySize(v) : -1;
 }
 
-#define MIX(params)                                                        \
-	"{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":\"mineral.mix\","        \
+#define MIX(params)                                                            \
+	"{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":\"mineral.mix\","            \
 	"\"params\":" params "}"
 
 /* mineral.list serves every row of the core table with its source, in
@@ -142,8 +141,8 @@ static int array_len(const cJSON *res, const char *key)
 static void test_list(void **state)
 {
 	cJSON *r = call("{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-			"\"mineral.list\",\"params\":{\"units\":{\"modulus\":"
-			"\"MPa\",\"density\":\"kg/m3\"}}}");
+	                "\"mineral.list\",\"params\":{\"units\":{\"modulus\":"
+	                "\"MPa\",\"density\":\"kg/m3\"}}}");
 	const cJSON *res = result_of(r);
 	const cJSON *names = cJSON_GetObjectItemCaseSensitive(res, "name");
 	const cJSON *src = cJSON_GetObjectItemCaseSensitive(res, "source");
@@ -167,8 +166,8 @@ static void test_list(void **state)
 	assert_string_equal(unit_of(res, "rho"), "kg/m3");
 	cJSON_Delete(r);
 	expect_invalid("{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-		       "\"mineral.list\",\"params\":{\"name\":\"quartz\"}}",
-		       "name", "unknown parameter");
+	               "\"mineral.list\",\"params\":{\"name\":\"quartz\"}}",
+	               "name", "unknown parameter");
 }
 
 /* Two well-ordered constituents (calcite stiffer than clay in K and mu):
@@ -182,20 +181,20 @@ static void test_list(void **state)
 static void test_two_phase_bounds(void **state)
 {
 	cJSON *r = call(MIX("{\"constituents\":[{\"mineral\":\"calcite\","
-			    "\"fraction\":0.7},{\"k\":21,\"mu\":7,\"rho\":2.6,"
-			    "\"fraction\":0.3}]}"));
+	                    "\"fraction\":0.7},{\"k\":21,\"mu\":7,\"rho\":2.6,"
+	                    "\"fraction\":0.3}]}"));
 	const cJSON *res = result_of(r);
 	const double k1 = 76.8, m1 = 32, k2 = 21, m2 = 7, f1 = 0.7, f2 = 0.3;
 	double kv = f1 * k1 + f2 * k2, kr = 1 / (f1 / k1 + f2 / k2);
 	double mv = f1 * m1 + f2 * m2, mr = 1 / (f1 / m1 + f2 / m2);
 	double ku = k1 + f2 / (1 / (k2 - k1) + f1 / (k1 + 4.0 / 3 * m1));
 	double kl = k2 + f1 / (1 / (k1 - k2) + f2 / (k2 + 4.0 / 3 * m2));
-	double mu_u = m1 + f2 / (1 / (m2 - m1) +
-				 2 * f1 * (k1 + 2 * m1) /
-				     (5 * m1 * (k1 + 4.0 / 3 * m1)));
-	double mu_l = m2 + f1 / (1 / (m1 - m2) +
-				 2 * f2 * (k2 + 2 * m2) /
-				     (5 * m2 * (k2 + 4.0 / 3 * m2)));
+	double mu_u =
+	    m1 + f2 / (1 / (m2 - m1) +
+	               2 * f1 * (k1 + 2 * m1) / (5 * m1 * (k1 + 4.0 / 3 * m1)));
+	double mu_l =
+	    m2 + f1 / (1 / (m1 - m2) +
+	               2 * f2 * (k2 + 2 * m2) / (5 * m2 * (k2 + 4.0 / 3 * m2)));
 	rw_mineral cal;
 
 	(void)state;
@@ -215,8 +214,7 @@ static void test_two_phase_bounds(void **state)
 	assert_rel(num(res, "mu_hs_lower"), mu_l, 1e-10);
 	assert_true(kr <= kl && kl <= ku && ku <= kv);
 	assert_true(mr <= mu_l && mu_l <= mu_u && mu_u <= mv);
-	assert_rel(num(res, "rho"), f1 * cal.rho_kgm3 / 1000 + f2 * 2.6,
-		   1e-12);
+	assert_rel(num(res, "rho"), f1 * cal.rho_kgm3 / 1000 + f2 * 2.6, 1e-12);
 	assert_string_equal(
 	    cJSON_GetObjectItemCaseSensitive(res, "method")->valuestring,
 	    "all");
@@ -230,9 +228,9 @@ static void test_two_phase_bounds(void **state)
 static void test_method_and_broadcast(void **state)
 {
 	cJSON *r = call(MIX("{\"method\":\"hs_lower\",\"constituents\":["
-			    "{\"mineral\":\"quartz\",\"fraction\":[1,0.8,0.6]},"
-			    "{\"k\":2.25,\"mu\":0,\"rho\":1.0,\"fraction\":"
-			    "[0,0.2,0.4]}]}"));
+	                    "{\"mineral\":\"quartz\",\"fraction\":[1,0.8,0.6]},"
+	                    "{\"k\":2.25,\"mu\":0,\"rho\":1.0,\"fraction\":"
+	                    "[0,0.2,0.4]}]}"));
 	const cJSON *res = result_of(r);
 	rw_mineral q;
 
@@ -245,7 +243,7 @@ static void test_method_and_broadcast(void **state)
 	for (int i = 1; i < 3; i++) {
 		double f = 0.2 * i;
 		assert_rel(num_at(res, "k", i),
-			   1 / ((1 - f) / (q.k_pa / 1e9) + f / 2.25), 1e-10);
+		           1 / ((1 - f) / (q.k_pa / 1e9) + f / 2.25), 1e-10);
 		assert_true(fabs(num_at(res, "mu", i)) < 1e-12);
 	}
 	cJSON_Delete(r);
@@ -257,52 +255,52 @@ static void test_errors(void **state)
 	expect_invalid(MIX("{}"), "constituents", "required");
 	expect_invalid(MIX("{\"constituents\":[]}"), "constituents", "empty");
 	expect_invalid(MIX("{\"constituents\":{\"mineral\":\"quartz\"}}"),
-		       "constituents", "array");
+	               "constituents", "array");
 	expect_invalid(MIX("{\"constituents\":[{\"mineral\":\"quartz\","
-			   "\"fraction\":0.6},{\"mineral\":\"calcite\","
-			   "\"fraction\":[0.3,0.4]}]}"),
-		       "constituents", "sum to 0.9 at sample 0");
+	                   "\"fraction\":0.6},{\"mineral\":\"calcite\","
+	                   "\"fraction\":[0.3,0.4]}]}"),
+	               "constituents", "sum to 0.9 at sample 0");
 	expect_invalid(MIX("{\"constituents\":[{\"mineral\":\"quartz\","
-			   "\"fraction\":1.5},{\"mineral\":\"calcite\","
-			   "\"fraction\":-0.5}]}"),
-		       "constituents[0].fraction", "outside [0, 1]");
+	                   "\"fraction\":1.5},{\"mineral\":\"calcite\","
+	                   "\"fraction\":-0.5}]}"),
+	               "constituents[0].fraction", "outside [0, 1]");
 	expect_invalid(MIX("{\"constituents\":[{\"mineral\":\"quartzite\","
-			   "\"fraction\":1}]}"),
-		       "constituents[0].mineral", "quartz, calcite");
+	                   "\"fraction\":1}]}"),
+	               "constituents[0].mineral", "quartz, calcite");
 	expect_invalid(MIX("{\"constituents\":[{\"mineral\":\"quartz\","
-			   "\"k\":30,\"fraction\":1}]}"),
-		       "constituents[0].k", "not both");
+	                   "\"k\":30,\"fraction\":1}]}"),
+	               "constituents[0].k", "not both");
 	expect_invalid(MIX("{\"constituents\":[{\"mineral\":\"quartz\","
-			   "\"fraction\":0.5},{\"k\":30,\"rho\":2.6,"
-			   "\"fraction\":0.5}]}"),
-		       "constituents[1].mu", "required");
+	                   "\"fraction\":0.5},{\"k\":30,\"rho\":2.6,"
+	                   "\"fraction\":0.5}]}"),
+	               "constituents[1].mu", "required");
 	expect_invalid(MIX("{\"constituents\":[{\"k\":-3,\"mu\":1,\"rho\":2,"
-			   "\"fraction\":1}]}"),
-		       "constituents[0].k", ">= 0");
+	                   "\"fraction\":1}]}"),
+	               "constituents[0].k", ">= 0");
 	expect_invalid(MIX("{\"constituents\":[{\"mineral\":\"quartz\"}]}"),
-		       "constituents[0].fraction", "required");
+	               "constituents[0].fraction", "required");
 	expect_invalid(MIX("{\"constituents\":[{\"mineral\":\"quartz\","
-			   "\"fraction\":1},\"clay\"]}"),
-		       "constituents[1]", "object");
+	                   "\"fraction\":1},\"clay\"]}"),
+	               "constituents[1]", "object");
 	expect_invalid(MIX("{\"constituents\":[{\"mineral\":\"quartz\","
-			   "\"fraction\":1,\"volume\":1}]}"),
-		       "constituents[0].volume", "unknown");
+	                   "\"fraction\":1,\"volume\":1}]}"),
+	               "constituents[0].volume", "unknown");
 	expect_invalid(MIX("{\"method\":\"average\",\"constituents\":["
-			   "{\"mineral\":\"quartz\",\"fraction\":1}]}"),
-		       "method", "hs_upper");
+	                   "{\"mineral\":\"quartz\",\"fraction\":1}]}"),
+	               "method", "hs_upper");
 	expect_invalid(MIX("{\"constituents\":[{\"mineral\":\"quartz\","
-			   "\"fraction\":[0.5,0.5]},{\"mineral\":\"clay\","
-			   "\"fraction\":[0.5,0.5,0.5]}]}"),
-		       "constituents[1].fraction", "does not match length 2");
+	                   "\"fraction\":[0.5,0.5]},{\"mineral\":\"clay\","
+	                   "\"fraction\":[0.5,0.5,0.5]}]}"),
+	               "constituents[1].fraction", "does not match length 2");
 }
 
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_list),
-		cmocka_unit_test(test_two_phase_bounds),
-		cmocka_unit_test(test_method_and_broadcast),
-		cmocka_unit_test(test_errors),
+	    cmocka_unit_test(test_list),
+	    cmocka_unit_test(test_two_phase_bounds),
+	    cmocka_unit_test(test_method_and_broadcast),
+	    cmocka_unit_test(test_errors),
 	};
 
 	gsl_set_error_handler_off();

@@ -72,7 +72,7 @@ static const cJSON *result_of(const cJSON *resp)
 /* Calls and checks that the call fails with -32602 naming `param` and
  * (when want is not NULL) a reason containing `want`. */
 static void expect_invalid(const char *line, const char *param,
-			   const char *want)
+                           const char *want)
 {
 	cJSON *r = call(line);
 	const cJSON *e = cJSON_GetObjectItemCaseSensitive(r, "error");
@@ -84,10 +84,9 @@ static void expect_invalid(const char *line, const char *param,
 	if (!cJSON_IsObject(e) ||
 	    cJSON_GetObjectItemCaseSensitive(e, "code")->valueint != -32602 ||
 	    !cJSON_IsString(p) || strcmp(p->valuestring, param) != 0 ||
-	    !cJSON_IsString(why) ||
-	    (want && !strstr(why->valuestring, want)))
+	    !cJSON_IsString(why) || (want && !strstr(why->valuestring, want)))
 		fail_msg("want -32602 on '%s' (%s) for %s\ngot %s", param,
-			 want ? want : "any reason", line, s);
+		         want ? want : "any reason", line, s);
 	cJSON_free(s);
 	cJSON_Delete(r);
 }
@@ -139,23 +138,23 @@ static int array_len(const cJSON *res, const char *key)
 	return cJSON_IsArray(v) ? cJSON_GetArraySize(v) : -1;
 }
 
-#define SUB(params)                                                        \
-	"{\"jsonrpc\":\"2.0\",\"id\":3,\"method\":\"rock.substitute\","    \
+#define SUB(params)                                                            \
+	"{\"jsonrpc\":\"2.0\",\"id\":3,\"method\":\"rock.substitute\","        \
 	"\"params\":" params "}"
 
 /* 1 ft = 0.3048 m; 1 psi = 0.45359237 x 9.80665 / 0.0254^2 Pa (NIST SP
  * 811, exact definitions). */
-#define FT 0.3048
+#define FT      0.3048
 #define PSI_MPA (0.45359237 * 9.80665 / (0.0254 * 0.0254) / 1e6)
 
 /* Mavko, Mukerji & Dvorkin 2009, section 6.3 (Gassmann in substitution
  * form): K2/(Km - K2) - Kf2/(phi (Km - Kf2)) = K1/(Km - K1) - Kf1/(phi
  * (Km - Kf1)); Kf2 = 0 gives the dry frame. Returns K2. */
 static double direct_subst(double k1, double km, double kf1, double kf2,
-			   double phi)
+                           double phi)
 {
 	double a = k1 / (km - k1) - kf1 / (phi * (km - kf1)) +
-		   kf2 / (phi * (km - kf2));
+	           kf2 / (phi * (km - kf2));
 	return a * km / (1 + a);
 }
 
@@ -168,9 +167,9 @@ static double direct_subst(double k1, double km, double kf1, double kf2,
 static void test_worked_example(void **state)
 {
 	cJSON *r = call(SUB("{\"vp\":3200,\"vs\":1750,\"rho\":2.28,"
-			    "\"porosity\":0.24,\"mineral\":\"quartz\","
-			    "\"fluid\":{\"k\":2.9,\"rho\":1.04},\"fluid_new\":"
-			    "{\"k\":0.08,\"rho\":0.22}}"));
+	                    "\"porosity\":0.24,\"mineral\":\"quartz\","
+	                    "\"fluid\":{\"k\":2.9,\"rho\":1.04},\"fluid_new\":"
+	                    "{\"k\":0.08,\"rho\":0.22}}"));
 	const cJSON *res = result_of(r);
 	rw_mineral q;
 	double km, rho = 2280, mu = rho * 1750.0 * 1750.0;
@@ -186,8 +185,7 @@ static void test_worked_example(void **state)
 	vp2 = sqrt((k2 + 4.0 / 3.0 * mu) / rho2);
 	vs2 = sqrt(mu / rho2);
 	assert_string_equal(
-	    cJSON_GetObjectItemCaseSensitive(res, "mode")->valuestring,
-	    "logs");
+	    cJSON_GetObjectItemCaseSensitive(res, "mode")->valuestring, "logs");
 	assert_rel(num(res, "k_sat"), k2 / 1e9, 1e-9);
 	assert_rel(num(res, "k_dry"), kd / 1e9, 1e-9);
 	assert_rel(num(res, "mu"), mu / 1e9, 1e-12);
@@ -197,10 +195,10 @@ static void test_worked_example(void **state)
 	assert_rel(num(res, "dvp_pct"), 100 * (vp2 / 3200 - 1), 1e-9);
 	assert_rel(num(res, "dvs_pct"), 100 * (vs2 / 1750 - 1), 1e-9);
 	assert_rel(num(res, "drho_pct"), 100 * (rho2 / rho - 1), 1e-9);
-	assert_rel(num(res, "dai_pct"),
-		   100 * (rho2 * vp2 / (rho * 3200) - 1), 1e-9);
+	assert_rel(num(res, "dai_pct"), 100 * (rho2 * vp2 / (rho * 3200) - 1),
+	           1e-9);
 	assert_rel(num(res, "dvpvs_pct"),
-		   100 * ((vp2 / vs2) / (3200.0 / 1750) - 1), 1e-9);
+	           100 * ((vp2 / vs2) / (3200.0 / 1750) - 1), 1e-9);
 	assert_rel(num(res, "fluid_k"), 2.9, 1e-12);
 	assert_rel(num(res, "fluid_new_rho"), 0.22, 1e-12);
 	assert_rel(num(res, "mineral_k"), km / 1e9, 1e-12);
@@ -217,24 +215,24 @@ static void test_worked_example(void **state)
 static void test_round_trip(void **state)
 {
 	cJSON *a = call(SUB("{\"vp\":[2800,3400],\"vs\":[1400,1900],\"rho\":"
-			    "[2.2,2.35],\"porosity\":[0.28,0.18],\"mineral\":"
-			    "{\"k\":37,\"rho\":2.65},\"fluid\":{\"k\":2.7,"
-			    "\"rho\":1.02},\"fluid_new\":{\"k\":0.1,\"rho\":"
-			    "0.25}}"));
+	                    "[2.2,2.35],\"porosity\":[0.28,0.18],\"mineral\":"
+	                    "{\"k\":37,\"rho\":2.65},\"fluid\":{\"k\":2.7,"
+	                    "\"rho\":1.02},\"fluid_new\":{\"k\":0.1,\"rho\":"
+	                    "0.25}}"));
 	const cJSON *ra = result_of(a);
 	char line[640];
 	cJSON *b;
 	const cJSON *rb;
 
 	(void)state;
-	snprintf(line, sizeof line,
-		 SUB("{\"vp\":[%.17g,%.17g],\"vs\":[%.17g,%.17g],\"rho\":"
-		     "[%.17g,%.17g],\"porosity\":[0.28,0.18],\"mineral\":{\"k\":"
-		     "37},\"fluid\":{\"k\":0.1,\"rho\":0.25},\"fluid_new\":"
-		     "{\"k\":2.7,\"rho\":1.02}}"),
-		 num_at(ra, "vp", 0), num_at(ra, "vp", 1), num_at(ra, "vs", 0),
-		 num_at(ra, "vs", 1), num_at(ra, "rho", 0),
-		 num_at(ra, "rho", 1));
+	snprintf(
+	    line, sizeof line,
+	    SUB("{\"vp\":[%.17g,%.17g],\"vs\":[%.17g,%.17g],\"rho\":"
+	        "[%.17g,%.17g],\"porosity\":[0.28,0.18],\"mineral\":{\"k\":"
+	        "37},\"fluid\":{\"k\":0.1,\"rho\":0.25},\"fluid_new\":"
+	        "{\"k\":2.7,\"rho\":1.02}}"),
+	    num_at(ra, "vp", 0), num_at(ra, "vp", 1), num_at(ra, "vs", 0),
+	    num_at(ra, "vs", 1), num_at(ra, "rho", 0), num_at(ra, "rho", 1));
 	b = call(line);
 	rb = result_of(b);
 	assert_rel(num_at(rb, "vp", 0), 2800, 1e-9);
@@ -265,18 +263,18 @@ static void test_sweep(void **state)
 	(void)state;
 	for (int i = 0; i <= 20; i++) {
 		u += (size_t)snprintf(sg + u, sizeof sg - u, "%s%.2f",
-				      i ? "," : "", 0.05 * i);
+		                      i ? "," : "", 0.05 * i);
 		v += (size_t)snprintf(sw + v, sizeof sw - v, "%s%.2f",
-				      i ? "," : "", 1 - 0.05 * i);
+		                      i ? "," : "", 1 - 0.05 * i);
 	}
 	snprintf(line, sizeof line,
-		 SUB("{\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
-		     "\"mineral\":\"quartz\",\"pressure\":28,\"temperature\":"
-		     "85,\"fluid\":{\"brine\":{\"salinity\":70000}},"
-		     "\"fluid_new\":{\"brine\":{\"salinity\":70000},\"gas\":"
-		     "{\"gravity\":0.62},\"saturation\":{\"brine\":[%s],"
-		     "\"gas\":[%s]}}}"),
-		 sw, sg);
+	         SUB("{\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
+	             "\"mineral\":\"quartz\",\"pressure\":28,\"temperature\":"
+	             "85,\"fluid\":{\"brine\":{\"salinity\":70000}},"
+	             "\"fluid_new\":{\"brine\":{\"salinity\":70000},\"gas\":"
+	             "{\"gravity\":0.62},\"saturation\":{\"brine\":[%s],"
+	             "\"gas\":[%s]}}}"),
+	         sw, sg);
 	r = call(line);
 	res = result_of(r);
 	assert_int_equal((int)num(res, "n"), 21);
@@ -291,14 +289,14 @@ static void test_sweep(void **state)
 		double rf2 = num_at(res, "fluid_new_rho", i) * 1000;
 		double km = num_at(res, "mineral_k", i) * 1e9;
 		assert_rel(num_at(res, "k_sat", i) * 1e9,
-			   direct_subst(k1, km, kf1, kf2, 0.25), 1e-9);
+		           direct_subst(k1, km, kf1, kf2, 0.25), 1e-9);
 		assert_rel(num_at(res, "rho", i) * 1000,
-			   rho + 0.25 * (rf2 - rf1), 1e-12);
+		           rho + 0.25 * (rf2 - rf1), 1e-12);
 		assert_rel(num_at(res, "fluid_new_sat_gas", i), 0.05 * i,
-			   1e-12);
+		           1e-12);
 		if (i > 0) {
 			assert_true(num_at(res, "rho", i) <
-				    num_at(res, "rho", i - 1));
+			            num_at(res, "rho", i - 1));
 			assert_true(num_at(res, "vp", i) < 3000);
 		}
 		assert_int_equal(qc_at(res, i), 0);
@@ -316,19 +314,19 @@ static void test_units(void **state)
 
 	(void)state;
 	a = call(SUB("{\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
-		     "\"mineral\":\"quartz\",\"pressure\":20.684271879505,"
-		     "\"temperature\":80,\"fluid\":{\"brine\":{\"salinity\":"
-		     "50000}},\"fluid_new\":{\"oil\":{\"api\":40,\"gor\":120,"
-		     "\"gas_gravity\":0.7}}}"));
+	             "\"mineral\":\"quartz\",\"pressure\":20.684271879505,"
+	             "\"temperature\":80,\"fluid\":{\"brine\":{\"salinity\":"
+	             "50000}},\"fluid_new\":{\"oil\":{\"api\":40,\"gor\":120,"
+	             "\"gas_gravity\":0.7}}}"));
 	snprintf(line, sizeof line,
-		 SUB("{\"vp\":%.17g,\"vs\":%.17g,\"rho\":2250,\"porosity\":"
-		     "0.25,\"mineral\":\"quartz\",\"pressure\":%.17g,"
-		     "\"temperature\":176,\"fluid\":{\"brine\":{\"salinity\":"
-		     "50000}},\"fluid_new\":{\"oil\":{\"api\":40,\"gor\":120,"
-		     "\"gas_gravity\":0.7}},\"units\":{\"velocity\":\"ft/s\","
-		     "\"density\":\"kg/m3\",\"modulus\":\"MPa\",\"pressure\":"
-		     "\"psi\",\"temperature\":\"degF\"}}"),
-		 3000 / FT, 1600 / FT, 20.684271879505 / PSI_MPA);
+	         SUB("{\"vp\":%.17g,\"vs\":%.17g,\"rho\":2250,\"porosity\":"
+	             "0.25,\"mineral\":\"quartz\",\"pressure\":%.17g,"
+	             "\"temperature\":176,\"fluid\":{\"brine\":{\"salinity\":"
+	             "50000}},\"fluid_new\":{\"oil\":{\"api\":40,\"gor\":120,"
+	             "\"gas_gravity\":0.7}},\"units\":{\"velocity\":\"ft/s\","
+	             "\"density\":\"kg/m3\",\"modulus\":\"MPa\",\"pressure\":"
+	             "\"psi\",\"temperature\":\"degF\"}}"),
+	         3000 / FT, 1600 / FT, 20.684271879505 / PSI_MPA);
 	b = call(line);
 	ra = result_of(a);
 	rb = result_of(b);
@@ -336,8 +334,7 @@ static void test_units(void **state)
 	assert_rel(num(rb, "vs") * FT, num(ra, "vs"), 1e-9);
 	assert_rel(num(rb, "rho"), num(ra, "rho") * 1000, 1e-9);
 	assert_rel(num(rb, "k_sat"), num(ra, "k_sat") * 1000, 1e-9);
-	assert_rel(num(rb, "fluid_new_k"), num(ra, "fluid_new_k") * 1000,
-		   1e-9);
+	assert_rel(num(rb, "fluid_new_k"), num(ra, "fluid_new_k") * 1000, 1e-9);
 	assert_string_equal(unit_of(rb, "vp"), "ft/s");
 	assert_string_equal(unit_of(rb, "k_dry"), "MPa");
 	cJSON_Delete(a);
@@ -351,11 +348,11 @@ static void test_units(void **state)
 static void test_frame(void **state)
 {
 	cJSON *r = call(SUB("{\"k_dry\":[0,9],\"mu_dry\":[4,8],\"porosity\":"
-			    "0.3,\"mineral\":{\"k\":36,\"rho\":2.65},"
-			    "\"fluid_new\":{\"k\":2.5,\"rho\":1.05}}"));
+	                    "0.3,\"mineral\":{\"k\":36,\"rho\":2.65},"
+	                    "\"fluid_new\":{\"k\":2.5,\"rho\":1.05}}"));
 	const cJSON *res = result_of(r);
-	double reuss = 1 / (0.3 / 2.5 + 0.7 / 36), rho = 0.7 * 2.65 + 0.3 *
-								  1.05;
+	double reuss = 1 / (0.3 / 2.5 + 0.7 / 36),
+	       rho = 0.7 * 2.65 + 0.3 * 1.05;
 
 	(void)state;
 	assert_string_equal(
@@ -370,9 +367,9 @@ static void test_frame(void **state)
 	assert_null(cJSON_GetObjectItemCaseSensitive(res, "fluid_k"));
 	cJSON_Delete(r);
 	r = call(SUB("{\"k_dry\":9,\"mu_dry\":8,\"porosity\":0.3,\"mineral\":"
-		     "{\"constituents\":[{\"mineral\":\"quartz\",\"fraction\":"
-		     "0.85},{\"mineral\":\"clay\",\"fraction\":0.15}]},"
-		     "\"fluid_new\":{\"k\":2.5,\"rho\":1.05}}"));
+	             "{\"constituents\":[{\"mineral\":\"quartz\",\"fraction\":"
+	             "0.85},{\"mineral\":\"clay\",\"fraction\":0.15}]},"
+	             "\"fluid_new\":{\"k\":2.5,\"rho\":1.05}}"));
 	res = result_of(r);
 	{
 		rw_mineral q, c;
@@ -384,24 +381,24 @@ static void test_frame(void **state)
 		/* Hill 1952: the mean of Voigt and Reuss. */
 		assert_rel(num(res, "mineral_k") * 1e9, (kv + kr) / 2, 1e-12);
 		assert_rel(num(res, "mineral_rho") * 1000,
-			   0.85 * q.rho_kgm3 + 0.15 * c.rho_kgm3, 1e-12);
+		           0.85 * q.rho_kgm3 + 0.15 * c.rho_kgm3, 1e-12);
 	}
 	cJSON_Delete(r);
 }
 
-/* QC: low porosity (0.03 < 0.05, a stiff rock) is flagged and computed; porosity
- * outside (0, 1) or null is an invalid input with null outputs; logs
+/* QC: low porosity (0.03 < 0.05, a stiff rock) is flagged and computed;
+ * porosity outside (0, 1) or null is an invalid input with null outputs; logs
  * below the Reuss bound of mineral and brine give K_dry < 0 (an
  * impossible frame: k_dry reported, the rock null); vp^2 < 4/3 vs^2 is a
  * negative modulus. */
 static void test_qc(void **state)
 {
 	cJSON *r = call(SUB("{\"vp\":[5000,3000,3000,1500,1200],\"vs\":[3000,"
-			    "1600,1600,200,1100],\"rho\":[2.6,2.25,2.25,2.0,"
-			    "2.0],\"porosity\":[0.03,1.2,null,0.1,0.2],"
-			    "\"mineral\":\"quartz\",\"fluid\":{\"k\":2.8,"
-			    "\"rho\":1.05},\"fluid_new\":{\"k\":0.05,\"rho\":"
-			    "0.2}}"));
+	                    "1600,1600,200,1100],\"rho\":[2.6,2.25,2.25,2.0,"
+	                    "2.0],\"porosity\":[0.03,1.2,null,0.1,0.2],"
+	                    "\"mineral\":\"quartz\",\"fluid\":{\"k\":2.8,"
+	                    "\"rho\":1.05},\"fluid_new\":{\"k\":0.05,\"rho\":"
+	                    "0.2}}"));
 	const cJSON *res = result_of(r);
 
 	(void)state;
@@ -419,8 +416,8 @@ static void test_qc(void **state)
 	cJSON_Delete(r);
 	/* A frame stiffer than its mineral. */
 	r = call(SUB("{\"k_dry\":[40,-1],\"mu_dry\":20,\"porosity\":0.2,"
-		     "\"mineral\":\"quartz\",\"fluid_new\":{\"k\":2.5,\"rho\":"
-		     "1.0}}"));
+	             "\"mineral\":\"quartz\",\"fluid_new\":{\"k\":2.5,\"rho\":"
+	             "1.0}}"));
 	res = result_of(r);
 	assert_true(qc_at(res, 0) & QC_GASSMANN_KDRY);
 	assert_true(isnan(num_at(res, "vp", 0)));
@@ -430,112 +427,113 @@ static void test_qc(void **state)
 	/* Fluid flags reach the rock: brine at 150 degC is outside the
 	 * Batzle & Wang fit. */
 	r = call(SUB("{\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
-		     "\"mineral\":\"quartz\",\"pressure\":30,\"temperature\":"
-		     "150,\"fluid\":{\"brine\":{\"salinity\":50000}},"
-		     "\"fluid_new\":{\"k\":0.1,\"rho\":0.3}}"));
+	             "\"mineral\":\"quartz\",\"pressure\":30,\"temperature\":"
+	             "150,\"fluid\":{\"brine\":{\"salinity\":50000}},"
+	             "\"fluid_new\":{\"k\":0.1,\"rho\":0.3}}"));
 	res = result_of(r);
 	assert_true(qc_at(res, 0) & QC_FLUID_CALIBRATION);
 	cJSON_Delete(r);
 }
 
 #define LOGS "\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
-#define FL "\"fluid\":{\"k\":2.8,\"rho\":1.05},"
-#define FN "\"fluid_new\":{\"k\":0.05,\"rho\":0.2}"
+#define FL   "\"fluid\":{\"k\":2.8,\"rho\":1.05},"
+#define FN   "\"fluid_new\":{\"k\":0.05,\"rho\":0.2}"
 
 static void test_errors(void **state)
 {
 	(void)state;
 	expect_invalid(SUB("{\"porosity\":0.2,\"mineral\":\"quartz\"," FN "}"),
-		       "vp", "k_dry and mu_dry");
-	expect_invalid(SUB("{" LOGS "\"k_dry\":5,\"mineral\":\"quartz\"," FL FN
-			   "}"),
-		       "k_dry", "not both");
+	               "vp", "k_dry and mu_dry");
+	expect_invalid(
+	    SUB("{" LOGS "\"k_dry\":5,\"mineral\":\"quartz\"," FL FN "}"),
+	    "k_dry", "not both");
 	expect_invalid(SUB("{\"vp\":3000,\"rho\":2.25,\"porosity\":0.2,"
-			   "\"mineral\":\"quartz\"," FL FN "}"),
-		       "vs", "required");
+	                   "\"mineral\":\"quartz\"," FL FN "}"),
+	               "vs", "required");
 	expect_invalid(SUB("{\"k_dry\":5,\"porosity\":0.2,\"mineral\":"
-			   "\"quartz\"," FN "}"),
-		       "mu_dry", "required");
+	                   "\"quartz\"," FN "}"),
+	               "mu_dry", "required");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\"," FN "}"), "fluid",
-		       "fluid in place");
+	               "fluid in place");
 	expect_invalid(SUB("{\"k_dry\":5,\"mu_dry\":4,\"porosity\":0.2,"
-			   "\"mineral\":\"quartz\"," FL FN "}"),
-		       "fluid", "fluid_new");
+	                   "\"mineral\":\"quartz\"," FL FN "}"),
+	               "fluid", "fluid_new");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid\":{\"k\":"
-			   "2.8,\"rho\":1.05}}"),
-		       "fluid_new", "required");
+	                   "2.8,\"rho\":1.05}}"),
+	               "fluid_new", "required");
 	expect_invalid(SUB("{" LOGS FL FN "}"), "mineral", "required");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"granite\"," FL FN "}"),
-		       "mineral", "unknown mineral 'granite'");
+	               "mineral", "unknown mineral 'granite'");
 	expect_invalid(SUB("{" LOGS "\"mineral\":36," FL FN "}"), "mineral",
-		       "mineral name");
+	               "mineral name");
 	expect_invalid(SUB("{" LOGS "\"mineral\":{\"rho\":2.65}," FL FN "}"),
-		       "mineral.k", "required");
+	               "mineral.k", "required");
 	expect_invalid(SUB("{" LOGS "\"mineral\":{\"k\":0}," FL FN "}"),
-		       "mineral.k", "> 0");
-	expect_invalid(SUB("{" LOGS "\"mineral\":{\"k\":36,\"mu\":44}," FL FN
-			   "}"),
-		       "mineral.mu", "unknown");
+	               "mineral.k", "> 0");
+	expect_invalid(
+	    SUB("{" LOGS "\"mineral\":{\"k\":36,\"mu\":44}," FL FN "}"),
+	    "mineral.mu", "unknown");
 	expect_invalid(SUB("{" LOGS "\"mineral\":{\"k\":36,\"method\":"
-			   "\"hill\"}," FL FN "}"),
-		       "mineral.method", "constituents");
+	                   "\"hill\"}," FL FN "}"),
+	               "mineral.method", "constituents");
 	expect_invalid(SUB("{" LOGS "\"mineral\":{\"k\":36,\"constituents\":"
-			   "[{\"mineral\":\"quartz\",\"fraction\":1}]}," FL FN
-			   "}"),
-		       "mineral.k", "not both");
+	                   "[{\"mineral\":\"quartz\",\"fraction\":1}]}," FL FN
+	                   "}"),
+	               "mineral.k", "not both");
 	expect_invalid(SUB("{" LOGS "\"mineral\":{\"constituents\":[{"
-			   "\"mineral\":\"quartz\",\"fraction\":0.5}]}," FL FN
-			   "}"),
-		       "mineral.constituents", "sum to 0.5");
+	                   "\"mineral\":\"quartz\",\"fraction\":0.5}]}," FL FN
+	                   "}"),
+	               "mineral.constituents", "sum to 0.5");
 	expect_invalid(SUB("{" LOGS "\"mineral\":{\"constituents\":[{"
-			   "\"mineral\":\"quartz\",\"fraction\":1}],"
-			   "\"method\":\"all\"}," FL FN "}"),
-		       "mineral.method", "hs_lower");
+	                   "\"mineral\":\"quartz\",\"fraction\":1}],"
+	                   "\"method\":\"all\"}," FL FN "}"),
+	               "mineral.method", "hs_lower");
 	expect_invalid(SUB("{\"k_dry\":5,\"mu_dry\":4,\"porosity\":0.2,"
-			   "\"mineral\":{\"k\":36}," FN "}"),
-		       "mineral.rho", "dry frame");
+	                   "\"mineral\":{\"k\":36}," FN "}"),
+	               "mineral.rho", "dry frame");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid\":{\"k\":"
-			   "2.8}," FN "}"),
-		       "fluid.rho", "required");
+	                   "2.8}," FN "}"),
+	               "fluid.rho", "required");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid\":{\"k\":"
-			   "-2.8,\"rho\":1}," FN "}"),
-		       "fluid.k", "> 0");
+	                   "-2.8,\"rho\":1}," FN "}"),
+	               "fluid.k", "> 0");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid\":{\"k\":"
-			   "2.8,\"rho\":1,\"brine\":{\"salinity\":0}}," FN "}"),
-		       "fluid.brine", "not both");
+	                   "2.8,\"rho\":1,\"brine\":{\"salinity\":0}}," FN "}"),
+	               "fluid.brine", "not both");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"pressure\":20,"
-			   "\"temperature\":60," FL FN "}"),
-		       "pressure", "not used");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"temperature\":60,"
-			   FL "\"fluid_new\":{\"gas\":{\"gravity\":0.6}}}"),
-		       "pressure", "required");
+	                   "\"temperature\":60," FL FN "}"),
+	               "pressure", "not used");
+	expect_invalid(SUB("{" LOGS
+	                   "\"mineral\":\"quartz\",\"temperature\":60," FL
+	                   "\"fluid_new\":{\"gas\":{\"gravity\":0.6}}}"),
+	               "pressure", "required");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"pressure\":20,"
-			   "\"temperature\":60," FL "\"fluid_new\":{\"brine\":"
-			   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
-			   "\"saturation\":{\"brine\":0.5,\"gas\":0.6}}}"),
-		       "fluid_new.saturation", "sum to 1.1");
+	                   "\"temperature\":60," FL "\"fluid_new\":{\"brine\":"
+	                   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
+	                   "\"saturation\":{\"brine\":0.5,\"gas\":0.6}}}"),
+	               "fluid_new.saturation", "sum to 1.1");
 	expect_invalid(SUB("{\"vp\":[3000,3100],\"vs\":1600,\"rho\":2.25,"
-			   "\"porosity\":0.25,\"mineral\":\"quartz\","
-			   "\"pressure\":20,\"temperature\":60," FL
-			   "\"fluid_new\":{\"brine\":{\"salinity\":0},\"gas\":"
-			   "{\"gravity\":0.6},\"saturation\":{\"brine\":[1,0.5,"
-			   "0],\"gas\":[0,0.5,1]}}}"),
-		       "fluid_new.saturation.brine", "length 2 of 'vp'");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\"," FL FN
-			   ",\"phi\":0.2}"),
-		       "phi", "unknown");
+	                   "\"porosity\":0.25,\"mineral\":\"quartz\","
+	                   "\"pressure\":20,\"temperature\":60," FL
+	                   "\"fluid_new\":{\"brine\":{\"salinity\":0},\"gas\":"
+	                   "{\"gravity\":0.6},\"saturation\":{\"brine\":[1,0.5,"
+	                   "0],\"gas\":[0,0.5,1]}}}"),
+	               "fluid_new.saturation.brine", "length 2 of 'vp'");
+	expect_invalid(
+	    SUB("{" LOGS "\"mineral\":\"quartz\"," FL FN ",\"phi\":0.2}"),
+	    "phi", "unknown");
 }
 
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_worked_example),
-		cmocka_unit_test(test_round_trip),
-		cmocka_unit_test(test_sweep),
-		cmocka_unit_test(test_units),
-		cmocka_unit_test(test_frame),
-		cmocka_unit_test(test_qc),
-		cmocka_unit_test(test_errors),
+	    cmocka_unit_test(test_worked_example),
+	    cmocka_unit_test(test_round_trip),
+	    cmocka_unit_test(test_sweep),
+	    cmocka_unit_test(test_units),
+	    cmocka_unit_test(test_frame),
+	    cmocka_unit_test(test_qc),
+	    cmocka_unit_test(test_errors),
 	};
 
 	gsl_set_error_handler_off();

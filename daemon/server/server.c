@@ -20,11 +20,13 @@
  * complete line among it; past the hard bound it must keep its answers
  * moving or it is closed as slow; and all connections stop being read
  * while the bytes buffered over all of them pass the global budget. */
+#define _GNU_SOURCE /* POLLRDHUP */
 #include <arpa/inet.h>
 #include <errno.h>
 #include <fcntl.h>
 #include <netdb.h>
 #include <netinet/in.h>
+#include <poll.h>
 #include <signal.h>
 #include <stdarg.h>
 #include <stdio.h>
@@ -100,6 +102,7 @@ struct conn {
 	int paused;               /* unsent output above the high-water mark */
 	int in_full;              /* buffered input above the high-water mark */
 	int budget_wait;          /* reads wait for the global budget */
+	int peer_done;            /* the peer stopped sending: exempt */
 	int closing;
 	int busy;                 /* a line is in the thread pool */
 	int refs;
@@ -256,7 +259,7 @@ static void budget_check(srv *s)
 			"budget of %zu: reads wait",
 			(unsigned long long)now, budget);
 		for (c = s->conns; c; c = c->next) {
-			c->budget_wait = 1;
+			c->budget_wait = !c->peer_done;
 			conn_update_read(c);
 		}
 	} else if (s->over_budget && now <= budget / 4 * 3) {
@@ -865,6 +868,33 @@ static void conn_tick(conn *c, uint64_t now)
 	}
 }
 
+/* A connection whose reads wait for the budget cannot see its peer go
+ * away, and its buffered bytes are what hold the budget: when the peer
+ * has stopped sending (closed, or shut down its side), it is read again.
+ * What is left to read is bounded by the kernel's socket buffer. */
+static void conn_peek_hangup(conn *c)
+{
+	struct pollfd pf;
+	uv_os_fd_t fd;
+
+	if (!c->budget_wait || c->in_kind != IO_STREAM || !c->in_open ||
+	    uv_fileno(&c->in.h, &fd) < 0)
+		return;
+	pf.fd = fd;
+	pf.events = POLLIN;
+#ifdef POLLRDHUP
+	pf.events |= POLLRDHUP;
+	if (poll(&pf, 1, 0) == 1 &&
+	    (pf.revents & (POLLHUP | POLLERR | POLLRDHUP))) {
+#else
+	if (poll(&pf, 1, 0) == 1 && (pf.revents & (POLLHUP | POLLERR))) {
+#endif
+		c->peer_done = 1;
+		c->budget_wait = 0;
+		conn_update_read(c);
+	}
+}
+
 static void on_tick(uv_timer_t *t)
 {
 	srv *s = t->data;
@@ -873,8 +903,14 @@ static void on_tick(uv_timer_t *t)
 
 	for (c = s->conns; c; c = next) {
 		next = c->next;
-		if (c->is_socket && !c->closing)
-			conn_tick(c, now);
+		if (c->is_socket && !c->closing) {
+			c->refs++;
+			conn_peek_hangup(c);
+			if (!c->closing)
+				conn_tick(c, now);
+			next = c->next;
+			conn_unref(c);
+		}
 	}
 }
 

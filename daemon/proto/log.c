@@ -362,7 +362,7 @@ static int process(proto_call *c)
 		double v_p = vel(vp, dtp, i), v_s = vel(vs, dts, i);
 		double rho = rhob->present ? proto_at(rhob, i) : NAN;
 		double vsh = NAN;
-		int bad_rho = 0;
+		int bad_rho = 0, vsp_block = 0;
 		rw_elastic e;
 
 		for (double *d = &r->vp; d <= &r->rho_fl_new; d++)
@@ -399,9 +399,21 @@ static int process(proto_call *c)
 		r->vsh = vsh;
 		if (isnan(v_p))
 			fl |= QC_LOG_MISSING;
-		if (isnan(rho) || (bad_rho && replace_bad)) {
-			if (isnan(rho) && rhob->present)
-				fl |= QC_LOG_MISSING;
+		if (isnan(v_s) && (vs->present || dts->present))
+			fl |= QC_LOG_MISSING;
+		if (isnan(rho) && rhob->present)
+			fl |= QC_LOG_MISSING;
+		/* A velocity, slowness or density <= 0 has no meaning: the
+		 * sample is impossible and nothing is predicted over it. */
+		if (!isnan(v_p) && !(v_p > 0))
+			fl |= QC_INPUT_INVALID, v_p = NAN, vsp_block = 1;
+		if (!isnan(v_s) && !(v_s > 0))
+			fl |= QC_INPUT_INVALID, v_s = NAN, vsp_block = 1;
+		if (!isnan(rho) && !(rho > 0))
+			fl |= QC_RHO_NONPOSITIVE, rho = NAN, vsp_block = 1;
+		if (vsp_block) {
+			/* no predictions for an impossible sample */
+		} else if (isnan(rho) || (bad_rho && replace_bad)) {
 			if (rhop == 1 && !isnan(v_p)) {
 				if (rw_emp_gardner_density(v_p, ga, gb, &rho,
 							   &warn) == RW_OK)
@@ -409,9 +421,8 @@ static int process(proto_call *c)
 					      proto__emp_qc(warn);
 			}
 		}
-		if (isnan(v_s) && (vs->present || dts->present))
-			fl |= QC_LOG_MISSING;
-		if (isnan(v_s) && vsp != VSP_NONE && !isnan(v_p)) {
+		if (!vsp_block && isnan(v_s) && vsp != VSP_NONE &&
+		    !isnan(v_p)) {
 			int st;
 			warn = 0;
 			if (vsp == VSP_MUDROCK) {
@@ -444,7 +455,8 @@ static int process(proto_call *c)
 			r->vpvs = e.vpvs;
 		} else {
 			fl |= proto_qc_impossible(why) | QC_INPUT_INVALID;
-			if (isnan(v_s) || isnan(v_p) || isnan(rho))
+			if (!vsp_block &&
+			    (isnan(v_s) || isnan(v_p) || isnan(rho)))
 				fl |= QC_LOG_MISSING;
 		}
 		if (subst) {

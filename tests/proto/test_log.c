@@ -153,6 +153,17 @@ static void test_qc_flags(void **state)
 	/* The measured density is kept when it is doubtful. */
 	close_to(num(r, "rho", 1), 2.3, 1e-12);
 	cJSON_Delete(r);
+	/* Non-positive slowness or density: impossible, null, nothing
+	 * predicted over it (mudrock asked). */
+	r = h_call(&H, REQ("{\"dtp\":[100,100,-5],\"dts\":[-1,180,180],"
+			   "\"rhob\":[2.3,-2,2.3],\"vs_predict\":\"mudrock\"}"));
+	assert_int_equal(qc(r, 0), B_INVALID);
+	assert_true(isnan(num(r, "vs", 0)));
+	assert_int_equal(qc(r, 1), B_INVALID | (1u << 1));
+	assert_true(isnan(num(r, "rho", 1)));
+	assert_int_equal(qc(r, 2), B_INVALID);
+	assert_true(isnan(num(r, "vp", 2)));
+	cJSON_Delete(r);
 	/* Thresholds are parameters (in the request's units). */
 	r = h_call(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 			   "\"drho\":0.06,\"drho_limit\":0.1,"

@@ -51,6 +51,7 @@ typedef struct feed {
 	/* the sample being assembled */
 	double val[16];
 	int have[16];
+	int seen[16]; /* the stream has carried this input */
 	int any;
 	/* pipeline */
 	cli_buf wbuf;
@@ -120,8 +121,9 @@ static int add_map(feed *f, const char *arg)
 }
 
 /* Queues the assembled sample as one log.process request. Every mapped
- * input goes as a one-element array, [null] when this sample lacks it,
- * so the daemon flags it missing rather than refusing the sample. */
+ * input the stream has carried so far goes as a one-element array, [null]
+ * when this sample lacks it, so the daemon flags it missing rather than
+ * refusing the sample. */
 static int send_sample(feed *f)
 {
 	char head[128], num[48];
@@ -141,6 +143,8 @@ static int send_sample(feed *f)
 	for (size_t m = 0; m < f->nmap; m++) {
 		int in = f->input[m];
 		size_t n;
+		if (!f->seen[in])
+			continue; /* never in this stream: not an input */
 		snprintf(head, sizeof head, "%s\"%s\":[", first ? "" : ",",
 			 feed_inputs[in]);
 		first = 0;
@@ -169,6 +173,7 @@ static void on_record(void *ctx, const cli_wits_item *items, size_t n)
 			if (f->code[m] == items[i].code) {
 				f->val[f->input[m]] = items[i].value;
 				f->have[f->input[m]] = 1;
+				f->seen[f->input[m]] = 1;
 				mapped = f->any = 1;
 				if (f->input[m] == f->depth_input)
 					depth_here = 1;
@@ -188,13 +193,13 @@ static void on_record(void *ctx, const cli_wits_item *items, size_t n)
 /* Replaces one-element arrays by their element. */
 static void flatten(cJSON *res)
 {
-	cJSON *m;
-	cJSON_ArrayForEach(m, res)
-	{
+	cJSON *m, *next;
+	for (m = res->child; m; m = next) {
+		next = m->next;
 		if (cJSON_IsArray(m) && cJSON_GetArraySize(m) == 1) {
 			cJSON *e = cJSON_DetachItemFromArray(m, 0);
-			cJSON_ReplaceItemViaPointer(res, m, e);
-			m = e;
+			cJSON_ReplaceItemInObjectCaseSensitive(res, m->string,
+							       e);
 		}
 	}
 }
@@ -330,6 +335,7 @@ int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 	char buf[READ_CHUNK];
 	cli_conn c;
 	int in_fd = 0, in_open = 1, rc = CLI_EXIT_IO, connected = 0;
+	int gr_explicit = 0;
 
 	memset(&f, 0, sizeof f);
 	if (!params)
@@ -344,6 +350,8 @@ int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 		if (strcmp(a, "--map") == 0 && v) {
 			if (add_map(&f, v))
 				goto usage;
+			if (strcmp(strchr(v, '=') + 1, "gr") == 0)
+				gr_explicit = 1;
 			i++;
 		} else if (strcmp(a, "--connect") == 0 && v) {
 			connect_to = v;
@@ -366,6 +374,16 @@ int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 		}
 	}
 	f.depth_input = input_index("depth");
+	/* Gamma ray needs gr_clean and gr_shale: without them the default
+	 * gr mapping is dropped (an explicit --map keeps it). */
+	if (!gr_explicit && !cJSON_GetObjectItemCaseSensitive(params,
+							       "gr_clean"))
+		for (size_t m = 0; m < f.nmap; m++)
+			if (f.input[m] == input_index("gr")) {
+				f.code[m] = f.code[--f.nmap];
+				f.input[m] = f.input[f.nmap];
+				break;
+			}
 	{
 		int has_depth = 0;
 		for (size_t m = 0; m < f.nmap; m++) {

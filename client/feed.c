@@ -23,15 +23,15 @@
 #include "logio.h"
 #include "wits.h"
 
-#define WHO "rockwire feed"
+#define WHO           "rockwire feed"
 #define FEED_INFLIGHT 64
-#define MAX_MAP 32
-#define READ_CHUNK 4096
+#define MAX_MAP       32
+#define READ_CHUNK    4096
 
 static const char *const feed_inputs[] = {
-	"depth", "dtp",	    "dts", "vp",       "vs",	   "rhob",	  "drho",
-	"caliper", "bit_size", "gr", "vsh", "porosity", "pressure",
-	"temperature", NULL};
+    "depth", "dtp",      "dts",      "vp",          "vs",
+    "rhob",  "drho",     "caliper",  "bit_size",    "gr",
+    "vsh",   "porosity", "pressure", "temperature", NULL};
 
 /* Default map (rockwire's own choice for its demo streams, not the WITS
  * item tables: map your feed explicitly). */
@@ -39,8 +39,8 @@ static const struct {
 	unsigned code;
 	const char *input;
 } default_map[] = {
-	{108, "depth"}, {113, "dtp"},	  {114, "dts"}, {115, "rhob"},
-	{116, "drho"},	{117, "caliper"}, {118, "bit_size"}, {119, "gr"},
+    {108, "depth"}, {113, "dtp"},     {114, "dts"},      {115, "rhob"},
+    {116, "drho"},  {117, "caliper"}, {118, "bit_size"}, {119, "gr"},
 };
 
 typedef struct feed {
@@ -80,25 +80,27 @@ static int add_map(feed *f, const char *arg)
 	int in;
 
 	if (!eq || eq - arg != 4) {
-		fprintf(stderr, WHO ": --map wants RRII=INPUT with a 4-digit "
-				    "record+item code, not '%s'\n",
-			arg);
+		fprintf(stderr,
+		        WHO ": --map wants RRII=INPUT with a 4-digit "
+		            "record+item code, not '%s'\n",
+		        arg);
 		return -1;
 	}
 	for (int i = 0; i < 4; i++) {
 		if (arg[i] < '0' || arg[i] > '9') {
 			fprintf(stderr, WHO ": --map: '%.4s' is not 4 digits\n",
-				arg);
+			        arg);
 			return -1;
 		}
 		code = code * 10 + (unsigned)(arg[i] - '0');
 	}
 	in = input_index(eq + 1);
 	if (in < 0 && strcmp(eq + 1, "none") != 0) {
-		fprintf(stderr, WHO ": --map: unknown input '%s'; inputs: depth "
-				    "dtp dts vp vs rhob drho caliper bit_size "
-				    "gr vsh porosity pressure temperature\n",
-			eq + 1);
+		fprintf(stderr,
+		        WHO ": --map: unknown input '%s'; inputs: depth "
+		            "dtp dts vp vs rhob drho caliper bit_size "
+		            "gr vsh porosity pressure temperature\n",
+		        eq + 1);
 		return -1;
 	}
 	for (size_t i = 0; i < f->nmap; i++)
@@ -130,9 +132,9 @@ static int send_sample(feed *f)
 	int first = 1;
 
 	snprintf(head, sizeof head,
-		 "{\"jsonrpc\":\"2.0\",\"id\":%lu,\"method\":\"log.process\","
-		 "\"params\":{",
-		 f->next_id++);
+	         "{\"jsonrpc\":\"2.0\",\"id\":%lu,\"method\":\"log.process\","
+	         "\"params\":{",
+	         f->next_id++);
 	if (cli__buf_puts(&f->wbuf, head))
 		return -1;
 	if (*f->base) {
@@ -146,7 +148,7 @@ static int send_sample(feed *f)
 		if (!f->seen[in])
 			continue; /* never in this stream: not an input */
 		snprintf(head, sizeof head, "%s\"%s\":[", first ? "" : ",",
-			 feed_inputs[in]);
+		         feed_inputs[in]);
 		first = 0;
 		n = cli__fmt_num(num, f->have[in] ? f->val[in] : NAN, 0, NULL);
 		if (cli__buf_puts(&f->wbuf, head) ||
@@ -199,7 +201,7 @@ static void flatten(cJSON *res)
 		if (cJSON_IsArray(m) && cJSON_GetArraySize(m) == 1) {
 			cJSON *e = cJSON_DetachItemFromArray(m, 0);
 			cJSON_ReplaceItemInObjectCaseSensitive(res, m->string,
-							       e);
+			                                       e);
 		}
 	}
 }
@@ -236,7 +238,7 @@ static void print_csv(feed *f, const cJSON *res)
 		if (strcmp(m->string, "n") == 0)
 			continue;
 		cli__fmt_num(num, cJSON_IsNumber(m) ? m->valuedouble : NAN, 0,
-			     "");
+		             "");
 		printf("%s%s", first ? "" : ",", num);
 		first = 0;
 	}
@@ -261,11 +263,12 @@ static int on_line(void *ctx, char *line, size_t len)
 	if (err || !cJSON_IsObject(res)) {
 		const cJSON *d = cJSON_GetObjectItemCaseSensitive(err, "data");
 		const cJSON *p = cJSON_GetObjectItemCaseSensitive(d, "param");
-		const cJSON *why = cJSON_GetObjectItemCaseSensitive(d, "reason");
+		const cJSON *why =
+		    cJSON_GetObjectItemCaseSensitive(d, "reason");
 		if (f->rejected < 5)
 			fprintf(stderr, WHO ": sample refused: %s: %s\n",
-				cJSON_IsString(p) ? p->valuestring : "?",
-				cJSON_IsString(why) ? why->valuestring : "?");
+			        cJSON_IsString(p) ? p->valuestring : "?",
+			        cJSON_IsString(why) ? why->valuestring : "?");
 		f->rejected++;
 		cJSON_Delete(r);
 		return 0;
@@ -297,7 +300,7 @@ static int tcp_connect(const char *hp)
 	if (!colon || colon == hp || (size_t)(colon - hp) >= sizeof host ||
 	    !colon[1]) {
 		fprintf(stderr, WHO ": --connect wants HOST:PORT, not '%s'\n",
-			hp);
+		        hp);
 		return -2;
 	}
 	memcpy(host, hp, (size_t)(colon - hp));
@@ -311,7 +314,7 @@ static int tcp_connect(const char *hp)
 	}
 	for (ai = res; ai; ai = ai->ai_next) {
 		fd = socket(ai->ai_family, ai->ai_socktype | SOCK_CLOEXEC,
-			    ai->ai_protocol);
+		            ai->ai_protocol);
 		if (fd < 0)
 			continue;
 		if (connect(fd, ai->ai_addr, ai->ai_addrlen) == 0)
@@ -322,7 +325,7 @@ static int tcp_connect(const char *hp)
 	freeaddrinfo(res);
 	if (fd < 0)
 		fprintf(stderr, WHO ": cannot connect to %s: %s\n", hp,
-			strerror(errno));
+		        strerror(errno));
 	return fd;
 }
 
@@ -364,7 +367,8 @@ int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 			if (strcmp(v, "csv") == 0)
 				f.csv = 1;
 			else if (strcmp(v, "ndjson") != 0) {
-				fprintf(stderr, WHO ": --format ndjson or csv\n");
+				fprintf(stderr,
+				        WHO ": --format ndjson or csv\n");
 				goto usage;
 			}
 			i++;
@@ -376,8 +380,8 @@ int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 	f.depth_input = input_index("depth");
 	/* Gamma ray needs gr_clean and gr_shale: without them the default
 	 * gr mapping is dropped (an explicit --map keeps it). */
-	if (!gr_explicit && !cJSON_GetObjectItemCaseSensitive(params,
-							       "gr_clean"))
+	if (!gr_explicit &&
+	    !cJSON_GetObjectItemCaseSensitive(params, "gr_clean"))
 		for (size_t m = 0; m < f.nmap; m++)
 			if (f.input[m] == input_index("gr")) {
 				f.code[m] = f.code[--f.nmap];
@@ -389,18 +393,18 @@ int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 		for (size_t m = 0; m < f.nmap; m++) {
 			has_depth |= f.input[m] == f.depth_input;
 			if (cJSON_GetObjectItemCaseSensitive(
-				params, feed_inputs[f.input[m]])) {
+			        params, feed_inputs[f.input[m]])) {
 				fprintf(stderr,
-					WHO ": %s is both mapped and --set; "
-					    "drop one\n",
-					feed_inputs[f.input[m]]);
+				        WHO ": %s is both mapped and --set; "
+				            "drop one\n",
+				        feed_inputs[f.input[m]]);
 				goto usage;
 			}
 		}
 		if (!has_depth) {
 			fprintf(stderr, WHO ": no code is mapped to depth; a "
-					    "sample is completed by its depth "
-					    "item\n");
+			                    "sample is completed by its depth "
+			                    "item\n");
 			goto usage;
 		}
 	}
@@ -434,17 +438,17 @@ int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 	for (;;) {
 		int ready = 0, st;
 		int room = f.inflight < FEED_INFLIGHT &&
-			   f.wbuf.len - f.wbuf.off < 65536;
+		           f.wbuf.len - f.wbuf.off < 65536;
 		if (!in_open && !f.inflight && f.wbuf.off == f.wbuf.len)
 			break;
 		st = cli__pipe_step(&c, &f.wbuf, f.inflight > 0,
-				    in_open && room ? in_fd : -1, &ready, -1,
-				    on_line, &f);
+		                    in_open && room ? in_fd : -1, &ready, -1,
+		                    on_line, &f);
 		if (st < 0)
 			goto out;
 		if (st == 1 && (f.inflight || f.wbuf.off < f.wbuf.len)) {
 			fprintf(stderr, WHO ": the daemon closed the "
-					    "connection early\n");
+			                    "connection early\n");
 			goto out;
 		}
 		if (ready) {
@@ -454,7 +458,7 @@ int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 			if (n <= 0) {
 				if (n < 0)
 					fprintf(stderr, WHO ": read: %s\n",
-						strerror(errno));
+					        strerror(errno));
 				in_open = 0;
 				cli_wits_finish(&wp);
 			} else {
@@ -472,19 +476,19 @@ out:
 	{
 		const cli_wits_stats *s = cli_wits_get_stats(&wp);
 		fprintf(stderr,
-			"feed: %lu records, %lu samples sent, %lu answered, "
-			"%lu refused; skipped: %lu malformed records, %lu "
-			"unterminated, %lu empty, %lu bad lines, %lu long "
-			"lines, %lu lines outside records; %lu records "
-			"without mapped items, %lu held for the next depth\n",
-			s->records, f.samples_sent, f.answered, f.rejected,
-			s->bad_records, s->unterminated, s->empty,
-			s->bad_lines, s->long_lines, s->garbage,
-			f.unmapped_records, f.no_depth_records);
+		        "feed: %lu records, %lu samples sent, %lu answered, "
+		        "%lu refused; skipped: %lu malformed records, %lu "
+		        "unterminated, %lu empty, %lu bad lines, %lu long "
+		        "lines, %lu lines outside records; %lu records "
+		        "without mapped items, %lu held for the next depth\n",
+		        s->records, f.samples_sent, f.answered, f.rejected,
+		        s->bad_records, s->unterminated, s->empty, s->bad_lines,
+		        s->long_lines, s->garbage, f.unmapped_records,
+		        f.no_depth_records);
 	}
 	if (f.any)
 		fprintf(stderr, WHO ": values after the last depth item were "
-				    "not sent (no depth completed them)\n");
+		                    "not sent (no depth completed them)\n");
 	if (connected)
 		cli_disconnect(&c);
 	if (in_fd > 0)
@@ -495,8 +499,8 @@ out:
 	return rc;
 usage:
 	fprintf(stderr, "usage: rockwire feed [--connect HOST:PORT] "
-			"[--map RRII=INPUT|none ...] [--format ndjson|csv]\n"
-			"       [--set NAME=VALUE ...]\n");
+	                "[--map RRII=INPUT|none ...] [--format ndjson|csv]\n"
+	                "       [--set NAME=VALUE ...]\n");
 	rc = CLI_EXIT_USAGE;
 	goto out;
 }

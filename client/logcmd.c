@@ -27,40 +27,56 @@
 #define RW_VERSION "0.0.0"
 #endif
 
-#define WHO "rockwire log"
+#define WHO          "rockwire log"
 #define MAX_INFLIGHT 64
-#define MAX_OUT 64
+#define MAX_OUT      64
 
 /* Quantity kinds of the inputs, for unit conversion. */
 enum { K_LEN, K_SLOW, K_VEL, K_DEN, K_FRAC, K_GR, K_PRES, K_TEMP };
 
 typedef struct unit_map {
 	int kind;
-	const char *las; /* upper case */
+	const char *las;      /* upper case */
 	double scale, offset; /* to the protocol default: v*scale+offset */
 } unit_map;
 
 #define PSI_MPA 0.006894757293168361
 static const unit_map units[] = {
-	{K_LEN, "M", 1, 0},	     {K_LEN, "FT", 0.3048, 0},
-	{K_LEN, "F", 0.3048, 0},     {K_LEN, "IN", 0.0254, 0},
-	{K_LEN, "CM", 0.01, 0},	     {K_LEN, "MM", 0.001, 0},
-	{K_SLOW, "US/F", 1, 0},	     {K_SLOW, "US/FT", 1, 0},
-	{K_SLOW, "USEC/FT", 1, 0},   {K_SLOW, "US/M", 0.3048, 0},
-	{K_SLOW, "USEC/M", 0.3048, 0}, {K_VEL, "M/S", 1, 0},
-	{K_VEL, "KM/S", 1000, 0},    {K_VEL, "FT/S", 0.3048, 0},
-	{K_VEL, "F/S", 0.3048, 0},   {K_DEN, "G/C3", 1, 0},
-	{K_DEN, "G/CC", 1, 0},	     {K_DEN, "G/CM3", 1, 0},
-	{K_DEN, "GM/CC", 1, 0},	     {K_DEN, "KG/M3", 0.001, 0},
-	{K_FRAC, "", 1, 0},	     {K_FRAC, "V/V", 1, 0},
-	{K_FRAC, "FRAC", 1, 0},	     {K_FRAC, "DEC", 1, 0},
-	{K_FRAC, "%", 0.01, 0},	     {K_FRAC, "PU", 0.01, 0},
-	{K_PRES, "MPA", 1, 0},	     {K_PRES, "KPA", 0.001, 0},
-	{K_PRES, "BAR", 0.1, 0},     {K_PRES, "PSI", PSI_MPA, 0},
-	{K_TEMP, "DEGC", 1, 0},	     {K_TEMP, "C", 1, 0},
-	{K_TEMP, "DEGF", 5.0 / 9, -32.0 * 5 / 9},
-	{K_TEMP, "F", 5.0 / 9, -32.0 * 5 / 9},
-	{K_TEMP, "K", 1, -273.15},
+    {K_LEN, "M", 1, 0},
+    {K_LEN, "FT", 0.3048, 0},
+    {K_LEN, "F", 0.3048, 0},
+    {K_LEN, "IN", 0.0254, 0},
+    {K_LEN, "CM", 0.01, 0},
+    {K_LEN, "MM", 0.001, 0},
+    {K_SLOW, "US/F", 1, 0},
+    {K_SLOW, "US/FT", 1, 0},
+    {K_SLOW, "USEC/FT", 1, 0},
+    {K_SLOW, "US/M", 0.3048, 0},
+    {K_SLOW, "USEC/M", 0.3048, 0},
+    {K_VEL, "M/S", 1, 0},
+    {K_VEL, "KM/S", 1000, 0},
+    {K_VEL, "FT/S", 0.3048, 0},
+    {K_VEL, "F/S", 0.3048, 0},
+    {K_DEN, "G/C3", 1, 0},
+    {K_DEN, "G/CC", 1, 0},
+    {K_DEN, "G/CM3", 1, 0},
+    {K_DEN, "GM/CC", 1, 0},
+    {K_DEN, "KG/M3", 0.001, 0},
+    {K_FRAC, "", 1, 0},
+    {K_FRAC, "V/V", 1, 0},
+    {K_FRAC, "FRAC", 1, 0},
+    {K_FRAC, "DEC", 1, 0},
+    {K_FRAC, "%", 0.01, 0},
+    {K_FRAC, "PU", 0.01, 0},
+    {K_PRES, "MPA", 1, 0},
+    {K_PRES, "KPA", 0.001, 0},
+    {K_PRES, "BAR", 0.1, 0},
+    {K_PRES, "PSI", PSI_MPA, 0},
+    {K_TEMP, "DEGC", 1, 0},
+    {K_TEMP, "C", 1, 0},
+    {K_TEMP, "DEGF", 5.0 / 9, -32.0 * 5 / 9},
+    {K_TEMP, "F", 5.0 / 9, -32.0 * 5 / 9},
+    {K_TEMP, "K", 1, -273.15},
 };
 
 /* The inputs of log.process a curve can feed, with default mnemonics. */
@@ -71,56 +87,56 @@ typedef struct input_def {
 } input_def;
 
 static const input_def inputs[] = {
-	{"depth", K_LEN, {"DEPT", "DEPTH", "MD"}},
-	{"dtp", K_SLOW, {"DT", "DTC", "DTCO", "DTP", "AC"}},
-	{"dts", K_SLOW, {"DTS", "DTSM", "DTSH"}},
-	{"vp", K_VEL, {"VP"}},
-	{"vs", K_VEL, {"VS"}},
-	{"rhob", K_DEN, {"RHOB", "RHOZ", "DEN"}},
-	{"drho", K_DEN, {"DRHO", "DCOR"}},
-	{"caliper", K_LEN, {"CALI", "CAL", "HCAL"}},
-	{"bit_size", K_LEN, {"BS", "BIT"}},
-	{"gr", K_GR, {"GR", "GRC"}},
-	{"vsh", K_FRAC, {"VSH", "VCL"}},
-	{"porosity", K_FRAC, {"PHIT", "PHIE", "POR"}},
-	{"pressure", K_PRES, {NULL}},
-	{"temperature", K_TEMP, {NULL}},
+    {"depth", K_LEN, {"DEPT", "DEPTH", "MD"}},
+    {"dtp", K_SLOW, {"DT", "DTC", "DTCO", "DTP", "AC"}},
+    {"dts", K_SLOW, {"DTS", "DTSM", "DTSH"}},
+    {"vp", K_VEL, {"VP"}},
+    {"vs", K_VEL, {"VS"}},
+    {"rhob", K_DEN, {"RHOB", "RHOZ", "DEN"}},
+    {"drho", K_DEN, {"DRHO", "DCOR"}},
+    {"caliper", K_LEN, {"CALI", "CAL", "HCAL"}},
+    {"bit_size", K_LEN, {"BS", "BIT"}},
+    {"gr", K_GR, {"GR", "GRC"}},
+    {"vsh", K_FRAC, {"VSH", "VCL"}},
+    {"porosity", K_FRAC, {"PHIT", "PHIE", "POR"}},
+    {"pressure", K_PRES, {NULL}},
+    {"temperature", K_TEMP, {NULL}},
 };
 #define N_INPUTS (sizeof inputs / sizeof inputs[0])
 
-static const char *const kind_names[] = {"length", "slowness", "velocity",
-					 "density", "fraction", "gamma ray",
-					 "pressure", "temperature"};
+static const char *const kind_names[] = {"length",   "slowness",   "velocity",
+                                         "density",  "fraction",   "gamma ray",
+                                         "pressure", "temperature"};
 
 /* Descriptions of the result columns. */
 static const struct {
 	const char *key, *desc;
 } col_desc[] = {
-	{"vp", "P-wave velocity"},
-	{"vs", "S-wave velocity"},
-	{"rho", "bulk density used"},
-	{"k", "bulk modulus"},
-	{"mu", "shear modulus"},
-	{"lambda", "Lame lambda"},
-	{"e", "Young's modulus"},
-	{"nu", "Poisson's ratio"},
-	{"ai", "acoustic impedance"},
-	{"si", "shear impedance"},
-	{"vpvs", "Vp/Vs ratio"},
-	{"vsh", "shale volume used"},
-	{"vp_sub", "P-wave velocity after fluid substitution"},
-	{"vs_sub", "S-wave velocity after fluid substitution"},
-	{"rho_sub", "density after fluid substitution"},
-	{"k_sub", "bulk modulus after fluid substitution"},
-	{"ai_sub", "acoustic impedance after fluid substitution"},
-	{"si_sub", "shear impedance after fluid substitution"},
-	{"vpvs_sub", "Vp/Vs after fluid substitution"},
-	{"nu_sub", "Poisson's ratio after fluid substitution"},
-	{"k_fl_in_place", "bulk modulus of the fluid in place"},
-	{"rho_fl_in_place", "density of the fluid in place"},
-	{"k_fl_new", "bulk modulus of the new fluid"},
-	{"rho_fl_new", "density of the new fluid"},
-	{"qc", "QC flag bits (0 clean; legend in ~Other)"},
+    {"vp", "P-wave velocity"},
+    {"vs", "S-wave velocity"},
+    {"rho", "bulk density used"},
+    {"k", "bulk modulus"},
+    {"mu", "shear modulus"},
+    {"lambda", "Lame lambda"},
+    {"e", "Young's modulus"},
+    {"nu", "Poisson's ratio"},
+    {"ai", "acoustic impedance"},
+    {"si", "shear impedance"},
+    {"vpvs", "Vp/Vs ratio"},
+    {"vsh", "shale volume used"},
+    {"vp_sub", "P-wave velocity after fluid substitution"},
+    {"vs_sub", "S-wave velocity after fluid substitution"},
+    {"rho_sub", "density after fluid substitution"},
+    {"k_sub", "bulk modulus after fluid substitution"},
+    {"ai_sub", "acoustic impedance after fluid substitution"},
+    {"si_sub", "shear impedance after fluid substitution"},
+    {"vpvs_sub", "Vp/Vs after fluid substitution"},
+    {"nu_sub", "Poisson's ratio after fluid substitution"},
+    {"k_fl_in_place", "bulk modulus of the fluid in place"},
+    {"rho_fl_in_place", "density of the fluid in place"},
+    {"k_fl_new", "bulk modulus of the new fluid"},
+    {"rho_fl_new", "density of the new fluid"},
+    {"qc", "QC flag bits (0 clean; legend in ~Other)"},
 };
 
 typedef struct slot {
@@ -136,9 +152,9 @@ typedef struct logrun {
 	const char *path;
 	int csv, digits, summary, progress, subst, gr_levels;
 	size_t block, inflight_max;
-	int col[N_INPUTS];          /* curve index per input, -1 none */
+	int col[N_INPUTS]; /* curve index per input, -1 none */
 	double scale[N_INPUTS], offset[N_INPUTS];
-	char *base;                 /* params JSON without the braces */
+	char *base; /* params JSON without the braces */
 	size_t ncurves;
 	/* the pipeline */
 	slot slots[MAX_INFLIGHT];
@@ -182,21 +198,21 @@ static void progress(logrun *L, int final)
 		return;
 	clock_gettime(CLOCK_MONOTONIC, &t);
 	if (!final && (double)(t.tv_sec - L->last.tv_sec) +
-			      (double)(t.tv_nsec - L->last.tv_nsec) * 1e-9 <
-			  0.25)
+	                      (double)(t.tv_nsec - L->last.tv_nsec) * 1e-9 <
+	                  0.25)
 		return;
 	L->last = t;
 	el = now_s(&L->t0);
 	pos = ftell(L->in);
 	frac = L->total_bytes > 0 && pos > 0
-		   ? (double)pos / (double)L->total_bytes
-		   : 0;
+	           ? (double)pos / (double)L->total_bytes
+	           : 0;
 	if (final)
 		frac = 1;
 	int bar = (int)(frac * 30);
 	fprintf(stderr, "\r[%.*s%*s] %3.0f%% %llu samples %.0f/s", bar,
-		"##############################", 30 - bar, "", 100 * frac,
-		L->samples, el > 0 ? (double)L->samples / el : 0.0);
+	        "##############################", 30 - bar, "", 100 * frac,
+	        L->samples, el > 0 ? (double)L->samples / el : 0.0);
 	if (!final && frac > 0.01)
 		fprintf(stderr, " %.0fs left  ", el * (1 / frac - 1));
 	else
@@ -207,7 +223,7 @@ static void progress(logrun *L, int final)
 
 /* Maps the LAS unit of a curve to the protocol's default unit. */
 static int unit_conv(const cli_las_line *cv, const char *input, int kind,
-		     double *scale, double *offset)
+                     double *scale, double *offset)
 {
 	char up[64], list[256];
 	size_t n = strlen(cv->unit), used = 0;
@@ -231,15 +247,15 @@ static int unit_conv(const cli_las_line *cv, const char *input, int kind,
 			return 0;
 		}
 		int w = snprintf(list + used, sizeof list - used, "%s%s",
-				 used ? ", " : "",
-				 *units[i].las ? units[i].las : "(none)");
+		                 used ? ", " : "",
+		                 *units[i].las ? units[i].las : "(none)");
 		if (w > 0 && (size_t)w < sizeof list - used)
 			used += (size_t)w;
 	}
 	fprintf(stderr,
-		WHO ": curve %s (line %lu) feeds %s, but its unit '%s' is not "
-		    "a %s unit this client knows; accepted: %s\n",
-		cv->mnem, cv->lineno, input, cv->unit, kind_names[kind], list);
+	        WHO ": curve %s (line %lu) feeds %s, but its unit '%s' is not "
+	            "a %s unit this client knows; accepted: %s\n",
+	        cv->mnem, cv->lineno, input, cv->unit, kind_names[kind], list);
 	return -1;
 }
 
@@ -262,21 +278,24 @@ static int map_curves(logrun *L, char **maps, size_t nmaps)
 		const char *eq = strchr(maps[m], '=');
 		char name[32];
 		int in;
-		if (!eq || eq == maps[m] || (size_t)(eq - maps[m]) >= sizeof name) {
-			fprintf(stderr, WHO ": --curve wants INPUT=MNEMONIC, "
-					    "not '%s'\n",
-				maps[m]);
+		if (!eq || eq == maps[m] ||
+		    (size_t)(eq - maps[m]) >= sizeof name) {
+			fprintf(stderr,
+			        WHO ": --curve wants INPUT=MNEMONIC, "
+			            "not '%s'\n",
+			        maps[m]);
 			return -1;
 		}
 		memcpy(name, maps[m], (size_t)(eq - maps[m]));
 		name[eq - maps[m]] = '\0';
 		in = find_input(name);
 		if (in < 0) {
-			fprintf(stderr, WHO ": --curve: unknown input '%s'; "
-					    "inputs: depth dtp dts vp vs rhob "
-					    "drho caliper bit_size gr vsh "
-					    "porosity pressure temperature\n",
-				name);
+			fprintf(stderr,
+			        WHO ": --curve: unknown input '%s'; "
+			            "inputs: depth dtp dts vp vs rhob "
+			            "drho caliper bit_size gr vsh "
+			            "porosity pressure temperature\n",
+			        name);
 			return -1;
 		}
 		expl[in] = 1;
@@ -290,8 +309,8 @@ static int map_curves(logrun *L, char **maps, size_t nmaps)
 			}
 		if (L->col[in] < 0) {
 			fprintf(stderr,
-				WHO ": --curve %s: %s has no curve '%s'\n",
-				name, L->path, eq + 1);
+			        WHO ": --curve %s: %s has no curve '%s'\n",
+			        name, L->path, eq + 1);
 			return -1;
 		}
 	}
@@ -302,7 +321,7 @@ static int map_curves(logrun *L, char **maps, size_t nmaps)
 		     k++)
 			for (size_t c = 0; c < L->ncurves; c++)
 				if (strcasecmp(cli_las_curve(L->r, c)->mnem,
-					       inputs[i].mnems[k]) == 0) {
+				               inputs[i].mnems[k]) == 0) {
 					L->col[i] = (int)c;
 					break;
 				}
@@ -310,7 +329,7 @@ static int map_curves(logrun *L, char **maps, size_t nmaps)
 	/* Defaults never give both members of a pair: the slowness and the
 	 * shale volume win over velocity and gamma ray. */
 	static const char *const pairs[][2] = {
-		{"dtp", "vp"}, {"dts", "vs"}, {"vsh", "gr"}};
+	    {"dtp", "vp"}, {"dts", "vs"}, {"vsh", "gr"}};
 	for (size_t p = 0; p < 3; p++) {
 		int a = find_input(pairs[p][0]), b = find_input(pairs[p][1]);
 		if (L->col[a] >= 0 && L->col[b] >= 0 && !expl[b])
@@ -326,17 +345,17 @@ static int map_curves(logrun *L, char **maps, size_t nmaps)
 		L->col[find_input("gr")] = -1;
 	if (!L->subst)
 		for (size_t i = 0; i < N_INPUTS; i++)
-			if (!expl[i] && (strcmp(inputs[i].name, "porosity") == 0 ||
-					 strcmp(inputs[i].name, "pressure") == 0 ||
-					 strcmp(inputs[i].name, "temperature") ==
-					     0))
+			if (!expl[i] &&
+			    (strcmp(inputs[i].name, "porosity") == 0 ||
+			     strcmp(inputs[i].name, "pressure") == 0 ||
+			     strcmp(inputs[i].name, "temperature") == 0))
 				L->col[i] = -1;
 	for (size_t i = 0; i < N_INPUTS; i++) {
 		if (L->col[i] < 0)
 			continue;
 		if (unit_conv(cli_las_curve(L->r, (size_t)L->col[i]),
-			      inputs[i].name, inputs[i].kind, &L->scale[i],
-			      &L->offset[i]))
+		              inputs[i].name, inputs[i].kind, &L->scale[i],
+		              &L->offset[i]))
 			return -1;
 	}
 	return 0;
@@ -349,9 +368,9 @@ static int queue_block(logrun *L, slot *s)
 	int first = 1;
 
 	snprintf(head, sizeof head,
-		 "{\"jsonrpc\":\"2.0\",\"id\":%lu,\"method\":\"log.process\","
-		 "\"params\":{",
-		 s->id);
+	         "{\"jsonrpc\":\"2.0\",\"id\":%lu,\"method\":\"log.process\","
+	         "\"params\":{",
+	         s->id);
 	if (cli__buf_puts(&L->wbuf, head))
 		return -1;
 	if (*L->base) {
@@ -363,7 +382,7 @@ static int queue_block(logrun *L, slot *s)
 		if (L->col[i] < 0)
 			continue;
 		snprintf(head, sizeof head, "%s\"%s\":[", first ? "" : ",",
-			 inputs[i].name);
+		         inputs[i].name);
 		first = 0;
 		if (cli__buf_puts(&L->wbuf, head))
 			return -1;
@@ -375,7 +394,7 @@ static int queue_block(logrun *L, slot *s)
 			n = cli__fmt_num(num + 1, v, 0, NULL);
 			num[0] = ',';
 			if (cli__buf_put(&L->wbuf, j ? num : num + 1,
-					 j ? n + 1 : n))
+			                 j ? n + 1 : n))
 				return -1;
 		}
 		if (cli__buf_put(&L->wbuf, "]", 1))
@@ -421,7 +440,7 @@ static int start_output(logrun *L, const cJSON *res)
 		/* A clash with an input mnemonic gets a suffix. */
 		for (size_t c = 0; c < L->ncurves; c++)
 			if (strcasecmp(cli_las_curve(L->r, c)->mnem,
-				       L->out_mnem[k]) == 0) {
+			               L->out_mnem[k]) == 0) {
 				size_t e = strlen(L->out_mnem[k]);
 				memcpy(L->out_mnem[k] + e, "_2", 3);
 				break;
@@ -430,18 +449,18 @@ static int start_output(logrun *L, const cJSON *res)
 		L->out_unit[k][0] = '\0';
 		if (cJSON_IsString(u)) {
 			/* LAS spells g/cm3 G/C3. */
-			const char *us = u->valuestring, *gc = strstr(us,
-								     "g/cm3");
+			const char *us = u->valuestring,
+			           *gc = strstr(us, "g/cm3");
 			if (gc) {
 				snprintf(L->out_unit[k], sizeof L->out_unit[k],
-					 "%.*sG/C3", (int)(gc - us), us);
+				         "%.*sG/C3", (int)(gc - us), us);
 				for (j = 0; j < (size_t)(gc - us); j++)
-					L->out_unit[k][j] = (char)toupper(
-					    (unsigned char)us[j]);
+					L->out_unit[k][j] =
+					    (char)toupper((unsigned char)us[j]);
 			} else
-			for (j = 0; u->valuestring[j] && j < 31; j++)
-				L->out_unit[k][j] = (char)toupper(
-				    (unsigned char)u->valuestring[j]);
+				for (j = 0; u->valuestring[j] && j < 31; j++)
+					L->out_unit[k][j] = (char)toupper(
+					    (unsigned char)u->valuestring[j]);
 			if (!gc)
 				L->out_unit[k][j] = '\0';
 		}
@@ -454,16 +473,16 @@ static int start_output(logrun *L, const cJSON *res)
 		return -1;
 	L->have_cols = 1;
 	/* ~Other: how the new curves were made. */
-	const cJSON *vsp = cJSON_GetObjectItemCaseSensitive(res,
-							    "vs_predicted_by");
-	const cJSON *rhp = cJSON_GetObjectItemCaseSensitive(res,
-							    "rho_predicted_by");
-	const cJSON *sub = cJSON_GetObjectItemCaseSensitive(res, "substitution");
-	used += (size_t)snprintf(
-	    L->note + used, sizeof L->note - used,
-	    "Curves %s to %s added by rockwire " RW_VERSION
-	    " (log.process) from this file's curves;",
-	    L->out_mnem[0], L->out_mnem[L->nout - 1]);
+	const cJSON *vsp =
+	    cJSON_GetObjectItemCaseSensitive(res, "vs_predicted_by");
+	const cJSON *rhp =
+	    cJSON_GetObjectItemCaseSensitive(res, "rho_predicted_by");
+	const cJSON *sub =
+	    cJSON_GetObjectItemCaseSensitive(res, "substitution");
+	used += (size_t)snprintf(L->note + used, sizeof L->note - used,
+	                         "Curves %s to %s added by rockwire " RW_VERSION
+	                         " (log.process) from this file's curves;",
+	                         L->out_mnem[0], L->out_mnem[L->nout - 1]);
 	for (size_t i = 0; i < N_INPUTS && used < sizeof L->note; i++)
 		if (L->col[i] >= 0)
 			used += (size_t)snprintf(
@@ -476,13 +495,15 @@ static int start_output(logrun *L, const cJSON *res)
 		    ".\nElastic set from the isotropic relations; vs %s%s; "
 		    "density %s%s; %s.\n",
 		    cJSON_IsString(vsp) ? "predicted where missing by "
-					: "as measured",
+		                        : "as measured",
 		    cJSON_IsString(vsp) ? vsp->valuestring : "",
-		    cJSON_IsString(rhp) ? "predicted where missing by " : "as "
-		    "measured", cJSON_IsString(rhp) ? rhp->valuestring : "",
+		    cJSON_IsString(rhp) ? "predicted where missing by "
+		                        : "as "
+		                          "measured",
+		    cJSON_IsString(rhp) ? rhp->valuestring : "",
 		    cJSON_IsString(sub) ? "Gassmann 1951 fluid substitution "
-					  "in the _SUB curves"
-					: "no fluid substitution");
+		                          "in the _SUB curves"
+		                        : "no fluid substitution");
 	if (used < sizeof L->note)
 		used += (size_t)snprintf(
 		    L->note + used, sizeof L->note - used,
@@ -490,16 +511,15 @@ static int start_output(logrun *L, const cJSON *res)
 		    "measured. QC bits:");
 	for (int b = 0; b < 32 && used < sizeof L->note; b++)
 		if (L->flag_name[b])
-			used += (size_t)snprintf(L->note + used,
-						 sizeof L->note - used,
-						 "%s %d=%s", b % 6 ? "" : "\n",
-						 b, L->flag_name[b]);
+			used += (size_t)snprintf(
+			    L->note + used, sizeof L->note - used, "%s %d=%s",
+			    b % 6 ? "" : "\n", b, L->flag_name[b]);
 	if (used >= sizeof L->note)
 		L->note[sizeof L->note - 1] = '\0';
 	if (L->csv)
 		return cli_las_write_csv_header(L->out, L->r, add, L->nout);
 	if (cli_las_write_header(L->out, L->r, add, L->nout, L->note, err,
-				 sizeof err)) {
+	                         sizeof err)) {
 		fprintf(stderr, WHO ": %s\n", err);
 		return -1;
 	}
@@ -519,9 +539,10 @@ static int write_rows(logrun *L, const slot *s, const cJSON *res)
 		colv[k] = cJSON_GetObjectItemCaseSensitive(res, L->out_key[k]);
 		if (!cJSON_IsArray(colv[k]) ||
 		    (size_t)cJSON_GetArraySize(colv[k]) != s->nrows) {
-			fprintf(stderr, WHO ": response for samples from "
-					    "%llu lacks %s\n",
-				s->first, L->out_key[k]);
+			fprintf(stderr,
+			        WHO ": response for samples from "
+			            "%llu lacks %s\n",
+			        s->first, L->out_key[k]);
 			return -1;
 		}
 		it[k] = colv[k]->child;
@@ -538,9 +559,10 @@ static int write_rows(logrun *L, const slot *s, const cJSON *res)
 				v = cJSON_IsNumber(e) ? e->valuedouble : NAN;
 				it[c - nc] = e ? e->next : NULL;
 				digits = strcmp(L->out_key[c - nc], "qc")
-					     ? L->digits
-					     : 0;
-				if (!digits && strcmp(L->out_key[c - nc], "qc") == 0) {
+				             ? L->digits
+				             : 0;
+				if (!digits &&
+				    strcmp(L->out_key[c - nc], "qc") == 0) {
 					uint32_t f = (uint32_t)v;
 					L->flagged += f != 0;
 					for (int b = 0; b < 32; b++)
@@ -548,8 +570,8 @@ static int write_rows(logrun *L, const slot *s, const cJSON *res)
 						    (f >> b) & 1u;
 				}
 			}
-			size_t n = cli__fmt_num(num, v, digits,
-						L->csv ? "" : nulltxt);
+			size_t n =
+			    cli__fmt_num(num, v, digits, L->csv ? "" : nulltxt);
 			if (c && fputc(L->csv ? ',' : ' ', L->out) == EOF)
 				return -1;
 			if (fwrite(num, 1, n, L->out) != n)
@@ -577,20 +599,22 @@ static int on_line(void *ctx, char *line, size_t len)
 	res = cJSON_GetObjectItemCaseSensitive(r, "result");
 	err = cJSON_GetObjectItemCaseSensitive(r, "error");
 	if (L->info_pending && cJSON_IsNumber(id) && id->valueint == 0) {
-		const cJSON *q, *fl = cJSON_GetObjectItemCaseSensitive(
-				     res, "qc_flags");
+		const cJSON *q,
+		    *fl = cJSON_GetObjectItemCaseSensitive(res, "qc_flags");
 		cJSON_ArrayForEach(q, fl)
 		{
-			const cJSON *b = cJSON_GetObjectItemCaseSensitive(q, "bit");
-			const cJSON *nm = cJSON_GetObjectItemCaseSensitive(q,
-									   "name");
+			const cJSON *b =
+			    cJSON_GetObjectItemCaseSensitive(q, "bit");
+			const cJSON *nm =
+			    cJSON_GetObjectItemCaseSensitive(q, "name");
 			if (cJSON_IsNumber(b) && cJSON_IsString(nm)) {
 				unsigned v = (unsigned)b->valuedouble;
 				int bit = 0;
 				while (bit < 32 && v != (1u << bit))
 					bit++;
 				if (bit < 32 && !L->flag_name[bit])
-					L->flag_name[bit] = strdup(nm->valuestring);
+					L->flag_name[bit] =
+					    strdup(nm->valuestring);
 			}
 		}
 		L->info_pending = 0;
@@ -609,17 +633,19 @@ static int on_line(void *ctx, char *line, size_t len)
 	if (err) {
 		const cJSON *d = cJSON_GetObjectItemCaseSensitive(err, "data");
 		const cJSON *p = cJSON_GetObjectItemCaseSensitive(d, "param");
-		const cJSON *why = cJSON_GetObjectItemCaseSensitive(d, "reason");
-		const cJSON *msg = cJSON_GetObjectItemCaseSensitive(err,
-								    "message");
-		fprintf(stderr, WHO ": the daemon refused the block from "
-				    "sample %llu: %s%s%s%s%s\n",
-			s->first,
-			cJSON_IsString(msg) ? msg->valuestring : "error",
-			cJSON_IsString(p) ? ": " : "",
-			cJSON_IsString(p) ? p->valuestring : "",
-			cJSON_IsString(why) ? ": " : "",
-			cJSON_IsString(why) ? why->valuestring : "");
+		const cJSON *why =
+		    cJSON_GetObjectItemCaseSensitive(d, "reason");
+		const cJSON *msg =
+		    cJSON_GetObjectItemCaseSensitive(err, "message");
+		fprintf(stderr,
+		        WHO ": the daemon refused the block from "
+		            "sample %llu: %s%s%s%s%s\n",
+		        s->first,
+		        cJSON_IsString(msg) ? msg->valuestring : "error",
+		        cJSON_IsString(p) ? ": " : "",
+		        cJSON_IsString(p) ? p->valuestring : "",
+		        cJSON_IsString(why) ? ": " : "",
+		        cJSON_IsString(why) ? why->valuestring : "");
 		L->failed = CLI_EXIT_RPC_ERROR;
 		goto out;
 	}
@@ -628,7 +654,7 @@ static int on_line(void *ctx, char *line, size_t len)
 	if (write_rows(L, s, res)) {
 		if (!L->failed)
 			fprintf(stderr, WHO ": cannot write the output: %s\n",
-				strerror(errno));
+			        strerror(errno));
 		goto out;
 	}
 	L->head = (L->head + 1) % L->inflight_max;
@@ -643,10 +669,10 @@ out:
 static void usage(void)
 {
 	fprintf(stderr,
-		"usage: rockwire log FILE.las [-o OUT] [--format las|csv]\n"
-		"       [--curve INPUT=MNEM|none ...] [--set NAME=VALUE ...]\n"
-		"       [--params JSON] [--block N] [--inflight N]\n"
-		"       [--digits N] [--summary] [--progress|--no-progress]\n");
+	        "usage: rockwire log FILE.las [-o OUT] [--format las|csv]\n"
+	        "       [--curve INPUT=MNEM|none ...] [--set NAME=VALUE ...]\n"
+	        "       [--params JSON] [--block N] [--inflight N]\n"
+	        "       [--digits N] [--summary] [--progress|--no-progress]\n");
 }
 
 int cli_cmd_log(const cli_opts *o, int argc, char **argv)
@@ -692,9 +718,9 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 		} else if (strcmp(a, "--params") == 0 && v)
 			pjson = v, i++;
 		else if ((strcmp(a, "--block") == 0 ||
-			  strcmp(a, "--inflight") == 0 ||
-			  strcmp(a, "--digits") == 0) &&
-			 v) {
+		          strcmp(a, "--inflight") == 0 ||
+		          strcmp(a, "--digits") == 0) &&
+		         v) {
 			char *end;
 			long n = strtol(v, &end, 10);
 			if (*end || n < 1 || n > 1000000 ||
@@ -731,7 +757,8 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 	if (pjson) {
 		cJSON *p = cJSON_Parse(pjson), *m;
 		if (!cJSON_IsObject(p)) {
-			fprintf(stderr, WHO ": --params must be a JSON object\n");
+			fprintf(stderr,
+			        WHO ": --params must be a JSON object\n");
 			cJSON_Delete(p);
 			goto usage_fail;
 		}
@@ -758,25 +785,25 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 	st = cli_las_read(L.r, L.in);
 	if (st != CLI_LAS_HEADER) {
 		fprintf(stderr, WHO ": %s: %s\n", L.path,
-			st == CLI_LAS_ERR ? cli_las_error(L.r)
-					  : "no ~A section: not a LAS file");
+		        st == CLI_LAS_ERR ? cli_las_error(L.r)
+		                          : "no ~A section: not a LAS file");
 		goto out;
 	}
 	L.ncurves = cli_las_ncurves(L.r);
 	L.subst = cJSON_GetObjectItemCaseSensitive(params, "fluid_new") != NULL;
 	L.gr_levels = cJSON_GetObjectItemCaseSensitive(params, "gr_clean") ||
-		      cJSON_GetObjectItemCaseSensitive(params, "gr_shale");
+	              cJSON_GetObjectItemCaseSensitive(params, "gr_shale");
 	if (map_curves(&L, maps, nmaps))
 		goto out;
 	for (size_t i = 0; i < N_INPUTS; i++)
 		if (L.col[i] >= 0 &&
 		    cJSON_GetObjectItemCaseSensitive(params, inputs[i].name)) {
 			fprintf(stderr,
-				WHO ": %s is both a curve (%s) and a --set "
-				    "value; drop one (--curve %s=none)\n",
-				inputs[i].name,
-				cli_las_curve(L.r, (size_t)L.col[i])->mnem,
-				inputs[i].name);
+			        WHO ": %s is both a curve (%s) and a --set "
+			            "value; drop one (--curve %s=none)\n",
+			        inputs[i].name,
+			        cli_las_curve(L.r, (size_t)L.col[i])->mnem,
+			        inputs[i].name);
 			goto usage_fail;
 		}
 	{
@@ -798,8 +825,8 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 		}
 	}
 	if (outpath) {
-		int n = snprintf(tmppath, sizeof tmppath, "%s.partXXXXXX",
-				 outpath);
+		int n =
+		    snprintf(tmppath, sizeof tmppath, "%s.partXXXXXX", outpath);
 		if (n < 0 || (size_t)n >= sizeof tmppath) {
 			fprintf(stderr, WHO ": output path too long\n");
 			goto out;
@@ -807,7 +834,7 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 		tmpfd = mkstemp(tmppath);
 		if (tmpfd < 0 || !(L.out = fdopen(tmpfd, "w"))) {
 			fprintf(stderr, WHO ": %s: %s\n", tmppath,
-				strerror(errno));
+			        strerror(errno));
 			if (tmpfd >= 0)
 				close(tmpfd);
 			tmppath[0] = '\0';
@@ -825,20 +852,19 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 	L.last = L.t0;
 	/* The QC legend first, for the ~Other note and the summary. */
 	cli__buf_puts(&L.wbuf, "{\"jsonrpc\":\"2.0\",\"id\":0,\"method\":"
-			       "\"service.info\"}\n");
+	                       "\"service.info\"}\n");
 	L.info_pending = 1;
 	L.next_id = 1;
 	for (;;) {
 		/* Fill: read blocks while there is room in flight. */
 		while (!eof && L.count < L.inflight_max &&
 		       L.wbuf.len - L.wbuf.off < (4u << 20)) {
-			slot *s = &L.slots[(L.head + L.count) %
-					   L.inflight_max];
+			slot *s = &L.slots[(L.head + L.count) % L.inflight_max];
 			cli_las_set_block(L.r, s->rows, L.block);
 			st = cli_las_read(L.r, L.in);
 			if (st == CLI_LAS_ERR) {
 				fprintf(stderr, WHO ": %s: %s\n", L.path,
-					cli_las_error(L.r));
+				        cli_las_error(L.r));
 				goto out;
 			}
 			s->nrows = cli_las_rows(L.r);
@@ -863,7 +889,7 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 			goto out;
 		if (st == 1 && (L.count || L.info_pending)) {
 			fprintf(stderr, WHO ": the daemon closed the "
-					    "connection early\n");
+			                    "connection early\n");
 			goto out;
 		}
 	}
@@ -871,26 +897,26 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 		/* No data rows: the header alone, with no new curves. */
 		char err[256];
 		if (L.csv ? cli_las_write_csv_header(L.out, L.r, NULL, 0)
-			  : cli_las_write_header(L.out, L.r, NULL, 0, NULL, err,
-						 sizeof err))
+		          : cli_las_write_header(L.out, L.r, NULL, 0, NULL, err,
+		                                 sizeof err))
 			goto out;
 	}
 	if (fflush(L.out) || (L.out != stdout && ferror(L.out))) {
 		fprintf(stderr, WHO ": cannot write the output: %s\n",
-			strerror(errno));
+		        strerror(errno));
 		goto out;
 	}
 	if (L.out != stdout) {
 		if (fsync(fileno(L.out)) || fclose(L.out)) {
 			L.out = NULL;
 			fprintf(stderr, WHO ": cannot write the output: %s\n",
-				strerror(errno));
+			        strerror(errno));
 			goto out;
 		}
 		L.out = NULL;
 		if (rename(tmppath, outpath)) {
 			fprintf(stderr, WHO ": rename to %s: %s\n", outpath,
-				strerror(errno));
+			        strerror(errno));
 			goto out;
 		}
 		tmppath[0] = '\0';
@@ -898,16 +924,17 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 	progress(&L, 1);
 	if (cli_las_warnings(L.r))
 		fprintf(stderr, WHO ": %s: %lu warning(s), first: %s\n", L.path,
-			cli_las_warnings(L.r), cli_las_warning(L.r));
+		        cli_las_warnings(L.r), cli_las_warning(L.r));
 	if (L.summary) {
-		fprintf(stderr, "QC summary: %llu samples, %llu clean, %llu "
-				"flagged\n",
-			L.samples, L.samples - L.flagged, L.flagged);
+		fprintf(stderr,
+		        "QC summary: %llu samples, %llu clean, %llu "
+		        "flagged\n",
+		        L.samples, L.samples - L.flagged, L.flagged);
 		for (int b = 0; b < 32; b++)
 			if (L.flag_count[b])
 				fprintf(stderr, "  bit %2d %-28s %llu\n", b,
-					L.flag_name[b] ? L.flag_name[b] : "?",
-					L.flag_count[b]);
+				        L.flag_name[b] ? L.flag_name[b] : "?",
+				        L.flag_count[b]);
 	}
 	rc = CLI_EXIT_OK;
 	goto out;
@@ -925,7 +952,7 @@ out:
 		unlink(tmppath);
 		if (rc != CLI_EXIT_OK)
 			fprintf(stderr, WHO ": no output written%s%s\n",
-				outpath ? " to " : "", outpath ? outpath : "");
+			        outpath ? " to " : "", outpath ? outpath : "");
 	} else if (rc != CLI_EXIT_OK && L.out == stdout) {
 		fflush(stdout);
 		fprintf(stderr, WHO ": the output on stdout is INCOMPLETE\n");

@@ -42,16 +42,17 @@ int cli__param_set(cJSON *params, const char *arg, const char *who)
 		if (!dot) {
 			if (next)
 				cJSON_DeleteItemFromObjectCaseSensitive(obj,
-									key);
+				                                        key);
 			cJSON_AddItemToObject(obj, key, val);
 			return 0;
 		}
 		if (!next) {
 			next = cJSON_AddObjectToObject(obj, key);
 		} else if (!cJSON_IsObject(next)) {
-			fprintf(stderr, "%s: '%s' is both a value and an "
-					"object\n",
-				who, key);
+			fprintf(stderr,
+			        "%s: '%s' is both a value and an "
+			        "object\n",
+			        who, key);
 			cJSON_Delete(val);
 			return -1;
 		}
@@ -123,9 +124,8 @@ void cli__buf_free(cli_buf *b)
 }
 
 int cli__pipe_step(cli_conn *c, cli_buf *out, int want_read, int extra_fd,
-		   int *extra_ready, int timeout_ms,
-		   int (*on_line)(void *ctx, char *line, size_t len),
-		   void *ctx)
+                   int *extra_ready, int timeout_ms,
+                   int (*on_line)(void *ctx, char *line, size_t len), void *ctx)
 {
 	struct pollfd p[3];
 	int n = 0, iw = -1, ir = -1, ie = -1;
@@ -152,11 +152,11 @@ int cli__pipe_step(cli_conn *c, cli_buf *out, int want_read, int extra_fd,
 	if (poll(p, (nfds_t)n, timeout_ms) < 0)
 		return errno == EINTR ? 0 : -1;
 	if (iw >= 0 && p[iw].revents) {
-		ssize_t w = write(c->wfd, out->data + out->off,
-				  out->len - out->off);
+		ssize_t w =
+		    write(c->wfd, out->data + out->off, out->len - out->off);
 		if (w < 0 && errno != EAGAIN && errno != EINTR) {
 			fprintf(stderr, "rockwire: write to %s: %s\n", c->desc,
-				strerror(errno));
+			        strerror(errno));
 			return -1;
 		}
 		if (w > 0)

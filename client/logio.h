@@ -37,8 +37,8 @@ void cli__buf_free(cli_buf *b);
  * Returns 0, 1 when the daemon closed, -1 on error or when on_line
  * stopped. */
 int cli__pipe_step(cli_conn *c, cli_buf *out, int want_read, int extra_fd,
-		   int *extra_ready, int timeout_ms,
-		   int (*on_line)(void *ctx, char *line, size_t len),
-		   void *ctx);
+                   int *extra_ready, int timeout_ms,
+                   int (*on_line)(void *ctx, char *line, size_t len),
+                   void *ctx);
 
 #endif

@@ -14,7 +14,7 @@
  * pure sandstone. frac receives the fractions indexed RW_EMP_SANDSTONE..
  * RW_EMP_SHALE. Returns 0 or -1 after proto_fail naming the member. */
 int proto__lith_parse(proto_call *c, const cJSON *v, const char *path,
-		      double frac[RW_EMP_NLITH]);
+                      double frac[RW_EMP_NLITH]);
 
 /* QC bits of an empirical warning set (RW_EMP_WARN_*): QC_EMP_RANGE when
  * any bit is set. */
@@ -24,21 +24,19 @@ uint32_t proto__emp_qc(unsigned warn);
  * shapes rock.substitute takes; contracts beside their definitions). */
 struct proto_fluid_desc;
 struct proto_mineral_desc;
-struct proto_fluid_desc *proto__fluid_desc_parse(proto_call *c,
-						 const cJSON *obj,
-						 const char *path);
+struct proto_fluid_desc *
+proto__fluid_desc_parse(proto_call *c, const cJSON *obj, const char *path);
 size_t proto__fluid_desc_len(const struct proto_fluid_desc *d, int *is_array,
-			     const char **len_from);
+                             const char **len_from);
 int proto__fluid_desc_needs_pt(const struct proto_fluid_desc *d);
 void proto__fluid_desc_eval(const struct proto_fluid_desc *d, size_t i,
-			    double p_mpa, double t_degc, double *k_pa,
-			    double *rho_kgm3, uint32_t *qc);
-struct proto_mineral_desc *proto__mineral_desc_parse(proto_call *c,
-						     const cJSON *item,
-						     const char *path);
+                            double p_mpa, double t_degc, double *k_pa,
+                            double *rho_kgm3, uint32_t *qc);
+struct proto_mineral_desc *
+proto__mineral_desc_parse(proto_call *c, const cJSON *item, const char *path);
 size_t proto__mineral_desc_len(const struct proto_mineral_desc *d,
-			       int *is_array, const char **len_from);
+                               int *is_array, const char **len_from);
 int proto__mineral_desc_eval(const struct proto_mineral_desc *d, size_t i,
-			     double *k_pa, double *rho_kgm3);
+                             double *k_pa, double *rho_kgm3);
 
 #endif

@@ -19,42 +19,45 @@
 #include "rockwire/mineral.h"
 #include "rockwire/rock.h"
 
-#define S(name, kind) {name, PT_NUMS, kind, PP_NULLS, 0}
+#define S(name, kind)                                                          \
+	{                                                                      \
+		name, PT_NUMS, kind, PP_NULLS, 0                               \
+	}
 
 static const proto_param process_params[] = {
-	S("depth", PK_LENGTH),
-	S("dtp", PK_SLOWNESS),
-	S("dts", PK_SLOWNESS),
-	S("vp", PK_VELOCITY),
-	S("vs", PK_VELOCITY),
-	S("rhob", PK_DENSITY),
-	S("drho", PK_DENSITY),
-	S("caliper", PK_LENGTH),
-	S("bit_size", PK_LENGTH),
-	S("gr", PK_NONE),
-	S("vsh", PK_NONE),
-	S("porosity", PK_NONE),
-	S("pressure", PK_PRESSURE),
-	S("temperature", PK_TEMPERATURE),
-	{"gr_clean", PT_NUM, PK_NONE, 0, 0},
-	{"gr_shale", PT_NUM, PK_NONE, 0, 0},
-	{"vs_predict", PT_STR, PK_NONE, 0, 0},
-	{"rho_predict", PT_STR, PK_NONE, 0, 0},
-	{"rho_replace_bad", PT_BOOL, PK_NONE, 0, 0},
-	{"gardner_a", PT_NUM, PK_NONE, 0, 0},
-	{"gardner_b", PT_NUM, PK_NONE, 0, 0},
-	{"lithology", PT_ANY, PK_NONE, 0, 0},
-	{"drho_limit", PT_NUM, PK_DENSITY, 0, 0},
-	{"washout_limit", PT_NUM, PK_LENGTH, 0, 0},
-	{"mineral", PT_ANY, PK_NONE, 0, 0},
-	{"fluid_in_place", PT_OBJ, PK_NONE, 0, 0},
-	{"fluid_new", PT_OBJ, PK_NONE, 0, 0},
-	{"pressure_gradient", PT_NUM, PK_GRADIENT_P, 0, 0},
-	{"temperature_gradient", PT_NUM, PK_GRADIENT_T, 0, 0},
-	{"surface_pressure", PT_NUM, PK_PRESSURE, 0, 0},
-	{"surface_temperature", PT_NUM, PK_TEMPERATURE, 0, 0},
-	{"qc", PT_OBJ, PK_NONE, 0, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    S("depth", PK_LENGTH),
+    S("dtp", PK_SLOWNESS),
+    S("dts", PK_SLOWNESS),
+    S("vp", PK_VELOCITY),
+    S("vs", PK_VELOCITY),
+    S("rhob", PK_DENSITY),
+    S("drho", PK_DENSITY),
+    S("caliper", PK_LENGTH),
+    S("bit_size", PK_LENGTH),
+    S("gr", PK_NONE),
+    S("vsh", PK_NONE),
+    S("porosity", PK_NONE),
+    S("pressure", PK_PRESSURE),
+    S("temperature", PK_TEMPERATURE),
+    {"gr_clean", PT_NUM, PK_NONE, 0, 0},
+    {"gr_shale", PT_NUM, PK_NONE, 0, 0},
+    {"vs_predict", PT_STR, PK_NONE, 0, 0},
+    {"rho_predict", PT_STR, PK_NONE, 0, 0},
+    {"rho_replace_bad", PT_BOOL, PK_NONE, 0, 0},
+    {"gardner_a", PT_NUM, PK_NONE, 0, 0},
+    {"gardner_b", PT_NUM, PK_NONE, 0, 0},
+    {"lithology", PT_ANY, PK_NONE, 0, 0},
+    {"drho_limit", PT_NUM, PK_DENSITY, 0, 0},
+    {"washout_limit", PT_NUM, PK_LENGTH, 0, 0},
+    {"mineral", PT_ANY, PK_NONE, 0, 0},
+    {"fluid_in_place", PT_OBJ, PK_NONE, 0, 0},
+    {"fluid_new", PT_OBJ, PK_NONE, 0, 0},
+    {"pressure_gradient", PT_NUM, PK_GRADIENT_P, 0, 0},
+    {"temperature_gradient", PT_NUM, PK_GRADIENT_T, 0, 0},
+    {"surface_pressure", PT_NUM, PK_PRESSURE, 0, 0},
+    {"surface_temperature", PT_NUM, PK_TEMPERATURE, 0, 0},
+    {"qc", PT_OBJ, PK_NONE, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 /* Default density-correction limit: |DRHO| above 0.05 g/cm3 marks the
@@ -72,37 +75,49 @@ static const proto_param process_params[] = {
 
 enum { VSP_NONE, VSP_GC, VSP_MUDROCK };
 static const char *const vs_pred_names[] = {"none", "greenberg_castagna",
-					    "mudrock", NULL};
+                                            "mudrock", NULL};
 static const char *const rho_pred_names[] = {"none", "gardner", NULL};
 
 /* Output columns, in result order: the elastic set per sample, then the
  * substituted set. */
 typedef struct log_out {
 	double vp, vs, rho, k, mu, lambda, e, nu, ai, si, vpvs, vsh;
-	double vp_sub, vs_sub, rho_sub, k_sub, ai_sub, si_sub, vpvs_sub,
-	    nu_sub, k_fl_in_place, rho_fl_in_place, k_fl_new, rho_fl_new;
+	double vp_sub, vs_sub, rho_sub, k_sub, ai_sub, si_sub, vpvs_sub, nu_sub,
+	    k_fl_in_place, rho_fl_in_place, k_fl_new, rho_fl_new;
 } log_out;
 
 static const struct {
 	const char *name;
 	proto_kind kind;
 } out_cols[] = {
-	{"vp", PK_VELOCITY},	   {"vs", PK_VELOCITY},
-	{"rho", PK_DENSITY},	   {"k", PK_MODULUS},
-	{"mu", PK_MODULUS},	   {"lambda", PK_MODULUS},
-	{"e", PK_MODULUS},	   {"nu", PK_NONE},
-	{"ai", PK_IMPEDANCE},	   {"si", PK_IMPEDANCE},
-	{"vpvs", PK_NONE},	   {"vsh", PK_NONE},
-	{"vp_sub", PK_VELOCITY},   {"vs_sub", PK_VELOCITY},
-	{"rho_sub", PK_DENSITY},   {"k_sub", PK_MODULUS},
-	{"ai_sub", PK_IMPEDANCE},  {"si_sub", PK_IMPEDANCE},
-	{"vpvs_sub", PK_NONE},	   {"nu_sub", PK_NONE},
-	{"k_fl_in_place", PK_MODULUS}, {"rho_fl_in_place", PK_DENSITY},
-	{"k_fl_new", PK_MODULUS},  {"rho_fl_new", PK_DENSITY},
+    {"vp", PK_VELOCITY},
+    {"vs", PK_VELOCITY},
+    {"rho", PK_DENSITY},
+    {"k", PK_MODULUS},
+    {"mu", PK_MODULUS},
+    {"lambda", PK_MODULUS},
+    {"e", PK_MODULUS},
+    {"nu", PK_NONE},
+    {"ai", PK_IMPEDANCE},
+    {"si", PK_IMPEDANCE},
+    {"vpvs", PK_NONE},
+    {"vsh", PK_NONE},
+    {"vp_sub", PK_VELOCITY},
+    {"vs_sub", PK_VELOCITY},
+    {"rho_sub", PK_DENSITY},
+    {"k_sub", PK_MODULUS},
+    {"ai_sub", PK_IMPEDANCE},
+    {"si_sub", PK_IMPEDANCE},
+    {"vpvs_sub", PK_NONE},
+    {"nu_sub", PK_NONE},
+    {"k_fl_in_place", PK_MODULUS},
+    {"rho_fl_in_place", PK_DENSITY},
+    {"k_fl_new", PK_MODULUS},
+    {"rho_fl_new", PK_DENSITY},
 };
 #define N_ELASTIC_COLS 11 /* vp .. vpvs */
-#define COL_VSH 11
-#define COL_SUB 12
+#define COL_VSH        11
+#define COL_SUB        12
 
 /* Velocity from a velocity or a slowness vector (exactly one present or
  * neither); NaN when missing or not positive. */
@@ -121,7 +136,7 @@ static int either(proto_call *c, const char *a, const char *b)
 {
 	if (proto_item_of(&c->args, a) && proto_item_of(&c->args, b))
 		return proto_fail(c, PROTO_INVALID_PARAMS, b,
-				  "give %s or %s, not both", a, b);
+		                  "give %s or %s, not both", a, b);
 	return 0;
 }
 
@@ -154,50 +169,52 @@ static int pt_check(proto_call *c, pt_src *s)
 	if (!s->p->present) {
 		if (!isfinite(s->gp))
 			return proto_fail(c, PROTO_INVALID_PARAMS, "pressure",
-					  "fluid descriptions need the pore "
-					  "pressure: give pressure, or "
-					  "pressure_gradient with depth");
+			                  "fluid descriptions need the pore "
+			                  "pressure: give pressure, or "
+			                  "pressure_gradient with depth");
 		need_depth = 1;
 	}
 	if (!s->t->present) {
 		if (!isfinite(s->gt))
 			return proto_fail(c, PROTO_INVALID_PARAMS,
-					  "temperature",
-					  "fluid descriptions need the "
-					  "temperature: give temperature, or "
-					  "temperature_gradient with "
-					  "surface_temperature and depth");
+			                  "temperature",
+			                  "fluid descriptions need the "
+			                  "temperature: give temperature, or "
+			                  "temperature_gradient with "
+			                  "surface_temperature and depth");
 		if (!isfinite(s->t0))
 			return proto_fail(c, PROTO_INVALID_PARAMS,
-					  "surface_temperature",
-					  "required with temperature_gradient");
+			                  "surface_temperature",
+			                  "required with temperature_gradient");
 		need_depth = 1;
 	}
 	if (need_depth && !s->depth->present)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "depth",
-				  "required to apply pressure_gradient or "
-				  "temperature_gradient (depth is taken as "
-				  "true vertical depth below the surface)");
+		                  "required to apply pressure_gradient or "
+		                  "temperature_gradient (depth is taken as "
+		                  "true vertical depth below the surface)");
 	return 0;
 }
 
 /* A fluid or mineral description with arrays must match the samples. */
-static int desc_len_check(proto_call *c, size_t dn, int darr,
-			  const char *from, size_t n, int arr)
+static int desc_len_check(proto_call *c, size_t dn, int darr, const char *from,
+                          size_t n, int arr)
 {
 	if (!darr || (arr && dn == n))
 		return 0;
 	return proto_fail(c, PROTO_INVALID_PARAMS, from,
-			  "array length %zu does not match the %zu log "
-			  "sample(s); give one value or one per sample",
-			  dn, n);
+	                  "array length %zu does not match the %zu log "
+	                  "sample(s); give one value or one per sample",
+	                  dn, n);
 }
 
 static int process(proto_call *c)
 {
 	const proto_args *a = &c->args;
-	const proto_vec *vp = proto_vec_of(a, "vp"), *dtp = proto_vec_of(a, "dtp");
-	const proto_vec *vs = proto_vec_of(a, "vs"), *dts = proto_vec_of(a, "dts");
+	const proto_vec *vp = proto_vec_of(a, "vp"),
+	                *dtp = proto_vec_of(a, "dtp");
+	const proto_vec *vs = proto_vec_of(a, "vs"),
+	                *dts = proto_vec_of(a, "dts");
 	const proto_vec *rhob = proto_vec_of(a, "rhob");
 	const proto_vec *drho = proto_vec_of(a, "drho");
 	const proto_vec *cal = proto_vec_of(a, "caliper");
@@ -231,104 +248,104 @@ static int process(proto_call *c)
 		return -1;
 	if (!vp->present && !dtp->present)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "dtp",
-				  "give the compressional log: dtp or vp");
+		                  "give the compressional log: dtp or vp");
 	if (!vs->present && !dts->present && !proto_item_of(a, "vs_predict"))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "dts",
-				  "give the shear log (dts or vs), or "
-				  "vs_predict \"greenberg_castagna\" or "
-				  "\"mudrock\"");
+		                  "give the shear log (dts or vs), or "
+		                  "vs_predict \"greenberg_castagna\" or "
+		                  "\"mudrock\"");
 	if (!rhob->present && !proto_item_of(a, "rho_predict"))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "rhob",
-				  "give the density log rhob, or "
-				  "rho_predict \"gardner\"");
+		                  "give the density log rhob, or "
+		                  "rho_predict \"gardner\"");
 	if (cal->present != bs->present)
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-				  cal->present ? "bit_size" : "caliper",
-				  "the washout check needs both caliper and "
-				  "bit_size");
+		                  cal->present ? "bit_size" : "caliper",
+		                  "the washout check needs both caliper and "
+		                  "bit_size");
 	if (gr->present && !(isfinite(gr0) && isfinite(gr1) && gr1 > gr0))
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-				  isfinite(gr0) ? "gr_shale" : "gr_clean",
-				  "gr needs gr_clean and gr_shale (API units, "
-				  "gr_shale > gr_clean) for the linear "
-				  "gamma-ray index");
-	if (!gr->present && (proto_item_of(a, "gr_clean") ||
-			     proto_item_of(a, "gr_shale")))
+		                  isfinite(gr0) ? "gr_shale" : "gr_clean",
+		                  "gr needs gr_clean and gr_shale (API units, "
+		                  "gr_shale > gr_clean) for the linear "
+		                  "gamma-ray index");
+	if (!gr->present &&
+	    (proto_item_of(a, "gr_clean") || proto_item_of(a, "gr_shale")))
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-				  proto_item_of(a, "gr_clean") ? "gr_clean"
-							       : "gr_shale",
-				  "used only with gr");
+		                  proto_item_of(a, "gr_clean") ? "gr_clean"
+		                                               : "gr_shale",
+		                  "used only with gr");
 	vsp = proto_enum_of(c, a, "vs_predict", vs_pred_names, VSP_NONE);
 	rhop = proto_enum_of(c, a, "rho_predict", rho_pred_names, 0);
 	if (vsp < 0 || rhop < 0)
 		return -1;
 	if (replace_bad && rhop == 0)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "rho_replace_bad",
-				  "replacing doubtful density needs "
-				  "rho_predict \"gardner\"");
-	if (rhop == 0 && (proto_item_of(a, "gardner_a") ||
-			  proto_item_of(a, "gardner_b")))
+		                  "replacing doubtful density needs "
+		                  "rho_predict \"gardner\"");
+	if (rhop == 0 &&
+	    (proto_item_of(a, "gardner_a") || proto_item_of(a, "gardner_b")))
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-				  proto_item_of(a, "gardner_a") ? "gardner_a"
-								: "gardner_b",
-				  "used only with rho_predict \"gardner\"");
+		                  proto_item_of(a, "gardner_a") ? "gardner_a"
+		                                                : "gardner_b",
+		                  "used only with rho_predict \"gardner\"");
 	if (!(ga > 0) || !(gb > 0))
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-				  ga > 0 ? "gardner_b" : "gardner_a",
-				  "must be > 0");
+		                  ga > 0 ? "gardner_b" : "gardner_a",
+		                  "must be > 0");
 	if (!(drho_lim > 0))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "drho_limit",
-				  "must be > 0");
+		                  "must be > 0");
 	if (!(wash_lim > 0))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "washout_limit",
-				  "must be > 0");
+		                  "must be > 0");
 	if (proto__lith_parse(c, proto_item_of(a, "lithology"), "lithology",
-			      lith))
+	                      lith))
 		return -1;
 	have_vsh = vshv->present || gr->present;
 	rock_sum = lith[RW_EMP_SANDSTONE] + lith[RW_EMP_LIMESTONE] +
-		   lith[RW_EMP_DOLOMITE];
+	           lith[RW_EMP_DOLOMITE];
 	if (vsp == VSP_GC && have_vsh && !(rock_sum > 0))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "lithology",
-				  "with vsh or gr the shale fraction comes "
-				  "from the log; lithology must name at "
-				  "least one of sandstone, limestone, "
-				  "dolomite for the rest");
+		                  "with vsh or gr the shale fraction comes "
+		                  "from the log; lithology must name at "
+		                  "least one of sandstone, limestone, "
+		                  "dolomite for the rest");
 	proto_qc_ranges_default(&ranges);
 	if (proto_qc_ranges_parse(c, proto_item_of(a, "qc"), "qc.", &ranges))
 		return -1;
 	if (proto_item_of(a, "fluid_in_place") &&
 	    !(f_old = proto__fluid_desc_parse(
-		  c, proto_item_of(a, "fluid_in_place"), "fluid_in_place.")))
+	          c, proto_item_of(a, "fluid_in_place"), "fluid_in_place.")))
 		return -1;
 	if (proto_item_of(a, "fluid_new") &&
 	    !(f_new = proto__fluid_desc_parse(c, proto_item_of(a, "fluid_new"),
-					      "fluid_new.")))
+	                                      "fluid_new.")))
 		return -1;
 	subst = f_new != NULL;
 	if (!f_old != !f_new)
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-				  f_old ? "fluid_new" : "fluid_in_place",
-				  "fluid substitution needs both "
-				  "fluid_in_place and fluid_new");
+		                  f_old ? "fluid_new" : "fluid_in_place",
+		                  "fluid substitution needs both "
+		                  "fluid_in_place and fluid_new");
 	if (!subst && proto_item_of(a, "mineral"))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "mineral",
-				  "used only for fluid substitution "
-				  "(fluid_in_place and fluid_new)");
+		                  "used only for fluid substitution "
+		                  "(fluid_in_place and fluid_new)");
 	if (!subst && phi->present)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "porosity",
-				  "used only for fluid substitution "
-				  "(fluid_in_place and fluid_new)");
+		                  "used only for fluid substitution "
+		                  "(fluid_in_place and fluid_new)");
 	if (subst) {
 		if (!phi->present)
 			return proto_fail(c, PROTO_INVALID_PARAMS, "porosity",
-					  "fluid substitution needs the "
-					  "porosity log");
+			                  "fluid substitution needs the "
+			                  "porosity log");
 		if (!proto_item_of(a, "mineral"))
 			return proto_fail(c, PROTO_INVALID_PARAMS, "mineral",
-					  "fluid substitution needs the "
-					  "mineral: a table name, {k, rho} "
-					  "or a mix");
+			                  "fluid substitution needs the "
+			                  "mineral: a table name, {k, rho} "
+			                  "or a mix");
 		mineral = proto__mineral_desc_parse(
 		    c, proto_item_of(a, "mineral"), "mineral");
 		if (!mineral)
@@ -343,7 +360,7 @@ static int process(proto_call *c)
 		if (desc_len_check(c, dn, is_arr, from, n, arr))
 			return -1;
 		need_pt = proto__fluid_desc_needs_pt(f_old) ||
-			  proto__fluid_desc_needs_pt(f_new);
+		          proto__fluid_desc_needs_pt(f_new);
 		if (need_pt && pt_check(c, &pts))
 			return -1;
 	}
@@ -353,7 +370,7 @@ static int process(proto_call *c)
 	flags = proto_alloc(c, n * sizeof *flags);
 	if (!o || !flags)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory for %zu samples", n);
+		                  "out of memory for %zu samples", n);
 
 	for (size_t i = 0; i < n; i++) {
 		log_out *r = &o[i];
@@ -416,7 +433,7 @@ static int process(proto_call *c)
 		} else if (isnan(rho) || (bad_rho && replace_bad)) {
 			if (rhop == 1 && !isnan(v_p)) {
 				if (rw_emp_gardner_density(v_p, ga, gb, &rho,
-							   &warn) == RW_OK)
+				                           &warn) == RW_OK)
 					fl |= QC_RHO_PREDICTED |
 					      proto__emp_qc(warn);
 			}
@@ -433,13 +450,13 @@ static int process(proto_call *c)
 				if (have_vsh && !isnan(vsh)) {
 					for (int j = 0; j < RW_EMP_SHALE; j++)
 						fr[j] = lith[j] / rock_sum *
-							(1 - vsh);
+						        (1 - vsh);
 					fr[RW_EMP_SHALE] = vsh;
 				}
 				st = have_vsh && isnan(vsh)
-					 ? RW_EDOM
-					 : rw_emp_gc_vs_mixed(v_p, fr, &v_s,
-							      &warn);
+				         ? RW_EDOM
+				         : rw_emp_gc_vs_mixed(v_p, fr, &v_s,
+				                              &warn);
 			}
 			if (st == RW_OK)
 				fl |= QC_VS_PREDICTED | proto__emp_qc(warn);
@@ -476,13 +493,13 @@ static int process(proto_call *c)
 			if (isnan(ph))
 				fl |= QC_LOG_MISSING;
 			st = proto__mineral_desc_eval(mineral, i, &k_min,
-						      &rho_min);
+			                              &rho_min);
 			if (st == RW_OK)
 				st = rw_rock_fluid_subst(v_p, v_s, rho, ph,
-							 k_min, kfo, rfo, kfn,
-							 rfn, &sb, &gw);
-			if (gw & (RW_ROCK_WARN_KDRY_NEG |
-				  RW_ROCK_WARN_KDRY_GT_KMIN))
+				                         k_min, kfo, rfo, kfn,
+				                         rfn, &sb, &gw);
+			if (gw &
+			    (RW_ROCK_WARN_KDRY_NEG | RW_ROCK_WARN_KDRY_GT_KMIN))
 				fl |= QC_GASSMANN_KDRY;
 			if (gw & RW_ROCK_WARN_PHI_LOW)
 				fl |= QC_GASSMANN_PHI_LOW;
@@ -491,12 +508,13 @@ static int process(proto_call *c)
 			 * substituted values (as rock.substitute). */
 			if (st == RW_OK &&
 			    !(gw & (RW_ROCK_WARN_KDRY_NEG |
-				    RW_ROCK_WARN_KDRY_GT_KMIN)) &&
+			            RW_ROCK_WARN_KDRY_GT_KMIN)) &&
 			    rw_elastic_from_velocities(sb.vp_ms, sb.vs_ms,
-						       sb.rho_kgm3, &e,
-						       &why) == RW_OK) {
+			                               sb.rho_kgm3, &e,
+			                               &why) == RW_OK) {
 				r->vp_sub = sb.vp_ms, r->vs_sub = sb.vs_ms;
-				r->rho_sub = sb.rho_kgm3, r->k_sub = sb.k_sat_pa;
+				r->rho_sub = sb.rho_kgm3,
+				r->k_sub = sb.k_sat_pa;
 				r->ai_sub = e.ai, r->si_sub = e.si;
 				r->vpvs_sub = e.vpvs, r->nu_sub = e.nu;
 				if (gw || q1 || q2)
@@ -514,7 +532,7 @@ static int process(proto_call *c)
 		double *z = proto_alloc_doubles(c, n);
 		if (!z)
 			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-					  "out of memory for %zu samples", n);
+			                  "out of memory for %zu samples", n);
 		for (size_t i = 0; i < n; i++)
 			z[i] = proto_at(depth, i);
 		proto_w_vec(c, "depth", PK_LENGTH, z, n, 1, arr);
@@ -524,8 +542,8 @@ static int process(proto_call *c)
 			continue;
 		if (k >= COL_SUB && !subst)
 			break;
-		proto_w_vec(c, out_cols[k].name, out_cols[k].kind,
-			    &o[0].vp + k, n, sizeof *o / sizeof(double), arr);
+		proto_w_vec(c, out_cols[k].name, out_cols[k].kind, &o[0].vp + k,
+		            n, sizeof *o / sizeof(double), arr);
 	}
 	proto_w_flags(c, "qc", flags, n, arr);
 	if (vsp == VSP_NONE)
@@ -546,8 +564,8 @@ static int process(proto_call *c)
 }
 
 const proto_method proto_log_methods[] = {
-	{"log.process", process, process_params,
-	 "Elastic set and QC flags from well-log samples, with optional "
-	 "predicted shear or density and Gassmann-substituted curves."},
-	{NULL, NULL, NULL, NULL},
+    {"log.process", process, process_params,
+     "Elastic set and QC flags from well-log samples, with optional "
+     "predicted shear or density and Gassmann-substituted curves."},
+    {NULL, NULL, NULL, NULL},
 };

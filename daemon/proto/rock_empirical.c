@@ -13,23 +13,26 @@
 #include "proto/lith.h"
 #include "rockwire/empirical.h"
 
-#define Q(name, kind) {name, PT_NUMS, kind, PP_NULLS, 0}
+#define Q(name, kind)                                                          \
+	{                                                                      \
+		name, PT_NUMS, kind, PP_NULLS, 0                               \
+	}
 
 static const proto_param emp_params[] = {
-	{"relation", PT_STR, PK_NONE, PP_REQUIRED, 0},
-	Q("vp", PK_VELOCITY),
-	Q("vs", PK_VELOCITY),
-	Q("rho", PK_DENSITY),
-	Q("dtp", PK_SLOWNESS),
-	Q("porosity", PK_NONE),
-	Q("clay", PK_NONE),
-	Q("v_matrix", PK_VELOCITY),
-	Q("v_fluid", PK_VELOCITY),
-	{"gardner_a", PT_NUM, PK_NONE, 0, 0},
-	{"gardner_b", PT_NUM, PK_NONE, 0, 0},
-	{"lithology", PT_ANY, PK_NONE, 0, 0},
-	{"effective_pressure", PT_NUM, PK_PRESSURE, 0, 0},
-	{NULL, PT_ANY, PK_NONE, 0, 0},
+    {"relation", PT_STR, PK_NONE, PP_REQUIRED, 0},
+    Q("vp", PK_VELOCITY),
+    Q("vs", PK_VELOCITY),
+    Q("rho", PK_DENSITY),
+    Q("dtp", PK_SLOWNESS),
+    Q("porosity", PK_NONE),
+    Q("clay", PK_NONE),
+    Q("v_matrix", PK_VELOCITY),
+    Q("v_fluid", PK_VELOCITY),
+    {"gardner_a", PT_NUM, PK_NONE, 0, 0},
+    {"gardner_b", PT_NUM, PK_NONE, 0, 0},
+    {"lithology", PT_ANY, PK_NONE, 0, 0},
+    {"effective_pressure", PT_NUM, PK_PRESSURE, 0, 0},
+    {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
 /* The relations, their inputs (space-separated, in the order the handler
@@ -48,36 +51,43 @@ enum {
 	R_COUNT
 };
 
-static const char *const rel_names[] = {
-	"gardner",	"gardner_inverse", "mudrock_vs", "mudrock_vp",
-	"greenberg_castagna", "han",	   "wyllie",	 "wyllie_porosity",
-	"raymer",	"raymer_porosity", NULL};
+static const char *const rel_names[] = {"gardner",
+                                        "gardner_inverse",
+                                        "mudrock_vs",
+                                        "mudrock_vp",
+                                        "greenberg_castagna",
+                                        "han",
+                                        "wyllie",
+                                        "wyllie_porosity",
+                                        "raymer",
+                                        "raymer_porosity",
+                                        NULL};
 
 /* Inputs each relation takes; "vp|dtp" means one of the two. Options
  * (gardner_a/b, lithology, effective_pressure) are listed too so that an
  * option given to a relation that ignores it is refused, not dropped. */
 static const char *const rel_inputs[R_COUNT][6] = {
-	[R_GARDNER] = {"vp|dtp", "gardner_a?", "gardner_b?"},
-	[R_GARDNER_INV] = {"rho", "gardner_a?", "gardner_b?"},
-	[R_MUDROCK_VS] = {"vp|dtp"},
-	[R_MUDROCK_VP] = {"vs"},
-	[R_GC] = {"vp|dtp", "lithology?"},
-	[R_HAN] = {"porosity", "clay", "effective_pressure?"},
-	[R_WYLLIE] = {"porosity", "v_matrix", "v_fluid"},
-	[R_WYLLIE_PHI] = {"vp|dtp", "v_matrix", "v_fluid"},
-	[R_RHG] = {"porosity", "v_matrix", "v_fluid"},
-	[R_RHG_PHI] = {"vp|dtp", "v_matrix", "v_fluid"},
+    [R_GARDNER] = {"vp|dtp", "gardner_a?", "gardner_b?"},
+    [R_GARDNER_INV] = {"rho", "gardner_a?", "gardner_b?"},
+    [R_MUDROCK_VS] = {"vp|dtp"},
+    [R_MUDROCK_VP] = {"vs"},
+    [R_GC] = {"vp|dtp", "lithology?"},
+    [R_HAN] = {"porosity", "clay", "effective_pressure?"},
+    [R_WYLLIE] = {"porosity", "v_matrix", "v_fluid"},
+    [R_WYLLIE_PHI] = {"vp|dtp", "v_matrix", "v_fluid"},
+    [R_RHG] = {"porosity", "v_matrix", "v_fluid"},
+    [R_RHG_PHI] = {"vp|dtp", "v_matrix", "v_fluid"},
 };
 
 static const char *const lith_names[RW_EMP_NLITH] = {
-	[RW_EMP_SANDSTONE] = "sandstone",
-	[RW_EMP_LIMESTONE] = "limestone",
-	[RW_EMP_DOLOMITE] = "dolomite",
-	[RW_EMP_SHALE] = "shale",
+    [RW_EMP_SANDSTONE] = "sandstone",
+    [RW_EMP_LIMESTONE] = "limestone",
+    [RW_EMP_DOLOMITE] = "dolomite",
+    [RW_EMP_SHALE] = "shale",
 };
 
 int proto__lith_parse(proto_call *c, const cJSON *v, const char *path,
-		      double frac[RW_EMP_NLITH])
+                      double frac[RW_EMP_NLITH])
 {
 	const cJSON *m;
 	double sum = 0;
@@ -97,16 +107,16 @@ int proto__lith_parse(proto_call *c, const cJSON *v, const char *path,
 				return 0;
 			}
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "unknown lithology '%s'; accepted: "
-				  "sandstone, limestone, dolomite, shale, or "
-				  "an object of their volume fractions",
-				  v->valuestring);
+		                  "unknown lithology '%s'; accepted: "
+		                  "sandstone, limestone, dolomite, shale, or "
+		                  "an object of their volume fractions",
+		                  v->valuestring);
 	}
 	if (!cJSON_IsObject(v) || !v->child)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "must be a lithology name or a non-empty "
-				  "object of volume fractions, e.g. "
-				  "{\"sandstone\": 0.7, \"shale\": 0.3}");
+		                  "must be a lithology name or a non-empty "
+		                  "object of volume fractions, e.g. "
+		                  "{\"sandstone\": 0.7, \"shale\": 0.3}");
 	cJSON_ArrayForEach(m, v)
 	{
 		snprintf(full, sizeof full, "%s.%s", path, m->string);
@@ -115,21 +125,22 @@ int proto__lith_parse(proto_call *c, const cJSON *v, const char *path,
 				break;
 		if (i == RW_EMP_NLITH)
 			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-					  "unknown lithology; accepted: "
-					  "sandstone, limestone, dolomite, "
-					  "shale");
+			                  "unknown lithology; accepted: "
+			                  "sandstone, limestone, dolomite, "
+			                  "shale");
 		if (!cJSON_IsNumber(m) || !isfinite(m->valuedouble) ||
 		    m->valuedouble < 0 || m->valuedouble > 1)
-			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-					  "must be a volume fraction in [0, 1]");
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, full,
+			    "must be a volume fraction in [0, 1]");
 		frac[i] = m->valuedouble;
 		sum += frac[i];
 	}
 	if (fabs(sum - 1) > 1e-6)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "fractions sum to %.9g, not 1 (tolerance "
-				  "1e-6)",
-				  sum);
+		                  "fractions sum to %.9g, not 1 (tolerance "
+		                  "1e-6)",
+		                  sum);
 	return 0;
 }
 
@@ -157,14 +168,13 @@ static int check_inputs(proto_call *c, int rel)
 			int dtp = proto_item_of(a, "dtp") != NULL;
 			if (vp && dtp)
 				return proto_fail(c, PROTO_INVALID_PARAMS,
-						  "dtp",
-						  "give vp or dtp, not both");
+				                  "dtp",
+				                  "give vp or dtp, not both");
 			if (!vp && !dtp)
-				return proto_fail(c, PROTO_INVALID_PARAMS,
-						  "vp",
-						  "relation '%s' needs vp or "
-						  "dtp",
-						  rel_names[rel]);
+				return proto_fail(c, PROTO_INVALID_PARAMS, "vp",
+				                  "relation '%s' needs vp or "
+				                  "dtp",
+				                  rel_names[rel]);
 			memcpy(used[nused++], "vp", 3);
 			memcpy(used[nused++], "dtp", 4);
 			continue;
@@ -173,8 +183,8 @@ static int check_inputs(proto_call *c, int rel)
 		used[nused][len] = '\0';
 		if (!optional && !proto_item_of(a, used[nused]))
 			return proto_fail(c, PROTO_INVALID_PARAMS, used[nused],
-					  "relation '%s' needs this parameter",
-					  rel_names[rel]);
+			                  "relation '%s' needs this parameter",
+			                  rel_names[rel]);
 		nused++;
 	}
 	for (size_t i = 0; i < a->count; i++) {
@@ -187,9 +197,9 @@ static int check_inputs(proto_call *c, int rel)
 				break;
 		if (j == nused)
 			return proto_fail(c, PROTO_INVALID_PARAMS, name,
-					  "relation '%s' does not use this "
-					  "parameter",
-					  rel_names[rel]);
+			                  "relation '%s' does not use this "
+			                  "parameter",
+			                  rel_names[rel]);
 	}
 	return 0;
 }
@@ -206,10 +216,11 @@ static double vel_at(const proto_vec *vp, const proto_vec *dtp, size_t i)
 
 static int han_set(proto_call *c, int *pset)
 {
-	static const double mpa[RW_EMP_HAN_NSETS] = {
-		[RW_EMP_HAN_40MPA] = 40, [RW_EMP_HAN_30MPA] = 30,
-		[RW_EMP_HAN_20MPA] = 20, [RW_EMP_HAN_10MPA] = 10,
-		[RW_EMP_HAN_5MPA] = 5};
+	static const double mpa[RW_EMP_HAN_NSETS] = {[RW_EMP_HAN_40MPA] = 40,
+	                                             [RW_EMP_HAN_30MPA] = 30,
+	                                             [RW_EMP_HAN_20MPA] = 20,
+	                                             [RW_EMP_HAN_10MPA] = 10,
+	                                             [RW_EMP_HAN_5MPA] = 5};
 	double p = proto_num_or(&c->args, "effective_pressure", 40);
 
 	for (int i = 0; i < RW_EMP_HAN_NSETS; i++)
@@ -218,16 +229,18 @@ static int han_set(proto_call *c, int *pset)
 			return 0;
 		}
 	return proto_fail(c, PROTO_INVALID_PARAMS, "effective_pressure",
-			  "Han et al. 1986 published fits at 5, 10, 20, 30 "
-			  "and 40 MPa only (%g MPa given)",
-			  p);
+	                  "Han et al. 1986 published fits at 5, 10, 20, 30 "
+	                  "and 40 MPa only (%g MPa given)",
+	                  p);
 }
 
 static int empirical(proto_call *c)
 {
 	const proto_args *a = &c->args;
-	const proto_vec *vp = proto_vec_of(a, "vp"), *dtp = proto_vec_of(a, "dtp");
-	const proto_vec *vs = proto_vec_of(a, "vs"), *rho = proto_vec_of(a, "rho");
+	const proto_vec *vp = proto_vec_of(a, "vp"),
+	                *dtp = proto_vec_of(a, "dtp");
+	const proto_vec *vs = proto_vec_of(a, "vs"),
+	                *rho = proto_vec_of(a, "rho");
 	const proto_vec *phi = proto_vec_of(a, "porosity");
 	const proto_vec *clay = proto_vec_of(a, "clay");
 	const proto_vec *vma = proto_vec_of(a, "v_matrix");
@@ -247,13 +260,12 @@ static int empirical(proto_call *c)
 		return -1;
 	if (!(ga > 0))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "gardner_a",
-				  "must be > 0");
+		                  "must be > 0");
 	if (!(gb > 0))
 		return proto_fail(c, PROTO_INVALID_PARAMS, "gardner_b",
-				  "must be > 0");
-	if (rel == R_GC &&
-	    proto__lith_parse(c, proto_item_of(a, "lithology"), "lithology",
-			      frac))
+		                  "must be > 0");
+	if (rel == R_GC && proto__lith_parse(c, proto_item_of(a, "lithology"),
+	                                     "lithology", frac))
 		return -1;
 	if (rel == R_HAN && han_set(c, &pset))
 		return -1;
@@ -264,7 +276,7 @@ static int empirical(proto_call *c)
 	flags = proto_alloc(c, n * sizeof *flags);
 	if (!o1 || !o2 || !flags)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory for %zu samples", n);
+		                  "out of memory for %zu samples", n);
 	for (size_t i = 0; i < n; i++) {
 		unsigned warn = 0;
 		int st = RW_OK;
@@ -272,51 +284,47 @@ static int empirical(proto_call *c)
 		switch (rel) {
 		case R_GARDNER:
 			st = rw_emp_gardner_density(vel_at(vp, dtp, i), ga, gb,
-						    &o1[i], &warn);
+			                            &o1[i], &warn);
 			break;
 		case R_GARDNER_INV:
 			st = rw_emp_gardner_vp(proto_at(rho, i), ga, gb, &o1[i],
-					       &warn);
+			                       &warn);
 			break;
 		case R_MUDROCK_VS:
 			st = rw_emp_mudrock_vs(vel_at(vp, dtp, i), &o1[i],
-					       &warn);
+			                       &warn);
 			break;
 		case R_MUDROCK_VP:
 			st = rw_emp_mudrock_vp(proto_at(vs, i), &o1[i], &warn);
 			break;
 		case R_GC:
 			st = rw_emp_gc_vs_mixed(vel_at(vp, dtp, i), frac,
-						&o1[i], &warn);
+			                        &o1[i], &warn);
 			break;
 		case R_HAN:
 			st = rw_emp_han_velocities(proto_at(phi, i),
-						   proto_at(clay, i), pset,
-						   &o1[i], &o2[i], &warn);
+			                           proto_at(clay, i), pset,
+			                           &o1[i], &o2[i], &warn);
 			break;
 		case R_WYLLIE:
-			st = rw_emp_wyllie_velocity(proto_at(phi, i),
-						    proto_at(vma, i),
-						    proto_at(vfl, i), &o1[i],
-						    &warn);
+			st = rw_emp_wyllie_velocity(
+			    proto_at(phi, i), proto_at(vma, i),
+			    proto_at(vfl, i), &o1[i], &warn);
 			break;
 		case R_WYLLIE_PHI:
-			st = rw_emp_wyllie_porosity(vel_at(vp, dtp, i),
-						    proto_at(vma, i),
-						    proto_at(vfl, i), &o1[i],
-						    &warn);
+			st = rw_emp_wyllie_porosity(
+			    vel_at(vp, dtp, i), proto_at(vma, i),
+			    proto_at(vfl, i), &o1[i], &warn);
 			break;
 		case R_RHG:
-			st = rw_emp_rhg_velocity(proto_at(phi, i),
-						 proto_at(vma, i),
-						 proto_at(vfl, i), &o1[i],
-						 &warn);
+			st = rw_emp_rhg_velocity(
+			    proto_at(phi, i), proto_at(vma, i),
+			    proto_at(vfl, i), &o1[i], &warn);
 			break;
 		default:
-			st = rw_emp_rhg_porosity(vel_at(vp, dtp, i),
-						 proto_at(vma, i),
-						 proto_at(vfl, i), &o1[i],
-						 &warn);
+			st = rw_emp_rhg_porosity(
+			    vel_at(vp, dtp, i), proto_at(vma, i),
+			    proto_at(vfl, i), &o1[i], &warn);
 			break;
 		}
 		flags[i] = st == RW_OK ? proto__emp_qc(warn) : QC_INPUT_INVALID;
@@ -327,26 +335,18 @@ static int empirical(proto_call *c)
 	proto_w_int(c, "n", (long long)n);
 	proto_w_str(c, "relation", rel_names[rel]);
 	switch (rel) {
-	case R_GARDNER:
-		proto_w_vec(c, "rho", PK_DENSITY, o1, n, 1, arr);
-		break;
+	case R_GARDNER: proto_w_vec(c, "rho", PK_DENSITY, o1, n, 1, arr); break;
 	case R_GARDNER_INV:
 	case R_MUDROCK_VP:
 	case R_WYLLIE:
-	case R_RHG:
-		proto_w_vec(c, "vp", PK_VELOCITY, o1, n, 1, arr);
-		break;
+	case R_RHG: proto_w_vec(c, "vp", PK_VELOCITY, o1, n, 1, arr); break;
 	case R_MUDROCK_VS:
-	case R_GC:
-		proto_w_vec(c, "vs", PK_VELOCITY, o1, n, 1, arr);
-		break;
+	case R_GC: proto_w_vec(c, "vs", PK_VELOCITY, o1, n, 1, arr); break;
 	case R_HAN:
 		proto_w_vec(c, "vp", PK_VELOCITY, o1, n, 1, arr);
 		proto_w_vec(c, "vs", PK_VELOCITY, o2, n, 1, arr);
 		break;
-	default:
-		proto_w_vec(c, "porosity", PK_NONE, o1, n, 1, arr);
-		break;
+	default: proto_w_vec(c, "porosity", PK_NONE, o1, n, 1, arr); break;
 	}
 	proto_w_flags(c, "qc", flags, n, arr);
 	proto_w_units(c);
@@ -355,8 +355,8 @@ static int empirical(proto_call *c)
 }
 
 const proto_method proto_rock_empirical_methods[] = {
-	{"rock.empirical", empirical, emp_params,
-	 "Empirical velocity, density and porosity relations (Gardner, "
-	 "mudrock line, Greenberg-Castagna, Han, Wyllie, Raymer-Hunt-Gardner)."},
-	{NULL, NULL, NULL, NULL},
+    {"rock.empirical", empirical, emp_params,
+     "Empirical velocity, density and porosity relations (Gardner, "
+     "mudrock line, Greenberg-Castagna, Han, Wyllie, Raymer-Hunt-Gardner)."},
+    {NULL, NULL, NULL, NULL},
 };

@@ -13,8 +13,8 @@
 
 #include "proto/harness.h"
 
-#define REQ(params)                                                        \
-	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"rock.empirical\","     \
+#define REQ(params)                                                            \
+	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"rock.empirical\","         \
 	"\"params\":" params "}"
 
 static harness H;
@@ -49,7 +49,7 @@ static void close_to(double got, double want, double rel)
 {
 	if (!(fabs(got - want) <= rel * fabs(want))) {
 		print_error("got %.10g want %.10g (rel tol %g)\n", got, want,
-			    rel);
+		            rel);
 		fail();
 	}
 }
@@ -61,7 +61,7 @@ static void expect_error(const char *line, const char *param)
 	assert_int_equal(h_code(r), -32602);
 	if (strcmp(h_param(r), param) != 0) {
 		print_error("param '%s', want '%s' for %s\n", h_param(r), param,
-			    line);
+		            line);
 		fail();
 	}
 	cJSON_Delete(r);
@@ -73,7 +73,7 @@ static void test_gardner(void **state)
 	/* Gardner et al. 1974: rho = 0.31 vp^0.25 (g/cm3, m/s); at 3000
 	 * m/s 0.31 * 3000^0.25 = 2.294 g/cm3 (the familiar "about 2.29"). */
 	cJSON *r = h_call(&H, REQ("{\"relation\":\"gardner\","
-				  "\"vp\":[3000,2000,null,-5]}"));
+	                          "\"vp\":[3000,2000,null,-5]}"));
 	close_to(num(r, "rho", 0), 0.31 * pow(3000, 0.25), 1e-12);
 	close_to(num(r, "rho", 0), 2.294, 1e-3);
 	close_to(num(r, "rho", 1), 0.31 * pow(2000, 0.25), 1e-12);
@@ -83,7 +83,7 @@ static void test_gardner(void **state)
 	assert_int_equal((int)num(r, "qc", 0), 0);
 	assert_string_equal(
 	    cJSON_GetObjectItemCaseSensitive(h_result(r, "units"), "rho")
-		->valuestring,
+	        ->valuestring,
 	    "g/cm3");
 	cJSON_Delete(r);
 	/* From slowness, in ft/s units, with the published ft/s form
@@ -94,7 +94,7 @@ static void test_gardner(void **state)
 	cJSON_Delete(r);
 	/* Overridden constants and the inverse. */
 	r = h_call(&H, REQ("{\"relation\":\"gardner\",\"vp\":2500,"
-			   "\"gardner_a\":0.3,\"gardner_b\":0.26}"));
+	                   "\"gardner_a\":0.3,\"gardner_b\":0.26}"));
 	close_to(num(r, "rho", 0), 0.3 * pow(2500, 0.26), 1e-12);
 	cJSON_Delete(r);
 	r = h_call(&H, REQ("{\"relation\":\"gardner_inverse\",\"rho\":2.294}"));
@@ -112,12 +112,12 @@ static void test_mudrock(void **state)
 	(void)state;
 	/* Castagna et al. 1985: vp = 1.16 vs + 1.36 km/s. */
 	cJSON *r = h_call(&H, REQ("{\"relation\":\"mudrock_vs\","
-				  "\"vp\":[3000,1300]}"));
+	                          "\"vp\":[3000,1300]}"));
 	close_to(num(r, "vs", 0), (3000 - 1360) / 1.16, 1e-12);
 	assert_true(isnan(num(r, "vs", 1))); /* vs would be negative */
 	cJSON_Delete(r);
 	r = h_call(&H, REQ("{\"relation\":\"mudrock_vp\",\"vs\":1.5,"
-			   "\"units\":{\"velocity\":\"km/s\"}}"));
+	                   "\"units\":{\"velocity\":\"km/s\"}}"));
 	close_to(num(r, "vp", 0), 1.16 * 1.5 + 1.36, 1e-12);
 	cJSON_Delete(r);
 }
@@ -140,9 +140,9 @@ static void test_greenberg_castagna(void **state)
 	char line[256];
 	for (size_t i = 0; i < sizeof pts / sizeof pts[0]; i++) {
 		snprintf(line, sizeof line,
-			 REQ("{\"relation\":\"greenberg_castagna\","
-			     "\"vp\":3000,\"lithology\":\"%s\"}"),
-			 pts[i].lith);
+		         REQ("{\"relation\":\"greenberg_castagna\","
+		             "\"vp\":3000,\"lithology\":\"%s\"}"),
+		         pts[i].lith);
 		cJSON *r = h_call(&H, line);
 		close_to(num(r, "vs", 0), 1000 * pts[i].vs, 1e-9);
 		cJSON_Delete(r);
@@ -152,8 +152,8 @@ static void test_greenberg_castagna(void **state)
 	double a = pts[0].vs, b = pts[3].vs;
 	double want = 0.5 * (0.6 * a + 0.4 * b + 1 / (0.6 / a + 0.4 / b));
 	cJSON *r = h_call(&H, REQ("{\"relation\":\"greenberg_castagna\","
-				  "\"vp\":3000,\"lithology\":{\"sandstone\":"
-				  "0.6,\"shale\":0.4}}"));
+	                          "\"vp\":3000,\"lithology\":{\"sandstone\":"
+	                          "0.6,\"shale\":0.4}}"));
 	close_to(num(r, "vs", 0), 1000 * want, 1e-9);
 	cJSON_Delete(r);
 }
@@ -164,16 +164,16 @@ static void test_han(void **state)
 	/* Han et al. 1986 at 40 MPa: vp = 5.59 - 6.93 phi - 2.18 C,
 	 * vs = 3.52 - 4.91 phi - 1.89 C (km/s; from memory). */
 	cJSON *r = h_call(&H, REQ("{\"relation\":\"han\",\"porosity\":0.2,"
-				  "\"clay\":[0.1,0.6]}"));
+	                          "\"clay\":[0.1,0.6]}"));
 	close_to(num(r, "vp", 0), 1000 * (5.59 - 6.93 * 0.2 - 2.18 * 0.1),
-		 1e-12);
+	         1e-12);
 	close_to(num(r, "vs", 0), 1000 * (3.52 - 4.91 * 0.2 - 1.89 * 0.1),
-		 1e-12);
+	         1e-12);
 	assert_int_equal((int)num(r, "qc", 1), 1 << 29); /* clay > 0.5 */
 	cJSON_Delete(r);
 	expect_error(REQ("{\"relation\":\"han\",\"porosity\":0.2,\"clay\":0,"
-			 "\"effective_pressure\":15}"),
-		     "effective_pressure");
+	                 "\"effective_pressure\":15}"),
+	             "effective_pressure");
 }
 
 static void test_wyllie_raymer(void **state)
@@ -184,25 +184,25 @@ static void test_wyllie_raymer(void **state)
 	 * from memory): phi 0.2 gives dt = 0.2*189 + 0.8*55.5 = 82.2 us/ft,
 	 * i.e. 1e6/82.2 ft/s. Given in ft/s to exercise units. */
 	cJSON *r = h_call(&H, REQ("{\"relation\":\"wyllie\",\"porosity\":0.2,"
-				  "\"v_matrix\":18018.018018018,"
-				  "\"v_fluid\":5291.005291005,"
-				  "\"units\":{\"velocity\":\"ft/s\"}}"));
+	                          "\"v_matrix\":18018.018018018,"
+	                          "\"v_fluid\":5291.005291005,"
+	                          "\"units\":{\"velocity\":\"ft/s\"}}"));
 	close_to(num(r, "vp", 0), 1e6 / 82.2, 1e-9);
 	cJSON_Delete(r);
 	/* Porosity back from the slowness: (82.2 - 55.5) / (189 - 55.5). */
 	r = h_call(&H, REQ("{\"relation\":\"wyllie_porosity\",\"dtp\":82.2,"
-			   "\"v_matrix\":5491.89189189,"
-			   "\"v_fluid\":1612.6984127}"));
+	                   "\"v_matrix\":5491.89189189,"
+	                   "\"v_fluid\":1612.6984127}"));
 	close_to(num(r, "porosity", 0), 0.2, 1e-6);
 	cJSON_Delete(r);
 	/* Raymer et al. 1980: v = (1 - phi)^2 v_ma + phi v_fl. */
 	r = h_call(&H, REQ("{\"relation\":\"raymer\",\"porosity\":[0.2,0.4],"
-			   "\"v_matrix\":5480,\"v_fluid\":1500}"));
+	                   "\"v_matrix\":5480,\"v_fluid\":1500}"));
 	close_to(num(r, "vp", 0), 0.64 * 5480 + 0.2 * 1500, 1e-12);
 	assert_int_equal((int)num(r, "qc", 1), 1 << 29); /* phi >= 0.37 */
 	cJSON_Delete(r);
 	r = h_call(&H, REQ("{\"relation\":\"raymer_porosity\",\"vp\":3807.2,"
-			   "\"v_matrix\":5480,\"v_fluid\":1500}"));
+	                   "\"v_matrix\":5480,\"v_fluid\":1500}"));
 	close_to(num(r, "porosity", 0), 0.2, 1e-9);
 	cJSON_Delete(r);
 }
@@ -212,41 +212,41 @@ static void test_errors(void **state)
 	(void)state;
 	expect_error(REQ("{\"vp\":3000}"), "relation");
 	expect_error(REQ("{\"relation\":\"lindseth\",\"vp\":3000}"),
-		     "relation");
+	             "relation");
 	expect_error(REQ("{\"relation\":\"gardner\"}"), "vp");
 	expect_error(REQ("{\"relation\":\"gardner\",\"vp\":1,\"dtp\":1}"),
-		     "dtp");
+	             "dtp");
 	expect_error(REQ("{\"relation\":\"gardner\",\"vp\":3000,\"rho\":2}"),
-		     "rho");
+	             "rho");
 	expect_error(REQ("{\"relation\":\"gardner\",\"vp\":3000,"
-			 "\"gardner_a\":-1}"),
-		     "gardner_a");
+	                 "\"gardner_a\":-1}"),
+	             "gardner_a");
 	expect_error(REQ("{\"relation\":\"gardner\",\"vp\":3000,"
-			 "\"gardner_b\":0}"),
-		     "gardner_b");
+	                 "\"gardner_b\":0}"),
+	             "gardner_b");
 	expect_error(REQ("{\"relation\":\"mudrock_vs\",\"vp\":3000,"
-			 "\"lithology\":\"shale\"}"),
-		     "lithology");
+	                 "\"lithology\":\"shale\"}"),
+	             "lithology");
 	expect_error(REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
-			 "\"lithology\":\"granite\"}"),
-		     "lithology");
+	                 "\"lithology\":\"granite\"}"),
+	             "lithology");
 	expect_error(REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
-			 "\"lithology\":{\"sandstone\":0.5,\"shale\":0.4}}"),
-		     "lithology");
+	                 "\"lithology\":{\"sandstone\":0.5,\"shale\":0.4}}"),
+	             "lithology");
 	expect_error(REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
-			 "\"lithology\":{\"chalk\":1}}"),
-		     "lithology.chalk");
+	                 "\"lithology\":{\"chalk\":1}}"),
+	             "lithology.chalk");
 	expect_error(REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
-			 "\"lithology\":{\"shale\":2}}"),
-		     "lithology.shale");
+	                 "\"lithology\":{\"shale\":2}}"),
+	             "lithology.shale");
 	expect_error(REQ("{\"relation\":\"wyllie\",\"porosity\":0.2,"
-			 "\"v_matrix\":5000}"),
-		     "v_fluid");
+	                 "\"v_matrix\":5000}"),
+	             "v_fluid");
 	expect_error(REQ("{\"relation\":\"han\",\"porosity\":[0.1,0.2],"
-			 "\"clay\":[0,0,0]}"),
-		     "clay");
+	                 "\"clay\":[0,0,0]}"),
+	             "clay");
 	expect_error(REQ("{\"relation\":\"gardner\",\"vp\":3000,\"x\":1}"),
-		     "x");
+	             "x");
 	expect_error(REQ("{\"relation\":\"gardner\",\"vp\":\"fast\"}"), "vp");
 }
 

@@ -15,8 +15,8 @@
 
 #include "proto/harness.h"
 
-#define REQ(params)                                                        \
-	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"log.process\","        \
+#define REQ(params)                                                            \
+	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"log.process\","            \
 	"\"params\":" params "}"
 
 #define B_INVALID   (1u << 0)
@@ -69,7 +69,7 @@ static void close_to(double got, double want, double rel)
 {
 	if (!(fabs(got - want) <= rel * fabs(want))) {
 		print_error("got %.10g want %.10g (rel tol %g)\n", got, want,
-			    rel);
+		            rel);
 		fail();
 	}
 }
@@ -80,7 +80,7 @@ static void expect_error(const char *line, const char *param)
 	assert_non_null(r);
 	if (h_code(r) != -32602 || strcmp(h_param(r), param) != 0) {
 		print_error("code %d param '%s', want -32602 '%s' for %s\n",
-			    h_code(r), h_param(r), param, line);
+		            h_code(r), h_param(r), param, line);
 		fail();
 	}
 	cJSON_Delete(r);
@@ -95,8 +95,8 @@ static void test_elastic_set(void **state)
 	 * nu = (vp^2 - 2 vs^2) / (2 (vp^2 - vs^2)) (Mavko et al. 2009,
 	 * sec. 2.2). */
 	cJSON *r = h_call(&H, REQ("{\"depth\":[1500,1500.5],"
-				  "\"dtp\":[100,90],\"dts\":[180,170],"
-				  "\"rhob\":[2.3,2.4]}"));
+	                          "\"dtp\":[100,90],\"dts\":[180,170],"
+	                          "\"rhob\":[2.3,2.4]}"));
 	double vp = 3048, vs = 0.3048e6 / 180, rho = 2300;
 	double mu = rho * vs * vs, k = rho * vp * vp - 4.0 / 3 * mu;
 	close_to(num(r, "vp", 0), vp, 1e-12);
@@ -105,7 +105,7 @@ static void test_elastic_set(void **state)
 	close_to(num(r, "mu", 0), mu / 1e9, 1e-12);
 	close_to(num(r, "k", 0), k / 1e9, 1e-12);
 	close_to(num(r, "nu", 0),
-		 (vp * vp - 2 * vs * vs) / (2 * (vp * vp - vs * vs)), 1e-12);
+	         (vp * vp - 2 * vs * vs) / (2 * (vp * vp - vs * vs)), 1e-12);
 	close_to(num(r, "ai", 0), vp * 2.3, 1e-12);
 	close_to(num(r, "si", 0), vs * 2.3, 1e-12);
 	close_to(num(r, "vpvs", 0), 1.8, 1e-12);
@@ -131,12 +131,13 @@ static void test_qc_flags(void **state)
 	 * (clean); 5 vp/vs 1.3 < sqrt(2): nu < 0 (implausible, computed);
 	 * 6 null dtp (missing, outputs null); 7 vp/vs < 2/sqrt(3): K < 0,
 	 * impossible. */
-	cJSON *r = h_call(&H, REQ(
-	    "{\"dtp\":[100,100,100,100,100,100,null,100],"
-	    "\"dts\":[180,180,180,180,180,130,180,110],"
-	    "\"rhob\":2.3,\"drho\":[0,0.06,-0.04,0,0,0,0,0],"
-	    "\"caliper\":[0.216,0.216,0.216,0.246,0.236,0.216,0.216,0.216],"
-	    "\"bit_size\":0.216}"));
+	cJSON *r = h_call(
+	    &H,
+	    REQ("{\"dtp\":[100,100,100,100,100,100,null,100],"
+	        "\"dts\":[180,180,180,180,180,130,180,110],"
+	        "\"rhob\":2.3,\"drho\":[0,0.06,-0.04,0,0,0,0,0],"
+	        "\"caliper\":[0.216,0.216,0.216,0.246,0.236,0.216,0.216,0.216],"
+	        "\"bit_size\":0.216}"));
 	assert_int_equal(qc(r, 0), 0);
 	assert_int_equal(qc(r, 1), B_DRHO);
 	assert_int_equal(qc(r, 2), 0);
@@ -155,8 +156,9 @@ static void test_qc_flags(void **state)
 	cJSON_Delete(r);
 	/* Non-positive slowness or density: impossible, null, nothing
 	 * predicted over it (mudrock asked). */
-	r = h_call(&H, REQ("{\"dtp\":[100,100,-5],\"dts\":[-1,180,180],"
-			   "\"rhob\":[2.3,-2,2.3],\"vs_predict\":\"mudrock\"}"));
+	r = h_call(&H,
+	           REQ("{\"dtp\":[100,100,-5],\"dts\":[-1,180,180],"
+	               "\"rhob\":[2.3,-2,2.3],\"vs_predict\":\"mudrock\"}"));
 	assert_int_equal(qc(r, 0), B_INVALID);
 	assert_true(isnan(num(r, "vs", 0)));
 	assert_int_equal(qc(r, 1), B_INVALID | (1u << 1));
@@ -166,15 +168,15 @@ static void test_qc_flags(void **state)
 	cJSON_Delete(r);
 	/* Thresholds are parameters (in the request's units). */
 	r = h_call(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			   "\"drho\":0.06,\"drho_limit\":0.1,"
-			   "\"caliper\":9.5,\"bit_size\":8.5,"
-			   "\"washout_limit\":0.05,"
-			   "\"units\":{\"length\":\"ft\"}}"));
+	                   "\"drho\":0.06,\"drho_limit\":0.1,"
+	                   "\"caliper\":9.5,\"bit_size\":8.5,"
+	                   "\"washout_limit\":0.05,"
+	                   "\"units\":{\"length\":\"ft\"}}"));
 	assert_int_equal(qc(r, 0), B_WASHOUT);
 	cJSON_Delete(r);
 	/* Plausibility ranges through qc. */
 	r = h_call(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			   "\"qc\":{\"vp_max\":3000}}"));
+	                   "\"qc\":{\"vp_max\":3000}}"));
 	assert_int_equal(qc(r, 0), 1u << 6);
 	cJSON_Delete(r);
 }
@@ -187,21 +189,21 @@ static void test_predicted(void **state)
 	 * line (Castagna et al. 1985); missing density by Gardner et al.
 	 * 1974 (0.31 vp^0.25). Measured values stay measured. */
 	cJSON *r = h_call(&H, REQ("{\"dtp\":[100,100],\"dts\":[null,180],"
-				  "\"rhob\":[null,2.3],"
-				  "\"vs_predict\":\"greenberg_castagna\","
-				  "\"rho_predict\":\"gardner\"}"));
+	                          "\"rhob\":[null,2.3],"
+	                          "\"vs_predict\":\"greenberg_castagna\","
+	                          "\"rho_predict\":\"gardner\"}"));
 	close_to(num(r, "vs", 0), 1000 * (0.80416 * 3.048 - 0.85588), 1e-9);
 	close_to(num(r, "rho", 0), 0.31 * pow(3048, 0.25), 1e-12);
 	assert_int_equal(qc(r, 0), B_VS_PRED | B_RHO_PRED | B_MISSING);
 	close_to(num(r, "vs", 1), 0.3048e6 / 180, 1e-12);
 	assert_int_equal(qc(r, 1), 0);
 	assert_string_equal(h_result(r, "vs_predicted_by")->valuestring,
-			    "greenberg_castagna");
+	                    "greenberg_castagna");
 	assert_string_equal(h_result(r, "rho_predicted_by")->valuestring,
-			    "gardner");
+	                    "gardner");
 	cJSON_Delete(r);
 	r = h_call(&H, REQ("{\"vp\":3000,\"rhob\":2.3,"
-			   "\"vs_predict\":\"mudrock\"}"));
+	                   "\"vs_predict\":\"mudrock\"}"));
 	close_to(num(r, "vs", 0), (3000 - 1360) / 1.16, 1e-12);
 	assert_int_equal(qc(r, 0), B_VS_PRED);
 	cJSON_Delete(r);
@@ -210,28 +212,28 @@ static void test_predicted(void **state)
 	double a = 0.80416 * 3 - 0.85588, b = 0.76969 * 3 - 0.86735;
 	double want = 0.5 * (0.6 * a + 0.4 * b + 1 / (0.6 / a + 0.4 / b));
 	r = h_call(&H, REQ("{\"vp\":3000,\"rhob\":2.3,\"vsh\":0.4,"
-			   "\"vs_predict\":\"greenberg_castagna\"}"));
+	                   "\"vs_predict\":\"greenberg_castagna\"}"));
 	close_to(num(r, "vs", 0), 1000 * want, 1e-9);
 	close_to(num(r, "vsh", 0), 0.4, 1e-15);
 	cJSON_Delete(r);
 	/* Gamma ray: linear index (60 - 20) / (120 - 20) = 0.4 gives the
 	 * same. */
 	r = h_call(&H, REQ("{\"vp\":3000,\"rhob\":2.3,\"gr\":60,"
-			   "\"gr_clean\":20,\"gr_shale\":120,"
-			   "\"vs_predict\":\"greenberg_castagna\"}"));
+	                   "\"gr_clean\":20,\"gr_shale\":120,"
+	                   "\"vs_predict\":\"greenberg_castagna\"}"));
 	close_to(num(r, "vs", 0), 1000 * want, 1e-9);
 	cJSON_Delete(r);
 	/* Doubtful density replaced only when asked. */
 	r = h_call(&H, REQ("{\"vp\":3000,\"vs\":1600,\"rhob\":2.0,"
-			   "\"drho\":0.2,\"rho_predict\":\"gardner\","
-			   "\"rho_replace_bad\":true}"));
+	                   "\"drho\":0.2,\"rho_predict\":\"gardner\","
+	                   "\"rho_replace_bad\":true}"));
 	close_to(num(r, "rho", 0), 0.31 * pow(3000, 0.25), 1e-12);
 	assert_int_equal(qc(r, 0), B_DRHO | B_RHO_PRED);
 	cJSON_Delete(r);
 	/* Prediction outside the fitted span is flagged. */
 	r = h_call(&H, REQ("{\"vp\":7200,\"rhob\":2.8,"
-			   "\"vs_predict\":\"greenberg_castagna\","
-			   "\"lithology\":\"dolomite\"}"));
+	                   "\"vs_predict\":\"greenberg_castagna\","
+	                   "\"lithology\":\"dolomite\"}"));
 	assert_true(qc(r, 0) & B_EMP_RANGE);
 	cJSON_Delete(r);
 }
@@ -240,12 +242,12 @@ static void test_predicted(void **state)
  * sec. 6.3): K_dry from K_sat and the old fluid, K_sat2 from K_dry and
  * the new fluid, mu unchanged, rho2 = rho + phi (rho_fl2 - rho_fl1). */
 static void gassmann_hand(double vp, double vs, double rho, double phi,
-			  double km, double kf1, double rf1, double kf2,
-			  double rf2, double *vp2, double *vs2, double *rho2)
+                          double km, double kf1, double rf1, double kf2,
+                          double rf2, double *vp2, double *vs2, double *rho2)
 {
 	double mu = rho * vs * vs, k1 = rho * vp * vp - 4.0 / 3 * mu;
 	double kd = (k1 * (phi * km / kf1 + 1 - phi) - km) /
-		    (phi * km / kf1 + k1 / km - 1 - phi);
+	            (phi * km / kf1 + k1 / km - 1 - phi);
 	double x = 1 - kd / km;
 	double k2 = kd + x * x / (phi / kf2 + (1 - phi) / km - kd / (km * km));
 	*rho2 = rho + phi * (rf2 - rf1);
@@ -260,42 +262,42 @@ static void test_substitution(void **state)
 	/* Quartz K = 36.6 GPa (Mavko et al. 2009 table 7.1, from memory,
 	 * as the mineral table); brine 2.8 GPa 1.05 g/cm3 to gas 0.05 GPa
 	 * 0.2 g/cm3 (explicit). */
-	cJSON *r = h_call(
-	    &H, REQ("{\"vp\":[3200,null],\"vs\":1800,\"rhob\":2.25,"
-		    "\"porosity\":[0.25,0.25],\"mineral\":\"quartz\","
-		    "\"fluid_in_place\":{\"k\":2.8,\"rho\":1.05},"
-		    "\"fluid_new\":{\"k\":0.05,\"rho\":0.2}}"));
-	gassmann_hand(3200, 1800, 2250, 0.25, 36.6e9, 2.8e9, 1050, 0.05e9,
-		      200, &vp2, &vs2, &rho2);
+	cJSON *r =
+	    h_call(&H, REQ("{\"vp\":[3200,null],\"vs\":1800,\"rhob\":2.25,"
+	                   "\"porosity\":[0.25,0.25],\"mineral\":\"quartz\","
+	                   "\"fluid_in_place\":{\"k\":2.8,\"rho\":1.05},"
+	                   "\"fluid_new\":{\"k\":0.05,\"rho\":0.2}}"));
+	gassmann_hand(3200, 1800, 2250, 0.25, 36.6e9, 2.8e9, 1050, 0.05e9, 200,
+	              &vp2, &vs2, &rho2);
 	close_to(num(r, "vp_sub", 0), vp2, 1e-9);
 	close_to(num(r, "vs_sub", 0), vs2, 1e-9);
 	close_to(num(r, "rho_sub", 0), rho2 / 1000, 1e-12);
 	close_to(num(r, "vp", 0), 3200, 1e-15);
 	assert_true(vp2 < 3200 && vs2 > 1800); /* gas: vp down, vs up */
 	assert_string_equal(h_result(r, "substitution")->valuestring,
-			    "gassmann");
+	                    "gassmann");
 	assert_true(qc(r, 1) & B_SUB_FAIL);
 	assert_true(isnan(num(r, "vp_sub", 1)));
 	cJSON_Delete(r);
 	/* The same fluid in and out changes nothing (Gassmann's relation
 	 * inverted and applied again is the identity). */
 	r = h_call(&H, REQ("{\"vp\":3200,\"vs\":1800,\"rhob\":2.25,"
-			   "\"porosity\":0.25,\"mineral\":{\"k\":36.6},"
-			   "\"fluid_in_place\":{\"k\":2.8,\"rho\":1.05},"
-			   "\"fluid_new\":{\"k\":2.8,\"rho\":1.05}}"));
+	                   "\"porosity\":0.25,\"mineral\":{\"k\":36.6},"
+	                   "\"fluid_in_place\":{\"k\":2.8,\"rho\":1.05},"
+	                   "\"fluid_new\":{\"k\":2.8,\"rho\":1.05}}"));
 	close_to(num(r, "vp_sub", 0), 3200, 1e-12);
 	close_to(num(r, "rho_sub", 0), 2.25, 1e-12);
 	cJSON_Delete(r);
 	/* Batzle-Wang fluids at p, T from gradients and depth: the
 	 * substitution uses the fluids reported beside it. */
 	r = h_call(&H, REQ("{\"depth\":2000,\"vp\":3200,\"vs\":1800,"
-			   "\"rhob\":2.25,\"porosity\":0.25,"
-			   "\"mineral\":\"quartz\","
-			   "\"fluid_in_place\":{\"brine\":{\"salinity\":"
-			   "60000}},\"fluid_new\":{\"gas\":{\"gravity\":0.65}},"
-			   "\"pressure_gradient\":0.0105,"
-			   "\"temperature_gradient\":30,"
-			   "\"surface_temperature\":15}"));
+	                   "\"rhob\":2.25,\"porosity\":0.25,"
+	                   "\"mineral\":\"quartz\","
+	                   "\"fluid_in_place\":{\"brine\":{\"salinity\":"
+	                   "60000}},\"fluid_new\":{\"gas\":{\"gravity\":0.65}},"
+	                   "\"pressure_gradient\":0.0105,"
+	                   "\"temperature_gradient\":30,"
+	                   "\"surface_temperature\":15}"));
 	double kf1 = num(r, "k_fl_in_place", 0) * 1e9;
 	double rf1 = num(r, "rho_fl_in_place", 0) * 1e3;
 	double kf2 = num(r, "k_fl_new", 0) * 1e9;
@@ -305,8 +307,8 @@ static void test_substitution(void **state)
 	assert_true(kf1 > 2.3e9 && kf1 < 3.3e9);
 	assert_true(rf1 > 990 && rf1 < 1070);
 	assert_true(kf2 > 0.01e9 && kf2 < 0.2e9);
-	gassmann_hand(3200, 1800, 2250, 0.25, 36.6e9, kf1, rf1, kf2, rf2,
-		      &vp2, &vs2, &rho2);
+	gassmann_hand(3200, 1800, 2250, 0.25, 36.6e9, kf1, rf1, kf2, rf2, &vp2,
+	              &vs2, &rho2);
 	close_to(num(r, "vp_sub", 0), vp2, 1e-6);
 	cJSON_Delete(r);
 }
@@ -315,8 +317,8 @@ static void test_session(void **state)
 {
 	(void)state;
 	cJSON *r = h_call(&H, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-			      "\"session.set\",\"params\":{\"vs_predict\":"
-			      "\"mudrock\",\"drho_limit\":0.1}}");
+	                      "\"session.set\",\"params\":{\"vs_predict\":"
+	                      "\"mudrock\",\"drho_limit\":0.1}}");
 	assert_int_equal(h_code(r), 0);
 	cJSON_Delete(r);
 	/* Inherited: mudrock prediction, drho 0.06 below 0.1. */
@@ -326,13 +328,13 @@ static void test_session(void **state)
 	cJSON_Delete(r);
 	/* The request's own values override the session. */
 	r = h_call(&H, REQ("{\"vp\":3000,\"rhob\":2.3,\"drho\":0.06,"
-			   "\"drho_limit\":0.05,"
-			   "\"vs_predict\":\"greenberg_castagna\"}"));
+	                   "\"drho_limit\":0.05,"
+	                   "\"vs_predict\":\"greenberg_castagna\"}"));
 	close_to(num(r, "vs", 0), 1000 * (0.80416 * 3 - 0.85588), 1e-9);
 	assert_int_equal(qc(r, 0), B_VS_PRED | B_DRHO);
 	cJSON_Delete(r);
 	r = h_call(&H, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-		       "\"session.reset\"}");
+	               "\"session.reset\"}");
 	cJSON_Delete(r);
 }
 
@@ -341,107 +343,107 @@ static void test_errors(void **state)
 	(void)state;
 	expect_error(REQ("{\"dts\":180,\"rhob\":2.3}"), "dtp");
 	expect_error(REQ("{\"vp\":3000,\"dtp\":100,\"dts\":180,\"rhob\":2.3}"),
-		     "dtp");
+	             "dtp");
 	expect_error(REQ("{\"dtp\":100,\"vs\":1,\"dts\":180,\"rhob\":2.3}"),
-		     "dts");
+	             "dts");
 	expect_error(REQ("{\"dtp\":100,\"rhob\":2.3}"), "dts");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180}"), "rhob");
 	expect_error(REQ("{\"dtp\":[100,90],\"dts\":[180,170,160],"
-			 "\"rhob\":2.3}"),
-		     "dts");
+	                 "\"rhob\":2.3}"),
+	             "dts");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"caliper\":0.3}"),
-		     "bit_size");
+	                 "\"caliper\":0.3}"),
+	             "bit_size");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50}"),
-		     "gr_clean");
+	             "gr_clean");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50,"
-			 "\"vsh\":0.2}"),
-		     "gr");
+	                 "\"vsh\":0.2}"),
+	             "gr");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"gr_clean\":20}"),
-		     "gr_clean");
+	                 "\"gr_clean\":20}"),
+	             "gr_clean");
 	expect_error(REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":\"magic\"}"),
-		     "vs_predict");
+	             "vs_predict");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rho_predict\":\"x\"}"),
-		     "rho_predict");
+	             "rho_predict");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"rho_replace_bad\":true}"),
-		     "rho_replace_bad");
+	                 "\"rho_replace_bad\":true}"),
+	             "rho_replace_bad");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"gardner_a\":0.3}"),
-		     "gardner_a");
+	                 "\"gardner_a\":0.3}"),
+	             "gardner_a");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"drho_limit\":0}"),
-		     "drho_limit");
+	                 "\"drho_limit\":0}"),
+	             "drho_limit");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"washout_limit\":-1}"),
-		     "washout_limit");
+	                 "\"washout_limit\":-1}"),
+	             "washout_limit");
 	expect_error(REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":"
-			 "\"greenberg_castagna\",\"lithology\":{\"sandstone\":"
-			 "0.3}}"),
-		     "lithology");
+	                 "\"greenberg_castagna\",\"lithology\":{\"sandstone\":"
+	                 "0.3}}"),
+	             "lithology");
 	expect_error(REQ("{\"dtp\":100,\"rhob\":2.3,\"vsh\":0.3,"
-			 "\"vs_predict\":\"greenberg_castagna\","
-			 "\"lithology\":\"shale\"}"),
-		     "lithology");
+	                 "\"vs_predict\":\"greenberg_castagna\","
+	                 "\"lithology\":\"shale\"}"),
+	             "lithology");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"qc\":{\"vp_min\":5000,\"vp_max\":4000}}"),
-		     "qc.");
+	                 "\"qc\":{\"vp_min\":5000,\"vp_max\":4000}}"),
+	             "qc.");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"qc\":{\"k_max\":1}}"),
-		     "qc.k_max");
+	                 "\"qc\":{\"k_max\":1}}"),
+	             "qc.k_max");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"mineral\":\"quartz\"}"),
-		     "mineral");
+	                 "\"mineral\":\"quartz\"}"),
+	             "mineral");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"porosity\":0.2,\"mineral\":\"quartz\","
-			 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-		     "fluid_in_place");
+	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
+	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	             "fluid_in_place");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2,"
-			 "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-		     "porosity");
+	                 "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2,"
+	                 "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	             "porosity");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"porosity\":0.2,\"fluid_in_place\":{\"k\":2,"
-			 "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-		     "mineral");
+	                 "\"porosity\":0.2,\"fluid_in_place\":{\"k\":2,"
+	                 "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	             "mineral");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"porosity\":0.2,\"mineral\":\"unobtainium\","
-			 "\"fluid_in_place\":{\"k\":2,\"rho\":1},"
-			 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-		     "mineral");
+	                 "\"porosity\":0.2,\"mineral\":\"unobtainium\","
+	                 "\"fluid_in_place\":{\"k\":2,\"rho\":1},"
+	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	             "mineral");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"porosity\":0.2,\"mineral\":\"quartz\","
-			 "\"fluid_in_place\":{\"k\":2},"
-			 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-		     "fluid_in_place.rho");
+	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
+	                 "\"fluid_in_place\":{\"k\":2},"
+	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	             "fluid_in_place.rho");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"porosity\":0.2,\"mineral\":\"quartz\","
-			 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
-			 "\"fluid_new\":{\"k\":1,\"rho\":1},"
-			 "\"temperature\":60}"),
-		     "pressure");
+	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
+	                 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
+	                 "\"fluid_new\":{\"k\":1,\"rho\":1},"
+	                 "\"temperature\":60}"),
+	             "pressure");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"porosity\":0.2,\"mineral\":\"quartz\","
-			 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
-			 "\"fluid_new\":{\"k\":1,\"rho\":1},\"pressure\":20,"
-			 "\"temperature_gradient\":30}"),
-		     "surface_temperature");
+	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
+	                 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
+	                 "\"fluid_new\":{\"k\":1,\"rho\":1},\"pressure\":20,"
+	                 "\"temperature_gradient\":30}"),
+	             "surface_temperature");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-			 "\"porosity\":0.2,\"mineral\":\"quartz\","
-			 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
-			 "\"fluid_new\":{\"k\":1,\"rho\":1},"
-			 "\"pressure_gradient\":0.01,\"temperature\":60}"),
-		     "depth");
+	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
+	                 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
+	                 "\"fluid_new\":{\"k\":1,\"rho\":1},"
+	                 "\"pressure_gradient\":0.01,\"temperature\":60}"),
+	             "depth");
 	expect_error(REQ("{\"dtp\":[100,90],\"dts\":180,\"rhob\":2.3,"
-			 "\"porosity\":0.2,\"mineral\":\"quartz\","
-			 "\"fluid_in_place\":{\"k\":[2,2,2],\"rho\":1},"
-			 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-		     "fluid_in_place.k");
+	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
+	                 "\"fluid_in_place\":{\"k\":[2,2,2],\"rho\":1},"
+	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	             "fluid_in_place.k");
 	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"bogus\":1}"),
-		     "bogus");
+	             "bogus");
 	expect_error(REQ("{\"dtp\":[100,\"x\"],\"dts\":180,\"rhob\":2.3}"),
-		     "dtp");
+	             "dtp");
 }
 
 int main(void)

@@ -94,13 +94,6 @@ typedef struct proto_qc_info {
 #define QC_RHO_RANGE         (1u << 5)  /* implausible density */
 #define QC_VP_RANGE          (1u << 6)  /* implausible vp */
 #define QC_VS_RANGE          (1u << 7)  /* implausible vs */
-/* Reflectivity (16-23), reflect.c and thomsen.c. */
-#define QC_REFL_MEDIUM         (1u << 16) /* impossible medium: null */
-#define QC_REFL_POSTCRITICAL   (1u << 17) /* at/past P critical angle */
-#define QC_REFL_UNDEFINED      (1u << 18) /* an approximation has no value */
-#define QC_REFL_NO_CRIT_P      (1u << 19) /* no P critical angle: null */
-#define QC_REFL_NO_CRIT_S      (1u << 20) /* no S critical angle: null */
-#define QC_ANISO_UNSTABLE      (1u << 22) /* VTI medium not stable: null */
 /* Fluids and Gassmann (8-15), fluid.c and rock.c. */
 #define QC_FLUID_CALIBRATION (1u << 8)  /* fluid input outside B&W fit */
 #define QC_FLUID_GOR_EXCESS  (1u << 9)  /* GOR above what oil dissolves */
@@ -108,6 +101,13 @@ typedef struct proto_qc_info {
 #define QC_FLUID_FAILED      (1u << 11) /* correlation unphysical: null */
 #define QC_GASSMANN_KDRY     (1u << 12) /* K_dry < 0 or > K_min: null */
 #define QC_GASSMANN_PHI_LOW  (1u << 13) /* porosity < 0.05: ill-posed */
+/* Reflectivity (16-23), reflect.c and thomsen.c. */
+#define QC_REFL_MEDIUM         (1u << 16) /* impossible medium: null */
+#define QC_REFL_POSTCRITICAL   (1u << 17) /* at/past P critical angle */
+#define QC_REFL_UNDEFINED      (1u << 18) /* an approximation has no value */
+#define QC_REFL_NO_CRIT_P      (1u << 19) /* no P critical angle: null */
+#define QC_REFL_NO_CRIT_S      (1u << 20) /* no S critical angle: null */
+#define QC_ANISO_UNSTABLE      (1u << 22) /* VTI medium not stable: null */
 /* Well logs (log.process, rock.empirical), bits 24-31. */
 #define QC_DRHO_HIGH      (1u << 24) /* |drho| above drho_limit */
 #define QC_WASHOUT        (1u << 25) /* caliper - bit size > washout_limit */
@@ -258,13 +258,13 @@ int proto__session_merge(proto_call *c, const cJSON *params,
 extern const proto_method proto_session_methods[];
 extern const proto_method proto_service_methods[];
 extern const proto_method proto_elastic_methods[];
-extern const proto_method proto_thomsen_methods[];
-extern const proto_method proto_reflect_methods[];
 extern const proto_method proto_fluid_methods[];
 extern const proto_method proto_mineral_methods[];
 extern const proto_method proto_rock_methods[];
 extern const proto_method proto_log_methods[];
 extern const proto_method proto_rock_empirical_methods[];
+extern const proto_method proto_thomsen_methods[];
+extern const proto_method proto_reflect_methods[];
 
 /* Looks a method up by name; NULL when unknown. */
 const proto_method *proto_method_find(const char *name);

@@ -27,31 +27,29 @@ const proto_qc_info proto_qc_legend[] = {
 	{QC_VS_RANGE, "vs_implausible", QC_IMPLAUSIBLE,
 	 "vs outside the plausibility range (default 0-4500 m/s, common "
 	 "practice; params qc.vs_min, qc.vs_max)"},
-	{QC_FLUID_CALIBRATION, "fluid_outside_calibration", QC_RANGE,
-	 "a pore-fluid input (pressure, temperature, salinity, gas gravity, "
-	 "oil API, gas pseudo-reduced p or T) is outside the range Batzle & "
-	 "Wang 1992 fitted; the value is extrapolated (ranges in "
-	 "fluids.md)"},
-	{QC_FLUID_GOR_EXCESS, "gor_above_saturation", QC_IMPLAUSIBLE,
-	 "the oil's GOR exceeds the gas it can dissolve at this pressure "
-	 "and temperature (Batzle & Wang 1992 eq. 21): free gas would be "
-	 "present, so a single live-oil phase is not the real state"},
-	{QC_FLUID_BOILING, "water_boiling", QC_IMPLAUSIBLE,
-	 "pressure below the boiling pressure of pure water at this "
-	 "temperature (IAPWS-IF97 eq. 30): the brine would be vapour; the "
-	 "liquid correlation is extrapolated"},
-	{QC_FLUID_FAILED, "fluid_unphysical", QC_IMPOSSIBLE,
-	 "a fluid correlation gives no physical value here (non-positive "
-	 "density or velocity far outside its fit); outputs that need it "
-	 "are null"},
-	{QC_GASSMANN_KDRY, "dry_frame_impossible", QC_IMPOSSIBLE,
-	 "Gassmann's dry-frame bulk modulus is below 0 or above the "
-	 "mineral's: the logs, porosity, mineral and fluid are inconsistent; "
-	 "k_dry is reported, the substituted rock is null"},
-	{QC_GASSMANN_PHI_LOW, "porosity_low_gassmann", QC_RANGE,
-	 "porosity below 0.05: Gassmann's substitution is ill-conditioned "
-	 "(errors in the mineral modulus and logs are amplified roughly as "
-	 "1/porosity; common practice)"},
+	{QC_REFL_MEDIUM, "medium_impossible", QC_IMPOSSIBLE,
+	 "a medium of the interface or sample is impossible (vp <= 0, "
+	 "rho <= 0, vs < 0, 3 vp^2 <= 4 vs^2, or a VTI medium the Thomsen "
+	 "checks refuse); its reflectivity outputs are null"},
+	{QC_REFL_POSTCRITICAL, "postcritical", QC_RANGE,
+	 "incidence at or past the P critical angle (and so past any S "
+	 "one): the exact coefficients are complex (their _im and _phase "
+	 "members), the linearised forms are not valid there and are null"},
+	{QC_REFL_UNDEFINED, "approximation_undefined", QC_RANGE,
+	 "a requested formula has no value for this sample although the "
+	 "media are possible (90 deg incidence, gray_lmr with a mean lambda "
+	 "of 0, EI of a fluid at a non-zero angle, overflow); that value is "
+	 "null, the others are given"},
+	{QC_REFL_NO_CRIT_P, "no_critical_p", QC_INPUT,
+	 "vp of the lower medium is not above vp of the upper: there is no P "
+	 "critical angle and critical_p is null"},
+	{QC_REFL_NO_CRIT_S, "no_critical_s", QC_INPUT,
+	 "vs of the lower medium is not above vp of the upper (or it is a "
+	 "fluid): there is no S critical angle and critical_s is null"},
+	{QC_ANISO_UNSTABLE, "stiffness_unstable", QC_IMPOSSIBLE,
+	 "the VTI stiffness is not positive definite, C33 <= C44, vs0 is "
+	 "not in (0, vp0), delta admits no real C13, or a fluid (vs0 = 0) is "
+	 "given anisotropy; outputs are null"},
 	{QC_DRHO_HIGH, "density_correction_high", QC_INPUT,
 	 "|drho| above drho_limit (default 0.05 g/cm3, the strict end of "
 	 "the 0.05-0.10 g/cm3 common practice): the density log is doubtful "
@@ -80,29 +78,31 @@ const proto_qc_info proto_qc_legend[] = {
 	 "substitution computed with a caution: dry-frame K < 0 or above "
 	 "the mineral's, porosity below 0.05, or a fluid property outside "
 	 "its fitted range"},
-	{QC_REFL_MEDIUM, "medium_impossible", QC_IMPOSSIBLE,
-	 "a medium of the interface or sample is impossible (vp <= 0, "
-	 "rho <= 0, vs < 0, 3 vp^2 <= 4 vs^2, or a VTI medium the Thomsen "
-	 "checks refuse); its reflectivity outputs are null"},
-	{QC_REFL_POSTCRITICAL, "postcritical", QC_RANGE,
-	 "incidence at or past the P critical angle (and so past any S "
-	 "one): the exact coefficients are complex (their _im and _phase "
-	 "members), the linearised forms are not valid there and are null"},
-	{QC_REFL_UNDEFINED, "approximation_undefined", QC_RANGE,
-	 "a requested formula has no value for this sample although the "
-	 "media are possible (90 deg incidence, gray_lmr with a mean lambda "
-	 "of 0, EI of a fluid at a non-zero angle, overflow); that value is "
-	 "null, the others are given"},
-	{QC_REFL_NO_CRIT_P, "no_critical_p", QC_INPUT,
-	 "vp of the lower medium is not above vp of the upper: there is no P "
-	 "critical angle and critical_p is null"},
-	{QC_REFL_NO_CRIT_S, "no_critical_s", QC_INPUT,
-	 "vs of the lower medium is not above vp of the upper (or it is a "
-	 "fluid): there is no S critical angle and critical_s is null"},
-	{QC_ANISO_UNSTABLE, "stiffness_unstable", QC_IMPOSSIBLE,
-	 "the VTI stiffness is not positive definite, C33 <= C44, vs0 is "
-	 "not in (0, vp0), delta admits no real C13, or a fluid (vs0 = 0) is "
-	 "given anisotropy; outputs are null"},
+	{QC_FLUID_CALIBRATION, "fluid_outside_calibration", QC_RANGE,
+	 "a pore-fluid input (pressure, temperature, salinity, gas gravity, "
+	 "oil API, gas pseudo-reduced p or T) is outside the range Batzle & "
+	 "Wang 1992 fitted; the value is extrapolated (ranges in "
+	 "fluids.md)"},
+	{QC_FLUID_GOR_EXCESS, "gor_above_saturation", QC_IMPLAUSIBLE,
+	 "the oil's GOR exceeds the gas it can dissolve at this pressure "
+	 "and temperature (Batzle & Wang 1992 eq. 21): free gas would be "
+	 "present, so a single live-oil phase is not the real state"},
+	{QC_FLUID_BOILING, "water_boiling", QC_IMPLAUSIBLE,
+	 "pressure below the boiling pressure of pure water at this "
+	 "temperature (IAPWS-IF97 eq. 30): the brine would be vapour; the "
+	 "liquid correlation is extrapolated"},
+	{QC_FLUID_FAILED, "fluid_unphysical", QC_IMPOSSIBLE,
+	 "a fluid correlation gives no physical value here (non-positive "
+	 "density or velocity far outside its fit); outputs that need it "
+	 "are null"},
+	{QC_GASSMANN_KDRY, "dry_frame_impossible", QC_IMPOSSIBLE,
+	 "Gassmann's dry-frame bulk modulus is below 0 or above the "
+	 "mineral's: the logs, porosity, mineral and fluid are inconsistent; "
+	 "k_dry is reported, the substituted rock is null"},
+	{QC_GASSMANN_PHI_LOW, "porosity_low_gassmann", QC_RANGE,
+	 "porosity below 0.05: Gassmann's substitution is ill-conditioned "
+	 "(errors in the mineral modulus and logs are amplified roughly as "
+	 "1/porosity; common practice)"},
 	{0, NULL, QC_INPUT, NULL},
 };
 

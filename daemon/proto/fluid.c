@@ -9,6 +9,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "proto/desc.h"
 #include "proto/internal.h"
 #include "rockwire/fluid.h"
 #include "rockwire/status.h"
@@ -406,17 +407,6 @@ static void eval_sample(const struct proto_fluid_desc *d, size_t i, double p,
 
 /* ---- the description shared with rock.substitute ---------------------- */
 
-struct proto_fluid_desc *
-proto__fluid_desc_parse(proto_call *c, const cJSON *obj, const char *path);
-size_t proto__fluid_desc_len(const struct proto_fluid_desc *d, int *is_array,
-                             const char **len_from);
-int proto__fluid_desc_needs_pt(const struct proto_fluid_desc *d);
-void proto__fluid_desc_eval(const struct proto_fluid_desc *d, size_t i,
-                            double p_mpa, double t_degc, double *k_pa,
-                            double *rho_kgm3, uint32_t *qc);
-const double *proto__fluid_desc_sat(const struct proto_fluid_desc *d,
-                                    const char *phase, size_t *n,
-                                    int *is_array);
 
 /* Parses a fluid description object at `path` ("fluid."): either
  * {k, rho} (explicit, both required, k > 0 and rho > 0) or phases with

@@ -5,6 +5,7 @@
 #ifndef RW_PROTO_LITH_H
 #define RW_PROTO_LITH_H
 
+#include "proto/desc.h"
 #include "proto/internal.h"
 #include "rockwire/empirical.h"
 
@@ -20,23 +21,5 @@ int proto__lith_parse(proto_call *c, const cJSON *v, const char *path,
  * any bit is set. */
 uint32_t proto__emp_qc(unsigned warn);
 
-/* Fluid and mineral descriptions parsed by fluid.c and mineral.c (the
- * shapes rock.substitute takes; contracts beside their definitions). */
-struct proto_fluid_desc;
-struct proto_mineral_desc;
-struct proto_fluid_desc *
-proto__fluid_desc_parse(proto_call *c, const cJSON *obj, const char *path);
-size_t proto__fluid_desc_len(const struct proto_fluid_desc *d, int *is_array,
-                             const char **len_from);
-int proto__fluid_desc_needs_pt(const struct proto_fluid_desc *d);
-void proto__fluid_desc_eval(const struct proto_fluid_desc *d, size_t i,
-                            double p_mpa, double t_degc, double *k_pa,
-                            double *rho_kgm3, uint32_t *qc);
-struct proto_mineral_desc *
-proto__mineral_desc_parse(proto_call *c, const cJSON *item, const char *path);
-size_t proto__mineral_desc_len(const struct proto_mineral_desc *d,
-                               int *is_array, const char **len_from);
-int proto__mineral_desc_eval(const struct proto_mineral_desc *d, size_t i,
-                             double *k_pa, double *rho_kgm3);
 
 #endif

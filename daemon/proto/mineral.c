@@ -9,6 +9,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "proto/desc.h"
 #include "proto/internal.h"
 #include "rockwire/mineral.h"
 #include "rockwire/status.h"
@@ -270,13 +271,6 @@ static void load_sample(const struct proto_mineral_desc *d, size_t i)
 
 /* ---- the description shared with rock.substitute ---------------------- */
 
-struct proto_mineral_desc *
-proto__mineral_desc_parse(proto_call *c, const cJSON *item, const char *path);
-size_t proto__mineral_desc_len(const struct proto_mineral_desc *d,
-                               int *is_array, const char **len_from);
-int proto__mineral_desc_has_rho(const struct proto_mineral_desc *d);
-int proto__mineral_desc_eval(const struct proto_mineral_desc *d, size_t i,
-                             double *k_pa, double *rho_kgm3);
 
 /* Parses the mineral of rock.substitute at `path` ("mineral"): a table
  * name, {k, rho} (k > 0, rho > 0; rho optional) or {constituents,

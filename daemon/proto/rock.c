@@ -9,33 +9,12 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "proto/desc.h"
 #include "proto/internal.h"
 #include "rockwire/elastic.h"
 #include "rockwire/rock.h"
 #include "rockwire/status.h"
 
-/* Descriptions parsed by fluid.c and mineral.c (cross-file internals of
- * the protocol layer; contracts beside their definitions). */
-struct proto_fluid_desc;
-struct proto_mineral_desc;
-struct proto_fluid_desc *
-proto__fluid_desc_parse(proto_call *c, const cJSON *obj, const char *path);
-size_t proto__fluid_desc_len(const struct proto_fluid_desc *d, int *is_array,
-                             const char **len_from);
-int proto__fluid_desc_needs_pt(const struct proto_fluid_desc *d);
-void proto__fluid_desc_eval(const struct proto_fluid_desc *d, size_t i,
-                            double p_mpa, double t_degc, double *k_pa,
-                            double *rho_kgm3, uint32_t *qc);
-const double *proto__fluid_desc_sat(const struct proto_fluid_desc *d,
-                                    const char *phase, size_t *n,
-                                    int *is_array);
-struct proto_mineral_desc *
-proto__mineral_desc_parse(proto_call *c, const cJSON *item, const char *path);
-size_t proto__mineral_desc_len(const struct proto_mineral_desc *d,
-                               int *is_array, const char **len_from);
-int proto__mineral_desc_has_rho(const struct proto_mineral_desc *d);
-int proto__mineral_desc_eval(const struct proto_mineral_desc *d, size_t i,
-                             double *k_pa, double *rho_kgm3);
 
 #define NUMS(name, kind, fl)                                                   \
 	{                                                                      \
@@ -50,7 +29,7 @@ static const proto_param substitute_params[] = {
     NUMS("mu_dry", PK_MODULUS, 0),
     NUMS("porosity", PK_NONE, PP_REQUIRED),
     {"mineral", PT_ANY, PK_NONE, PP_REQUIRED, 0},
-    {"fluid", PT_OBJ, PK_NONE, 0, 0},
+    {"fluid_in_place", PT_OBJ, PK_NONE, 0, 0},
     {"fluid_new", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
     NUMS("pressure", PK_PRESSURE, 0),
     NUMS("temperature", PK_TEMPERATURE, 0),
@@ -227,12 +206,12 @@ static int check_mode(proto_call *c, const proto_args *a, int *logs)
 			return proto_fail(c, PROTO_INVALID_PARAMS, fm[i],
 			                  "required: a dry frame needs k_dry "
 			                  "and mu_dry");
-	if (*logs && !proto_item_of(a, "fluid"))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "fluid",
+	if (*logs && !proto_item_of(a, "fluid_in_place"))
+		return proto_fail(c, PROTO_INVALID_PARAMS, "fluid_in_place",
 		                  "required: the fluid in place when vp, vs "
 		                  "and rho were measured");
-	if (!*logs && proto_item_of(a, "fluid"))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "fluid",
+	if (!*logs && proto_item_of(a, "fluid_in_place"))
+		return proto_fail(c, PROTO_INVALID_PARAMS, "fluid_in_place",
 		                  "a dry frame holds no fluid: give the "
 		                  "saturating fluid as fluid_new");
 	return 0;
@@ -274,8 +253,8 @@ static int substitute(proto_call *c)
 		                  "required for a dry frame: the rock density "
 		                  "is (1 - phi) rho_min + phi rho_fluid");
 	if (logs) {
-		fo = proto__fluid_desc_parse(c, proto_item_of(a, "fluid"),
-		                             "fluid.");
+		fo = proto__fluid_desc_parse(c, proto_item_of(a, "fluid_in_place"),
+		                             "fluid_in_place.");
 		if (!fo)
 			return -1;
 	}
@@ -370,9 +349,9 @@ static int substitute(proto_call *c)
 	proto_w_vec(c, "mu", PK_MODULUS, &s[0].r.mu_pa, n, stride, arr);
 	proto_w_vec(c, "k_dry", PK_MODULUS, &s[0].r.k_dry_pa, n, stride, arr);
 	if (logs) {
-		proto_w_vec(c, "fluid_k", PK_MODULUS, &s[0].k_fl, n, stride,
+		proto_w_vec(c, "fluid_in_place_k", PK_MODULUS, &s[0].k_fl, n, stride,
 		            arr);
-		proto_w_vec(c, "fluid_rho", PK_DENSITY, &s[0].rho_fl, n, stride,
+		proto_w_vec(c, "fluid_in_place_rho", PK_DENSITY, &s[0].rho_fl, n, stride,
 		            arr);
 	}
 	proto_w_vec(c, "fluid_new_k", PK_MODULUS, &s[0].k_new, n, stride, arr);

@@ -168,7 +168,7 @@ static void test_worked_example(void **state)
 {
 	cJSON *r = call(SUB("{\"vp\":3200,\"vs\":1750,\"rho\":2.28,"
 	                    "\"porosity\":0.24,\"mineral\":\"quartz\","
-	                    "\"fluid\":{\"k\":2.9,\"rho\":1.04},\"fluid_new\":"
+	                    "\"fluid_in_place\":{\"k\":2.9,\"rho\":1.04},\"fluid_new\":"
 	                    "{\"k\":0.08,\"rho\":0.22}}"));
 	const cJSON *res = result_of(r);
 	rw_mineral q;
@@ -199,7 +199,7 @@ static void test_worked_example(void **state)
 	           1e-9);
 	assert_rel(num(res, "dvpvs_pct"),
 	           100 * ((vp2 / vs2) / (3200.0 / 1750) - 1), 1e-9);
-	assert_rel(num(res, "fluid_k"), 2.9, 1e-12);
+	assert_rel(num(res, "fluid_in_place_k"), 2.9, 1e-12);
 	assert_rel(num(res, "fluid_new_rho"), 0.22, 1e-12);
 	assert_rel(num(res, "mineral_k"), km / 1e9, 1e-12);
 	/* The gas effect: vp falls, vs rises a little (density only). */
@@ -216,7 +216,7 @@ static void test_round_trip(void **state)
 {
 	cJSON *a = call(SUB("{\"vp\":[2800,3400],\"vs\":[1400,1900],\"rho\":"
 	                    "[2.2,2.35],\"porosity\":[0.28,0.18],\"mineral\":"
-	                    "{\"k\":37,\"rho\":2.65},\"fluid\":{\"k\":2.7,"
+	                    "{\"k\":37,\"rho\":2.65},\"fluid_in_place\":{\"k\":2.7,"
 	                    "\"rho\":1.02},\"fluid_new\":{\"k\":0.1,\"rho\":"
 	                    "0.25}}"));
 	const cJSON *ra = result_of(a);
@@ -229,7 +229,7 @@ static void test_round_trip(void **state)
 	    line, sizeof line,
 	    SUB("{\"vp\":[%.17g,%.17g],\"vs\":[%.17g,%.17g],\"rho\":"
 	        "[%.17g,%.17g],\"porosity\":[0.28,0.18],\"mineral\":{\"k\":"
-	        "37},\"fluid\":{\"k\":0.1,\"rho\":0.25},\"fluid_new\":"
+	        "37},\"fluid_in_place\":{\"k\":0.1,\"rho\":0.25},\"fluid_new\":"
 	        "{\"k\":2.7,\"rho\":1.02}}"),
 	    num_at(ra, "vp", 0), num_at(ra, "vp", 1), num_at(ra, "vs", 0),
 	    num_at(ra, "vs", 1), num_at(ra, "rho", 0), num_at(ra, "rho", 1));
@@ -270,7 +270,7 @@ static void test_sweep(void **state)
 	snprintf(line, sizeof line,
 	         SUB("{\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
 	             "\"mineral\":\"quartz\",\"pressure\":28,\"temperature\":"
-	             "85,\"fluid\":{\"brine\":{\"salinity\":70000}},"
+	             "85,\"fluid_in_place\":{\"brine\":{\"salinity\":70000}},"
 	             "\"fluid_new\":{\"brine\":{\"salinity\":70000},\"gas\":"
 	             "{\"gravity\":0.62},\"saturation\":{\"brine\":[%s],"
 	             "\"gas\":[%s]}}}"),
@@ -283,9 +283,9 @@ static void test_sweep(void **state)
 	assert_true(fabs(num_at(res, "dvp_pct", 0)) < 1e-9);
 	assert_rel(num_at(res, "vp", 0), 3000, 1e-12);
 	for (int i = 0; i <= 20; i++) {
-		double kf1 = num_at(res, "fluid_k", i) * 1e9;
+		double kf1 = num_at(res, "fluid_in_place_k", i) * 1e9;
 		double kf2 = num_at(res, "fluid_new_k", i) * 1e9;
-		double rf1 = num_at(res, "fluid_rho", i) * 1000;
+		double rf1 = num_at(res, "fluid_in_place_rho", i) * 1000;
 		double rf2 = num_at(res, "fluid_new_rho", i) * 1000;
 		double km = num_at(res, "mineral_k", i) * 1e9;
 		assert_rel(num_at(res, "k_sat", i) * 1e9,
@@ -315,13 +315,13 @@ static void test_units(void **state)
 	(void)state;
 	a = call(SUB("{\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
 	             "\"mineral\":\"quartz\",\"pressure\":20.684271879505,"
-	             "\"temperature\":80,\"fluid\":{\"brine\":{\"salinity\":"
+	             "\"temperature\":80,\"fluid_in_place\":{\"brine\":{\"salinity\":"
 	             "50000}},\"fluid_new\":{\"oil\":{\"api\":40,\"gor\":120,"
 	             "\"gas_gravity\":0.7}}}"));
 	snprintf(line, sizeof line,
 	         SUB("{\"vp\":%.17g,\"vs\":%.17g,\"rho\":2250,\"porosity\":"
 	             "0.25,\"mineral\":\"quartz\",\"pressure\":%.17g,"
-	             "\"temperature\":176,\"fluid\":{\"brine\":{\"salinity\":"
+	             "\"temperature\":176,\"fluid_in_place\":{\"brine\":{\"salinity\":"
 	             "50000}},\"fluid_new\":{\"oil\":{\"api\":40,\"gor\":120,"
 	             "\"gas_gravity\":0.7}},\"units\":{\"velocity\":\"ft/s\","
 	             "\"density\":\"kg/m3\",\"modulus\":\"MPa\",\"pressure\":"
@@ -364,7 +364,7 @@ static void test_frame(void **state)
 	assert_rel(num_at(res, "vs", 1), sqrt(8e9 / (rho * 1000)), 1e-12);
 	assert_rel(num_at(res, "k_dry", 1), 9, 1e-12);
 	assert_null(cJSON_GetObjectItemCaseSensitive(res, "dvp_pct"));
-	assert_null(cJSON_GetObjectItemCaseSensitive(res, "fluid_k"));
+	assert_null(cJSON_GetObjectItemCaseSensitive(res, "fluid_in_place_k"));
 	cJSON_Delete(r);
 	r = call(SUB("{\"k_dry\":9,\"mu_dry\":8,\"porosity\":0.3,\"mineral\":"
 	             "{\"constituents\":[{\"mineral\":\"quartz\",\"fraction\":"
@@ -396,7 +396,7 @@ static void test_qc(void **state)
 	cJSON *r = call(SUB("{\"vp\":[5000,3000,3000,1500,1200],\"vs\":[3000,"
 	                    "1600,1600,200,1100],\"rho\":[2.6,2.25,2.25,2.0,"
 	                    "2.0],\"porosity\":[0.03,1.2,null,0.1,0.2],"
-	                    "\"mineral\":\"quartz\",\"fluid\":{\"k\":2.8,"
+	                    "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2.8,"
 	                    "\"rho\":1.05},\"fluid_new\":{\"k\":0.05,\"rho\":"
 	                    "0.2}}"));
 	const cJSON *res = result_of(r);
@@ -428,7 +428,7 @@ static void test_qc(void **state)
 	 * Batzle & Wang fit. */
 	r = call(SUB("{\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
 	             "\"mineral\":\"quartz\",\"pressure\":30,\"temperature\":"
-	             "150,\"fluid\":{\"brine\":{\"salinity\":50000}},"
+	             "150,\"fluid_in_place\":{\"brine\":{\"salinity\":50000}},"
 	             "\"fluid_new\":{\"k\":0.1,\"rho\":0.3}}"));
 	res = result_of(r);
 	assert_true(qc_at(res, 0) & QC_FLUID_CALIBRATION);
@@ -436,7 +436,7 @@ static void test_qc(void **state)
 }
 
 #define LOGS "\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
-#define FL   "\"fluid\":{\"k\":2.8,\"rho\":1.05},"
+#define FL   "\"fluid_in_place\":{\"k\":2.8,\"rho\":1.05},"
 #define FN   "\"fluid_new\":{\"k\":0.05,\"rho\":0.2}"
 
 static void test_errors(void **state)
@@ -453,12 +453,12 @@ static void test_errors(void **state)
 	expect_invalid(SUB("{\"k_dry\":5,\"porosity\":0.2,\"mineral\":"
 	                   "\"quartz\"," FN "}"),
 	               "mu_dry", "required");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\"," FN "}"), "fluid",
+	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\"," FN "}"), "fluid_in_place",
 	               "fluid in place");
 	expect_invalid(SUB("{\"k_dry\":5,\"mu_dry\":4,\"porosity\":0.2,"
 	                   "\"mineral\":\"quartz\"," FL FN "}"),
-	               "fluid", "fluid_new");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid\":{\"k\":"
+	               "fluid_in_place", "fluid_new");
+	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
 	                   "2.8,\"rho\":1.05}}"),
 	               "fluid_new", "required");
 	expect_invalid(SUB("{" LOGS FL FN "}"), "mineral", "required");
@@ -491,15 +491,15 @@ static void test_errors(void **state)
 	expect_invalid(SUB("{\"k_dry\":5,\"mu_dry\":4,\"porosity\":0.2,"
 	                   "\"mineral\":{\"k\":36}," FN "}"),
 	               "mineral.rho", "dry frame");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid\":{\"k\":"
+	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
 	                   "2.8}," FN "}"),
-	               "fluid.rho", "required");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid\":{\"k\":"
+	               "fluid_in_place.rho", "required");
+	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
 	                   "-2.8,\"rho\":1}," FN "}"),
-	               "fluid.k", "> 0");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid\":{\"k\":"
+	               "fluid_in_place.k", "> 0");
+	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
 	                   "2.8,\"rho\":1,\"brine\":{\"salinity\":0}}," FN "}"),
-	               "fluid.brine", "not both");
+	               "fluid_in_place.brine", "not both");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"pressure\":20,"
 	                   "\"temperature\":60," FL FN "}"),
 	               "pressure", "not used");

@@ -89,7 +89,7 @@ vp, vs, rho, phi, km = 3100.0, 1700.0, 2260.0, 0.23, 36.6e9
 (sub,) = rpc(dict(method="rock.substitute",
                   params=dict(vp=vp, vs=vs, rho=rho / 1000, porosity=phi,
                               mineral=dict(k=km / 1e9),
-                              fluid=dict(k=k_w / 1e9, rho=rho_w / 1000),
+                              fluid_in_place=dict(k=k_w / 1e9, rho=rho_w / 1000),
                               fluid_new=dict(k=list(kfl / 1e9),
                                              rho=list(rfl / 1000)))))
 mu = rho * vs ** 2

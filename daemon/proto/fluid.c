@@ -277,7 +277,10 @@ static int parse_phases(proto_call *c, const proto_args *a,
 	if (d->mix < 0)
 		return -1;
 	snprintf(full, sizeof full, "%sbrie_exponent", path);
-	if (proto_vec_of(a, "brie_exponent")->present && d->mix != MIX_BRIE)
+	/* An exponent inherited from the session is let pass for the other
+	 * mixes; one given in the request is an error there. */
+	if (proto_vec_of(a, "brie_exponent")->present && d->mix != MIX_BRIE &&
+	    !(!*path && proto_arg_inherited(c, "brie_exponent")))
 		return proto_fail(c, PROTO_INVALID_PARAMS, full,
 		                  "only used with mix \"brie\"");
 	d->brie_e = proto_num_or(a, "brie_exponent", BRIE_EXPONENT_DEFAULT);

@@ -221,6 +221,9 @@ typedef struct proto_call {
 	uint32_t kinds_used;       /* bit per proto_kind written */
 	proto_unit_note *unit_notes; /* field path -> kind, for "units" */
 	size_t n_unit_notes, cap_unit_notes;
+	/* parameters taken from the session, not the request */
+	const char *inherited[PROTO_MAX_PARAMS];
+	size_t n_inherited;
 	/* error state */
 	int err_code;
 	char err_param[128];
@@ -294,6 +297,10 @@ int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
  * present == 0 and n == 0. */
 const proto_vec *proto_vec_of(const proto_args *a, const char *name);
 const cJSON *proto_item_of(const proto_args *a, const char *name);
+/* 1 when a top-level parameter came from the session defaults rather
+ * than the request: a method may let an inherited parameter it does not
+ * need pass, where the same parameter given in the request is an error. */
+int proto_arg_inherited(const proto_call *c, const char *name);
 /* Helpers for optional scalars with defaults. */
 double proto_num_or(const proto_args *a, const char *name, double dflt);
 const char *proto_str_or(const proto_args *a, const char *name,

@@ -154,6 +154,27 @@ static void pt_at(const pt_src *s, size_t i, double *p, double *t)
 	*t = s->t->present ? proto_at(s->t, i) : s->t0 + s->gt * z;
 }
 
+/* Parameters that only fluid descriptions at reservoir conditions use. */
+static const char *const pt_names[] = {
+	"pressure", "temperature", "pressure_gradient",
+	"temperature_gradient", "surface_pressure", "surface_temperature",
+};
+
+/* A parameter given in the request that this request does not use is an
+ * error (it would be silently ignored); one inherited from the session is
+ * let pass, since sessions hold defaults for several kinds of request.
+ * Returns 1 after proto_fail, else 0. */
+static int unused(proto_call *c, const char *name)
+{
+	if (!proto_item_of(&c->args, name) || proto_arg_inherited(c, name))
+		return 0;
+	proto_fail(c, PROTO_INVALID_PARAMS, name,
+		   "not used by this request: it serves fluid substitution "
+		   "(fluid_in_place and fluid_new described by phases at "
+		   "reservoir conditions)");
+	return 1;
+}
+
 static int pt_check(proto_call *c, pt_src *s)
 {
 	const proto_args *a = &c->args;
@@ -328,14 +349,8 @@ static int process(proto_call *c)
 		                  f_old ? "fluid_new" : "fluid_in_place",
 		                  "fluid substitution needs both "
 		                  "fluid_in_place and fluid_new");
-	if (!subst && proto_item_of(a, "mineral"))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "mineral",
-		                  "used only for fluid substitution "
-		                  "(fluid_in_place and fluid_new)");
-	if (!subst && phi->present)
-		return proto_fail(c, PROTO_INVALID_PARAMS, "porosity",
-		                  "used only for fluid substitution "
-		                  "(fluid_in_place and fluid_new)");
+	if (!subst && (unused(c, "mineral") || unused(c, "porosity")))
+		return -1;
 	if (subst) {
 		if (!phi->present)
 			return proto_fail(c, PROTO_INVALID_PARAMS, "porosity",
@@ -364,6 +379,11 @@ static int process(proto_call *c)
 		if (need_pt && pt_check(c, &pts))
 			return -1;
 	}
+	if (!need_pt)
+		for (size_t k = 0; k < sizeof pt_names / sizeof pt_names[0];
+		     k++)
+			if (unused(c, pt_names[k]))
+				return -1;
 	if (proto_check_size(c, n, n))
 		return -1;
 	o = proto_alloc(c, n * sizeof *o);

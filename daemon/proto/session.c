@@ -56,6 +56,8 @@ int proto__session_merge(proto_call *c, const cJSON *params, cJSON **merged)
 							       (cJSON *)m);
 		}
 		cJSON_AddItemReferenceToObject(tmp, d->string, (cJSON *)d);
+		if (c->n_inherited < PROTO_MAX_PARAMS)
+			c->inherited[c->n_inherited++] = d->string;
 		inherited++;
 	}
 	if (!tmp)
@@ -72,6 +74,14 @@ int proto__session_merge(proto_call *c, const cJSON *params, cJSON **merged)
 				  inherited);
 	}
 	*merged = tmp;
+	return 0;
+}
+
+int proto_arg_inherited(const proto_call *c, const char *name)
+{
+	for (size_t i = 0; i < c->n_inherited; i++)
+		if (strcmp(c->inherited[i], name) == 0)
+			return 1;
 	return 0;
 }
 

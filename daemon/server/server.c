@@ -14,6 +14,9 @@
  * (`refs`), never inside its own callback chain: whoever runs code on a
  * connection after something that may close it holds a reference.
  *
+ * At shutdown, bytes the kernel already holds are taken in once and
+ * answered, since they were sent before the stop.
+ *
  * Memory bounds (protocol-docs/limits.md): a connection stops being read
  * while more than the high-water mark of its answers waits unsent, or
  * while more than the high-water mark of its input is buffered with a
@@ -548,11 +551,41 @@ static void update_pause(conn *c)
 	}
 }
 
+/* At shutdown: takes what the kernel already holds for this connection,
+ * without waiting, so that requests sent before the stop but not yet read
+ * (reads may have been paused) are answered too (keep = 1), or drops it
+ * just before closing so the peer is not reset with answers unread
+ * (keep = 0). Bounded by the socket buffer and by `rounds` reads. */
+static void drain_kernel(conn *c, int keep)
+{
+	uv_os_fd_t fd;
+	ssize_t n;
+
+	if (c->in_kind != IO_STREAM || !c->in_open ||
+	    (c->in.h.type != UV_NAMED_PIPE && c->in.h.type != UV_TCP) ||
+	    uv_fileno(&c->in.h, &fd) < 0)
+		return;
+	for (int rounds = 0; rounds < 1024; rounds++) {
+		n = read(fd, c->srv->read_buf, READ_CHUNK);
+		if (n <= 0)
+			break;
+		if (!keep)
+			continue;
+		c->srv->stats->bytes_in += (size_t)n;
+		if (srv_lines_append(&c->lines, c->srv->read_buf, (size_t)n))
+			break;
+	}
+	if (keep)
+		conn_account(c);
+}
+
 static void conn_check_done(conn *c)
 {
 	if (c->closing || !c->eof || c->busy || c->writing ||
 	    c->pending.len || srv_lines_buffered(&c->lines))
 		return;
+	if (c->srv->stopping)
+		drain_kernel(c, 0);
 	conn_close(c);
 }
 
@@ -1514,6 +1547,8 @@ static void srv_stop(srv *s, const char *why)
 	for (c = s->conns; c; c = next) {
 		c->refs++;
 		read_stop(c);
+		if (!c->eof)
+			drain_kernel(c, 1);
 		c->eof = 1;
 		c->drop_tail = 1;
 		conn_schedule(c);

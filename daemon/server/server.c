@@ -267,7 +267,7 @@ static void budget_check(srv *s)
 		}
 	} else if (s->over_budget && now <= budget / 4 * 3) {
 		s->over_budget = 0;
-		srv_log("info", "buffered bytes back under the budget: reading");
+		srv_log("info", "buffered bytes back under the budget");
 		for (c = s->conns; c; c = c->next) {
 			c->budget_wait = 0;
 			conn_update_read(c);

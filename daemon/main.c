@@ -236,9 +236,9 @@ int main(int argc, char **argv)
 			if (o == O_IDLE)
 				cfg.limits.idle_timeout_s = secs;
 			else if (o == O_STALL)
-				cfg.stall_timeout_s = secs;
+				cfg.limits.stall_timeout_s = secs;
 			else
-				cfg.drain_timeout_s = secs;
+				cfg.limits.drain_timeout_s = secs;
 			continue;
 		default: break;
 		}
@@ -302,7 +302,7 @@ int main(int argc, char **argv)
 			cfg.limits.out_hard_limit, cfg.limits.out_high_water);
 		return 2;
 	}
-	if (cfg.limits.out_hard_limit && cfg.stall_timeout_s <= 0) {
+	if (cfg.limits.out_hard_limit && cfg.limits.stall_timeout_s <= 0) {
 		fprintf(stderr, "rockwired: --stall-timeout must be above 0 "
 			"(use --max-output 0 to turn the rule off)\n");
 		return 2;

@@ -5,6 +5,12 @@
  * Conventions are stated in include/rockwire/reflect.h. */
 #include <complex.h>
 #include <math.h>
+
+/* C11's CMPLX builds a complex from parts without the inf/nan pitfalls of
+ * x + I*y; glibc's <complex.h> defines it for GCC only. */
+#if !defined(CMPLX) && defined(__clang__)
+#define CMPLX(x, y) __builtin_complex((double)(x), (double)(y))
+#endif
 #include <stddef.h>
 
 #include "rockwire/reflect.h"

@@ -74,6 +74,8 @@ void proto_limits_default(proto_limits *lim)
 	lim->out_hard_limit = 32u << 20;
 	lim->global_budget = (size_t)1 << 31;
 	lim->idle_timeout_s = 0;
+	lim->stall_timeout_s = 30;
+	lim->drain_timeout_s = 8;
 }
 
 proto_ctx *proto_ctx_new(const proto_limits *lim)
@@ -167,6 +169,8 @@ void proto__write_counters(proto_call *c)
 		    (long long)s->connections_refused);
 	proto_w_int(c, "connections_closed_slow",
 		    (long long)s->connections_closed_slow);
+	proto_w_int(c, "connections_closed_idle",
+		    (long long)s->connections_closed_idle);
 	proto_w_int(c, "lines_oversized", (long long)s->lines_oversized);
 	proto_w_int(c, "bytes_in", (long long)s->bytes_in);
 	proto_w_int(c, "bytes_out", (long long)s->bytes_out);
@@ -265,6 +269,16 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 				return PROTO_PARSE_ERROR;
 			}
 			if (in_str) {
+				/* cJSON ends strings at U+0000, which would
+				 * silently shorten the value: refuse it. */
+				if (esc && ch == 'u' && i + 4 < len &&
+				    memcmp(p + i + 1, "0000", 4) == 0) {
+					snprintf(why, why_size,
+						 "\\u0000 in a string at byte "
+						 "offset %zu is not supported",
+						 i - 1);
+					return PROTO_INVALID_REQUEST;
+				}
 				if (esc)
 					esc = 0;
 				else if (ch == '\\')

@@ -34,9 +34,13 @@ typedef struct proto_limits {
 	int max_depth;          /* JSON nesting depth */
 	size_t max_conns;       /* concurrent connections */
 	size_t out_high_water;  /* unsent bytes per connection: stop reading */
-	size_t out_hard_limit;  /* unsent bytes per connection: close */
+	size_t out_hard_limit;  /* unsent bytes per connection past which a
+				   client that stops taking bytes for
+				   stall_timeout_s is closed */
 	size_t global_budget;   /* buffered bytes over all connections */
 	double idle_timeout_s;  /* 0 = off */
+	double stall_timeout_s; /* slow-reader rule window */
+	double drain_timeout_s; /* on SIGTERM: give up after this */
 } proto_limits;
 
 /* Sets the defaults documented in protocol-docs/limits.md. */
@@ -49,6 +53,7 @@ typedef struct proto_server_stats {
 	uint64_t connections_open;
 	uint64_t connections_refused;
 	uint64_t connections_closed_slow;
+	uint64_t connections_closed_idle;
 	uint64_t lines_oversized;
 	uint64_t bytes_in, bytes_out;
 	uint64_t buffered_bytes;

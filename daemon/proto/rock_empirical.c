@@ -163,7 +163,7 @@ static int check_inputs(proto_call *c, int rel)
 		int optional = s[len - 1] == '?';
 		if (optional)
 			len--;
-		if (len > 3 && memcmp(s, "vp|dtp", len) == 0) {
+		if (len == 6 && memcmp(s, "vp|dtp", 6) == 0) {
 			int vp = proto_item_of(a, "vp") != NULL;
 			int dtp = proto_item_of(a, "dtp") != NULL;
 			if (vp && dtp)

@@ -58,6 +58,8 @@ static void write_limits(proto_call *c)
 	proto_w_int(c, "global_buffer_budget_bytes",
 		    (long long)l->global_budget);
 	proto_w_num(c, "idle_timeout_s", PK_NONE, l->idle_timeout_s);
+	proto_w_num(c, "stall_timeout_s", PK_NONE, l->stall_timeout_s);
+	proto_w_num(c, "drain_timeout_s", PK_NONE, l->drain_timeout_s);
 	proto_w_obj_end(c);
 }
 

@@ -207,8 +207,6 @@ void srv_config_default(srv_config *cfg)
 	cfg->socket_mode = 0600;
 	cfg->lines_per_turn = 20;
 	cfg->offload_bytes = 256 * 1024;
-	cfg->drain_timeout_s = 8.0;
-	cfg->stall_timeout_s = 30.0;
 	proto_limits_default(&cfg->limits);
 }
 
@@ -873,7 +871,7 @@ static void conn_tick(conn *c, uint64_t now)
 	uint64_t sent = conn_sent(c);
 	size_t unsent = conn_unsent(c);
 	size_t hard = cfg->limits.out_hard_limit;
-	uint64_t stall = (uint64_t)(cfg->stall_timeout_s * 1000);
+	uint64_t stall = (uint64_t)(cfg->limits.stall_timeout_s * 1000);
 	uint64_t idle = (uint64_t)(cfg->limits.idle_timeout_s * 1000);
 	int held = (hard && unsent > hard) ||
 		   (c->srv->over_budget && c->paused);
@@ -890,13 +888,15 @@ static void conn_tick(conn *c, uint64_t now)
 		srv_log("warning",
 			"%s: closed as slow: %zu bytes of answers unsent and "
 			"under %u bytes taken in %.1f s",
-			c->name, unsent, STALL_PROGRESS, cfg->stall_timeout_s);
+			c->name, unsent, STALL_PROGRESS,
+			cfg->limits.stall_timeout_s);
 		conn_close(c);
 		return;
 	}
 	if (idle && !c->busy && now - c->active_ms >= idle) {
 		srv_log("info", "%s: closed after %.1f s idle", c->name,
 			cfg->limits.idle_timeout_s);
+		c->srv->stats->connections_closed_idle++;
 		conn_close(c);
 	}
 }
@@ -1557,7 +1557,7 @@ static void srv_stop(srv *s, const char *why)
 		conn_unref(c);
 	}
 	uv_timer_start(&s->drain_timer, on_drain_timeout,
-		       (uint64_t)(s->cfg->drain_timeout_s * 1000), 0);
+		       (uint64_t)(s->cfg->limits.drain_timeout_s * 1000), 0);
 	srv_maybe_finish(s);
 }
 

@@ -32,9 +32,6 @@ typedef struct srv_config {
 	int lines_per_turn;         /* fairness: lines dispatched per turn */
 	size_t offload_bytes;       /* lines at least this long go to the
 				       thread pool (0 = never) */
-	double drain_timeout_s;     /* on SIGTERM: give up after this */
-	double stall_timeout_s;     /* slow-reader rule: no write progress
-				       for this long past the hard bound */
 	proto_limits limits;
 } srv_config;
 

@@ -18,6 +18,16 @@ DAEMON = os.path.join(BUILD, "rockwired")
 CLIENT = os.path.join(BUILD, "rockwire")
 
 
+def sanitized():
+    """True for a build made with -DRW_SANITIZE=ON, whose memory use says
+    nothing about the release build's."""
+    try:
+        with open(os.path.join(BUILD, "CMakeCache.txt")) as f:
+            return "RW_SANITIZE:BOOL=ON" in f.read()
+    except OSError:
+        return False
+
+
 class Checks:
     """Counts checks; prints 'N passed, M failed' at the end."""
 

@@ -16,6 +16,8 @@ import tempfile
 import threading
 import time
 
+from rwtest import sanitized
+
 BUILD = os.environ.get("RW_BUILD", "build")
 DAEMON = os.path.join(BUILD, "rockwired")
 N_CONN, N_REQ, N_SLOW = 64, 2000, 5000
@@ -30,14 +32,6 @@ def check(name, cond, detail=""):
     else:
         failed += 1
         print("FAIL:", name, str(detail)[:300])
-
-
-def sanitized():
-    try:
-        with open(os.path.join(BUILD, "CMakeCache.txt")) as f:
-            return "RW_SANITIZE:BOOL=ON" in f.read()
-    except OSError:
-        return False
 
 
 def rss_kib(pid):

@@ -83,8 +83,13 @@ try:
     t.ok("1000000 samples" in se, "summary counts every sample")
     # Bounded memory: far below the size of the file (common practice
     # for a streaming tool; generous so that it is not a timing test).
-    t.ok(0 < crss < 60000, "client RSS bounded (%d kB)" % crss)
-    t.ok(0 < drss < 120000, "daemon RSS bounded (%d kB)" % drss)
+    if rwtest.sanitized():
+        # ASan's shadow memory and quarantine say nothing about the
+        # release build's footprint; the plain build checks the bound.
+        print("RSS bounds not checked in a sanitizer build")
+    else:
+        t.ok(0 < crss < 60000, "client RSS bounded (%d kB)" % crss)
+        t.ok(0 < drss < 120000, "daemon RSS bounded (%d kB)" % drss)
     # Re-read the output: header kept, curves added, every row present.
     rows = 0
     cols = None

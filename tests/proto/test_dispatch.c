@@ -174,6 +174,10 @@ static void test_ids_and_envelope(void **state)
 	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"x\"} x",
 		     -32700, NULL, 1);
 	expect_error(h, "NaN", -32700, NULL, 1);
+	/* U+0000 would be cut short by the parser: refused, not shortened */
+	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":\"a\\u0000b\","
+			"\"method\":\"service.info\"}",
+		     -32600, NULL, 1);
 	/* nesting beyond the limit (64) is refused before parsing */
 	{
 		char deep[400];

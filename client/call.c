@@ -70,62 +70,126 @@ static const char *unit_of(const cJSON *units, const char *name)
 	return cJSON_IsString(u) ? u->valuestring : NULL;
 }
 
-/* Prints the top-level numeric arrays of a result as aligned columns with
- * units in the header; scalars are printed above the table. Returns 0, or
- * -1 when the result has no arrays to tabulate. */
+/* 1 for an array of numbers, strings and nulls (a table column), 2 for
+ * an array of such arrays (a matrix), 0 otherwise. */
+static int array_rank(const cJSON *v)
+{
+	const cJSON *e;
+	int rank = 0;
+
+	if (!cJSON_IsArray(v) || !v->child)
+		return 0;
+	cJSON_ArrayForEach(e, v)
+	{
+		int r = cJSON_IsArray(e) ? 2
+			: (cJSON_IsNumber(e) || cJSON_IsString(e) ||
+			   cJSON_IsNull(e))
+			    ? 1
+			    : 0;
+		if (r == 2 && array_rank(e) != 1)
+			return 0;
+		if (!r || (rank && r != rank))
+			return 0;
+		rank = r;
+	}
+	return rank;
+}
+
+static void print_cell(FILE *f, const cJSON *e, int w)
+{
+	if (cJSON_IsNumber(e))
+		fprintf(f, " %*.7g", w, e->valuedouble);
+	else if (cJSON_IsString(e))
+		fprintf(f, " %*s", w, e->valuestring);
+	else
+		fprintf(f, " %*s", w, "null");
+}
+
+static void column_head(const cJSON *units, const cJSON *col, char *buf,
+			size_t size)
+{
+	const char *u = unit_of(units, col->string);
+	snprintf(buf, size, u ? "%s[%s]" : "%s", col->string, u);
+}
+
+/* Prints a result for people: scalars as "# name = value unit" lines,
+ * one-dimensional arrays as aligned columns grouped by length (one table
+ * per length, e.g. per-angle and per-interface members), two-dimensional
+ * arrays as one matrix each (rows are the first index). Units are in the
+ * headers. Returns 0, or -1 when nothing could be printed that way. */
 static int print_table(const cJSON *result, FILE *f)
 {
 	const cJSON *units = cJSON_GetObjectItemCaseSensitive(result, "units");
-	const cJSON *m;
-	const cJSON *cols[128];
-	size_t ncol = 0, nrow = 0, nscalar = 0;
-	char head[128];
+	const cJSON *m, *cols[128];
+	int done[128] = {0};
+	size_t ncol = 0, printed = 0;
+	char head[160];
 
 	if (!cJSON_IsObject(result))
 		return -1;
 	cJSON_ArrayForEach(m, result)
 	{
-		if (cJSON_IsArray(m) && ncol < 128) {
-			size_t n = (size_t)cJSON_GetArraySize(m);
-			const cJSON *e0 = cJSON_GetArrayItem(m, 0);
-			if (e0 && !cJSON_IsNumber(e0) && !cJSON_IsNull(e0))
-				continue;
-			if (!ncol || n == nrow) {
-				cols[ncol++] = m;
-				nrow = n;
-			}
-		} else if (cJSON_IsNumber(m) || cJSON_IsString(m) ||
-			   cJSON_IsBool(m)) {
+		if (cJSON_IsNumber(m) || cJSON_IsString(m) || cJSON_IsBool(m) ||
+		    cJSON_IsNull(m)) {
 			const char *u = unit_of(units, m->string);
 			char *s = cJSON_PrintUnformatted(m);
 			fprintf(f, "# %s = %s%s%s\n", m->string, s ? s : "?",
 				u ? " " : "", u ? u : "");
 			cJSON_free(s);
-			nscalar++;
+			printed++;
+		} else if (array_rank(m) && ncol < 128) {
+			cols[ncol++] = m;
 		}
 	}
-	if (!ncol)
-		return nscalar ? 0 : -1;
+	/* One table per array length, in order of first appearance. */
 	for (size_t j = 0; j < ncol; j++) {
-		const char *u = unit_of(units, cols[j]->string);
-		snprintf(head, sizeof head, u ? "%s[%s]" : "%s",
-			 cols[j]->string, u);
-		fprintf(f, "%*s", j ? 14 : 12, head);
-	}
-	fputc('\n', f);
-	for (size_t i = 0; i < nrow; i++) {
-		for (size_t j = 0; j < ncol; j++) {
-			const cJSON *e = cJSON_GetArrayItem(cols[j], (int)i);
-			int w = j ? 14 : 12;
-			if (cJSON_IsNumber(e)) {
-				fprintf(f, " %*.7g", w - 1, e->valuedouble);
-			} else {
-				fprintf(f, "%*s", w, "null");
+		size_t group[128], ng = 0;
+		int width[128], n;
+		if (done[j] || array_rank(cols[j]) != 1)
+			continue;
+		n = cJSON_GetArraySize(cols[j]);
+		for (size_t k = j; k < ncol; k++)
+			if (!done[k] && array_rank(cols[k]) == 1 &&
+			    cJSON_GetArraySize(cols[k]) == n) {
+				done[k] = 1;
+				group[ng++] = k;
 			}
+		for (size_t g = 0; g < ng; g++) {
+			column_head(units, cols[group[g]], head, sizeof head);
+			width[g] = (int)strlen(head) > 13 ? (int)strlen(head)
+							  : 13;
+			fprintf(f, " %*s", width[g], head);
 		}
 		fputc('\n', f);
+		for (int i = 0; i < n; i++) {
+			for (size_t g = 0; g < ng; g++)
+				print_cell(f,
+					   cJSON_GetArrayItem(cols[group[g]], i),
+					   width[g]);
+			fputc('\n', f);
+		}
+		fputc('\n', f);
+		printed++;
 	}
-	return 0;
+	for (size_t j = 0; j < ncol; j++) {
+		const cJSON *row;
+		int r = 0;
+		if (array_rank(cols[j]) != 2)
+			continue;
+		column_head(units, cols[j], head, sizeof head);
+		fprintf(f, "%s (rows: first index, columns: second)\n", head);
+		cJSON_ArrayForEach(row, cols[j])
+		{
+			const cJSON *e;
+			fprintf(f, " %4d", r++);
+			cJSON_ArrayForEach(e, row)
+				print_cell(f, e, 13);
+			fputc('\n', f);
+		}
+		fputc('\n', f);
+		printed++;
+	}
+	return printed ? 0 : -1;
 }
 
 /* Prints a response: the result to stdout, an error to stderr. Returns the

@@ -6,6 +6,7 @@
 #define RW_CLI_H
 
 #include <stddef.h>
+#include <stdio.h>
 #include <sys/types.h>
 
 typedef struct cli_opts {
@@ -50,6 +51,9 @@ int cli_cmd_send(const cli_opts *o, int argc, char **argv);
 /* `rockwire log FILE.las` (client/logcmd.c) and `rockwire feed`
  * (client/feed.c); argv holds the subcommand's arguments. */
 int cli_cmd_log(const cli_opts *o, int argc, char **argv);
+/* Usage lines of the subcommands, for errors and `COMMAND --help`. */
+void cli_usage_log(FILE *f);
+void cli_usage_feed(FILE *f);
 int cli_cmd_feed(const cli_opts *o, int argc, char **argv);
 
 /* Exit codes of rockwire (documented in --help). */

@@ -329,6 +329,13 @@ static int tcp_connect(const char *hp)
 	return fd;
 }
 
+void cli_usage_feed(FILE *f)
+{
+	fprintf(f, "usage: rockwire feed [--connect HOST:PORT] "
+	           "[--map RRII=INPUT|none ...] [--format ndjson|csv]\n"
+	           "       [--set NAME=VALUE ...]\n");
+}
+
 int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 {
 	static cli_wits_parser wp; /* fixed buffers: keep off the stack */
@@ -498,9 +505,7 @@ out:
 	cJSON_Delete(params);
 	return rc;
 usage:
-	fprintf(stderr, "usage: rockwire feed [--connect HOST:PORT] "
-	                "[--map RRII=INPUT|none ...] [--format ndjson|csv]\n"
-	                "       [--set NAME=VALUE ...]\n");
+	cli_usage_feed(stderr);
 	rc = CLI_EXIT_USAGE;
 	goto out;
 }

@@ -666,9 +666,9 @@ out:
 	return rc;
 }
 
-static void usage(void)
+void cli_usage_log(FILE *f)
 {
-	fprintf(stderr,
+	fprintf(f,
 	        "usage: rockwire log FILE.las [-o OUT] [--format las|csv]\n"
 	        "       [--curve INPUT=MNEM|none ...] [--set NAME=VALUE ...]\n"
 	        "       [--params JSON] [--block N] [--inflight N]\n"
@@ -939,7 +939,7 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 	rc = CLI_EXIT_OK;
 	goto out;
 usage_fail:
-	usage();
+	cli_usage_log(stderr);
 	rc = CLI_EXIT_USAGE;
 out:
 	if (rc != CLI_EXIT_OK && L.failed)

@@ -76,6 +76,19 @@ int main(int argc, char **argv)
 	const char *cmd = argv[optind];
 	argc -= optind + 1;
 	argv += optind + 1;
+	/* COMMAND --help: that command's usage on stdout. */
+	if (argc > 0 && (strcmp(argv[0], "--help") == 0 ||
+			 strcmp(argv[0], "-h") == 0)) {
+		if (strcmp(cmd, "log") == 0)
+			cli_usage_log(stdout);
+		else if (strcmp(cmd, "feed") == 0)
+			cli_usage_feed(stdout);
+		else if (strcmp(cmd, "call") == 0 || strcmp(cmd, "send") == 0)
+			usage(stdout);
+		else
+			goto unknown;
+		return CLI_EXIT_OK;
+	}
 	if (strcmp(cmd, "call") == 0)
 		return cli_cmd_call(&o, argc, argv);
 	if (strcmp(cmd, "send") == 0)
@@ -84,6 +97,7 @@ int main(int argc, char **argv)
 		return cli_cmd_log(&o, argc, argv);
 	if (strcmp(cmd, "feed") == 0)
 		return cli_cmd_feed(&o, argc, argv);
+unknown:
 	fprintf(stderr, "rockwire: unknown command '%s'\n", cmd);
 	usage(stderr);
 	return CLI_EXIT_USAGE;

@@ -10,59 +10,7 @@
 #include <cjson/cJSON.h>
 
 #include "cli.h"
-
-/* Sets params[path] = value where path may be dotted ("units.velocity").
- * The value is JSON when it parses as JSON, else a string. */
-static int set_param(cJSON *params, const char *arg)
-{
-	const char *eq = strchr(arg, '=');
-	char key[256];
-	cJSON *obj = params, *val;
-	const char *seg = arg;
-
-	if (!eq || eq == arg) {
-		fprintf(stderr, "rockwire call: '%s' is not name=value\n", arg);
-		return -1;
-	}
-	val = cJSON_Parse(eq + 1);
-	if (!val)
-		val = cJSON_CreateString(eq + 1);
-	if (!val)
-		return -1;
-	for (;;) {
-		const char *dot = memchr(seg, '.', (size_t)(eq - seg));
-		size_t n = (size_t)((dot ? dot : eq) - seg);
-		cJSON *next;
-		if (n == 0 || n >= sizeof key) {
-			fprintf(stderr, "rockwire call: bad name in '%s'\n",
-				arg);
-			cJSON_Delete(val);
-			return -1;
-		}
-		memcpy(key, seg, n);
-		key[n] = '\0';
-		next = cJSON_GetObjectItemCaseSensitive(obj, key);
-		if (!dot) {
-			if (next)
-				cJSON_DeleteItemFromObjectCaseSensitive(obj,
-									key);
-			cJSON_AddItemToObject(obj, key, val);
-			return 0;
-		}
-		if (!next) {
-			next = cJSON_AddObjectToObject(obj, key);
-		} else if (!cJSON_IsObject(next)) {
-			fprintf(stderr,
-				"rockwire call: '%s' is both a value and an "
-				"object\n",
-				key);
-			cJSON_Delete(val);
-			return -1;
-		}
-		obj = next;
-		seg = dot + 1;
-	}
-}
+#include "logio.h"
 
 static const char *unit_of(const cJSON *units, const char *name)
 {
@@ -285,7 +233,7 @@ int cli_cmd_call(const cli_opts *o, int argc, char **argv)
 			seen_method = 1;
 			continue;
 		}
-		if (set_param(params, argv[i]))
+		if (cli__param_set(params, argv[i], "rockwire call"))
 			goto out;
 	}
 	req = cJSON_CreateObject();

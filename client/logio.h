@@ -1,5 +1,5 @@
-/* Cross-file helpers of the streaming subcommands (`rockwire log`,
- * `rockwire feed`): building request parameters from name=value options,
+/* Cross-file helpers of the client subcommands: building request
+ * parameters from name=value options (call, log, feed),
  * number formatting, and a non-blocking request/response pipeline over a
  * cli_conn with a bounded number of requests in flight. */
 #ifndef RW_CLI_LOGIO_H

@@ -311,6 +311,12 @@ int proto_bool_or(const proto_args *a, const char *name, int dflt);
  * accepted values. */
 int proto_enum_of(proto_call *c, const proto_args *a, const char *name,
 		  const char *const *names, int dflt);
+/* Joins an array parameter checked outside proto_args_parse (members of
+ * nested lists) into one broadcast length: the first array sets *n and
+ * records its path in `from`; a later array of another length fails with
+ * -32602 naming both. Scalars and absent vectors are left out. 0 or -1. */
+int proto_join_len(proto_call *c, const proto_vec *v, const char *path,
+		   size_t *n, int *any_array, char *from, size_t from_size);
 /* Checks the request's sample count and work against the limits: samples
  * is the broadcast length, work the samples x other dimensions. */
 int proto_check_size(proto_call *c, size_t samples, size_t work);

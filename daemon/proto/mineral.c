@@ -64,19 +64,8 @@ struct proto_mineral_desc {
 static int join_len(proto_call *c, struct proto_mineral_desc *d,
                     const proto_vec *v, const char *path)
 {
-	if (!v->present || !v->is_array)
-		return 0;
-	if (d->any_array && v->n != d->n)
-		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-		                  "array length %zu does not match length %zu "
-		                  "of '%s'",
-		                  v->n, d->n, d->len_from);
-	if (!d->any_array) {
-		d->any_array = 1;
-		d->n = v->n;
-		snprintf(d->len_from, sizeof d->len_from, "%s", path);
-	}
-	return 0;
+	return proto_join_len(c, v, path, &d->n, &d->any_array, d->len_from,
+			      sizeof d->len_from);
 }
 
 /* Every element of v at least lo (or above lo when strict). */

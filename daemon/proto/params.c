@@ -353,6 +353,24 @@ int proto_enum_of(proto_call *c, const proto_args *a, const char *name,
 	return -1;
 }
 
+int proto_join_len(proto_call *c, const proto_vec *v, const char *path,
+		   size_t *n, int *any_array, char *from, size_t from_size)
+{
+	if (!v->present || !v->is_array)
+		return 0;
+	if (*any_array && v->n != *n)
+		return proto_fail(c, PROTO_INVALID_PARAMS, path,
+				  "array length %zu does not match length %zu "
+				  "of '%s'",
+				  v->n, *n, from);
+	if (!*any_array) {
+		*any_array = 1;
+		*n = v->n;
+		snprintf(from, from_size, "%s", path);
+	}
+	return 0;
+}
+
 int proto_check_size(proto_call *c, size_t samples, size_t work)
 {
 	const proto_limits *lim = proto_ctx_limits(c->ctx);

@@ -28,6 +28,26 @@ def sanitized():
         return False
 
 
+_counts = {"passed": 0, "failed": 0}
+
+
+def check(name, cond, detail=""):
+    """Counts one named check; prints the failures."""
+    if cond:
+        _counts["passed"] += 1
+    else:
+        _counts["failed"] += 1
+        print("FAIL:", name, str(detail)[:400], flush=True)
+    return cond
+
+
+def finish():
+    """Prints 'N passed, M failed'; returns the exit code (1 on any
+    failure, or when nothing was checked)."""
+    print("%d passed, %d failed" % (_counts["passed"], _counts["failed"]))
+    return 1 if _counts["failed"] or not _counts["passed"] else 0
+
+
 class Checks:
     """Counts checks; prints 'N passed, M failed' at the end."""
 

@@ -20,18 +20,12 @@ import tempfile
 import threading
 import time
 
+from rwtest import check, finish  # noqa: E402
+
 BUILD = os.environ.get("RW_BUILD", "build")
 DAEMON = os.path.join(BUILD, "rockwired")
-passed = failed = 0
 
 
-def check(name, cond, detail=""):
-    global passed, failed
-    if cond:
-        passed += 1
-    else:
-        failed += 1
-        print("FAIL:", name, str(detail)[:300])
 
 
 class Daemon:
@@ -398,8 +392,7 @@ def main():
             t()
         except Exception as e:
             check(t.__name__, False, repr(e))
-    print("%d passed, %d failed" % (passed, failed))
-    return 1 if failed else 0
+    return finish()
 
 
 if __name__ == "__main__":

@@ -17,18 +17,12 @@ import sys
 import tempfile
 import time
 
+from rwtest import check, finish  # noqa: E402
+
 BUILD = os.environ.get("RW_BUILD", "build")
 DAEMON = os.path.join(BUILD, "rockwired")
-passed = failed = 0
 
 
-def check(name, cond, detail=""):
-    global passed, failed
-    if cond:
-        passed += 1
-    else:
-        failed += 1
-        print("FAIL:", name, detail)
 
 
 class Daemon:
@@ -290,8 +284,7 @@ def main():
             t()
         except Exception as e:  # a crash of the test is a failure
             check(t.__name__, False, repr(e))
-    print("%d passed, %d failed" % (passed, failed))
-    return 1 if failed else 0
+    return finish()
 
 
 if __name__ == "__main__":

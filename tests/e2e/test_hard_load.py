@@ -16,22 +16,14 @@ import tempfile
 import threading
 import time
 
-from rwtest import sanitized
+from rwtest import check, finish, sanitized
 
 BUILD = os.environ.get("RW_BUILD", "build")
 DAEMON = os.path.join(BUILD, "rockwired")
 N_CONN, N_REQ, N_SLOW = 64, 2000, 5000
 HIGH = 64 << 10  # --high-water for this run
-passed = failed = 0
 
 
-def check(name, cond, detail=""):
-    global passed, failed
-    if cond:
-        passed += 1
-    else:
-        failed += 1
-        print("FAIL:", name, str(detail)[:300])
 
 
 def rss_kib(pid):
@@ -181,8 +173,7 @@ def main():
     p.terminate()
     check("load daemon exit 0", p.wait(15) == 0)
     errf.close()
-    print("%d passed, %d failed" % (passed, failed))
-    return 1 if failed else 0
+    return finish()
 
 
 if __name__ == "__main__":

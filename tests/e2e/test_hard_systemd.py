@@ -17,20 +17,14 @@ import sys
 import tempfile
 import time
 
+from rwtest import check, finish  # noqa: E402
+
 BUILD = os.environ.get("RW_BUILD", "build")
 DAEMON = os.path.join(BUILD, "rockwired")
-passed = failed = 0
 PROBE = (b'{"jsonrpc":"2.0","id":"p","method":"elastic.convert",'
          b'"params":{"rho":2.4,"vp":3000,"vs":1500}}\n')
 
 
-def check(name, cond, detail=""):
-    global passed, failed
-    if cond:
-        passed += 1
-    else:
-        failed += 1
-        print("FAIL:", name, str(detail)[:400])
 
 
 def recv_msgs(rx, until, timeout=10):
@@ -179,8 +173,7 @@ def main():
             t()
         except Exception as e:
             check("case crashed", False, repr(e))
-    print("%d passed, %d failed" % (passed, failed))
-    return 1 if failed else 0
+    return finish()
 
 
 if __name__ == "__main__":

@@ -486,12 +486,13 @@ out:
 		        "feed: %lu records, %lu samples sent, %lu answered, "
 		        "%lu refused; skipped: %lu malformed records, %lu "
 		        "unterminated, %lu empty, %lu bad lines, %lu long "
-		        "lines, %lu lines outside records; %lu records "
-		        "without mapped items, %lu held for the next depth\n",
+		        "lines, %lu lines outside records; %lu text items "
+		        "not used; %lu records without mapped items, %lu "
+		        "held for the next depth\n",
 		        s->records, f.samples_sent, f.answered, f.rejected,
 		        s->bad_records, s->unterminated, s->empty, s->bad_lines,
-		        s->long_lines, s->garbage, f.unmapped_records,
-		        f.no_depth_records);
+		        s->long_lines, s->garbage, s->text_items,
+		        f.unmapped_records, f.no_depth_records);
 	}
 	if (f.any)
 		fprintf(stderr, WHO ": values after the last depth item were "

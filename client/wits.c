@@ -2,8 +2,11 @@
  * at CLI_WITS_MAX_LINE), tracks "&&" ... "!!" framing and collects each
  * record's (code, value) items in a fixed array; a record is delivered
  * whole or not at all. Choices: surrounding blanks on a line are ignored;
- * blank lines are ignored everywhere; a value must be a plain decimal
- * number (no hex, inf or nan); one bad line spoils its whole record. */
+ * blank lines are ignored everywhere; an item whose value is not a plain
+ * decimal number (no hex, inf or nan) is a text item — WITS defines
+ * alphanumeric items, such as the well identifier 0101 — and is counted,
+ * not delivered, without spoiling its record; a line that is not an item
+ * (no 4-digit code, or no value) spoils its whole record. */
 #include <ctype.h>
 #include <math.h>
 #include <stdlib.h>
@@ -28,8 +31,10 @@ static int blank(int c)
 	return c == ' ' || c == '\t';
 }
 
-/* Parses the item line s (trimmed, NUL-terminated): 4 digits then a
- * finite decimal number, with or without blanks between. 1 on success. */
+/* Parses the item line s (trimmed, NUL-terminated): 4 digits then a value,
+ * with or without blanks between. Returns 1 for a finite decimal number
+ * (stored in *it), 2 for any other value (a text item), 0 for a line that
+ * is not an item. */
 static int parse_item(const char *s, cli_wits_item *it)
 {
 	const char *v = s + 4, *q;
@@ -47,10 +52,10 @@ static int parse_item(const char *s, cli_wits_item *it)
 	for (q = v; *q; q++)
 		if (!isdigit((unsigned char)*q) && *q != '+' && *q != '-' &&
 		    *q != '.' && *q != 'e' && *q != 'E')
-			return 0;
+			return 2;
 	x = strtod(v, &end);
 	if (end == v || *end != '\0' || !isfinite(x))
-		return 0;
+		return 2;
 	it->code = (unsigned)((s[0] - '0') * 1000 + (s[1] - '0') * 100 +
 	                      (s[2] - '0') * 10 + (s[3] - '0'));
 	it->value = x;
@@ -121,12 +126,17 @@ static void line_done(cli_wits_parser *p)
 		p->record_bad = 1;
 		return;
 	}
-	if (strlen(s) < 4 || !parse_item(s, &p->items[p->nitems])) {
+	switch (strlen(s) < 4 ? 0 : parse_item(s, &p->items[p->nitems])) {
+	case 1:
+		p->nitems++;
+		return;
+	case 2:
+		p->stats.text_items++;
+		return;
+	default:
 		p->stats.bad_lines++;
 		p->record_bad = 1;
-		return;
 	}
-	p->nitems++;
 }
 
 void cli_wits_feed(cli_wits_parser *p, const void *buf, size_t len)

@@ -39,6 +39,8 @@ typedef struct cli_wits_stats {
 	                             * a finite number */
 	unsigned long long_lines;   /* lines over CLI_WITS_MAX_LINE */
 	unsigned long garbage;      /* non-blank lines outside a record */
+	unsigned long text_items;   /* items with a non-numeric value (WITS
+	                             * alphanumeric items): not delivered */
 } cli_wits_stats;
 
 /* Called once per good record with its n >= 1 items in input order; the

@@ -45,7 +45,7 @@ static const char stream[] =
     "!!\n"
     "HELLO RIG\n" /* garbage between records */
     "&&\n"
-    "0108abc\n" /* non-numeric value */
+    "0108abc\n" /* a text item only: nothing numeric to deliver */
     "!!\n"
     "&&\n"
     "01081\n" /* no terminator before the next && */
@@ -70,7 +70,7 @@ static const char stream[] =
     "!!\n" /* terminator outside a record */
     "&&\n"
     "1201 0.5\n"
-    "1202 nan\n" /* not a plain number */
+    "1202 nan\n" /* not a plain number: a text item, skipped */
     "!!\n"
     "&&\n"
     "0201 7\n"
@@ -83,17 +83,19 @@ static const struct {
 } want[] = {
     {4, {{108, 1500.25}, {110, 1498.75}, {113, -23.5}, {121, 1200.0}}},
     {2, {{108, 1501.0}, {110, 1499.5}}},
+    {1, {{1201, 0.5}}},
     {2, {{201, 7.0}, {202, 8.0}}},
 };
 
 static void check_stats(const cli_wits_stats *s)
 {
-	assert_int_equal(s->records, 3);
-	assert_int_equal(s->items, 8);
-	assert_int_equal(s->bad_records, 4); /* abc, 01X8, long, nan */
+	assert_int_equal(s->records, 4);
+	assert_int_equal(s->items, 9);
+	assert_int_equal(s->bad_records, 2); /* 01X8, long */
 	assert_int_equal(s->unterminated, 1);
-	assert_int_equal(s->empty, 1);
-	assert_int_equal(s->bad_lines, 3); /* abc, 01X8, nan */
+	assert_int_equal(s->empty, 2); /* blank, and abc's text-only record */
+	assert_int_equal(s->bad_lines, 1); /* 01X8 */
+	assert_int_equal(s->text_items, 2); /* abc, nan */
 	assert_int_equal(s->long_lines, 1);
 	assert_int_equal(s->garbage, 2); /* HELLO RIG, stray !! */
 }
@@ -102,8 +104,8 @@ static void check_got(const struct got *g)
 {
 	size_t r, i;
 
-	assert_int_equal(g->nrec, 3);
-	for (r = 0; r < 3; r++) {
+	assert_int_equal(g->nrec, 4);
+	for (r = 0; r < 4; r++) {
 		assert_int_equal(g->len[r], want[r].n);
 		for (i = 0; i < want[r].n; i++) {
 			assert_int_equal(g->it[r][i].code, want[r].it[i].code);

@@ -4,9 +4,10 @@
  * whole or not at all. Choices: surrounding blanks on a line are ignored;
  * blank lines are ignored everywhere; an item whose value is not a plain
  * decimal number (no hex, inf or nan) is a text item — WITS defines
- * alphanumeric items, such as the well identifier 0101 — and is counted,
- * not delivered, without spoiling its record; a line that is not an item
- * (no 4-digit code, or no value) spoils its whole record. */
+ * alphanumeric items, such as the well identifier 0101 (from memory) —
+ * and is counted, not delivered, without spoiling its record; a line
+ * that is not an item (no 4-digit code, or no value) spoils its whole
+ * record. */
 #include <ctype.h>
 #include <math.h>
 #include <stdlib.h>

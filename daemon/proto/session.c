@@ -21,14 +21,41 @@ static const proto_param *spec_entry(const char *name)
 	return NULL;
 }
 
-static int in_spec(const proto_method *m, const char *name)
+static const proto_param *method_entry(const proto_method *m,
+				       const char *name)
 {
 	if (!m->params)
-		return 0;
+		return NULL;
 	for (const proto_param *p = m->params; p->name; p++)
 		if (strcmp(p->name, name) == 0)
+			return p;
+	return NULL;
+}
+
+static int has_number(const cJSON *v)
+{
+	const cJSON *e;
+	if (cJSON_IsNumber(v))
+		return 1;
+	cJSON_ArrayForEach(e, v)
+		if (has_number(e))
 			return 1;
 	return 0;
+}
+
+/* 1 when the stored default v of parameter p would mean something else
+ * under units b than under units a (the units it was given in). Values
+ * with no number never do; a top-level number depends on its own kind
+ * only; numbers inside objects are assumed to depend on any kind. */
+static int units_matter(const proto_param *p, const cJSON *v,
+			const proto_units *a, const proto_units *b)
+{
+	if (!has_number(v))
+		return 0;
+	if (p && (p->type == PT_NUMS || p->type == PT_NUM ||
+		  p->type == PT_INT))
+		return p->kind != PK_NONE && a->sel[p->kind] != b->sel[p->kind];
+	return memcmp(a, b, sizeof *a) != 0;
 }
 
 int proto__session_merge(proto_call *c, const cJSON *params, cJSON **merged)
@@ -36,16 +63,27 @@ int proto__session_merge(proto_call *c, const cJSON *params, cJSON **merged)
 	proto_session *s = c->session;
 	const cJSON *d, *m;
 	cJSON *tmp = NULL;
-	int inherited = 0;
 
 	*merged = (cJSON *)params;
 	if (!s->defaults || !s->defaults->child)
 		return 0;
 	cJSON_ArrayForEach(d, s->defaults)
 	{
-		if (!in_spec(c->method, d->string) ||
-		    cJSON_GetObjectItemCaseSensitive(params, d->string))
+		const proto_param *p = method_entry(c->method, d->string);
+		if (!p || cJSON_GetObjectItemCaseSensitive(params, d->string))
 			continue;
+		/* Inherited values are in the session's units; a request
+		 * whose units would change their meaning is refused. */
+		if (units_matter(p, d, &s->units, &c->units)) {
+			cJSON_Delete(tmp);
+			return proto_fail(c, PROTO_INVALID_PARAMS, "units",
+					  "the session default '%s' was set in "
+					  "the session's units, which this "
+					  "request's units would change; give "
+					  "%s in the request, or change units "
+					  "with session.set",
+					  d->string, d->string);
+		}
 		if (!tmp) {
 			tmp = cJSON_CreateObject();
 			if (!tmp)
@@ -58,22 +96,8 @@ int proto__session_merge(proto_call *c, const cJSON *params, cJSON **merged)
 		cJSON_AddItemReferenceToObject(tmp, d->string, (cJSON *)d);
 		if (c->n_inherited < PROTO_MAX_PARAMS)
 			c->inherited[c->n_inherited++] = d->string;
-		inherited++;
 	}
-	if (!tmp)
-		return 0;
-	/* Inherited values are in the session's units; a request that
-	 * changes units would silently change their meaning. */
-	if (memcmp(&c->units, &s->units, sizeof s->units) != 0) {
-		cJSON_Delete(tmp);
-		return proto_fail(c, PROTO_INVALID_PARAMS, "units",
-				  "this request inherits %d session default(s) "
-				  "given in the session's units; change units "
-				  "with session.set, or give those parameters "
-				  "in the request",
-				  inherited);
-	}
-	*merged = tmp;
+	*merged = tmp ? tmp : (cJSON *)params;
 	return 0;
 }
 
@@ -100,12 +124,27 @@ static int set(proto_call *c)
 								"units"),
 			       "units", &units))
 		return -1;
-	if (s->defaults && s->defaults->child &&
-	    memcmp(&units, &s->units, sizeof units) != 0)
-		return proto_fail(c, PROTO_INVALID_PARAMS, "units",
-				  "defaults are already set in the current "
-				  "units; session.reset first, or set units "
-				  "before the values");
+	/* Stored defaults keep the units they were given in: a change of
+	 * units that would change what one of them means is refused,
+	 * unless this call sets that default again. */
+	if (s->defaults) {
+		const cJSON *d;
+		cJSON_ArrayForEach(d, s->defaults)
+		{
+			if (cJSON_GetObjectItemCaseSensitive(c->params,
+							     d->string))
+				continue;
+			if (units_matter(spec_entry(d->string), d, &s->units,
+					 &units))
+				return proto_fail(
+				    c, PROTO_INVALID_PARAMS, "units",
+				    "the session default '%s' was set in the "
+				    "current units, which this change would "
+				    "reinterpret; set it again in the same "
+				    "call, or session.reset first",
+				    d->string);
+		}
+	}
 	/* Check every value against the parameter it stands for. */
 	cJSON_ArrayForEach(m, c->params)
 	{

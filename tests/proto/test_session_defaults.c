@@ -7,6 +7,7 @@
 #include <stdint.h>
 #include <setjmp.h>
 #include <cmocka.h>
+#include <math.h>
 
 #include <gsl/gsl_errno.h>
 
@@ -94,11 +95,59 @@ static void test_fluid_brie_default(void **state)
 	h_free(&h);
 }
 
+/* Inherited values keep the units they were set in: only a change that
+ * would reinterpret one of them is refused. */
+static void test_units_and_defaults(void **state)
+{
+	harness h;
+	char param[64];
+	cJSON *r;
+	(void)state;
+
+	h_init(&h);
+	assert_int_equal(code_of(&h, REQ("session.set",
+					 "{\"rho\":2.5,\"lithology\":"
+					 "\"shale\"}"),
+				 param, sizeof param),
+			 0);
+	/* velocity in km/s does not touch a density or a string default */
+	r = h_call(&h, REQ("elastic.convert",
+			   "{\"vp\":3,\"vs\":1.5,\"units\":{\"velocity\":"
+			   "\"km/s\"}}"));
+	assert_int_equal(h_code(r), 0);
+	assert_true(fabs(h_result(r, "rho")->valuedouble - 2.5) < 1e-12);
+	cJSON_Delete(r);
+	/* density in kg/m3 would read 2.5 as 2.5 kg/m3: refused */
+	assert_int_equal(code_of(&h, REQ("elastic.convert",
+					 "{\"vp\":3000,\"vs\":1500,\"units\":"
+					 "{\"density\":\"kg/m3\"}}"),
+				 param, sizeof param),
+			 -32602);
+	assert_string_equal(param, "units");
+	/* the same change in the session: refused, unless rho is set again
+	 * in the same call */
+	assert_int_equal(code_of(&h, REQ("session.set",
+					 "{\"units\":{\"density\":\"kg/m3\"}}"),
+				 param, sizeof param),
+			 -32602);
+	assert_string_equal(param, "units");
+	assert_int_equal(code_of(&h, REQ("session.set",
+					 "{\"units\":{\"density\":\"kg/m3\"},"
+					 "\"rho\":2500}"),
+				 param, sizeof param),
+			 0);
+	r = h_call(&h, REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500}"));
+	assert_true(fabs(h_result(r, "rho")->valuedouble - 2500) < 1e-9);
+	cJSON_Delete(r);
+	h_free(&h);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_log_unused_defaults),
 		cmocka_unit_test(test_fluid_brie_default),
+		cmocka_unit_test(test_units_and_defaults),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

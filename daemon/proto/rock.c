@@ -33,6 +33,7 @@ static const proto_param substitute_params[] = {
     {"fluid_new", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
     NUMS("pressure", PK_PRESSURE, 0),
     NUMS("temperature", PK_TEMPERATURE, 0),
+    {"qc", PT_OBJ, PK_NONE, 0, 0},
     {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
@@ -238,6 +239,7 @@ static int substitute(proto_call *c)
 	size_t stride = sizeof(subst_sample) / sizeof(double), n, ln;
 	subst_sample *s;
 	uint32_t *qc;
+	proto_qc_ranges ranges;
 	const char *from;
 	int logs = 0, arr, needs_pt;
 	dim d = {1, 0, ""};
@@ -303,6 +305,9 @@ static int substitute(proto_call *c)
 	if (!s || !qc)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
 		                  "out of memory for %zu samples", n);
+	proto_qc_ranges_default(&ranges);
+	if (proto_qc_ranges_parse(c, proto_item_of(a, "qc"), "qc.", &ranges))
+		return -1;
 	for (size_t i = 0; i < n; i++) {
 		double pi = needs_pt ? proto_at(p, i) : NAN;
 		double ti = needs_pt ? proto_at(t, i) : NAN;
@@ -338,6 +343,14 @@ static int substitute(proto_call *c)
 		else
 			qc[i] |=
 			    from_frame(proto_at(kd, i), proto_at(mud, i), f, x);
+		/* The substituted rock gets the same plausibility checks as
+		 * any elastic sample (elastic.convert's ranges, `qc`). */
+		rw_elastic e;
+		if (isfinite(x->r.vp_ms) &&
+		    rw_elastic_from_velocities(x->r.vp_ms, x->r.vs_ms,
+					       x->r.rho_kgm3, &e,
+					       NULL) == RW_OK)
+			qc[i] |= proto_qc_plausible(&ranges, &e);
 	}
 	proto_w_obj_begin(c, NULL);
 	proto_w_int(c, "n", (long long)n);

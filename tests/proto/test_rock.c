@@ -409,6 +409,41 @@ static void test_errors(void **state)
 	    "phi", "unknown");
 }
 
+/* The substituted rock gets the elastic plausibility checks: brine to gas
+ * lowers Poisson's ratio (common practice), here from about 0.30 to about
+ * 0.16 (vp/vs 1.875 before, about 1.58 after), so a minimum of 0.2
+ * flags it (bit 4) and the defaults (0 to 0.5) do not. */
+static void test_output_plausibility(void **state)
+{
+	cJSON *r;
+	(void)state;
+
+	r = call("{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+		 "\"rock.substitute\",\"params\":{\"vp\":3000,\"vs\":1600,"
+		 "\"rho\":2.25,\"porosity\":0.25,\"mineral\":\"quartz\","
+		 "\"fluid_in_place\":{\"k\":2.6,\"rho\":1.03},"
+		 "\"fluid_new\":{\"k\":0.06,\"rho\":0.2}}}");
+	assert_int_equal(qc_at(result_of(r), 0), 0);
+	cJSON_Delete(r);
+	r = call("{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+		 "\"rock.substitute\",\"params\":{\"vp\":3000,\"vs\":1600,"
+		 "\"rho\":2.25,\"porosity\":0.25,\"mineral\":\"quartz\","
+		 "\"fluid_in_place\":{\"k\":2.6,\"rho\":1.03},"
+		 "\"fluid_new\":{\"k\":0.06,\"rho\":0.2},\"qc\":{"
+		 "\"nu_min\":0.2}}}");
+	assert_int_equal(qc_at(result_of(r), 0), 1u << 4);
+	/* the values are unchanged by the flag */
+	assert_true(fabs(num(result_of(r), "rho") - 2.0425) < 1e-12);
+	cJSON_Delete(r);
+	expect_invalid("{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+		       "\"rock.substitute\",\"params\":{\"vp\":3000,"
+		       "\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
+		       "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2.6,"
+		       "\"rho\":1.03},\"fluid_new\":{\"k\":0.06,\"rho\":0.2},"
+		       "\"qc\":{\"nu\":1}}}",
+		       "qc.nu", "unknown");
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -419,6 +454,7 @@ int main(void)
 	    cmocka_unit_test(test_frame),
 	    cmocka_unit_test(test_qc),
 	    cmocka_unit_test(test_errors),
+	    cmocka_unit_test(test_output_plausibility),
 	};
 
 	gsl_set_error_handler_off();

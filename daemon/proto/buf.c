@@ -322,24 +322,30 @@ void proto_w_json(proto_call *c, const char *key, const cJSON *v)
 	cJSON_free(s);
 }
 
-void proto_w_vec(proto_call *c, const char *key, proto_kind k,
-		 const double *values, size_t n, size_t stride, int as_array)
+void proto_w_rows(proto_call *c, const char *key, proto_kind k,
+		  const void *rows, size_t row_size, size_t offset, size_t n,
+		  int as_array)
 {
+	const unsigned char *base = (const unsigned char *)rows + offset;
 	char tmp[32];
+	double v;
 
 	if (!as_array) {
-		proto_w_num(c, key, k, n ? values[0] : NAN);
+		v = NAN;
+		if (n)
+			memcpy(&v, base, sizeof v);
+		proto_w_num(c, key, k, v);
 		return;
 	}
 	note_unit(c, key ? key : c->key_pending ? c->pending_key : NULL, k);
 	w_sep(c, key);
-	/* Reserve roughly: 24 bytes per number is the %.17g worst case. */
+	/* Reserve roughly: 24 bytes per number is the %.15g worst case. */
 	if (n < SIZE_MAX / 26)
 		proto_buf_reserve(c->out, n * 25 + 2);
 	proto_buf_append(c->out, "[", 1);
 	for (size_t i = 0; i < n; i++) {
-		double v = values[i * stride];
 		size_t len;
+		memcpy(&v, base + i * row_size, sizeof v);
 		if (k != PK_NONE)
 			v = proto_from_internal(&c->units, k, v);
 		len = proto_fmt_double(tmp, v);
@@ -348,6 +354,13 @@ void proto_w_vec(proto_call *c, const char *key, proto_kind k,
 		proto_buf_append(c->out, tmp, len);
 	}
 	proto_buf_append(c->out, "]", 1);
+}
+
+void proto_w_vec(proto_call *c, const char *key, proto_kind k,
+		 const double *values, size_t n, size_t stride, int as_array)
+{
+	proto_w_rows(c, key, k, values, stride * sizeof *values, 0, n,
+		     as_array);
 }
 
 void proto_w_flags(proto_call *c, const char *key, const uint32_t *flags,

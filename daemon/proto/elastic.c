@@ -29,6 +29,21 @@ static const proto_param convert_params[] = {
 	{NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
+/* The full set in result order, with kinds and places in rw_elastic. */
+#define COL(m, kind) {#m, kind, offsetof(rw_elastic, m)}
+static const struct {
+	const char *name;
+	proto_kind kind;
+	size_t off;
+} out_cols[] = {
+	COL(vp, PK_VELOCITY), COL(vs, PK_VELOCITY),  COL(rho, PK_DENSITY),
+	COL(k, PK_MODULUS),   COL(mu, PK_MODULUS),   COL(lambda, PK_MODULUS),
+	COL(e, PK_MODULUS),   COL(nu, PK_NONE),      COL(m, PK_MODULUS),
+	COL(ai, PK_IMPEDANCE), COL(si, PK_IMPEDANCE), COL(vpvs, PK_NONE),
+	COL(dtp, PK_SLOWNESS), COL(dts, PK_SLOWNESS),
+};
+#undef COL
+
 static const proto_param range_params[] = {
 	{"rho_min", PT_NUM, PK_DENSITY, 0, 0},
 	{"rho_max", PT_NUM, PK_DENSITY, 0, 0},
@@ -162,20 +177,9 @@ static int convert(proto_call *c)
 	}
 	proto_w_obj_begin(c, NULL);
 	proto_w_int(c, "n", (long long)n);
-	for (int k = 0; k < RW_Q_COUNT + 1; k++) {
-		/* rw_elastic members in order: vp vs rho k mu lambda e nu m ai
-		 * si vpvs dtp dts. */
-		static const char *const names[] = {
-			"vp", "vs", "rho", "k", "mu", "lambda", "e",
-			"nu", "m", "ai", "si", "vpvs", "dtp", "dts"};
-		static const proto_kind kinds[] = {
-			PK_VELOCITY, PK_VELOCITY,  PK_DENSITY,  PK_MODULUS,
-			PK_MODULUS,  PK_MODULUS,   PK_MODULUS,  PK_NONE,
-			PK_MODULUS,  PK_IMPEDANCE, PK_IMPEDANCE, PK_NONE,
-			PK_SLOWNESS, PK_SLOWNESS};
-		proto_w_vec(c, names[k], kinds[k], &res[0].vp + k, n,
-			    sizeof *res / sizeof(double), arr);
-	}
+	for (size_t k = 0; k < sizeof out_cols / sizeof out_cols[0]; k++)
+		proto_w_rows(c, out_cols[k].name, out_cols[k].kind, res,
+			     sizeof *res, out_cols[k].off, n, arr);
 	proto_w_flags(c, "qc", flags, n, arr);
 	proto_w_units(c);
 	proto_w_obj_end(c);

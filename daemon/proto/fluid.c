@@ -97,8 +97,6 @@ typedef struct fluid_sample {
 	rw_fluid_phase mix;
 	uint32_t qc;
 } fluid_sample;
-_Static_assert(sizeof(fluid_sample) % sizeof(double) == 0,
-               "fluid_sample members are read with a stride of doubles");
 
 /* Joins vector v (path `path`) into the broadcast length of d. */
 static int join_len(proto_call *c, struct proto_fluid_desc *d,
@@ -513,9 +511,7 @@ static int properties(proto_call *c)
 	fluid_sample *s;
 	uint32_t *qc;
 	double *sat;
-	/* fluid_sample is all doubles but qc (padded to 8 bytes), so a
-	 * member of s[i] is every `stride` doubles. */
-	size_t n, stride = sizeof(fluid_sample) / sizeof(double);
+	size_t n;
 	int arr;
 
 	if (!d || parse_phases(c, a, d))
@@ -564,23 +560,26 @@ static int properties(proto_call *c)
 		    {"oil_rho", "oil_k", "oil_v"}};
 		if (!d->has[k])
 			continue;
-		proto_w_vec(c, keys[k][0], PK_DENSITY, &s[0].ph[k].rho_kgm3, n,
-		            stride, arr);
-		proto_w_vec(c, keys[k][1], PK_MODULUS, &s[0].ph[k].k_pa, n,
-		            stride, arr);
-		proto_w_vec(c, keys[k][2], PK_VELOCITY, &s[0].ph[k].v_ms, n,
-		            stride, arr);
+		size_t ph = offsetof(fluid_sample, ph) + k * sizeof s->ph[0];
+		proto_w_rows(c, keys[k][0], PK_DENSITY, s, sizeof *s,
+		             ph + offsetof(rw_fluid_phase, rho_kgm3), n, arr);
+		proto_w_rows(c, keys[k][1], PK_MODULUS, s, sizeof *s,
+		             ph + offsetof(rw_fluid_phase, k_pa), n, arr);
+		proto_w_rows(c, keys[k][2], PK_VELOCITY, s, sizeof *s,
+		             ph + offsetof(rw_fluid_phase, v_ms), n, arr);
 		if (k == PH_GAS)
-			proto_w_vec(c, "gas_z", PK_NONE, &s[0].z, n, stride,
-			            arr);
+			PROTO_W_MEMBER(c, "gas_z", PK_NONE, s, fluid_sample, z,
+			               n, arr);
 		if (k == PH_OIL && d->live)
-			proto_w_vec(c, "oil_b0", PK_NONE, &s[0].b0, n, stride,
-			            arr);
+			PROTO_W_MEMBER(c, "oil_b0", PK_NONE, s, fluid_sample,
+			               b0, n, arr);
 	}
-	proto_w_vec(c, "mix_rho", PK_DENSITY, &s[0].mix.rho_kgm3, n, stride,
-	            arr);
-	proto_w_vec(c, "mix_k", PK_MODULUS, &s[0].mix.k_pa, n, stride, arr);
-	proto_w_vec(c, "mix_v", PK_VELOCITY, &s[0].mix.v_ms, n, stride, arr);
+	PROTO_W_MEMBER(c, "mix_rho", PK_DENSITY, s, fluid_sample,
+	               mix.rho_kgm3, n, arr);
+	PROTO_W_MEMBER(c, "mix_k", PK_MODULUS, s, fluid_sample, mix.k_pa, n,
+	               arr);
+	PROTO_W_MEMBER(c, "mix_v", PK_VELOCITY, s, fluid_sample, mix.v_ms, n,
+	               arr);
 	proto_w_flags(c, "qc", qc, n, arr);
 	proto_w_units(c);
 	proto_w_obj_end(c);

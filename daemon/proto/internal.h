@@ -343,9 +343,18 @@ void proto_w_raw(proto_call *c, const char *key, const char *json, size_t n);
 void proto_w_json(proto_call *c, const char *key, const cJSON *v);
 /* Writes values[0..n-1] as an array when as_array, else values[0] as a
  * number. `stride` is the distance between elements in doubles (1 for a
- * plain array). */
+ * plain array; more for interleaved double arrays). */
 void proto_w_vec(proto_call *c, const char *key, proto_kind k,
 		 const double *values, size_t n, size_t stride, int as_array);
+/* The same for one double member of an array of n structs: `rows` is the
+ * array, row_size its element size, offset the member's offsetof. Reads
+ * through the bytes of the array, so no pointer walks past a member. */
+void proto_w_rows(proto_call *c, const char *key, proto_kind k,
+		  const void *rows, size_t row_size, size_t offset, size_t n,
+		  int as_array);
+#define PROTO_W_MEMBER(c, key, kind, rows, type, member, n, as_array)      \
+	proto_w_rows((c), (key), (kind), (rows), sizeof(type),               \
+		     offsetof(type, member), (n), (as_array))
 /* Writes QC flags the same way. */
 void proto_w_flags(proto_call *c, const char *key, const uint32_t *flags,
 		   size_t n, int as_array);

@@ -86,35 +86,38 @@ typedef struct log_out {
 	    k_fl_in_place, rho_fl_in_place, k_fl_new, rho_fl_new;
 } log_out;
 
+#define COL(m, kind) {#m, kind, offsetof(log_out, m)}
 static const struct {
 	const char *name;
 	proto_kind kind;
+	size_t off;
 } out_cols[] = {
-    {"vp", PK_VELOCITY},
-    {"vs", PK_VELOCITY},
-    {"rho", PK_DENSITY},
-    {"k", PK_MODULUS},
-    {"mu", PK_MODULUS},
-    {"lambda", PK_MODULUS},
-    {"e", PK_MODULUS},
-    {"nu", PK_NONE},
-    {"ai", PK_IMPEDANCE},
-    {"si", PK_IMPEDANCE},
-    {"vpvs", PK_NONE},
-    {"vsh", PK_NONE},
-    {"vp_sub", PK_VELOCITY},
-    {"vs_sub", PK_VELOCITY},
-    {"rho_sub", PK_DENSITY},
-    {"k_sub", PK_MODULUS},
-    {"ai_sub", PK_IMPEDANCE},
-    {"si_sub", PK_IMPEDANCE},
-    {"vpvs_sub", PK_NONE},
-    {"nu_sub", PK_NONE},
-    {"k_fl_in_place", PK_MODULUS},
-    {"rho_fl_in_place", PK_DENSITY},
-    {"k_fl_new", PK_MODULUS},
-    {"rho_fl_new", PK_DENSITY},
+	COL(vp, PK_VELOCITY),
+	COL(vs, PK_VELOCITY),
+	COL(rho, PK_DENSITY),
+	COL(k, PK_MODULUS),
+	COL(mu, PK_MODULUS),
+	COL(lambda, PK_MODULUS),
+	COL(e, PK_MODULUS),
+	COL(nu, PK_NONE),
+	COL(ai, PK_IMPEDANCE),
+	COL(si, PK_IMPEDANCE),
+	COL(vpvs, PK_NONE),
+	COL(vsh, PK_NONE),
+	COL(vp_sub, PK_VELOCITY),
+	COL(vs_sub, PK_VELOCITY),
+	COL(rho_sub, PK_DENSITY),
+	COL(k_sub, PK_MODULUS),
+	COL(ai_sub, PK_IMPEDANCE),
+	COL(si_sub, PK_IMPEDANCE),
+	COL(vpvs_sub, PK_NONE),
+	COL(nu_sub, PK_NONE),
+	COL(k_fl_in_place, PK_MODULUS),
+	COL(rho_fl_in_place, PK_DENSITY),
+	COL(k_fl_new, PK_MODULUS),
+	COL(rho_fl_new, PK_DENSITY),
 };
+#undef COL
 #define N_ELASTIC_COLS 11 /* vp .. vpvs */
 #define COL_VSH        11
 #define COL_SUB        12
@@ -402,8 +405,12 @@ static int process(proto_call *c)
 		int bad_rho = 0, vsp_block = 0;
 		rw_elastic e;
 
-		for (double *d = &r->vp; d <= &r->rho_fl_new; d++)
-			*d = NAN;
+		for (size_t k = 0; k < sizeof out_cols / sizeof out_cols[0];
+		     k++) {
+			const double nan = NAN;
+			memcpy((unsigned char *)r + out_cols[k].off, &nan,
+			       sizeof nan);
+		}
 		if (drho->present) {
 			double d = proto_at(drho, i);
 			if (isnan(d))
@@ -562,8 +569,8 @@ static int process(proto_call *c)
 			continue;
 		if (k >= COL_SUB && !subst)
 			break;
-		proto_w_vec(c, out_cols[k].name, out_cols[k].kind, &o[0].vp + k,
-		            n, sizeof *o / sizeof(double), arr);
+		proto_w_rows(c, out_cols[k].name, out_cols[k].kind, o,
+		             sizeof *o, out_cols[k].off, n, arr);
 	}
 	proto_w_flags(c, "qc", flags, n, arr);
 	if (vsp == VSP_NONE)

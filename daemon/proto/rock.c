@@ -37,7 +37,7 @@ static const proto_param substitute_params[] = {
     {NULL, PT_ANY, PK_NONE, 0, 0},
 };
 
-/* Per-sample result; all doubles so members are read with a stride. */
+/* Per-sample result. */
 typedef struct subst_sample {
 	rw_rock_subst r;
 	double k_fl, rho_fl, k_new, rho_new, k_min, rho_min;
@@ -236,7 +236,7 @@ static int substitute(proto_call *c)
 	const proto_vec *phi = proto_vec_of(a, "porosity");
 	const proto_vec *p = proto_vec_of(a, "pressure");
 	const proto_vec *t = proto_vec_of(a, "temperature");
-	size_t stride = sizeof(subst_sample) / sizeof(double), n, ln;
+	size_t n, ln;
 	subst_sample *s;
 	uint32_t *qc;
 	proto_qc_ranges ranges;
@@ -355,24 +355,23 @@ static int substitute(proto_call *c)
 	proto_w_obj_begin(c, NULL);
 	proto_w_int(c, "n", (long long)n);
 	proto_w_str(c, "mode", logs ? "logs" : "frame");
-	proto_w_vec(c, "vp", PK_VELOCITY, &s[0].r.vp_ms, n, stride, arr);
-	proto_w_vec(c, "vs", PK_VELOCITY, &s[0].r.vs_ms, n, stride, arr);
-	proto_w_vec(c, "rho", PK_DENSITY, &s[0].r.rho_kgm3, n, stride, arr);
-	proto_w_vec(c, "k_sat", PK_MODULUS, &s[0].r.k_sat_pa, n, stride, arr);
-	proto_w_vec(c, "mu", PK_MODULUS, &s[0].r.mu_pa, n, stride, arr);
-	proto_w_vec(c, "k_dry", PK_MODULUS, &s[0].r.k_dry_pa, n, stride, arr);
+#define W(key, kind, member)                                                   \
+	PROTO_W_MEMBER(c, key, kind, s, subst_sample, member, n, arr)
+	W("vp", PK_VELOCITY, r.vp_ms);
+	W("vs", PK_VELOCITY, r.vs_ms);
+	W("rho", PK_DENSITY, r.rho_kgm3);
+	W("k_sat", PK_MODULUS, r.k_sat_pa);
+	W("mu", PK_MODULUS, r.mu_pa);
+	W("k_dry", PK_MODULUS, r.k_dry_pa);
 	if (logs) {
-		proto_w_vec(c, "fluid_in_place_k", PK_MODULUS, &s[0].k_fl, n, stride,
-		            arr);
-		proto_w_vec(c, "fluid_in_place_rho", PK_DENSITY, &s[0].rho_fl, n, stride,
-		            arr);
+		W("fluid_in_place_k", PK_MODULUS, k_fl);
+		W("fluid_in_place_rho", PK_DENSITY, rho_fl);
 	}
-	proto_w_vec(c, "fluid_new_k", PK_MODULUS, &s[0].k_new, n, stride, arr);
-	proto_w_vec(c, "fluid_new_rho", PK_DENSITY, &s[0].rho_new, n, stride,
-	            arr);
-	proto_w_vec(c, "mineral_k", PK_MODULUS, &s[0].k_min, n, stride, arr);
-	proto_w_vec(c, "mineral_rho", PK_DENSITY, &s[0].rho_min, n, stride,
-	            arr);
+	W("fluid_new_k", PK_MODULUS, k_new);
+	W("fluid_new_rho", PK_DENSITY, rho_new);
+	W("mineral_k", PK_MODULUS, k_min);
+	W("mineral_rho", PK_DENSITY, rho_min);
+#undef W
 	for (int k = 0; k < 3; k++) {
 		size_t sn;
 		int sa;
@@ -382,8 +381,9 @@ static int substitute(proto_call *c)
 			            sn == 1 ? 0 : 1, arr);
 	}
 	for (int k = 0; logs && k < 5; k++)
-		proto_w_vec(c, pctkeys[k], PK_NONE, &s[0].pct[k], n, stride,
-		            arr);
+		proto_w_rows(c, pctkeys[k], PK_NONE, s, sizeof *s,
+		             offsetof(subst_sample, pct) + k * sizeof s->pct[0],
+		             n, arr);
 	proto_w_flags(c, "qc", qc, n, arr);
 	proto_w_units(c);
 	proto_w_obj_end(c);

@@ -140,16 +140,26 @@ static int thomsen(proto_call *c)
 	proto_w_obj_begin(c, NULL);
 	proto_w_int(c, "n", (long long)n);
 	{
-		static const char *const names[11] = {
-		    "c11", "c13", "c33",     "c44",   "c66",  "vp0",
-		    "vs0", "rho", "epsilon", "delta", "gamma"};
-		static const proto_kind kinds[11] = {
-		    PK_MODULUS, PK_MODULUS,  PK_MODULUS,  PK_MODULUS,
-		    PK_MODULUS, PK_VELOCITY, PK_VELOCITY, PK_DENSITY,
-		    PK_NONE,    PK_NONE,     PK_NONE};
+		static const struct {
+			const char *name;
+			proto_kind kind;
+			size_t off;
+		} cols[11] = {
+		    {"c11", PK_MODULUS, offsetof(row, c11)},
+		    {"c13", PK_MODULUS, offsetof(row, c13)},
+		    {"c33", PK_MODULUS, offsetof(row, c33)},
+		    {"c44", PK_MODULUS, offsetof(row, c44)},
+		    {"c66", PK_MODULUS, offsetof(row, c66)},
+		    {"vp0", PK_VELOCITY, offsetof(row, vp0)},
+		    {"vs0", PK_VELOCITY, offsetof(row, vs0)},
+		    {"rho", PK_DENSITY, offsetof(row, rho)},
+		    {"epsilon", PK_NONE, offsetof(row, eps)},
+		    {"delta", PK_NONE, offsetof(row, delta)},
+		    {"gamma", PK_NONE, offsetof(row, gamma)},
+		};
 		for (int k = 0; k < 11; k++)
-			proto_w_vec(c, names[k], kinds[k], &res[0].c11 + k, n,
-			            sizeof *res / sizeof(double), arr);
+			proto_w_rows(c, cols[k].name, cols[k].kind, res,
+			             sizeof *res, cols[k].off, n, arr);
 	}
 	proto_w_flags(c, "qc", qc, n, arr);
 	proto_w_units(c);

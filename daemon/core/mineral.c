@@ -36,9 +36,13 @@ static const rw_mineral minerals[] = {
 	 "MMD09 table 7.1 (Vanorio et al. 2003), from memory"},
 	{"smectite", 9.3 * GPA, 6.9 * GPA, 2390.0,
 	 "MMD09 table 7.1 (Vanorio et al. 2003), from memory, low confidence"},
-	/* Feldspar entry: albite, the sodium end-member of plagioclase. */
+	/* Feldspar: albite, the sodium end-member of plagioclase, listed
+	 * under its own name and as the generic "feldspar" a practitioner
+	 * asks for. */
 	{"albite", 75.6 * GPA, 25.6 * GPA, 2630.0,
 	 "MMD09 table 7.1, from memory"},
+	{"feldspar", 75.6 * GPA, 25.6 * GPA, 2630.0,
+	 "albite values (MMD09 table 7.1), from memory"},
 	{"anhydrite", 56.1 * GPA, 29.1 * GPA, 2980.0,
 	 "MMD09 table 7.1, from memory"},
 	{"halite", 24.8 * GPA, 14.9 * GPA, 2160.0,

@@ -33,7 +33,8 @@ static void test_table(void **state)
 	static const char *need[] = {"quartz",    "calcite",  "dolomite",
 				     "clay",      "illite",   "kaolinite",
 				     "smectite",  "albite",   "anhydrite",
-				     "halite",    "pyrite",   "siderite"};
+				     "halite",    "pyrite",   "siderite",
+				     "feldspar"};
 	size_t n = rw_mineral_count(), i, j, idx;
 	rw_mineral m, m2;
 	const char *c;

@@ -70,4 +70,51 @@ static inline const cJSON *h_result(const cJSON *r, const char *member)
 	return member ? cJSON_GetObjectItemCaseSensitive(res, member) : res;
 }
 
+/* The helpers below use cmocka: include this header after <cmocka.h>
+ * where they are used. */
+#ifdef cmocka_unit_test
+#include <math.h>
+#include <stdio.h>
+
+/* Element i of a result member (a number, or an element of an array);
+ * NaN for null; fails the test when the member is missing. */
+static inline double h_num(const cJSON *r, const char *member, int i)
+{
+	const cJSON *m = h_result(r, member);
+	if (!m) {
+		print_error("no member %s\n", member);
+		fail();
+	}
+	if (cJSON_IsArray(m))
+		m = cJSON_GetArrayItem(m, i);
+	if (cJSON_IsNull(m))
+		return NAN;
+	assert_true(cJSON_IsNumber(m));
+	return m->valuedouble;
+}
+
+static inline void h_close_to(double got, double want, double rel)
+{
+	if (!(fabs(got - want) <= rel * fabs(want))) {
+		print_error("got %.10g want %.10g (rel tol %g)\n", got, want,
+			    rel);
+		fail();
+	}
+}
+
+/* Runs line and checks it fails with -32602 naming param. */
+static inline void h_expect_invalid(harness *h, const char *line,
+				    const char *param)
+{
+	cJSON *r = h_call(h, line);
+	assert_non_null(r);
+	if (h_code(r) != -32602 || strcmp(h_param(r), param) != 0) {
+		print_error("code %d param '%s', want -32602 '%s' for %s\n",
+			    h_code(r), h_param(r), param, line);
+		fail();
+	}
+	cJSON_Delete(r);
+}
+#endif
+
 #endif

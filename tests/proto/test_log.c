@@ -45,46 +45,13 @@ static int teardown(void **state)
 	return 0;
 }
 
-static double num(const cJSON *r, const char *member, int i)
-{
-	const cJSON *m = h_result(r, member);
-	if (!m) {
-		print_error("no member %s\n", member);
-		fail();
-	}
-	if (cJSON_IsArray(m))
-		m = cJSON_GetArrayItem(m, i);
-	if (cJSON_IsNull(m))
-		return NAN;
-	assert_true(cJSON_IsNumber(m));
-	return m->valuedouble;
-}
 
 static uint32_t qc(const cJSON *r, int i)
 {
-	return (uint32_t)num(r, "qc", i);
+	return (uint32_t)h_num(r, "qc", i);
 }
 
-static void close_to(double got, double want, double rel)
-{
-	if (!(fabs(got - want) <= rel * fabs(want))) {
-		print_error("got %.10g want %.10g (rel tol %g)\n", got, want,
-		            rel);
-		fail();
-	}
-}
 
-static void expect_error(const char *line, const char *param)
-{
-	cJSON *r = h_call(&H, line);
-	assert_non_null(r);
-	if (h_code(r) != -32602 || strcmp(h_param(r), param) != 0) {
-		print_error("code %d param '%s', want -32602 '%s' for %s\n",
-		            h_code(r), h_param(r), param, line);
-		fail();
-	}
-	cJSON_Delete(r);
-}
 
 static void test_elastic_set(void **state)
 {
@@ -99,17 +66,17 @@ static void test_elastic_set(void **state)
 	                          "\"rhob\":[2.3,2.4]}"));
 	double vp = 3048, vs = 0.3048e6 / 180, rho = 2300;
 	double mu = rho * vs * vs, k = rho * vp * vp - 4.0 / 3 * mu;
-	close_to(num(r, "vp", 0), vp, 1e-12);
-	close_to(num(r, "vs", 0), vs, 1e-12);
-	close_to(num(r, "rho", 0), 2.3, 1e-12);
-	close_to(num(r, "mu", 0), mu / 1e9, 1e-12);
-	close_to(num(r, "k", 0), k / 1e9, 1e-12);
-	close_to(num(r, "nu", 0),
+	h_close_to(h_num(r, "vp", 0), vp, 1e-12);
+	h_close_to(h_num(r, "vs", 0), vs, 1e-12);
+	h_close_to(h_num(r, "rho", 0), 2.3, 1e-12);
+	h_close_to(h_num(r, "mu", 0), mu / 1e9, 1e-12);
+	h_close_to(h_num(r, "k", 0), k / 1e9, 1e-12);
+	h_close_to(h_num(r, "nu", 0),
 	         (vp * vp - 2 * vs * vs) / (2 * (vp * vp - vs * vs)), 1e-12);
-	close_to(num(r, "ai", 0), vp * 2.3, 1e-12);
-	close_to(num(r, "si", 0), vs * 2.3, 1e-12);
-	close_to(num(r, "vpvs", 0), 1.8, 1e-12);
-	close_to(num(r, "depth", 1), 1500.5, 1e-15);
+	h_close_to(h_num(r, "ai", 0), vp * 2.3, 1e-12);
+	h_close_to(h_num(r, "si", 0), vs * 2.3, 1e-12);
+	h_close_to(h_num(r, "vpvs", 0), 1.8, 1e-12);
+	h_close_to(h_num(r, "depth", 1), 1500.5, 1e-15);
 	assert_int_equal(qc(r, 0), 0);
 	assert_int_equal(qc(r, 1), 0);
 	assert_true(cJSON_IsNull(h_result(r, "vs_predicted_by")));
@@ -144,15 +111,15 @@ static void test_qc_flags(void **state)
 	assert_int_equal(qc(r, 3), B_WASHOUT);
 	assert_int_equal(qc(r, 4), 0);
 	assert_int_equal(qc(r, 5), B_NU_NEG);
-	assert_true(num(r, "nu", 5) < 0);
+	assert_true(h_num(r, "nu", 5) < 0);
 	assert_true(qc(r, 6) & B_MISSING);
 	assert_true(qc(r, 6) & B_INVALID);
-	assert_true(isnan(num(r, "k", 6)));
-	assert_true(isnan(num(r, "vp", 6)));
+	assert_true(isnan(h_num(r, "k", 6)));
+	assert_true(isnan(h_num(r, "vp", 6)));
 	assert_true(qc(r, 7) & (1u << 3)); /* modulus_negative */
-	assert_true(isnan(num(r, "k", 7)));
+	assert_true(isnan(h_num(r, "k", 7)));
 	/* The measured density is kept when it is doubtful. */
-	close_to(num(r, "rho", 1), 2.3, 1e-12);
+	h_close_to(h_num(r, "rho", 1), 2.3, 1e-12);
 	cJSON_Delete(r);
 	/* Non-positive slowness or density: impossible, null, nothing
 	 * predicted over it (mudrock asked). */
@@ -160,11 +127,11 @@ static void test_qc_flags(void **state)
 	           REQ("{\"dtp\":[100,100,-5],\"dts\":[-1,180,180],"
 	               "\"rhob\":[2.3,-2,2.3],\"vs_predict\":\"mudrock\"}"));
 	assert_int_equal(qc(r, 0), B_INVALID);
-	assert_true(isnan(num(r, "vs", 0)));
+	assert_true(isnan(h_num(r, "vs", 0)));
 	assert_int_equal(qc(r, 1), B_INVALID | (1u << 1));
-	assert_true(isnan(num(r, "rho", 1)));
+	assert_true(isnan(h_num(r, "rho", 1)));
 	assert_int_equal(qc(r, 2), B_INVALID);
-	assert_true(isnan(num(r, "vp", 2)));
+	assert_true(isnan(h_num(r, "vp", 2)));
 	cJSON_Delete(r);
 	/* Thresholds are parameters (in the request's units). */
 	r = h_call(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
@@ -192,10 +159,10 @@ static void test_predicted(void **state)
 	                          "\"rhob\":[null,2.3],"
 	                          "\"vs_predict\":\"greenberg_castagna\","
 	                          "\"rho_predict\":\"gardner\"}"));
-	close_to(num(r, "vs", 0), 1000 * (0.80416 * 3.048 - 0.85588), 1e-9);
-	close_to(num(r, "rho", 0), 0.31 * pow(3048, 0.25), 1e-12);
+	h_close_to(h_num(r, "vs", 0), 1000 * (0.80416 * 3.048 - 0.85588), 1e-9);
+	h_close_to(h_num(r, "rho", 0), 0.31 * pow(3048, 0.25), 1e-12);
 	assert_int_equal(qc(r, 0), B_VS_PRED | B_RHO_PRED | B_MISSING);
-	close_to(num(r, "vs", 1), 0.3048e6 / 180, 1e-12);
+	h_close_to(h_num(r, "vs", 1), 0.3048e6 / 180, 1e-12);
 	assert_int_equal(qc(r, 1), 0);
 	assert_string_equal(h_result(r, "vs_predicted_by")->valuestring,
 	                    "greenberg_castagna");
@@ -204,7 +171,7 @@ static void test_predicted(void **state)
 	cJSON_Delete(r);
 	r = h_call(&H, REQ("{\"vp\":3000,\"rhob\":2.3,"
 	                   "\"vs_predict\":\"mudrock\"}"));
-	close_to(num(r, "vs", 0), (3000 - 1360) / 1.16, 1e-12);
+	h_close_to(h_num(r, "vs", 0), (3000 - 1360) / 1.16, 1e-12);
 	assert_int_equal(qc(r, 0), B_VS_PRED);
 	cJSON_Delete(r);
 	/* With vsh the shale fraction comes from the log: vsh 0.4 over a
@@ -213,21 +180,21 @@ static void test_predicted(void **state)
 	double want = 0.5 * (0.6 * a + 0.4 * b + 1 / (0.6 / a + 0.4 / b));
 	r = h_call(&H, REQ("{\"vp\":3000,\"rhob\":2.3,\"vsh\":0.4,"
 	                   "\"vs_predict\":\"greenberg_castagna\"}"));
-	close_to(num(r, "vs", 0), 1000 * want, 1e-9);
-	close_to(num(r, "vsh", 0), 0.4, 1e-15);
+	h_close_to(h_num(r, "vs", 0), 1000 * want, 1e-9);
+	h_close_to(h_num(r, "vsh", 0), 0.4, 1e-15);
 	cJSON_Delete(r);
 	/* Gamma ray: linear index (60 - 20) / (120 - 20) = 0.4 gives the
 	 * same. */
 	r = h_call(&H, REQ("{\"vp\":3000,\"rhob\":2.3,\"gr\":60,"
 	                   "\"gr_clean\":20,\"gr_shale\":120,"
 	                   "\"vs_predict\":\"greenberg_castagna\"}"));
-	close_to(num(r, "vs", 0), 1000 * want, 1e-9);
+	h_close_to(h_num(r, "vs", 0), 1000 * want, 1e-9);
 	cJSON_Delete(r);
 	/* Doubtful density replaced only when asked. */
 	r = h_call(&H, REQ("{\"vp\":3000,\"vs\":1600,\"rhob\":2.0,"
 	                   "\"drho\":0.2,\"rho_predict\":\"gardner\","
 	                   "\"rho_replace_bad\":true}"));
-	close_to(num(r, "rho", 0), 0.31 * pow(3000, 0.25), 1e-12);
+	h_close_to(h_num(r, "rho", 0), 0.31 * pow(3000, 0.25), 1e-12);
 	assert_int_equal(qc(r, 0), B_DRHO | B_RHO_PRED);
 	cJSON_Delete(r);
 	/* Prediction outside the fitted span is flagged. */
@@ -269,15 +236,15 @@ static void test_substitution(void **state)
 	                   "\"fluid_new\":{\"k\":0.05,\"rho\":0.2}}"));
 	gassmann_hand(3200, 1800, 2250, 0.25, 36.6e9, 2.8e9, 1050, 0.05e9, 200,
 	              &vp2, &vs2, &rho2);
-	close_to(num(r, "vp_sub", 0), vp2, 1e-9);
-	close_to(num(r, "vs_sub", 0), vs2, 1e-9);
-	close_to(num(r, "rho_sub", 0), rho2 / 1000, 1e-12);
-	close_to(num(r, "vp", 0), 3200, 1e-15);
+	h_close_to(h_num(r, "vp_sub", 0), vp2, 1e-9);
+	h_close_to(h_num(r, "vs_sub", 0), vs2, 1e-9);
+	h_close_to(h_num(r, "rho_sub", 0), rho2 / 1000, 1e-12);
+	h_close_to(h_num(r, "vp", 0), 3200, 1e-15);
 	assert_true(vp2 < 3200 && vs2 > 1800); /* gas: vp down, vs up */
 	assert_string_equal(h_result(r, "substitution")->valuestring,
 	                    "gassmann");
 	assert_true(qc(r, 1) & B_SUB_FAIL);
-	assert_true(isnan(num(r, "vp_sub", 1)));
+	assert_true(isnan(h_num(r, "vp_sub", 1)));
 	cJSON_Delete(r);
 	/* The same fluid in and out changes nothing (Gassmann's relation
 	 * inverted and applied again is the identity). */
@@ -285,8 +252,8 @@ static void test_substitution(void **state)
 	                   "\"porosity\":0.25,\"mineral\":{\"k\":36.6},"
 	                   "\"fluid_in_place\":{\"k\":2.8,\"rho\":1.05},"
 	                   "\"fluid_new\":{\"k\":2.8,\"rho\":1.05}}"));
-	close_to(num(r, "vp_sub", 0), 3200, 1e-12);
-	close_to(num(r, "rho_sub", 0), 2.25, 1e-12);
+	h_close_to(h_num(r, "vp_sub", 0), 3200, 1e-12);
+	h_close_to(h_num(r, "rho_sub", 0), 2.25, 1e-12);
 	cJSON_Delete(r);
 	/* Batzle-Wang fluids at p, T from gradients and depth: the
 	 * substitution uses the fluids reported beside it. */
@@ -298,10 +265,10 @@ static void test_substitution(void **state)
 	                   "\"pressure_gradient\":0.0105,"
 	                   "\"temperature_gradient\":30,"
 	                   "\"surface_temperature\":15}"));
-	double kf1 = num(r, "k_fl_in_place", 0) * 1e9;
-	double rf1 = num(r, "rho_fl_in_place", 0) * 1e3;
-	double kf2 = num(r, "k_fl_new", 0) * 1e9;
-	double rf2 = num(r, "rho_fl_new", 0) * 1e3;
+	double kf1 = h_num(r, "k_fl_in_place", 0) * 1e9;
+	double rf1 = h_num(r, "rho_fl_in_place", 0) * 1e3;
+	double kf2 = h_num(r, "k_fl_new", 0) * 1e9;
+	double rf2 = h_num(r, "rho_fl_new", 0) * 1e3;
 	/* Brine at ~21 MPa, 75 degC: about 2.5-3.2 GPa and 1.0-1.06 g/cm3
 	 * (Batzle & Wang 1992 fig. 12-13 range, from memory). */
 	assert_true(kf1 > 2.3e9 && kf1 < 3.3e9);
@@ -309,7 +276,7 @@ static void test_substitution(void **state)
 	assert_true(kf2 > 0.01e9 && kf2 < 0.2e9);
 	gassmann_hand(3200, 1800, 2250, 0.25, 36.6e9, kf1, rf1, kf2, rf2, &vp2,
 	              &vs2, &rho2);
-	close_to(num(r, "vp_sub", 0), vp2, 1e-6);
+	h_close_to(h_num(r, "vp_sub", 0), vp2, 1e-6);
 	cJSON_Delete(r);
 }
 
@@ -323,14 +290,14 @@ static void test_session(void **state)
 	cJSON_Delete(r);
 	/* Inherited: mudrock prediction, drho 0.06 below 0.1. */
 	r = h_call(&H, REQ("{\"vp\":3000,\"rhob\":2.3,\"drho\":0.06}"));
-	close_to(num(r, "vs", 0), (3000 - 1360) / 1.16, 1e-12);
+	h_close_to(h_num(r, "vs", 0), (3000 - 1360) / 1.16, 1e-12);
 	assert_int_equal(qc(r, 0), B_VS_PRED);
 	cJSON_Delete(r);
 	/* The request's own values override the session. */
 	r = h_call(&H, REQ("{\"vp\":3000,\"rhob\":2.3,\"drho\":0.06,"
 	                   "\"drho_limit\":0.05,"
 	                   "\"vs_predict\":\"greenberg_castagna\"}"));
-	close_to(num(r, "vs", 0), 1000 * (0.80416 * 3 - 0.85588), 1e-9);
+	h_close_to(h_num(r, "vs", 0), 1000 * (0.80416 * 3 - 0.85588), 1e-9);
 	assert_int_equal(qc(r, 0), B_VS_PRED | B_DRHO);
 	cJSON_Delete(r);
 	r = h_call(&H, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
@@ -341,108 +308,108 @@ static void test_session(void **state)
 static void test_errors(void **state)
 {
 	(void)state;
-	expect_error(REQ("{\"dts\":180,\"rhob\":2.3}"), "dtp");
-	expect_error(REQ("{\"vp\":3000,\"dtp\":100,\"dts\":180,\"rhob\":2.3}"),
+	h_expect_invalid(&H, REQ("{\"dts\":180,\"rhob\":2.3}"), "dtp");
+	h_expect_invalid(&H, REQ("{\"vp\":3000,\"dtp\":100,\"dts\":180,\"rhob\":2.3}"),
 	             "dtp");
-	expect_error(REQ("{\"dtp\":100,\"vs\":1,\"dts\":180,\"rhob\":2.3}"),
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"vs\":1,\"dts\":180,\"rhob\":2.3}"),
 	             "dts");
-	expect_error(REQ("{\"dtp\":100,\"rhob\":2.3}"), "dts");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180}"), "rhob");
-	expect_error(REQ("{\"dtp\":[100,90],\"dts\":[180,170,160],"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"rhob\":2.3}"), "dts");
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180}"), "rhob");
+	h_expect_invalid(&H, REQ("{\"dtp\":[100,90],\"dts\":[180,170,160],"
 	                 "\"rhob\":2.3}"),
 	             "dts");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"caliper\":0.3}"),
 	             "bit_size");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50}"),
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50}"),
 	             "gr_clean");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50,"
 	                 "\"vsh\":0.2}"),
 	             "gr");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"gr_clean\":20}"),
 	             "gr_clean");
-	expect_error(REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":\"magic\"}"),
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":\"magic\"}"),
 	             "vs_predict");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rho_predict\":\"x\"}"),
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rho_predict\":\"x\"}"),
 	             "rho_predict");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"rho_replace_bad\":true}"),
 	             "rho_replace_bad");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"gardner_a\":0.3}"),
 	             "gardner_a");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"drho_limit\":0}"),
 	             "drho_limit");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"washout_limit\":-1}"),
 	             "washout_limit");
-	expect_error(REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":"
 	                 "\"greenberg_castagna\",\"lithology\":{\"sandstone\":"
 	                 "0.3}}"),
 	             "lithology");
-	expect_error(REQ("{\"dtp\":100,\"rhob\":2.3,\"vsh\":0.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"rhob\":2.3,\"vsh\":0.3,"
 	                 "\"vs_predict\":\"greenberg_castagna\","
 	                 "\"lithology\":\"shale\"}"),
 	             "lithology");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"qc\":{\"vp_min\":5000,\"vp_max\":4000}}"),
 	             "qc.");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"qc\":{\"k_max\":1}}"),
 	             "qc.k_max");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"mineral\":\"quartz\"}"),
 	             "mineral");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
 	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
 	             "fluid_in_place");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2,"
 	                 "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
 	             "porosity");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"porosity\":0.2,\"fluid_in_place\":{\"k\":2,"
 	                 "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
 	             "mineral");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"porosity\":0.2,\"mineral\":\"unobtainium\","
 	                 "\"fluid_in_place\":{\"k\":2,\"rho\":1},"
 	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
 	             "mineral");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
 	                 "\"fluid_in_place\":{\"k\":2},"
 	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
 	             "fluid_in_place.rho");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
 	                 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
 	                 "\"fluid_new\":{\"k\":1,\"rho\":1},"
 	                 "\"temperature\":60}"),
 	             "pressure");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
 	                 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
 	                 "\"fluid_new\":{\"k\":1,\"rho\":1},\"pressure\":20,"
 	                 "\"temperature_gradient\":30}"),
 	             "surface_temperature");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
 	                 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
 	                 "\"fluid_new\":{\"k\":1,\"rho\":1},"
 	                 "\"pressure_gradient\":0.01,\"temperature\":60}"),
 	             "depth");
-	expect_error(REQ("{\"dtp\":[100,90],\"dts\":180,\"rhob\":2.3,"
+	h_expect_invalid(&H, REQ("{\"dtp\":[100,90],\"dts\":180,\"rhob\":2.3,"
 	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
 	                 "\"fluid_in_place\":{\"k\":[2,2,2],\"rho\":1},"
 	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
 	             "fluid_in_place.k");
-	expect_error(REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"bogus\":1}"),
+	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"bogus\":1}"),
 	             "bogus");
-	expect_error(REQ("{\"dtp\":[100,\"x\"],\"dts\":180,\"rhob\":2.3}"),
+	h_expect_invalid(&H, REQ("{\"dtp\":[100,\"x\"],\"dts\":180,\"rhob\":2.3}"),
 	             "dtp");
 }
 

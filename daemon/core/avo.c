@@ -218,6 +218,13 @@ int rw_reflect_fatti(const rw_reflect_medium *upper,
 	return RW_OK;
 }
 
+/* P-wave modulus rho vp^2 and shear modulus rho vs^2 of a medium (Pa). */
+static void moduli(const rw_reflect_medium *m, double *m_pa, double *mu_pa)
+{
+	*m_pa = m->rho_kgm3 * m->vp_ms * m->vp_ms;
+	*mu_pa = m->rho_kgm3 * m->vs_ms * m->vs_ms;
+}
+
 int rw_reflect_gray_lmr(const rw_reflect_medium *upper,
                         const rw_reflect_medium *lower, double theta_rad,
                         double *r)
@@ -229,10 +236,10 @@ int rw_reflect_gray_lmr(const rw_reflect_medium *upper,
 	st = setup(upper, lower, theta_rad, r, &m);
 	if (st != RW_OK)
 		return st;
-	mu1 = upper->rho_kgm3 * upper->vs_ms * upper->vs_ms;
-	mu2 = lower->rho_kgm3 * lower->vs_ms * lower->vs_ms;
-	l1 = upper->rho_kgm3 * upper->vp_ms * upper->vp_ms - 2.0 * mu1;
-	l2 = lower->rho_kgm3 * lower->vp_ms * lower->vp_ms - 2.0 * mu2;
+	moduli(upper, &l1, &mu1);
+	moduli(lower, &l2, &mu2);
+	l1 -= 2.0 * mu1; /* lambda = M - 2 mu */
+	l2 -= 2.0 * mu2;
 	lm = 0.5 * (l1 + l2);
 	mm = 0.5 * (mu1 + mu2);
 	/* lambda = 0 to rounding: relative to the P modulus lambda + 2 mu */
@@ -258,10 +265,10 @@ int rw_reflect_gray_kmr(const rw_reflect_medium *upper,
 	st = setup(upper, lower, theta_rad, r, &m);
 	if (st != RW_OK)
 		return st;
-	mu1 = upper->rho_kgm3 * upper->vs_ms * upper->vs_ms;
-	mu2 = lower->rho_kgm3 * lower->vs_ms * lower->vs_ms;
-	k1 = upper->rho_kgm3 * upper->vp_ms * upper->vp_ms - 4.0 / 3.0 * mu1;
-	k2b = lower->rho_kgm3 * lower->vp_ms * lower->vp_ms - 4.0 / 3.0 * mu2;
+	moduli(upper, &k1, &mu1);
+	moduli(lower, &k2b, &mu2);
+	k1 -= 4.0 / 3.0 * mu1; /* K = M - 4/3 mu */
+	k2b -= 4.0 / 3.0 * mu2;
 	km = 0.5 * (k1 + k2b);
 	mm = 0.5 * (mu1 + mu2);
 	s2 = sin(theta_rad) * sin(theta_rad);

@@ -30,10 +30,10 @@ static int array_rank(const cJSON *v)
 	cJSON_ArrayForEach(e, v)
 	{
 		int r = cJSON_IsArray(e) ? 2
-			: (cJSON_IsNumber(e) || cJSON_IsString(e) ||
-			   cJSON_IsNull(e))
-			    ? 1
-			    : 0;
+		        : (cJSON_IsNumber(e) || cJSON_IsString(e) ||
+		           cJSON_IsNull(e))
+		            ? 1
+		            : 0;
 		if (r == 2 && array_rank(e) != 1)
 			return 0;
 		if (!r || (rank && r != rank))
@@ -54,7 +54,7 @@ static void print_cell(FILE *f, const cJSON *e, int w)
 }
 
 static void column_head(const cJSON *units, const cJSON *col, char *buf,
-			size_t size)
+                        size_t size)
 {
 	const char *u = unit_of(units, col->string);
 	snprintf(buf, size, u ? "%s[%s]" : "%s", col->string, u);
@@ -82,7 +82,7 @@ static int print_table(const cJSON *result, FILE *f)
 			const char *u = unit_of(units, m->string);
 			char *s = cJSON_PrintUnformatted(m);
 			fprintf(f, "# %s = %s%s%s\n", m->string, s ? s : "?",
-				u ? " " : "", u ? u : "");
+			        u ? " " : "", u ? u : "");
 			cJSON_free(s);
 			printed++;
 		} else if (array_rank(m) && ncol < 128) {
@@ -104,16 +104,16 @@ static int print_table(const cJSON *result, FILE *f)
 			}
 		for (size_t g = 0; g < ng; g++) {
 			column_head(units, cols[group[g]], head, sizeof head);
-			width[g] = (int)strlen(head) > 13 ? (int)strlen(head)
-							  : 13;
+			width[g] =
+			    (int)strlen(head) > 13 ? (int)strlen(head) : 13;
 			fprintf(f, " %*s", width[g], head);
 		}
 		fputc('\n', f);
 		for (int i = 0; i < n; i++) {
 			for (size_t g = 0; g < ng; g++)
-				print_cell(f,
-					   cJSON_GetArrayItem(cols[group[g]], i),
-					   width[g]);
+				print_cell(
+				    f, cJSON_GetArrayItem(cols[group[g]], i),
+				    width[g]);
 			fputc('\n', f);
 		}
 		fputc('\n', f);
@@ -130,8 +130,7 @@ static int print_table(const cJSON *result, FILE *f)
 		{
 			const cJSON *e;
 			fprintf(f, " %4d", r++);
-			cJSON_ArrayForEach(e, row)
-				print_cell(f, e, 13);
+			cJSON_ArrayForEach(e, row) print_cell(f, e, 13);
 			fputc('\n', f);
 		}
 		fputc('\n', f);
@@ -150,22 +149,25 @@ static int print_response(const char *line, int table)
 
 	if (!r) {
 		fprintf(stderr, "rockwire: unreadable response: %.200s\n",
-			line);
+		        line);
 		return CLI_EXIT_IO;
 	}
 	res = cJSON_GetObjectItemCaseSensitive(r, "result");
 	err = cJSON_GetObjectItemCaseSensitive(r, "error");
 	if (err) {
-		const cJSON *code = cJSON_GetObjectItemCaseSensitive(err, "code");
-		const cJSON *msg = cJSON_GetObjectItemCaseSensitive(err,
-								    "message");
-		const cJSON *data = cJSON_GetObjectItemCaseSensitive(err, "data");
-		const cJSON *param = cJSON_GetObjectItemCaseSensitive(data,
-								      "param");
-		const cJSON *why = cJSON_GetObjectItemCaseSensitive(data,
-								    "reason");
-		fprintf(stderr, "rockwire: error %d: %s", code ? code->valueint : 0,
-			cJSON_IsString(msg) ? msg->valuestring : "?");
+		const cJSON *code =
+		    cJSON_GetObjectItemCaseSensitive(err, "code");
+		const cJSON *msg =
+		    cJSON_GetObjectItemCaseSensitive(err, "message");
+		const cJSON *data =
+		    cJSON_GetObjectItemCaseSensitive(err, "data");
+		const cJSON *param =
+		    cJSON_GetObjectItemCaseSensitive(data, "param");
+		const cJSON *why =
+		    cJSON_GetObjectItemCaseSensitive(data, "reason");
+		fprintf(stderr, "rockwire: error %d: %s",
+		        code ? code->valueint : 0,
+		        cJSON_IsString(msg) ? msg->valuestring : "?");
 		if (cJSON_IsString(param))
 			fprintf(stderr, ": %s", param->valuestring);
 		if (cJSON_IsString(why))
@@ -175,8 +177,8 @@ static int print_response(const char *line, int table)
 	} else if (table && print_table(res, stdout) == 0) {
 		/* printed */
 	} else {
-		char *s = isatty(1) ? cJSON_Print(res)
-				    : cJSON_PrintUnformatted(res);
+		char *s =
+		    isatty(1) ? cJSON_Print(res) : cJSON_PrintUnformatted(res);
 		if (s) {
 			fputs(s, stdout);
 			fputc('\n', stdout);
@@ -205,20 +207,20 @@ int cli_cmd_call(const cli_opts *o, int argc, char **argv)
 			pjson = argv[i] + 9;
 		else if (argv[i][0] == '-' && argv[i][1] == '-') {
 			fprintf(stderr, "rockwire call: unknown option %s\n",
-				argv[i]);
+			        argv[i]);
 			return CLI_EXIT_USAGE;
 		} else if (!method)
 			method = argv[i];
 	}
 	if (!method) {
 		fprintf(stderr, "usage: rockwire call METHOD [name=value ...] "
-				"[--params JSON] [--table]\n");
+		                "[--params JSON] [--table]\n");
 		return CLI_EXIT_USAGE;
 	}
 	params = pjson ? cJSON_Parse(pjson) : cJSON_CreateObject();
 	if (!params || !cJSON_IsObject(params)) {
 		fprintf(stderr, "rockwire call: --params must be a JSON "
-				"object\n");
+		                "object\n");
 		goto out;
 	}
 	int seen_method = 0;
@@ -284,7 +286,7 @@ int cli_cmd_send(const cli_opts *o, int argc, char **argv)
 	fd = strcmp(file, "-") == 0 ? 0 : open(file, O_RDONLY | O_CLOEXEC);
 	if (fd < 0) {
 		fprintf(stderr, "rockwire send: %s: %s\n", file,
-			strerror(errno));
+		        strerror(errno));
 		return CLI_EXIT_IO;
 	}
 	if (cli_connect(o, &c)) {

@@ -19,8 +19,8 @@ typedef struct cli_opts {
 /* A duplex line connection. rfd == wfd for a socket. */
 typedef struct cli_conn {
 	int rfd, wfd;
-	pid_t child;       /* > 0 for a spawned daemon */
-	char *rbuf;        /* received bytes not yet returned as lines */
+	pid_t child; /* > 0 for a spawned daemon */
+	char *rbuf;  /* received bytes not yet returned as lines */
 	size_t rlen, rcap, rstart;
 	int eof;
 	char desc[256];
@@ -57,10 +57,10 @@ void cli_usage_feed(FILE *f);
 int cli_cmd_feed(const cli_opts *o, int argc, char **argv);
 
 /* Exit codes of rockwire (documented in --help). */
-#define CLI_EXIT_OK 0
-#define CLI_EXIT_RPC_ERROR 1   /* the daemon answered with an error */
-#define CLI_EXIT_USAGE 2
-#define CLI_EXIT_CONNECT 3     /* no daemon reachable or spawnable */
-#define CLI_EXIT_IO 4
+#define CLI_EXIT_OK        0
+#define CLI_EXIT_RPC_ERROR 1 /* the daemon answered with an error */
+#define CLI_EXIT_USAGE     2
+#define CLI_EXIT_CONNECT   3 /* no daemon reachable or spawnable */
+#define CLI_EXIT_IO        4
 
 #endif

@@ -103,14 +103,14 @@ static int spawn_daemon(const cli_opts *o, cli_conn *c)
 			_exit(127);
 		execlp(path, path, "--stdio", (char *)NULL);
 		fprintf(stderr, "rockwire: cannot run %s: %s\n", path,
-			strerror(errno));
+		        strerror(errno));
 		_exit(127);
 	}
 	close(sv[1]);
 	c->rfd = c->wfd = sv[0];
 	c->child = pid;
-	snprintf(c->desc, sizeof c->desc, "private daemon %.200s (pid %ld)", path,
-		 (long)pid);
+	snprintf(c->desc, sizeof c->desc, "private daemon %.200s (pid %ld)",
+	         path, (long)pid);
 	return 0;
 }
 
@@ -135,7 +135,7 @@ int cli_connect(const cli_opts *o, cli_conn *c)
 		}
 		if (err != ENOENT && err != ECONNREFUSED) {
 			fprintf(stderr, "rockwire: %s: %s\n", path,
-				strerror(err));
+			        strerror(err));
 			return -1;
 		}
 		/* Nothing listens there: fall back to a private daemon. */
@@ -183,7 +183,7 @@ int cli_write_all(cli_conn *c, const char *buf, size_t n)
 			if (errno == EINTR)
 				continue;
 			fprintf(stderr, "rockwire: write to %s: %s\n", c->desc,
-				strerror(errno));
+			        strerror(errno));
 			return -1;
 		}
 		buf += w;
@@ -223,9 +223,9 @@ int cli_read_line(cli_conn *c, char **line, size_t *len, int timeout_ms)
 	for (;;) {
 		char *start = c->rbuf + c->rstart;
 		size_t avail = c->rlen - c->rstart;
-		char *nl = avail ? memchr(start + scanned, '\n',
-					  avail - scanned)
-				 : NULL;
+		char *nl = avail
+		               ? memchr(start + scanned, '\n', avail - scanned)
+		               : NULL;
 		if (nl) {
 			*nl = '\0';
 			*line = start;
@@ -264,7 +264,7 @@ int cli_read_line(cli_conn *c, char **line, size_t *len, int timeout_ms)
 			if (errno == EINTR)
 				continue;
 			fprintf(stderr, "rockwire: read from %s: %s\n", c->desc,
-				strerror(errno));
+			        strerror(errno));
 			return -1;
 		}
 		if (r == 0)
@@ -320,7 +320,7 @@ int cli_pump(cli_conn *c, int in_fd, int out_fd)
 			ssize_t w = write(c->wfd, ibuf + ioff, ilen - ioff);
 			if (w < 0 && errno != EAGAIN && errno != EINTR) {
 				fprintf(stderr, "rockwire: write to %s: %s\n",
-					c->desc, strerror(errno));
+				        c->desc, strerror(errno));
 				rc = -1;
 				break;
 			}
@@ -337,7 +337,7 @@ int cli_pump(cli_conn *c, int in_fd, int out_fd)
 				break; /* the daemon has answered everything */
 			for (ssize_t off = 0; off < r;) {
 				ssize_t w = write(out_fd, obuf + off,
-						  (size_t)(r - off));
+				                  (size_t)(r - off));
 				if (w < 0) {
 					if (errno == EINTR)
 						continue;

@@ -128,15 +128,9 @@ static void line_done(cli_wits_parser *p)
 		return;
 	}
 	switch (strlen(s) < 4 ? 0 : parse_item(s, &p->items[p->nitems])) {
-	case 1:
-		p->nitems++;
-		return;
-	case 2:
-		p->stats.text_items++;
-		return;
-	default:
-		p->stats.bad_lines++;
-		p->record_bad = 1;
+	case 1: p->nitems++; return;
+	case 2: p->stats.text_items++; return;
+	default: p->stats.bad_lines++; p->record_bad = 1;
 	}
 }
 

@@ -20,67 +20,69 @@
 
 static void usage(FILE *f)
 {
-	fprintf(f,
-		"usage: rockwired [--stdio | --socket PATH | --listen SPEC...]"
-		" [options]\n"
-		"\n"
-		"Rock-physics calculator daemon: line-delimited JSON-RPC 2.0.\n"
-		"\n"
-		"  --stdio              serve requests on stdin, answer on stdout\n"
-		"  --socket PATH        listen on a Unix socket (same as --listen\n"
-		"                       unix:PATH). With no listener given:\n"
-		"                       sockets passed by the service manager\n"
-		"                       (LISTEN_FDS), else\n"
-		"                       $XDG_RUNTIME_DIR/rockwire.sock, else\n"
-		"                       /tmp/rockwire-<uid>.sock\n"
-		"  --listen SPEC        unix:PATH or tcp:HOST:PORT (HOST numeric\n"
-		"                       or localhost, [V6] for IPv6; port 0 picks\n"
-		"                       one); repeatable, up to 8\n"
-		"  --allow-remote       allow TCP beyond loopback (the protocol\n"
-		"                       has no authentication)\n"
-		"  --socket-mode MODE   octal permission bits (default 0600)\n"
-		"  --log FILE           log to FILE instead of stderr; SIGHUP\n"
-		"                       reopens it\n"
-		"\n"
-		"Limits (see protocol-docs/limits.md; all shown by "
-		"service.info):\n"
-		"  --max-line BYTES     longest request line (default 64M)\n"
-		"  --max-samples N      samples per request (default 0 = no limit)\n"
-		"  --max-work N         samples x angles per request (0 = none)\n"
-		"  --max-batch N        requests per batch (default 10000)\n"
-		"  --max-depth N        JSON nesting depth (default 64)\n"
-		"  --max-connections N  concurrent connections (default 1024)\n"
-		"  --high-water BYTES   unsent answers (or buffered input) per\n"
-		"                       connection before reading pauses\n"
-		"                       (default 1M)\n"
-		"  --max-output BYTES   hard bound on unsent answers per\n"
-		"                       connection: past it a client must keep\n"
-		"                       reading (default 32M; 0 = off)\n"
-		"  --stall-timeout S    ... at least 64 KiB per S seconds, or it\n"
-		"                       is closed as slow (default 30)\n"
-		"  --budget BYTES       bytes buffered over all connections\n"
-		"                       before all reads wait (default 2G; 0 =\n"
-		"                       off)\n"
-		"  --idle-timeout S     close a connection idle this long\n"
-		"                       (default 0 = never)\n"
-		"  --drain-timeout S    on SIGTERM, close what is left after S\n"
-		"                       seconds (default 8)\n"
-		"  --lines-per-turn N   fairness: lines per connection per loop\n"
-		"                       turn (default 20)\n"
-		"  --offload BYTES      lines this long run in the thread pool\n"
-		"                       (default 256K; 0 = never)\n"
-		"  --help, --version\n"
-		"\n"
-		"Signals: SIGTERM/SIGINT stop accepting, answer what was read\n"
-		"and exit 0 (a second one closes at once); SIGHUP reopens the\n"
-		"log. With NOTIFY_SOCKET set, READY=1 and STOPPING=1 are sent.\n"
-		"Exit codes: 0 clean shutdown, 2 usage, 3 cannot listen (path\n"
-		"busy or a live daemon on it), 4 runtime failure.\n"
-		"Logs go to stderr (or --log), one line per event.\n"
-		"\n"
-		"Screening estimates only: not a substitute for qualified review,\n"
-		"local regulations and licensed practice; never the sole basis\n"
-		"for well-control decisions.\n");
+	fprintf(
+	    f,
+	    "usage: rockwired [--stdio | --socket PATH | --listen SPEC...]"
+	    " [options]\n"
+	    "\n"
+	    "Rock-physics calculator daemon: line-delimited JSON-RPC 2.0.\n"
+	    "\n"
+	    "  --stdio              serve requests on stdin, answer on stdout\n"
+	    "  --socket PATH        listen on a Unix socket (same as --listen\n"
+	    "                       unix:PATH). With no listener given:\n"
+	    "                       sockets passed by the service manager\n"
+	    "                       (LISTEN_FDS), else\n"
+	    "                       $XDG_RUNTIME_DIR/rockwire.sock, else\n"
+	    "                       /tmp/rockwire-<uid>.sock\n"
+	    "  --listen SPEC        unix:PATH or tcp:HOST:PORT (HOST numeric\n"
+	    "                       or localhost, [V6] for IPv6; port 0 picks\n"
+	    "                       one); repeatable, up to 8\n"
+	    "  --allow-remote       allow TCP beyond loopback (the protocol\n"
+	    "                       has no authentication)\n"
+	    "  --socket-mode MODE   octal permission bits (default 0600)\n"
+	    "  --log FILE           log to FILE instead of stderr; SIGHUP\n"
+	    "                       reopens it\n"
+	    "\n"
+	    "Limits (see protocol-docs/limits.md; all shown by "
+	    "service.info):\n"
+	    "  --max-line BYTES     longest request line (default 64M)\n"
+	    "  --max-samples N      samples per request (default 0 = no "
+	    "limit)\n"
+	    "  --max-work N         samples x angles per request (0 = none)\n"
+	    "  --max-batch N        requests per batch (default 10000)\n"
+	    "  --max-depth N        JSON nesting depth (default 64)\n"
+	    "  --max-connections N  concurrent connections (default 1024)\n"
+	    "  --high-water BYTES   unsent answers (or buffered input) per\n"
+	    "                       connection before reading pauses\n"
+	    "                       (default 1M)\n"
+	    "  --max-output BYTES   hard bound on unsent answers per\n"
+	    "                       connection: past it a client must keep\n"
+	    "                       reading (default 32M; 0 = off)\n"
+	    "  --stall-timeout S    ... at least 64 KiB per S seconds, or it\n"
+	    "                       is closed as slow (default 30)\n"
+	    "  --budget BYTES       bytes buffered over all connections\n"
+	    "                       before all reads wait (default 2G; 0 =\n"
+	    "                       off)\n"
+	    "  --idle-timeout S     close a connection idle this long\n"
+	    "                       (default 0 = never)\n"
+	    "  --drain-timeout S    on SIGTERM, close what is left after S\n"
+	    "                       seconds (default 8)\n"
+	    "  --lines-per-turn N   fairness: lines per connection per loop\n"
+	    "                       turn (default 20)\n"
+	    "  --offload BYTES      lines this long run in the thread pool\n"
+	    "                       (default 256K; 0 = never)\n"
+	    "  --help, --version\n"
+	    "\n"
+	    "Signals: SIGTERM/SIGINT stop accepting, answer what was read\n"
+	    "and exit 0 (a second one closes at once); SIGHUP reopens the\n"
+	    "log. With NOTIFY_SOCKET set, READY=1 and STOPPING=1 are sent.\n"
+	    "Exit codes: 0 clean shutdown, 2 usage, 3 cannot listen (path\n"
+	    "busy or a live daemon on it), 4 runtime failure.\n"
+	    "Logs go to stderr (or --log), one line per event.\n"
+	    "\n"
+	    "Screening estimates only: not a substitute for qualified review,\n"
+	    "local regulations and licensed practice; never the sole basis\n"
+	    "for well-control decisions.\n");
 }
 
 /* Parses a non-negative integer with optional K/M/G suffix (binary). */
@@ -97,9 +99,12 @@ static int parse_size(const char *s, size_t *out)
 	if (errno || end == s)
 		return -1;
 	switch (*end) {
-	case 'K': case 'k': shift = 10, end++; break;
-	case 'M': case 'm': shift = 20, end++; break;
-	case 'G': case 'g': shift = 30, end++; break;
+	case 'K':
+	case 'k': shift = 10, end++; break;
+	case 'M':
+	case 'm': shift = 20, end++; break;
+	case 'G':
+	case 'g': shift = 30, end++; break;
 	default: break;
 	}
 	if (*end || v > ((unsigned long long)SIZE_MAX >> shift))
@@ -126,33 +131,50 @@ static int parse_seconds(const char *s, double *out)
 
 int main(int argc, char **argv)
 {
-	enum { O_MODE = 256, O_LINE, O_SAMPLES, O_WORK, O_BATCH, O_DEPTH,
-	       O_CONNS, O_TURN, O_OFFLOAD, O_HIGH, O_HARD, O_BUDGET,
-	       O_LISTEN, O_REMOTE, O_LOG, O_IDLE, O_STALL, O_DRAIN };
+	enum {
+		O_MODE = 256,
+		O_LINE,
+		O_SAMPLES,
+		O_WORK,
+		O_BATCH,
+		O_DEPTH,
+		O_CONNS,
+		O_TURN,
+		O_OFFLOAD,
+		O_HIGH,
+		O_HARD,
+		O_BUDGET,
+		O_LISTEN,
+		O_REMOTE,
+		O_LOG,
+		O_IDLE,
+		O_STALL,
+		O_DRAIN
+	};
 	static const struct option opts[] = {
-		{"stdio", no_argument, NULL, 'i'},
-		{"socket", required_argument, NULL, 's'},
-		{"listen", required_argument, NULL, O_LISTEN},
-		{"allow-remote", no_argument, NULL, O_REMOTE},
-		{"socket-mode", required_argument, NULL, O_MODE},
-		{"log", required_argument, NULL, O_LOG},
-		{"max-line", required_argument, NULL, O_LINE},
-		{"max-samples", required_argument, NULL, O_SAMPLES},
-		{"max-work", required_argument, NULL, O_WORK},
-		{"max-batch", required_argument, NULL, O_BATCH},
-		{"max-depth", required_argument, NULL, O_DEPTH},
-		{"max-connections", required_argument, NULL, O_CONNS},
-		{"high-water", required_argument, NULL, O_HIGH},
-		{"max-output", required_argument, NULL, O_HARD},
-		{"budget", required_argument, NULL, O_BUDGET},
-		{"idle-timeout", required_argument, NULL, O_IDLE},
-		{"stall-timeout", required_argument, NULL, O_STALL},
-		{"drain-timeout", required_argument, NULL, O_DRAIN},
-		{"lines-per-turn", required_argument, NULL, O_TURN},
-		{"offload", required_argument, NULL, O_OFFLOAD},
-		{"help", no_argument, NULL, 'h'},
-		{"version", no_argument, NULL, 'V'},
-		{NULL, 0, NULL, 0},
+	    {"stdio", no_argument, NULL, 'i'},
+	    {"socket", required_argument, NULL, 's'},
+	    {"listen", required_argument, NULL, O_LISTEN},
+	    {"allow-remote", no_argument, NULL, O_REMOTE},
+	    {"socket-mode", required_argument, NULL, O_MODE},
+	    {"log", required_argument, NULL, O_LOG},
+	    {"max-line", required_argument, NULL, O_LINE},
+	    {"max-samples", required_argument, NULL, O_SAMPLES},
+	    {"max-work", required_argument, NULL, O_WORK},
+	    {"max-batch", required_argument, NULL, O_BATCH},
+	    {"max-depth", required_argument, NULL, O_DEPTH},
+	    {"max-connections", required_argument, NULL, O_CONNS},
+	    {"high-water", required_argument, NULL, O_HIGH},
+	    {"max-output", required_argument, NULL, O_HARD},
+	    {"budget", required_argument, NULL, O_BUDGET},
+	    {"idle-timeout", required_argument, NULL, O_IDLE},
+	    {"stall-timeout", required_argument, NULL, O_STALL},
+	    {"drain-timeout", required_argument, NULL, O_DRAIN},
+	    {"lines-per-turn", required_argument, NULL, O_TURN},
+	    {"offload", required_argument, NULL, O_OFFLOAD},
+	    {"help", no_argument, NULL, 'h'},
+	    {"version", no_argument, NULL, 'V'},
+	    {NULL, 0, NULL, 0},
 	};
 	srv_config cfg;
 	static char unix_spec[SRV_MAX_LISTEN][600];
@@ -169,29 +191,33 @@ int main(int argc, char **argv)
 		case 's':
 		case O_LISTEN:
 			if (cfg.n_listen >= SRV_MAX_LISTEN) {
-				fprintf(stderr, "rockwired: at most %d "
-					"listeners\n", SRV_MAX_LISTEN);
+				fprintf(stderr,
+				        "rockwired: at most %d "
+				        "listeners\n",
+				        SRV_MAX_LISTEN);
 				return 2;
 			}
 			if (o == 's') {
 				if (!*optarg || strlen(optarg) >= 500) {
-					fprintf(stderr, "rockwired: --socket: "
-						"empty or too long path\n");
+					fprintf(stderr,
+					        "rockwired: --socket: "
+					        "empty or too long path\n");
 					return 2;
 				}
 				snprintf(unix_spec[cfg.n_listen],
-					 sizeof unix_spec[0], "unix:%s",
-					 optarg);
+				         sizeof unix_spec[0], "unix:%s",
+				         optarg);
 				cfg.listen[cfg.n_listen] =
-					unix_spec[cfg.n_listen];
+				    unix_spec[cfg.n_listen];
 				cfg.n_listen++;
 			} else if (strncmp(optarg, "unix:", 5) == 0 ||
-				   strncmp(optarg, "tcp:", 4) == 0) {
+			           strncmp(optarg, "tcp:", 4) == 0) {
 				cfg.listen[cfg.n_listen++] = optarg;
 			} else {
-				fprintf(stderr, "rockwired: --listen: '%s' is "
-					"not unix:PATH or tcp:HOST:PORT\n",
-					optarg);
+				fprintf(stderr,
+				        "rockwired: --listen: '%s' is "
+				        "not unix:PATH or tcp:HOST:PORT\n",
+				        optarg);
 				return 2;
 			}
 			continue;
@@ -199,7 +225,7 @@ int main(int argc, char **argv)
 		case O_LOG:
 			if (!*optarg) {
 				fprintf(stderr, "rockwired: --log: empty "
-					"path\n");
+				                "path\n");
 				return 2;
 			}
 			cfg.log_path = optarg;
@@ -212,10 +238,10 @@ int main(int argc, char **argv)
 			if (*optarg == '\0' || *end || m > 0777 ||
 			    (m & 0600) != 0600) {
 				fprintf(stderr,
-					"rockwired: --socket-mode: '%s' is not "
-					"an octal mode that keeps owner rw "
-					"(e.g. 0600, 0660)\n",
-					optarg);
+				        "rockwired: --socket-mode: '%s' is not "
+				        "an octal mode that keeps owner rw "
+				        "(e.g. 0600, 0660)\n",
+				        optarg);
 				return 2;
 			}
 			cfg.socket_mode = (unsigned)m;
@@ -226,11 +252,12 @@ int main(int argc, char **argv)
 		case O_DRAIN:
 			name = o == O_IDLE    ? "--idle-timeout"
 			       : o == O_STALL ? "--stall-timeout"
-					      : "--drain-timeout";
+			                      : "--drain-timeout";
 			if (parse_seconds(optarg, &secs) < 0) {
-				fprintf(stderr, "rockwired: %s: '%s' is not a "
-					"number of seconds in [0, 1e6]\n",
-					name, optarg);
+				fprintf(stderr,
+				        "rockwired: %s: '%s' is not a "
+				        "number of seconds in [0, 1e6]\n",
+				        name, optarg);
 				return 2;
 			}
 			if (o == O_IDLE)
@@ -257,15 +284,18 @@ int main(int argc, char **argv)
 		default: usage(stderr); return 2;
 		}
 		if (parse_size(optarg, &v) < 0) {
-			fprintf(stderr, "rockwired: %s: '%s' is not a "
-				"non-negative integer (K, M, G suffixes "
-				"allowed)\n", name, optarg);
+			fprintf(stderr,
+			        "rockwired: %s: '%s' is not a "
+			        "non-negative integer (K, M, G suffixes "
+			        "allowed)\n",
+			        name, optarg);
 			return 2;
 		}
 		if ((o == O_LINE || o == O_DEPTH || o == O_CONNS ||
-		     o == O_HIGH) && v == 0) {
+		     o == O_HIGH) &&
+		    v == 0) {
 			fprintf(stderr, "rockwired: %s must be at least 1\n",
-				name);
+			        name);
 			return 2;
 		}
 		switch (o) {
@@ -273,10 +303,13 @@ int main(int argc, char **argv)
 		case O_SAMPLES: cfg.limits.max_samples = v; break;
 		case O_WORK: cfg.limits.max_work = v; break;
 		case O_BATCH: cfg.limits.max_batch = v; break;
-		case O_DEPTH: cfg.limits.max_depth = v > 10000 ? 10000 : (int)v;
+		case O_DEPTH:
+			cfg.limits.max_depth = v > 10000 ? 10000 : (int)v;
 			break;
 		case O_CONNS: cfg.limits.max_conns = v; break;
-		case O_TURN: cfg.lines_per_turn = v ? (int)(v > 100000 ? 100000 : v) : 1;
+		case O_TURN:
+			cfg.lines_per_turn =
+			    v ? (int)(v > 100000 ? 100000 : v) : 1;
 			break;
 		case O_OFFLOAD: cfg.offload_bytes = v; break;
 		case O_HIGH: cfg.limits.out_high_water = v; break;
@@ -286,25 +319,26 @@ int main(int argc, char **argv)
 	}
 	if (optind < argc) {
 		fprintf(stderr, "rockwired: unexpected argument '%s'\n",
-			argv[optind]);
+		        argv[optind]);
 		usage(stderr);
 		return 2;
 	}
 	if (cfg.use_stdio && cfg.n_listen) {
 		fprintf(stderr, "rockwired: --stdio excludes --socket and "
-			"--listen\n");
+		                "--listen\n");
 		return 2;
 	}
 	if (cfg.limits.out_hard_limit &&
 	    cfg.limits.out_hard_limit < cfg.limits.out_high_water) {
-		fprintf(stderr, "rockwired: --max-output (%zu) must be at "
-			"least --high-water (%zu)\n",
-			cfg.limits.out_hard_limit, cfg.limits.out_high_water);
+		fprintf(stderr,
+		        "rockwired: --max-output (%zu) must be at "
+		        "least --high-water (%zu)\n",
+		        cfg.limits.out_hard_limit, cfg.limits.out_high_water);
 		return 2;
 	}
 	if (cfg.limits.out_hard_limit && cfg.limits.stall_timeout_s <= 0) {
 		fprintf(stderr, "rockwired: --stall-timeout must be above 0 "
-			"(use --max-output 0 to turn the rule off)\n");
+		                "(use --max-output 0 to turn the rule off)\n");
 		return 2;
 	}
 	return srv_run(&cfg);

@@ -15,15 +15,21 @@ enum grp { G_P, G_S, G_OTHER };
 static enum grp group_of(rw_elastic_qty q)
 {
 	switch (q) {
-	case RW_Q_VP: case RW_Q_AI: case RW_Q_DTP: case RW_Q_M: return G_P;
-	case RW_Q_VS: case RW_Q_SI: case RW_Q_DTS: case RW_Q_MU: return G_S;
+	case RW_Q_VP:
+	case RW_Q_AI:
+	case RW_Q_DTP:
+	case RW_Q_M: return G_P;
+	case RW_Q_VS:
+	case RW_Q_SI:
+	case RW_Q_DTS:
+	case RW_Q_MU: return G_S;
 	default: return G_OTHER;
 	}
 }
 
 static const char *const qty_names[RW_Q_COUNT] = {
-	"vp", "vs", "k", "mu", "lambda", "e", "nu", "m", "ai", "si", "vpvs",
-	"dtp", "dts",
+    "vp", "vs", "k",  "mu",   "lambda", "e",   "nu",
+    "m",  "ai", "si", "vpvs", "dtp",    "dts",
 };
 
 const char *rw_elastic_qty_name(rw_elastic_qty q)
@@ -62,7 +68,7 @@ static void fill_nan(rw_elastic *o)
 }
 
 int rw_elastic_from_moduli(double rho, double m, double mu, rw_elastic *out,
-			   unsigned *why)
+                           unsigned *why)
 {
 	unsigned bad = 0;
 	double k;
@@ -102,7 +108,7 @@ int rw_elastic_from_moduli(double rho, double m, double mu, rw_elastic *out,
 }
 
 int rw_elastic_from_velocities(double vp, double vs, double rho,
-			       rw_elastic *out, unsigned *why)
+                               rw_elastic *out, unsigned *why)
 {
 	return rw_elastic_from_pair(rho, RW_Q_VP, vp, RW_Q_VS, vs, out, why);
 }
@@ -114,10 +120,14 @@ static double group_modulus(double rho, rw_elastic_qty q, double v)
 	double vel;
 
 	switch (q) {
-	case RW_Q_M: case RW_Q_MU: return v;
-	case RW_Q_VP: case RW_Q_VS: vel = v; break;
-	case RW_Q_AI: case RW_Q_SI: vel = v / rho; break;
-	case RW_Q_DTP: case RW_Q_DTS: vel = 1.0 / v; break;
+	case RW_Q_M:
+	case RW_Q_MU: return v;
+	case RW_Q_VP:
+	case RW_Q_VS: vel = v; break;
+	case RW_Q_AI:
+	case RW_Q_SI: vel = v / rho; break;
+	case RW_Q_DTP:
+	case RW_Q_DTS: vel = 1.0 / v; break;
 	default: return NAN;
 	}
 	/* A zero velocity or impedance is a zero modulus (reported as such by
@@ -175,11 +185,12 @@ static double mu_from_lambda_e(double lam, double e)
 
 /* (M, mu) from two "other" quantities. */
 static void solve_others(rw_elastic_qty a, double va, rw_elastic_qty b,
-			 double vb, double *m, double *mu)
+                         double vb, double *m, double *mu)
 {
 	double nu;
 
-	/* Order the pair so that a < b in enum order: K, LAMBDA, E, NU, VPVS. */
+	/* Order the pair so that a < b in enum order: K, LAMBDA, E, NU, VPVS.
+	 */
 	if (a > b) {
 		rw_elastic_qty tq = a;
 		double tv = va;
@@ -213,15 +224,13 @@ static void solve_others(rw_elastic_qty a, double va, rw_elastic_qty b,
 		*mu = va / (2.0 * (1.0 + nu));
 		*m = 2.0 * *mu * (1.0 - nu) / (1.0 - 2.0 * nu);
 		return;
-	default:
-		*m = NAN;
-		return;
+	default: *m = NAN; return;
 	}
 }
 
 int rw_elastic_from_pair(double rho, rw_elastic_qty a, double va,
-			 rw_elastic_qty b, double vb, rw_elastic *out,
-			 unsigned *why)
+                         rw_elastic_qty b, double vb, rw_elastic *out,
+                         unsigned *why)
 {
 	enum grp ga, gb;
 	double m = NAN, mu = NAN;

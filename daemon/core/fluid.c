@@ -64,11 +64,11 @@ static unsigned water_pt_warn(double p_mpa, double t_degc)
  * t_degc in [0, 373.946]; result in MPa. */
 int rw_fluid_water_psat(double t_degc, double *psat_mpa)
 {
-	static const double n[10] = {
-		0.11670521452767e4,  -0.72421316703206e6, -0.17073846940092e2,
-		0.12020824702470e5,  -0.32325550322333e7, 0.14915108613530e2,
-		-0.48232657361591e4, 0.40511340542057e6,  -0.23855557567849,
-		0.65017534844798e3};
+	static const double n[10] = {0.11670521452767e4,  -0.72421316703206e6,
+	                             -0.17073846940092e2, 0.12020824702470e5,
+	                             -0.32325550322333e7, 0.14915108613530e2,
+	                             -0.48232657361591e4, 0.40511340542057e6,
+	                             -0.23855557567849,   0.65017534844798e3};
 	double ts, th, a, b, c, x;
 
 	if (!(t_degc >= 0.0 && t_degc <= 373.946)) {
@@ -90,9 +90,9 @@ int rw_fluid_water_psat(double t_degc, double *psat_mpa)
 static double bw_water_rho_gcc(double p, double t)
 {
 	return 1.0 + 1e-6 * (-80.0 * t - 3.3 * t * t + 0.00175 * t * t * t +
-			     489.0 * p - 2.0 * t * p + 0.016 * t * t * p -
-			     1.3e-5 * t * t * t * p - 0.333 * p * p -
-			     0.002 * t * p * p);
+	                     489.0 * p - 2.0 * t * p + 0.016 * t * t * p -
+	                     1.3e-5 * t * t * t * p - 0.333 * p * p -
+	                     0.002 * t * p * p);
 }
 
 /* Pure-water velocity, m/s, Batzle & Wang 1992 eq. 28: sum over i = 0..4,
@@ -100,11 +100,11 @@ static double bw_water_rho_gcc(double p, double t)
 static double bw_water_v_ms(double p, double t)
 {
 	static const double w[5][4] = {
-		{1402.85, 1.524, 3.437e-3, -1.197e-5},
-		{4.871, -0.0111, 1.739e-4, -1.628e-6},
-		{-0.04783, 2.747e-4, -2.135e-6, 1.237e-8},
-		{1.487e-4, -6.503e-7, -1.455e-8, 1.327e-10},
-		{-2.197e-7, 7.987e-10, 5.230e-11, -4.614e-13},
+	    {1402.85, 1.524, 3.437e-3, -1.197e-5},
+	    {4.871, -0.0111, 1.739e-4, -1.628e-6},
+	    {-0.04783, 2.747e-4, -2.135e-6, 1.237e-8},
+	    {1.487e-4, -6.503e-7, -1.455e-8, 1.327e-10},
+	    {-2.197e-7, 7.987e-10, 5.230e-11, -4.614e-13},
 	};
 	double v = 0.0, ti = 1.0;
 	int i, j;
@@ -130,7 +130,7 @@ static int water_domain(double p_mpa, double t_degc)
 }
 
 int rw_fluid_water_props(double p_mpa, double t_degc, rw_fluid_phase *out,
-			 unsigned *warn)
+                         unsigned *warn)
 {
 	if (water_domain(p_mpa, t_degc) != RW_OK) {
 		phase_nan(out);
@@ -139,11 +139,11 @@ int rw_fluid_water_props(double p_mpa, double t_degc, rw_fluid_phase *out,
 	}
 	warn_set(warn, water_pt_warn(p_mpa, t_degc));
 	return phase_finish(out, 1000.0 * bw_water_rho_gcc(p_mpa, t_degc),
-			    bw_water_v_ms(p_mpa, t_degc));
+	                    bw_water_v_ms(p_mpa, t_degc));
 }
 
 int rw_fluid_brine_props(double p_mpa, double t_degc, double sal_frac,
-			 rw_fluid_phase *out, unsigned *warn)
+                         rw_fluid_phase *out, unsigned *warn)
 {
 	double p = p_mpa, t = t_degc, s = sal_frac, rho, v;
 	unsigned w;
@@ -162,20 +162,19 @@ int rw_fluid_brine_props(double p_mpa, double t_degc, double sal_frac,
 	/* B&W eq. 27b (from memory), g/cm^3. */
 	rho = bw_water_rho_gcc(p, t) +
 	      s * (0.668 + 0.44 * s +
-		   1e-6 * (300.0 * p - 2400.0 * p * s +
-			   t * (80.0 + 3.0 * t - 3300.0 * s - 13.0 * p +
-				47.0 * p * s)));
+	           1e-6 * (300.0 * p - 2400.0 * p * s +
+	                   t * (80.0 + 3.0 * t - 3300.0 * s - 13.0 * p +
+	                        47.0 * p * s)));
 	/* B&W eq. 29 (from memory), m/s. */
 	v = bw_water_v_ms(p, t) +
 	    s * (1170.0 - 9.6 * t + 0.055 * t * t - 8.5e-5 * t * t * t +
-		 2.6 * p - 0.0029 * t * p - 0.0476 * p * p) +
-	    pow(s, 1.5) * (780.0 - 10.0 * p + 0.16 * p * p) -
-	    1820.0 * s * s;
+	         2.6 * p - 0.0029 * t * p - 0.0476 * p * p) +
+	    pow(s, 1.5) * (780.0 - 10.0 * p + 0.16 * p * p) - 1820.0 * s * s;
 	return phase_finish(out, 1000.0 * rho, v);
 }
 
 int rw_fluid_gas_props(double p_mpa, double t_degc, double gravity,
-		       rw_fluid_phase *out, double *z, unsigned *warn)
+                       rw_fluid_phase *out, double *z, unsigned *warn)
 {
 	double ta, tpc, ppc, tpr, ppr, a, b, c, d, e, zz, dzdp, gam, den;
 	double rho;
@@ -275,7 +274,7 @@ static double api_rho0_gcc(double api)
 }
 
 int rw_fluid_deadoil_props(double p_mpa, double t_degc, double api,
-			   rw_fluid_phase *out, unsigned *warn)
+                           rw_fluid_phase *out, unsigned *warn)
 {
 	double r0, rp, rho, p = p_mpa, t = t_degc;
 
@@ -288,8 +287,8 @@ int rw_fluid_deadoil_props(double p_mpa, double t_degc, double api,
 	warn_set(warn, oil_warn(p, t, api));
 	r0 = api_rho0_gcc(api);
 	/* B&W eq. 18 (from memory): isothermal pressure correction. */
-	rp = r0 + (0.00277 * p - 1.71e-7 * p * p * p) * (r0 - 1.15) *
-			  (r0 - 1.15) +
+	rp = r0 +
+	     (0.00277 * p - 1.71e-7 * p * p * p) * (r0 - 1.15) * (r0 - 1.15) +
 	     3.49e-4 * p;
 	/* B&W eq. 19 (from memory): thermal expansion. */
 	rho = rp / (0.972 + 3.81e-4 * pow(t + 17.78, 1.175));
@@ -297,8 +296,8 @@ int rw_fluid_deadoil_props(double p_mpa, double t_degc, double api,
 }
 
 int rw_fluid_liveoil_props(double p_mpa, double t_degc, double api,
-			   double gor_ll, double gas_gravity,
-			   rw_fluid_phase *out, double *b0, unsigned *warn)
+                           double gor_ll, double gas_gravity,
+                           rw_fluid_phase *out, double *b0, unsigned *warn)
 {
 	double p = p_mpa, t = t_degc, g = gas_gravity, rg = gor_ll;
 	double r0, bo, rhog, rhop, rgmax, base;
@@ -344,8 +343,7 @@ domain:
 }
 
 /* Validates a phase set for mixing; see the contract in fluid.h. */
-static int mix_check(size_t n, const rw_fluid_phase *phase,
-		     const double *sat)
+static int mix_check(size_t n, const rw_fluid_phase *phase, const double *sat)
 {
 	double sum = 0.0;
 	size_t i;
@@ -365,8 +363,7 @@ static int mix_check(size_t n, const rw_fluid_phase *phase,
 	return RW_OK;
 }
 
-static double mix_rho(size_t n, const rw_fluid_phase *phase,
-		      const double *sat)
+static double mix_rho(size_t n, const rw_fluid_phase *phase, const double *sat)
 {
 	double r = 0.0;
 	size_t i;
@@ -384,8 +381,8 @@ static int mix_out(rw_fluid_phase *out, double k, double rho)
 	return RW_OK;
 }
 
-int rw_fluid_mix_wood(size_t n, const rw_fluid_phase *phase,
-		      const double *sat, rw_fluid_phase *out)
+int rw_fluid_mix_wood(size_t n, const rw_fluid_phase *phase, const double *sat,
+                      rw_fluid_phase *out)
 {
 	double c = 0.0;
 	size_t i;
@@ -400,8 +397,8 @@ int rw_fluid_mix_wood(size_t n, const rw_fluid_phase *phase,
 	return mix_out(out, 1.0 / c, mix_rho(n, phase, sat));
 }
 
-int rw_fluid_mix_voigt(size_t n, const rw_fluid_phase *phase,
-		       const double *sat, rw_fluid_phase *out)
+int rw_fluid_mix_voigt(size_t n, const rw_fluid_phase *phase, const double *sat,
+                       rw_fluid_phase *out)
 {
 	double k = 0.0;
 	size_t i;
@@ -416,9 +413,8 @@ int rw_fluid_mix_voigt(size_t n, const rw_fluid_phase *phase,
 	return mix_out(out, k, mix_rho(n, phase, sat));
 }
 
-int rw_fluid_mix_brie(size_t n, const rw_fluid_phase *phase,
-		      const double *sat, size_t i_water, double exponent,
-		      rw_fluid_phase *out)
+int rw_fluid_mix_brie(size_t n, const rw_fluid_phase *phase, const double *sat,
+                      size_t i_water, double exponent, rw_fluid_phase *out)
 {
 	double sw, shc, c = 0.0, khc, k;
 	size_t i;

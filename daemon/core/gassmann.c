@@ -38,7 +38,7 @@ static unsigned frame_warn(double k_dry, double k_min, double phi)
 }
 
 int rw_rock_gassmann_sat(double k_dry_pa, double k_min_pa, double k_fl_pa,
-			 double phi, double *k_sat_pa, unsigned *warn)
+                         double phi, double *k_sat_pa, unsigned *warn)
 {
 	double a, den, k;
 
@@ -66,7 +66,7 @@ int rw_rock_gassmann_sat(double k_dry_pa, double k_min_pa, double k_fl_pa,
 }
 
 int rw_rock_gassmann_dry(double k_sat_pa, double k_min_pa, double k_fl_pa,
-			 double phi, double *k_dry_pa, unsigned *warn)
+                         double phi, double *k_dry_pa, unsigned *warn)
 {
 	double r, num, den, k;
 
@@ -105,8 +105,8 @@ static void subst_nan(rw_rock_subst *out)
 
 /* Fills velocities from K_sat, mu and rho; RW_ERANGE if the P-wave
  * modulus or density is not positive. */
-static int subst_finish(rw_rock_subst *out, double k_sat, double mu,
-			double rho, double k_dry)
+static int subst_finish(rw_rock_subst *out, double k_sat, double mu, double rho,
+                        double k_dry)
 {
 	double m = k_sat + 4.0 / 3.0 * mu;
 
@@ -123,11 +123,11 @@ static int subst_finish(rw_rock_subst *out, double k_sat, double mu,
 	return RW_OK;
 }
 
-int rw_rock_fluid_subst(double vp_ms, double vs_ms, double rho_kgm3,
-			double phi, double k_min_pa, double k_fl_old_pa,
-			double rho_fl_old_kgm3, double k_fl_new_pa,
-			double rho_fl_new_kgm3, rw_rock_subst *out,
-			unsigned *warn)
+int rw_rock_fluid_subst(double vp_ms, double vs_ms, double rho_kgm3, double phi,
+                        double k_min_pa, double k_fl_old_pa,
+                        double rho_fl_old_kgm3, double k_fl_new_pa,
+                        double rho_fl_new_kgm3, rw_rock_subst *out,
+                        unsigned *warn)
 {
 	double mu, k1, kdry, k2, rho2;
 	unsigned w1 = 0, w2 = 0;
@@ -151,8 +151,8 @@ int rw_rock_fluid_subst(double vp_ms, double vs_ms, double rho_kgm3,
 	}
 	st = rw_rock_gassmann_dry(k1, k_min_pa, k_fl_old_pa, phi, &kdry, &w1);
 	if (st == RW_OK)
-		st = rw_rock_gassmann_sat(kdry, k_min_pa, k_fl_new_pa, phi,
-					  &k2, &w2);
+		st = rw_rock_gassmann_sat(kdry, k_min_pa, k_fl_new_pa, phi, &k2,
+		                          &w2);
 	warn_set(warn, w1 | w2);
 	if (st != RW_OK) {
 		subst_nan(out);
@@ -163,9 +163,9 @@ int rw_rock_fluid_subst(double vp_ms, double vs_ms, double rho_kgm3,
 }
 
 int rw_rock_gassmann_frame(double k_dry_pa, double mu_dry_pa, double phi,
-			   double k_min_pa, double rho_min_kgm3,
-			   double k_fl_pa, double rho_fl_kgm3,
-			   rw_rock_subst *out, unsigned *warn)
+                           double k_min_pa, double rho_min_kgm3, double k_fl_pa,
+                           double rho_fl_kgm3, rw_rock_subst *out,
+                           unsigned *warn)
 {
 	double ks;
 	int st;
@@ -185,6 +185,6 @@ int rw_rock_gassmann_frame(double k_dry_pa, double mu_dry_pa, double phi,
 		return st;
 	}
 	return subst_finish(out, ks, mu_dry_pa,
-			    (1.0 - phi) * rho_min_kgm3 + phi * rho_fl_kgm3,
-			    k_dry_pa);
+	                    (1.0 - phi) * rho_min_kgm3 + phi * rho_fl_kgm3,
+	                    k_dry_pa);
 }

@@ -20,37 +20,33 @@
  * extrapolation differ by factors of several); the ones marked
  * "low confidence" are the least certain recollections. */
 static const rw_mineral minerals[] = {
-	{"quartz", 36.6 * GPA, 45.0 * GPA, 2650.0,
-	 "MMD09 table 7.1, from memory"},
-	{"calcite", 76.8 * GPA, 32.0 * GPA, 2710.0,
-	 "MMD09 table 7.1, from memory"},
-	{"dolomite", 94.9 * GPA, 45.0 * GPA, 2870.0,
-	 "MMD09 table 7.1, from memory"},
-	/* Generic clay: the "Gulf clays" row (Tosaya 1982 via MMD09). */
-	{"clay", 21.0 * GPA, 7.0 * GPA, 2600.0,
-	 "MMD09 table 7.1 (Gulf clays, Tosaya 1982), from memory"},
-	{"illite", 39.4 * GPA, 11.7 * GPA, 2700.0,
-	 "MMD09 table 7.1, from memory, low confidence"},
-	/* Measured on a compacted powder: far softer than a crystal. */
-	{"kaolinite", 1.5 * GPA, 1.4 * GPA, 1580.0,
-	 "MMD09 table 7.1 (Vanorio et al. 2003), from memory"},
-	{"smectite", 9.3 * GPA, 6.9 * GPA, 2390.0,
-	 "MMD09 table 7.1 (Vanorio et al. 2003), from memory, low confidence"},
-	/* Feldspar: albite, the sodium end-member of plagioclase, listed
-	 * under its own name and as the generic "feldspar" a practitioner
-	 * asks for. */
-	{"albite", 75.6 * GPA, 25.6 * GPA, 2630.0,
-	 "MMD09 table 7.1, from memory"},
-	{"feldspar", 75.6 * GPA, 25.6 * GPA, 2630.0,
-	 "albite values (MMD09 table 7.1), from memory"},
-	{"anhydrite", 56.1 * GPA, 29.1 * GPA, 2980.0,
-	 "MMD09 table 7.1, from memory"},
-	{"halite", 24.8 * GPA, 14.9 * GPA, 2160.0,
-	 "MMD09 table 7.1, from memory"},
-	{"pyrite", 147.4 * GPA, 132.5 * GPA, 4930.0,
-	 "MMD09 table 7.1, from memory"},
-	{"siderite", 123.7 * GPA, 51.0 * GPA, 3960.0,
-	 "MMD09 table 7.1, from memory"},
+    {"quartz", 36.6 * GPA, 45.0 * GPA, 2650.0, "MMD09 table 7.1, from memory"},
+    {"calcite", 76.8 * GPA, 32.0 * GPA, 2710.0, "MMD09 table 7.1, from memory"},
+    {"dolomite", 94.9 * GPA, 45.0 * GPA, 2870.0,
+     "MMD09 table 7.1, from memory"},
+    /* Generic clay: the "Gulf clays" row (Tosaya 1982 via MMD09). */
+    {"clay", 21.0 * GPA, 7.0 * GPA, 2600.0,
+     "MMD09 table 7.1 (Gulf clays, Tosaya 1982), from memory"},
+    {"illite", 39.4 * GPA, 11.7 * GPA, 2700.0,
+     "MMD09 table 7.1, from memory, low confidence"},
+    /* Measured on a compacted powder: far softer than a crystal. */
+    {"kaolinite", 1.5 * GPA, 1.4 * GPA, 1580.0,
+     "MMD09 table 7.1 (Vanorio et al. 2003), from memory"},
+    {"smectite", 9.3 * GPA, 6.9 * GPA, 2390.0,
+     "MMD09 table 7.1 (Vanorio et al. 2003), from memory, low confidence"},
+    /* Feldspar: albite, the sodium end-member of plagioclase, listed
+     * under its own name and as the generic "feldspar" a practitioner
+     * asks for. */
+    {"albite", 75.6 * GPA, 25.6 * GPA, 2630.0, "MMD09 table 7.1, from memory"},
+    {"feldspar", 75.6 * GPA, 25.6 * GPA, 2630.0,
+     "albite values (MMD09 table 7.1), from memory"},
+    {"anhydrite", 56.1 * GPA, 29.1 * GPA, 2980.0,
+     "MMD09 table 7.1, from memory"},
+    {"halite", 24.8 * GPA, 14.9 * GPA, 2160.0, "MMD09 table 7.1, from memory"},
+    {"pyrite", 147.4 * GPA, 132.5 * GPA, 4930.0,
+     "MMD09 table 7.1, from memory"},
+    {"siderite", 123.7 * GPA, 51.0 * GPA, 3960.0,
+     "MMD09 table 7.1, from memory"},
 };
 
 #define N_MINERALS (sizeof(minerals) / sizeof(minerals[0]))
@@ -105,7 +101,7 @@ int rw_mineral_find(const char *name, size_t *index, rw_mineral *out)
  * x_i >= 0 and z >= 0. A zero denominator with f_i > 0 makes the sum
  * infinite and the harmonic part 0. z = 0 gives the Reuss average. */
 static double harmonic_shift(size_t n, const double *x, const double *f,
-			     double z)
+                             double z)
 {
 	double s = 0.0;
 	size_t i;
@@ -140,7 +136,7 @@ static double hs_zeta(double k, double mu)
 }
 
 static void set3(double *k, double *mu, double *rho, double a, double b,
-		 double c)
+                 double c)
 {
 	if (k)
 		*k = a;
@@ -151,9 +147,9 @@ static void set3(double *k, double *mu, double *rho, double a, double b,
 }
 
 int rw_mineral_mix(int method, size_t n, const double *k_pa,
-		   const double *mu_pa, const double *rho_kgm3,
-		   const double *frac, double *k_out_pa, double *mu_out_pa,
-		   double *rho_out_kgm3)
+                   const double *mu_pa, const double *rho_kgm3,
+                   const double *frac, double *k_out_pa, double *mu_out_pa,
+                   double *rho_out_kgm3)
 {
 	double sum = 0.0, k, mu, kmax = 0.0, kmin = INFINITY, mumax = 0.0;
 	double mumin = INFINITY;
@@ -196,10 +192,10 @@ int rw_mineral_mix(int method, size_t n, const double *k_pa,
 		mu = harmonic_shift(n, mu_pa, frac, 0.0);
 		break;
 	case RW_MIX_HILL:
-		k = 0.5 * (arith(n, k_pa, frac) +
-			   harmonic_shift(n, k_pa, frac, 0.0));
+		k = 0.5 *
+		    (arith(n, k_pa, frac) + harmonic_shift(n, k_pa, frac, 0.0));
 		mu = 0.5 * (arith(n, mu_pa, frac) +
-			    harmonic_shift(n, mu_pa, frac, 0.0));
+		            harmonic_shift(n, mu_pa, frac, 0.0));
 		break;
 	case RW_MIX_HS_UPPER:
 		/* Lambda(mu_max) = [sum f/(K + 4/3 mu_max)]^-1 - 4/3 mu_max */

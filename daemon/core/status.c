@@ -22,9 +22,12 @@ int rw__from_gsl(int gsl_status)
 	switch (gsl_status) {
 	case GSL_SUCCESS: return RW_OK;
 	case GSL_EDOM: return RW_EDOM;
-	case GSL_ERANGE: case GSL_EOVRFLW: case GSL_EUNDRFLW: return RW_ERANGE;
-	case GSL_EMAXITER: case GSL_ENOPROG: case GSL_CONTINUE:
-		return RW_EMAXITER;
+	case GSL_ERANGE:
+	case GSL_EOVRFLW:
+	case GSL_EUNDRFLW: return RW_ERANGE;
+	case GSL_EMAXITER:
+	case GSL_ENOPROG:
+	case GSL_CONTINUE: return RW_EMAXITER;
 	default: return RW_EINVAL;
 	}
 }

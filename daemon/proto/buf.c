@@ -179,8 +179,9 @@ static void note_unit(proto_call *c, const char *key, proto_kind k)
 {
 	char path[160];
 	size_t used = 0;
-	int top = c->depth < (int)sizeof c->need_comma ? c->depth
-						       : (int)sizeof c->need_comma - 1;
+	int top = c->depth < (int)sizeof c->need_comma
+	              ? c->depth
+	              : (int)sizeof c->need_comma - 1;
 
 	if (k == PK_NONE)
 		return;
@@ -193,8 +194,8 @@ static void note_unit(proto_call *c, const char *key, proto_kind k)
 		const char *seg = c->keys[d];
 		if (!seg || (d > 2 && c->keys[d - 1] == seg))
 			continue;
-		used += (size_t)snprintf(path + used, sizeof path - used,
-					 "%s.", seg);
+		used += (size_t)snprintf(path + used, sizeof path - used, "%s.",
+		                         seg);
 		if (used >= sizeof path)
 			return;
 	}
@@ -215,8 +216,7 @@ static void note_unit(proto_call *c, const char *key, proto_kind k)
 			return;
 		}
 		if (c->n_unit_notes)
-			memcpy(n, c->unit_notes,
-			       c->n_unit_notes * sizeof *n);
+			memcpy(n, c->unit_notes, c->n_unit_notes * sizeof *n);
 		c->unit_notes = n;
 		c->cap_unit_notes = cap;
 	}
@@ -323,8 +323,8 @@ void proto_w_json(proto_call *c, const char *key, const cJSON *v)
 }
 
 void proto_w_rows(proto_call *c, const char *key, proto_kind k,
-		  const void *rows, size_t row_size, size_t offset, size_t n,
-		  int as_array)
+                  const void *rows, size_t row_size, size_t offset, size_t n,
+                  int as_array)
 {
 	const unsigned char *base = (const unsigned char *)rows + offset;
 	char tmp[32];
@@ -357,14 +357,14 @@ void proto_w_rows(proto_call *c, const char *key, proto_kind k,
 }
 
 void proto_w_vec(proto_call *c, const char *key, proto_kind k,
-		 const double *values, size_t n, size_t stride, int as_array)
+                 const double *values, size_t n, size_t stride, int as_array)
 {
 	proto_w_rows(c, key, k, values, stride * sizeof *values, 0, n,
-		     as_array);
+	             as_array);
 }
 
 void proto_w_flags(proto_call *c, const char *key, const uint32_t *flags,
-		   size_t n, int as_array)
+                   size_t n, int as_array)
 {
 	char tmp[16];
 
@@ -378,7 +378,7 @@ void proto_w_flags(proto_call *c, const char *key, const uint32_t *flags,
 	proto_buf_append(c->out, "[", 1);
 	for (size_t i = 0; i < n; i++) {
 		int len = snprintf(tmp, sizeof tmp, i ? ",%u" : "%u",
-				   (unsigned)flags[i]);
+		                   (unsigned)flags[i]);
 		proto_buf_append(c->out, tmp, (size_t)len);
 	}
 	proto_buf_append(c->out, "]", 1);
@@ -389,6 +389,6 @@ void proto_w_units(proto_call *c)
 	proto_w_obj_begin(c, "units");
 	for (size_t i = 0; i < c->n_unit_notes; i++)
 		proto_w_str(c, c->unit_notes[i].path,
-			    proto_unit_name(&c->units, c->unit_notes[i].kind));
+		            proto_unit_name(&c->units, c->unit_notes[i].kind));
 	proto_w_obj_end(c);
 }

@@ -13,16 +13,10 @@
 /* ---- the method table ---------------------------------------------------- */
 
 static const proto_method *const families[] = {
-	proto_service_methods,
-	proto_session_methods,
-	proto_elastic_methods,
-	proto_thomsen_methods,
-	proto_fluid_methods,
-	proto_mineral_methods,
-	proto_rock_methods,
-	proto_rock_empirical_methods,
-	proto_reflect_methods,
-	proto_log_methods,
+    proto_service_methods, proto_session_methods,        proto_elastic_methods,
+    proto_thomsen_methods, proto_fluid_methods,          proto_mineral_methods,
+    proto_rock_methods,    proto_rock_empirical_methods, proto_reflect_methods,
+    proto_log_methods,
 };
 
 const proto_method *proto_method_at(size_t i)
@@ -48,9 +42,9 @@ const proto_method *proto_method_find(const char *name)
 /* ---- context, session, counters ----------------------------------------- */
 
 static const int counted_codes[] = {
-	PROTO_PARSE_ERROR,     PROTO_INVALID_REQUEST, PROTO_METHOD_NOT_FOUND,
-	PROTO_INVALID_PARAMS,  PROTO_INTERNAL_ERROR,  PROTO_SERVER_BUSY,
-	PROTO_LIMIT_EXCEEDED,
+    PROTO_PARSE_ERROR,    PROTO_INVALID_REQUEST, PROTO_METHOD_NOT_FOUND,
+    PROTO_INVALID_PARAMS, PROTO_INTERNAL_ERROR,  PROTO_SERVER_BUSY,
+    PROTO_LIMIT_EXCEEDED,
 };
 #define N_CODES (sizeof counted_codes / sizeof counted_codes[0])
 
@@ -60,7 +54,6 @@ struct proto_ctx {
 	atomic_ullong requests, notifications, responses;
 	atomic_ullong errors[N_CODES];
 };
-
 
 void proto_limits_default(proto_limits *lim)
 {
@@ -156,7 +149,7 @@ void proto__write_counters(proto_call *c)
 	proto_w_obj_begin(c, "counters");
 	proto_w_int(c, "requests", (long long)atomic_load(&ctx->requests));
 	proto_w_int(c, "notifications",
-		    (long long)atomic_load(&ctx->notifications));
+	            (long long)atomic_load(&ctx->notifications));
 	proto_w_obj_begin(c, "errors");
 	for (size_t i = 0; i < N_CODES; i++) {
 		snprintf(code, sizeof code, "%d", counted_codes[i]);
@@ -166,11 +159,11 @@ void proto__write_counters(proto_call *c)
 	proto_w_int(c, "connections_total", (long long)s->connections_total);
 	proto_w_int(c, "connections_open", (long long)s->connections_open);
 	proto_w_int(c, "connections_refused",
-		    (long long)s->connections_refused);
+	            (long long)s->connections_refused);
 	proto_w_int(c, "connections_closed_slow",
-		    (long long)s->connections_closed_slow);
+	            (long long)s->connections_closed_slow);
 	proto_w_int(c, "connections_closed_idle",
-		    (long long)s->connections_closed_idle);
+	            (long long)s->connections_closed_idle);
 	proto_w_int(c, "lines_oversized", (long long)s->lines_oversized);
 	proto_w_int(c, "bytes_in", (long long)s->bytes_in);
 	proto_w_int(c, "bytes_out", (long long)s->bytes_out);
@@ -208,8 +201,8 @@ static void write_id(proto_buf *b, const cJSON *id)
 	}
 }
 
-static void write_error(proto_ctx *ctx, proto_buf *b, const cJSON *id,
-			int code, const char *param, const char *reason)
+static void write_error(proto_ctx *ctx, proto_buf *b, const cJSON *id, int code,
+                        const char *param, const char *reason)
 {
 	char tmp[24];
 	int n;
@@ -240,20 +233,21 @@ static void write_error(proto_ctx *ctx, proto_buf *b, const cJSON *id,
 }
 
 void proto_error_line(proto_ctx *ctx, proto_buf *out, int code,
-		      const char *param, const char *reason)
+                      const char *param, const char *reason)
 {
 	write_error(ctx, out, NULL, code, param, reason);
 	proto_buf_append(out, "\n", 1);
 }
 
-/* ---- byte-level checks ---------------------------------------------------- */
+/* ---- byte-level checks ----------------------------------------------------
+ */
 
 /* Checks that the line is UTF-8 without raw control characters other than
  * whitespace, and that its nesting stays within max_depth (tracking
  * strings, so brackets inside strings do not count). Returns 0, or the
  * error code with a reason written to `why`. */
 static int check_bytes(const unsigned char *p, size_t len, int max_depth,
-		       char *why, size_t why_size)
+                       char *why, size_t why_size)
 {
 	int depth = 0, in_str = 0, esc = 0;
 
@@ -263,9 +257,9 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 			if (ch < 0x20 && ch != '\t' && ch != '\n' &&
 			    ch != '\r') {
 				snprintf(why, why_size,
-					 "control byte 0x%02x at offset %zu "
-					 "(JSON text allows none unescaped)",
-					 ch, i);
+				         "control byte 0x%02x at offset %zu "
+				         "(JSON text allows none unescaped)",
+				         ch, i);
 				return PROTO_PARSE_ERROR;
 			}
 			if (in_str) {
@@ -274,9 +268,9 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 				if (esc && ch == 'u' && i + 4 < len &&
 				    memcmp(p + i + 1, "0000", 4) == 0) {
 					snprintf(why, why_size,
-						 "\\u0000 in a string at byte "
-						 "offset %zu is not supported",
-						 i - 1);
+					         "\\u0000 in a string at byte "
+					         "offset %zu is not supported",
+					         i - 1);
 					return PROTO_INVALID_REQUEST;
 				}
 				if (esc)
@@ -289,10 +283,11 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 				in_str = 1;
 			} else if (ch == '[' || ch == '{') {
 				if (++depth > max_depth) {
-					snprintf(why, why_size,
-						 "nesting deeper than %d levels "
-						 "at offset %zu",
-						 max_depth, i);
+					snprintf(
+					    why, why_size,
+					    "nesting deeper than %d levels "
+					    "at offset %zu",
+					    max_depth, i);
 					return PROTO_INVALID_REQUEST;
 				}
 			} else if (ch == ']' || ch == '}') {
@@ -359,7 +354,7 @@ static const char *find_duplicate_key(const cJSON *v)
 /* ---- one request -------------------------------------------------------- */
 
 static void run_method(proto_session *s, const proto_method *m,
-		       const cJSON *params, const cJSON *id, proto_buf *out)
+                       const cJSON *params, const cJSON *id, proto_buf *out)
 {
 	proto_call c;
 	cJSON *merged = (cJSON *)params;
@@ -378,14 +373,13 @@ static void run_method(proto_session *s, const proto_method *m,
 	proto_buf_append(out, ",\"result\":", 10);
 	if (params && !cJSON_IsObject(params)) {
 		proto_fail(&c, PROTO_INVALID_PARAMS, "params",
-			   "must be an object of named parameters");
-	} else if (!proto__units_apply(&c,
-				       cJSON_GetObjectItemCaseSensitive(
-					   params, "units"),
-				       "units", &c.units) &&
-		   !proto__session_merge(&c, params, &merged) &&
-		   (!m->params ||
-		    !proto_args_parse(&c, merged, "", m->params, &c.args))) {
+		           "must be an object of named parameters");
+	} else if (!proto__units_apply(
+	               &c, cJSON_GetObjectItemCaseSensitive(params, "units"),
+	               "units", &c.units) &&
+	           !proto__session_merge(&c, params, &merged) &&
+	           (!m->params ||
+	            !proto_args_parse(&c, merged, "", m->params, &c.args))) {
 		c.params = merged;
 		if (m->handler(&c) == 0 && !c.err_code && !out->oom) {
 			proto_buf_append(out, "}", 1);
@@ -406,15 +400,15 @@ static void run_method(proto_session *s, const proto_method *m,
 		out->limit = 0;
 		out->len = mark;
 		write_error(s->ctx, out, id, PROTO_INTERNAL_ERROR, NULL,
-			    "the response does not fit in memory or in the "
-			    "output limit; split the request");
+		            "the response does not fit in memory or in the "
+		            "output limit; split the request");
 		out->limit = limit;
 		return;
 	}
 	out->len = mark;
 	if (!c.err_code)
 		proto_fail(&c, PROTO_INTERNAL_ERROR, NULL,
-			   "method failed without a reason");
+		           "method failed without a reason");
 	write_error(s->ctx, out, id, c.err_code, c.err_param, c.err_reason);
 }
 
@@ -431,7 +425,7 @@ static void handle_one(proto_session *s, const cJSON *req, proto_buf *out)
 	if (!cJSON_IsObject(req)) {
 		proto__count_request(s->ctx, 0);
 		write_error(s->ctx, out, NULL, PROTO_INVALID_REQUEST, NULL,
-			    "a request must be a JSON object");
+		            "a request must be a JSON object");
 		return;
 	}
 	ver = cJSON_GetObjectItemCaseSensitive(req, "jsonrpc");
@@ -447,45 +441,46 @@ static void handle_one(proto_session *s, const cJSON *req, proto_buf *out)
 	proto__count_request(s->ctx, !has_id);
 	if (has_id && !id) {
 		write_error(s->ctx, out, NULL, PROTO_INVALID_REQUEST, "id",
-			    "must be a string, a number or null");
+		            "must be a string, a number or null");
 		return;
 	}
 	cJSON_ArrayForEach(m, req)
 	{
-		if (strcmp(m->string, "jsonrpc") && strcmp(m->string, "method") &&
+		if (strcmp(m->string, "jsonrpc") &&
+		    strcmp(m->string, "method") &&
 		    strcmp(m->string, "params") && strcmp(m->string, "id")) {
 			snprintf(why, sizeof why,
-				 "unknown member '%.64s'; a request has "
-				 "jsonrpc, method, params and id",
-				 m->string);
+			         "unknown member '%.64s'; a request has "
+			         "jsonrpc, method, params and id",
+			         m->string);
 			write_error(s->ctx, out, id, PROTO_INVALID_REQUEST,
-				    m->string, why);
+			            m->string, why);
 			return;
 		}
 	}
 	if (!cJSON_IsString(ver) || strcmp(ver->valuestring, "2.0") != 0) {
 		write_error(s->ctx, out, id, PROTO_INVALID_REQUEST, "jsonrpc",
-			    ver ? "must be exactly \"2.0\""
-				: "missing; must be \"2.0\"");
+		            ver ? "must be exactly \"2.0\""
+		                : "missing; must be \"2.0\"");
 		return;
 	}
 	if (!cJSON_IsString(method)) {
 		write_error(s->ctx, out, id, PROTO_INVALID_REQUEST, "method",
-			    method ? "must be a string" : "missing");
+		            method ? "must be a string" : "missing");
 		return;
 	}
 	if (params && !cJSON_IsObject(params) && !cJSON_IsArray(params)) {
 		write_error(s->ctx, out, id, PROTO_INVALID_REQUEST, "params",
-			    "must be an object or an array");
+		            "must be an object or an array");
 		return;
 	}
 	pm = proto_method_find(method->valuestring);
 	if (!pm) {
 		snprintf(why, sizeof why,
-			 "no method '%.100s'; rpc.discover lists them",
-			 method->valuestring);
+		         "no method '%.100s'; rpc.discover lists them",
+		         method->valuestring);
 		write_error(s->ctx, out, id, PROTO_METHOD_NOT_FOUND, "method",
-			    why);
+		            why);
 	} else {
 		run_method(s, pm, params, id, out);
 	}
@@ -494,7 +489,7 @@ static void handle_one(proto_session *s, const cJSON *req, proto_buf *out)
 }
 
 int rw_proto_handle(proto_session *s, const char *line, size_t len,
-		    proto_buf *out)
+                    proto_buf *out)
 {
 	proto_ctx *ctx = s->ctx;
 	const char *end = NULL;
@@ -511,7 +506,7 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 	if (i == len)
 		return 0; /* blank lines are ignored */
 	code = check_bytes((const unsigned char *)line, len,
-			   ctx->limits.max_depth, why, sizeof why);
+	                   ctx->limits.max_depth, why, sizeof why);
 	if (code) {
 		proto__count_request(ctx, 0);
 		proto_error_line(ctx, out, code, NULL, why);
@@ -528,8 +523,8 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 	}
 	if (!root) {
 		size_t off = end && end >= line ? (size_t)(end - line) : 0;
-		snprintf(why, sizeof why,
-			 "not valid JSON near byte offset %zu", off);
+		snprintf(why, sizeof why, "not valid JSON near byte offset %zu",
+		         off);
 		proto__count_request(ctx, 0);
 		proto_error_line(ctx, out, PROTO_PARSE_ERROR, NULL, why);
 		return out->oom ? -1 : 0;
@@ -537,8 +532,8 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 	const char *dup = find_duplicate_key(root);
 	if (dup) {
 		snprintf(why, sizeof why,
-			 "duplicate key '%.64s': each member may appear once",
-			 dup);
+		         "duplicate key '%.64s': each member may appear once",
+		         dup);
 		proto__count_request(ctx, 0);
 		proto_error_line(ctx, out, PROTO_INVALID_REQUEST, dup, why);
 		cJSON_Delete(root);
@@ -551,15 +546,15 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 		if (n == 0) {
 			proto__count_request(ctx, 0);
 			proto_error_line(ctx, out, PROTO_INVALID_REQUEST, NULL,
-					 "empty batch");
+			                 "empty batch");
 		} else if (ctx->limits.max_batch && n > ctx->limits.max_batch) {
 			snprintf(why, sizeof why,
-				 "batch of %zu requests exceeds the limit of "
-				 "%zu",
-				 n, ctx->limits.max_batch);
+			         "batch of %zu requests exceeds the limit of "
+			         "%zu",
+			         n, ctx->limits.max_batch);
 			proto__count_request(ctx, 0);
 			proto_error_line(ctx, out, PROTO_INVALID_REQUEST, NULL,
-					 why);
+			                 why);
 		} else {
 			proto_buf_append(out, "[", 1);
 			cJSON_ArrayForEach(e, root)

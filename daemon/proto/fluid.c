@@ -103,7 +103,7 @@ static int join_len(proto_call *c, struct proto_fluid_desc *d,
                     const proto_vec *v, const char *path)
 {
 	return proto_join_len(c, v, path, &d->n, &d->any_array, d->len_from,
-			      sizeof d->len_from);
+	                      sizeof d->len_from);
 }
 
 /* Parses a nested object with spec and copies member `name` (if any) to
@@ -397,7 +397,6 @@ static void eval_sample(const struct proto_fluid_desc *d, size_t i, double p,
 
 /* ---- the description shared with rock.substitute ---------------------- */
 
-
 /* Parses a fluid description object at `path` ("fluid."): either
  * {k, rho} (explicit, both required, k > 0 and rho > 0) or phases with
  * saturations and a mixing rule. NULL after proto_fail. */
@@ -574,8 +573,8 @@ static int properties(proto_call *c)
 			PROTO_W_MEMBER(c, "oil_b0", PK_NONE, s, fluid_sample,
 			               b0, n, arr);
 	}
-	PROTO_W_MEMBER(c, "mix_rho", PK_DENSITY, s, fluid_sample,
-	               mix.rho_kgm3, n, arr);
+	PROTO_W_MEMBER(c, "mix_rho", PK_DENSITY, s, fluid_sample, mix.rho_kgm3,
+	               n, arr);
 	PROTO_W_MEMBER(c, "mix_k", PK_MODULUS, s, fluid_sample, mix.k_pa, n,
 	               arr);
 	PROTO_W_MEMBER(c, "mix_v", PK_VELOCITY, s, fluid_sample, mix.v_ms, n,

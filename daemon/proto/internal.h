@@ -21,15 +21,15 @@
 #define PROTO_INVALID_PARAMS   -32602
 #define PROTO_INTERNAL_ERROR   -32603
 /* Application codes (-32000..-32099), documented in protocol-docs. */
-#define PROTO_SERVER_BUSY      -32000
-#define PROTO_LIMIT_EXCEEDED   -32001
+#define PROTO_SERVER_BUSY    -32000
+#define PROTO_LIMIT_EXCEEDED -32001
 
 /* ---- units -------------------------------------------------------------- */
 /* Quantity kinds. Internal (canonical) units are those the core expects:
  * m/s, s/m, kg/m^3, Pa, MPa (pressure), degC, m, kg/(m^2 s), weight
  * fraction (salinity), L/L (gas-oil ratio), radian. */
 typedef enum proto_kind {
-	PK_NONE = 0,      /* dimensionless: fractions, ratios, counts */
+	PK_NONE = 0, /* dimensionless: fractions, ratios, counts */
 	PK_VELOCITY,
 	PK_SLOWNESS,
 	PK_DENSITY,
@@ -41,8 +41,8 @@ typedef enum proto_kind {
 	PK_SALINITY,
 	PK_GOR,
 	PK_ANGLE,
-	PK_GRADIENT_P,    /* pressure per length (MPa/m internally) */
-	PK_GRADIENT_T,    /* temperature per length (degC/m internally) */
+	PK_GRADIENT_P, /* pressure per length (MPa/m internally) */
+	PK_GRADIENT_T, /* temperature per length (degC/m internally) */
 	PK_COUNT
 } proto_kind;
 
@@ -72,11 +72,11 @@ void proto_units_describe(struct proto_call *c);
  * 0-7 general and elastic, 8-15 fluids and rocks, 16-23 reflectivity,
  * 24-31 well logs. The classes say how serious a flag is. */
 typedef enum proto_qc_class {
-	QC_IMPOSSIBLE,   /* physically impossible: outputs are null */
-	QC_IMPLAUSIBLE,  /* possible, but implausible for sedimentary rock */
-	QC_PREDICTED,    /* a value was predicted, not measured */
-	QC_RANGE,        /* an input is outside a correlation's fitted range */
-	QC_INPUT         /* a note on the input: missing, corrected, ... */
+	QC_IMPOSSIBLE,  /* physically impossible: outputs are null */
+	QC_IMPLAUSIBLE, /* possible, but implausible for sedimentary rock */
+	QC_PREDICTED,   /* a value was predicted, not measured */
+	QC_RANGE,       /* an input is outside a correlation's fitted range */
+	QC_INPUT        /* a note on the input: missing, corrected, ... */
 } proto_qc_class;
 
 typedef struct proto_qc_info {
@@ -86,14 +86,14 @@ typedef struct proto_qc_info {
 	const char *meaning;
 } proto_qc_info;
 
-#define QC_INPUT_INVALID     (1u << 0)  /* non-finite / null / negative */
-#define QC_RHO_NONPOSITIVE   (1u << 1)
-#define QC_NU_IMPOSSIBLE     (1u << 2)  /* nu outside [-1, 0.5) */
-#define QC_MODULUS_NEGATIVE  (1u << 3)  /* K < 0 or mu <= 0 */
-#define QC_NU_NEGATIVE       (1u << 4)  /* implausible: nu < 0 */
-#define QC_RHO_RANGE         (1u << 5)  /* implausible density */
-#define QC_VP_RANGE          (1u << 6)  /* implausible vp */
-#define QC_VS_RANGE          (1u << 7)  /* implausible vs */
+#define QC_INPUT_INVALID    (1u << 0) /* non-finite / null / negative */
+#define QC_RHO_NONPOSITIVE  (1u << 1)
+#define QC_NU_IMPOSSIBLE    (1u << 2) /* nu outside [-1, 0.5) */
+#define QC_MODULUS_NEGATIVE (1u << 3) /* K < 0 or mu <= 0 */
+#define QC_NU_NEGATIVE      (1u << 4) /* implausible: nu < 0 */
+#define QC_RHO_RANGE        (1u << 5) /* implausible density */
+#define QC_VP_RANGE         (1u << 6) /* implausible vp */
+#define QC_VS_RANGE         (1u << 7) /* implausible vs */
 /* Fluids and Gassmann (8-15), fluid.c and rock.c. */
 #define QC_FLUID_CALIBRATION (1u << 8)  /* fluid input outside B&W fit */
 #define QC_FLUID_GOR_EXCESS  (1u << 9)  /* GOR above what oil dissolves */
@@ -102,21 +102,21 @@ typedef struct proto_qc_info {
 #define QC_GASSMANN_KDRY     (1u << 12) /* K_dry < 0 or > K_min: null */
 #define QC_GASSMANN_PHI_LOW  (1u << 13) /* porosity < 0.05: ill-posed */
 /* Reflectivity (16-23), reflect.c and thomsen.c. */
-#define QC_REFL_MEDIUM         (1u << 16) /* impossible medium: null */
-#define QC_REFL_POSTCRITICAL   (1u << 17) /* at/past P critical angle */
-#define QC_REFL_UNDEFINED      (1u << 18) /* an approximation has no value */
-#define QC_REFL_NO_CRIT_P      (1u << 19) /* no P critical angle: null */
-#define QC_REFL_NO_CRIT_S      (1u << 20) /* no S critical angle: null */
-#define QC_ANISO_UNSTABLE      (1u << 22) /* VTI medium not stable: null */
+#define QC_REFL_MEDIUM       (1u << 16) /* impossible medium: null */
+#define QC_REFL_POSTCRITICAL (1u << 17) /* at/past P critical angle */
+#define QC_REFL_UNDEFINED    (1u << 18) /* an approximation has no value */
+#define QC_REFL_NO_CRIT_P    (1u << 19) /* no P critical angle: null */
+#define QC_REFL_NO_CRIT_S    (1u << 20) /* no S critical angle: null */
+#define QC_ANISO_UNSTABLE    (1u << 22) /* VTI medium not stable: null */
 /* Well logs (log.process, rock.empirical), bits 24-31. */
-#define QC_DRHO_HIGH      (1u << 24) /* |drho| above drho_limit */
-#define QC_WASHOUT        (1u << 25) /* caliper - bit size > washout_limit */
-#define QC_VS_PREDICTED   (1u << 26) /* vs predicted, not measured */
-#define QC_RHO_PREDICTED  (1u << 27) /* density predicted, not measured */
-#define QC_LOG_MISSING    (1u << 28) /* an input curve is null here */
-#define QC_EMP_RANGE      (1u << 29) /* empirical relation extrapolated */
-#define QC_SUBST_FAILED   (1u << 30) /* substituted outputs null */
-#define QC_SUBST_CAUTION  (1u << 31) /* Gassmann or fluid-range caution */
+#define QC_DRHO_HIGH     (1u << 24) /* |drho| above drho_limit */
+#define QC_WASHOUT       (1u << 25) /* caliper - bit size > washout_limit */
+#define QC_VS_PREDICTED  (1u << 26) /* vs predicted, not measured */
+#define QC_RHO_PREDICTED (1u << 27) /* density predicted, not measured */
+#define QC_LOG_MISSING   (1u << 28) /* an input curve is null here */
+#define QC_EMP_RANGE     (1u << 29) /* empirical relation extrapolated */
+#define QC_SUBST_FAILED  (1u << 30) /* substituted outputs null */
+#define QC_SUBST_CAUTION (1u << 31) /* Gassmann or fluid-range caution */
 
 /* Plausibility ranges for sedimentary rock (internal units), shared by
  * the elastic and log families; overridable per request (`qc` object). */
@@ -129,12 +129,12 @@ struct proto_call;
 void proto_qc_ranges_default(proto_qc_ranges *r);
 /* Overrides r from a `qc` object (may be NULL); `path` like "qc.". */
 int proto_qc_ranges_parse(struct proto_call *c, const cJSON *obj,
-			  const char *path, proto_qc_ranges *r);
+                          const char *path, proto_qc_ranges *r);
 /* QC bits for a sample the core called impossible (RW_ELASTIC_BAD_*). */
 uint32_t proto_qc_impossible(unsigned why);
 /* QC bits for a possible sample outside the plausibility ranges. */
 uint32_t proto_qc_plausible(const proto_qc_ranges *r,
-			    const struct rw_elastic *e);
+                            const struct rw_elastic *e);
 
 /* The legend, terminated by an entry with name NULL. */
 extern const proto_qc_info proto_qc_legend[];
@@ -145,14 +145,14 @@ typedef struct proto_arena_block proto_arena_block;
 
 /* ---- parameters --------------------------------------------------------- */
 typedef enum proto_ptype {
-	PT_NUMS,     /* number or array of numbers (broadcast in a group) */
-	PT_NUM,      /* a single number */
-	PT_INT,      /* a single integer */
-	PT_STR,      /* a string */
-	PT_BOOL,     /* true or false */
-	PT_OBJ,      /* an object, parsed by the handler */
-	PT_ARR,      /* an array, parsed by the handler */
-	PT_ANY       /* any JSON value, checked by the handler */
+	PT_NUMS, /* number or array of numbers (broadcast in a group) */
+	PT_NUM,  /* a single number */
+	PT_INT,  /* a single integer */
+	PT_STR,  /* a string */
+	PT_BOOL, /* true or false */
+	PT_OBJ,  /* an object, parsed by the handler */
+	PT_ARR,  /* an array, parsed by the handler */
+	PT_ANY   /* any JSON value, checked by the handler */
 } proto_ptype;
 
 #define PP_REQUIRED 0x1u /* must be present */
@@ -189,11 +189,11 @@ static inline double proto_at(const proto_vec *x, size_t i)
 typedef struct proto_args {
 	const proto_param *spec;
 	size_t count;
-	const char *path;                 /* "" for params, "fluid." etc. */
+	const char *path; /* "" for params, "fluid." etc. */
 	const cJSON *item[PROTO_MAX_PARAMS];
 	proto_vec vec[PROTO_MAX_PARAMS];
-	size_t n[PROTO_MAX_GROUPS];       /* broadcast length per group */
-	int any_array[PROTO_MAX_GROUPS];  /* an array was given in group */
+	size_t n[PROTO_MAX_GROUPS];      /* broadcast length per group */
+	int any_array[PROTO_MAX_GROUPS]; /* an array was given in group */
 } proto_args;
 
 /* ---- the call ----------------------------------------------------------- */
@@ -208,17 +208,17 @@ typedef struct proto_call {
 	proto_ctx *ctx;
 	proto_session *session;
 	const proto_method *method;
-	const cJSON *params;       /* the params object (NULL when absent) */
-	proto_args args;           /* params checked against method->params */
-	proto_units units;         /* session units overridden by params */
-	proto_buf *out;            /* the result is written here */
+	const cJSON *params; /* the params object (NULL when absent) */
+	proto_args args;     /* params checked against method->params */
+	proto_units units;   /* session units overridden by params */
+	proto_buf *out;      /* the result is written here */
 	/* result writer state */
 	int depth;
 	int key_pending;
 	const char *pending_key;
 	unsigned char need_comma[32];
-	const char *keys[32];      /* key of each open object/array */
-	uint32_t kinds_used;       /* bit per proto_kind written */
+	const char *keys[32];        /* key of each open object/array */
+	uint32_t kinds_used;         /* bit per proto_kind written */
 	proto_unit_note *unit_notes; /* field path -> kind, for "units" */
 	size_t n_unit_notes, cap_unit_notes;
 	/* parameters taken from the session, not the request */
@@ -236,9 +236,9 @@ typedef int (*proto_handler)(proto_call *c);
 struct proto_method {
 	const char *name;
 	proto_handler handler;
-	const proto_param *params;   /* terminated by {NULL}; an empty list
-					takes no parameters; NULL means the
-					handler checks c->params itself */
+	const proto_param *params; /* terminated by {NULL}; an empty list
+	                              takes no parameters; NULL means the
+	                              handler checks c->params itself */
 	const char *summary;
 };
 
@@ -247,15 +247,14 @@ struct proto_method {
 struct proto_session {
 	proto_ctx *ctx;
 	proto_units units;
-	cJSON *defaults;     /* object of parameter defaults, or NULL */
+	cJSON *defaults; /* object of parameter defaults, or NULL */
 };
 
 /* Builds the parameters a method sees: the request's own, plus session
  * defaults for the method's parameters the request does not give. *merged
  * is params itself when nothing is inherited, else a new object of
  * references that the caller deletes. 0 or -1 after proto_fail. */
-int proto__session_merge(proto_call *c, const cJSON *params,
-			 cJSON **merged);
+int proto__session_merge(proto_call *c, const cJSON *params, cJSON **merged);
 
 /* Each family file defines its table, terminated by {NULL}. */
 extern const proto_method proto_session_methods[];
@@ -276,8 +275,8 @@ const proto_method *proto_method_at(size_t i);
 
 /* Records an error for the call and returns -1, for `return proto_fail()`.
  * `param` names the offending parameter (NULL when none). */
-int proto_fail(proto_call *c, int code, const char *param, const char *fmt,
-	       ...) __attribute__((format(printf, 4, 5)));
+int proto_fail(proto_call *c, int code, const char *param, const char *fmt, ...)
+    __attribute__((format(printf, 4, 5)));
 
 /* Per-call allocation, freed when the call ends. NULL when out of memory
  * (the call then fails with -32603). */
@@ -291,7 +290,7 @@ double *proto_alloc_doubles(proto_call *c, size_t n);
  * member names in errors ("" at the top, "fluid." for a nested object).
  * Returns 0 or -1 after proto_fail. */
 int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
-		     const proto_param *spec, proto_args *a);
+                     const proto_param *spec, proto_args *a);
 /* The vector / item of a spec member by name; the name must be in the spec
  * (an internal error otherwise). A missing member gives a vec with
  * present == 0 and n == 0. */
@@ -304,19 +303,19 @@ int proto_arg_inherited(const proto_call *c, const char *name);
 /* Helpers for optional scalars with defaults. */
 double proto_num_or(const proto_args *a, const char *name, double dflt);
 const char *proto_str_or(const proto_args *a, const char *name,
-			 const char *dflt);
+                         const char *dflt);
 int proto_bool_or(const proto_args *a, const char *name, int dflt);
 /* Chooses one of `names` (NULL-terminated) for a string member; returns the
  * index, the default index when absent, or -1 after proto_fail listing the
  * accepted values. */
 int proto_enum_of(proto_call *c, const proto_args *a, const char *name,
-		  const char *const *names, int dflt);
+                  const char *const *names, int dflt);
 /* Joins an array parameter checked outside proto_args_parse (members of
  * nested lists) into one broadcast length: the first array sets *n and
  * records its path in `from`; a later array of another length fails with
  * -32602 naming both. Scalars and absent vectors are left out. 0 or -1. */
 int proto_join_len(proto_call *c, const proto_vec *v, const char *path,
-		   size_t *n, int *any_array, char *from, size_t from_size);
+                   size_t *n, int *any_array, char *from, size_t from_size);
 /* Checks the request's sample count and work against the limits: samples
  * is the broadcast length, work the samples x other dimensions. */
 int proto_check_size(proto_call *c, size_t samples, size_t work);
@@ -345,19 +344,19 @@ void proto_w_json(proto_call *c, const char *key, const cJSON *v);
  * number. `stride` is the distance between elements in doubles (1 for a
  * plain array; more for interleaved double arrays). */
 void proto_w_vec(proto_call *c, const char *key, proto_kind k,
-		 const double *values, size_t n, size_t stride, int as_array);
+                 const double *values, size_t n, size_t stride, int as_array);
 /* The same for one double member of an array of n structs: `rows` is the
  * array, row_size its element size, offset the member's offsetof. Reads
  * through the bytes of the array, so no pointer walks past a member. */
 void proto_w_rows(proto_call *c, const char *key, proto_kind k,
-		  const void *rows, size_t row_size, size_t offset, size_t n,
-		  int as_array);
-#define PROTO_W_MEMBER(c, key, kind, rows, type, member, n, as_array)      \
-	proto_w_rows((c), (key), (kind), (rows), sizeof(type),               \
-		     offsetof(type, member), (n), (as_array))
+                  const void *rows, size_t row_size, size_t offset, size_t n,
+                  int as_array);
+#define PROTO_W_MEMBER(c, key, kind, rows, type, member, n, as_array)          \
+	proto_w_rows((c), (key), (kind), (rows), sizeof(type),                 \
+	             offsetof(type, member), (n), (as_array))
 /* Writes QC flags the same way. */
 void proto_w_flags(proto_call *c, const char *key, const uint32_t *flags,
-		   size_t n, int as_array);
+                   size_t n, int as_array);
 /* Writes the "units" member: for every field written so far with a
  * dimension, its dotted path ("vp", "fluid_new.k") and unit. Called by
  * the handler as the last member of its result object. */
@@ -376,7 +375,7 @@ void proto__count_error(proto_ctx *ctx, int code);
 void proto__write_counters(proto_call *c);
 /* Applies a `units` object onto u (errors name `path`). 0 or -1. */
 int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
-		       proto_units *u);
+                       proto_units *u);
 /* Frees the call's arena. */
 void proto__arena_free(proto_call *c);
 /* Appends s to b as a JSON string. */

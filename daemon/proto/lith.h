@@ -21,5 +21,4 @@ int proto__lith_parse(proto_call *c, const cJSON *v, const char *path,
  * any bit is set. */
 uint32_t proto__emp_qc(unsigned warn);
 
-
 #endif

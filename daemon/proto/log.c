@@ -86,36 +86,39 @@ typedef struct log_out {
 	    k_fl_in_place, rho_fl_in_place, k_fl_new, rho_fl_new;
 } log_out;
 
-#define COL(m, kind) {#m, kind, offsetof(log_out, m)}
+#define COL(m, kind)                                                           \
+	{                                                                      \
+#m, kind, offsetof(log_out, m)                                 \
+	}
 static const struct {
 	const char *name;
 	proto_kind kind;
 	size_t off;
 } out_cols[] = {
-	COL(vp, PK_VELOCITY),
-	COL(vs, PK_VELOCITY),
-	COL(rho, PK_DENSITY),
-	COL(k, PK_MODULUS),
-	COL(mu, PK_MODULUS),
-	COL(lambda, PK_MODULUS),
-	COL(e, PK_MODULUS),
-	COL(nu, PK_NONE),
-	COL(ai, PK_IMPEDANCE),
-	COL(si, PK_IMPEDANCE),
-	COL(vpvs, PK_NONE),
-	COL(vsh, PK_NONE),
-	COL(vp_sub, PK_VELOCITY),
-	COL(vs_sub, PK_VELOCITY),
-	COL(rho_sub, PK_DENSITY),
-	COL(k_sub, PK_MODULUS),
-	COL(ai_sub, PK_IMPEDANCE),
-	COL(si_sub, PK_IMPEDANCE),
-	COL(vpvs_sub, PK_NONE),
-	COL(nu_sub, PK_NONE),
-	COL(k_fl_in_place, PK_MODULUS),
-	COL(rho_fl_in_place, PK_DENSITY),
-	COL(k_fl_new, PK_MODULUS),
-	COL(rho_fl_new, PK_DENSITY),
+    COL(vp, PK_VELOCITY),
+    COL(vs, PK_VELOCITY),
+    COL(rho, PK_DENSITY),
+    COL(k, PK_MODULUS),
+    COL(mu, PK_MODULUS),
+    COL(lambda, PK_MODULUS),
+    COL(e, PK_MODULUS),
+    COL(nu, PK_NONE),
+    COL(ai, PK_IMPEDANCE),
+    COL(si, PK_IMPEDANCE),
+    COL(vpvs, PK_NONE),
+    COL(vsh, PK_NONE),
+    COL(vp_sub, PK_VELOCITY),
+    COL(vs_sub, PK_VELOCITY),
+    COL(rho_sub, PK_DENSITY),
+    COL(k_sub, PK_MODULUS),
+    COL(ai_sub, PK_IMPEDANCE),
+    COL(si_sub, PK_IMPEDANCE),
+    COL(vpvs_sub, PK_NONE),
+    COL(nu_sub, PK_NONE),
+    COL(k_fl_in_place, PK_MODULUS),
+    COL(rho_fl_in_place, PK_DENSITY),
+    COL(k_fl_new, PK_MODULUS),
+    COL(rho_fl_new, PK_DENSITY),
 };
 #undef COL
 #define N_ELASTIC_COLS 11 /* vp .. vpvs */
@@ -159,8 +162,9 @@ static void pt_at(const pt_src *s, size_t i, double *p, double *t)
 
 /* Parameters that only fluid descriptions at reservoir conditions use. */
 static const char *const pt_names[] = {
-	"pressure", "temperature", "pressure_gradient",
-	"temperature_gradient", "surface_pressure", "surface_temperature",
+    "pressure",          "temperature",
+    "pressure_gradient", "temperature_gradient",
+    "surface_pressure",  "surface_temperature",
 };
 
 /* A parameter given in the request that this request does not use is an
@@ -172,9 +176,9 @@ static int unused(proto_call *c, const char *name)
 	if (!proto_item_of(&c->args, name) || proto_arg_inherited(c, name))
 		return 0;
 	proto_fail(c, PROTO_INVALID_PARAMS, name,
-		   "not used by this request: it serves fluid substitution "
-		   "(fluid_in_place and fluid_new described by phases at "
-		   "reservoir conditions)");
+	           "not used by this request: it serves fluid substitution "
+	           "(fluid_in_place and fluid_new described by phases at "
+	           "reservoir conditions)");
 	return 1;
 }
 

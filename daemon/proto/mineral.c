@@ -65,7 +65,7 @@ static int join_len(proto_call *c, struct proto_mineral_desc *d,
                     const proto_vec *v, const char *path)
 {
 	return proto_join_len(c, v, path, &d->n, &d->any_array, d->len_from,
-			      sizeof d->len_from);
+	                      sizeof d->len_from);
 }
 
 /* Every element of v at least lo (or above lo when strict). */
@@ -259,7 +259,6 @@ static void load_sample(const struct proto_mineral_desc *d, size_t i)
 }
 
 /* ---- the description shared with rock.substitute ---------------------- */
-
 
 /* Parses the mineral of rock.substitute at `path` ("mineral"): a table
  * name, {k, rho} (k > 0, rho > 0; rho optional) or {constituents,

@@ -43,8 +43,7 @@ void proto__arena_free(proto_call *c)
 	}
 }
 
-int proto_fail(proto_call *c, int code, const char *param, const char *fmt,
-	       ...)
+int proto_fail(proto_call *c, int code, const char *param, const char *fmt, ...)
 {
 	va_list ap;
 
@@ -60,12 +59,18 @@ int proto_fail(proto_call *c, int code, const char *param, const char *fmt,
 
 static const char *type_name(const cJSON *v)
 {
-	if (cJSON_IsNumber(v)) return "a number";
-	if (cJSON_IsString(v)) return "a string";
-	if (cJSON_IsBool(v)) return "a boolean";
-	if (cJSON_IsNull(v)) return "null";
-	if (cJSON_IsArray(v)) return "an array";
-	if (cJSON_IsObject(v)) return "an object";
+	if (cJSON_IsNumber(v))
+		return "a number";
+	if (cJSON_IsString(v))
+		return "a string";
+	if (cJSON_IsBool(v))
+		return "a boolean";
+	if (cJSON_IsNull(v))
+		return "null";
+	if (cJSON_IsArray(v))
+		return "an array";
+	if (cJSON_IsObject(v))
+		return "an object";
 	return "an unknown value";
 }
 
@@ -85,7 +90,7 @@ static const char *want_name(proto_ptype t)
 
 /* Converts and checks one numeric member. */
 static int parse_nums(proto_call *c, const proto_param *p, const char *full,
-		      const cJSON *v, proto_vec *out)
+                      const cJSON *v, proto_vec *out)
 {
 	size_t n, i = 0;
 	double *buf;
@@ -96,23 +101,25 @@ static int parse_nums(proto_call *c, const proto_param *p, const char *full,
 	} else if (cJSON_IsArray(v) && p->type == PT_NUMS) {
 		n = (size_t)cJSON_GetArraySize(v);
 		if (n == 0)
-			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-					  "empty array: give at least one value");
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, full,
+			    "empty array: give at least one value");
 	} else {
 		return proto_fail(c, PROTO_INVALID_PARAMS, full,
-				  "must be %s, not %s", want_name(p->type),
-				  type_name(v));
+		                  "must be %s, not %s", want_name(p->type),
+		                  type_name(v));
 	}
 	buf = proto_alloc_doubles(c, n);
 	if (!buf)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, full,
-				  "out of memory for %zu values", n);
+		                  "out of memory for %zu values", n);
 	if (n == 1 && cJSON_IsNumber(v)) {
 		buf[0] = v->valuedouble;
 		if (!isfinite(buf[0]))
-			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-					  "number out of range: it does not fit "
-					  "in a double");
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, full,
+			    "number out of range: it does not fit "
+			    "in a double");
 		buf[0] = proto_to_internal(&c->units, p->kind, buf[0]);
 	} else {
 		cJSON_ArrayForEach(e, v)
@@ -125,7 +132,7 @@ static int parse_nums(proto_call *c, const proto_param *p, const char *full,
 					    "it does not fit in a double",
 					    i);
 				buf[i] = proto_to_internal(&c->units, p->kind,
-							   e->valuedouble);
+				                           e->valuedouble);
 			} else if (cJSON_IsNull(e) && (p->flags & PP_NULLS)) {
 				buf[i] = NAN;
 			} else {
@@ -151,7 +158,7 @@ static void accepted_names(const proto_param *spec, char *buf, size_t size)
 	buf[0] = '\0';
 	for (size_t i = 0; spec[i].name && used < size; i++) {
 		int n = snprintf(buf + used, size - used, "%s%s", i ? ", " : "",
-				 spec[i].name);
+		                 spec[i].name);
 		if (n < 0)
 			break;
 		used += (size_t)n;
@@ -159,7 +166,7 @@ static void accepted_names(const proto_param *spec, char *buf, size_t size)
 }
 
 int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
-		     const proto_param *spec, proto_args *a)
+                     const proto_param *spec, proto_args *a)
 {
 	static const proto_param none[] = {{NULL, PT_ANY, PK_NONE, 0, 0}};
 	char full[160], list[512];
@@ -173,16 +180,16 @@ int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
 		count++;
 	if (count > PROTO_MAX_PARAMS)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, path,
-				  "parameter spec too long");
+		                  "parameter spec too long");
 	a->spec = spec;
 	a->count = count;
 	a->path = path;
 	if (obj && !cJSON_IsObject(obj))
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-				  *path ? path : "params",
-				  "must be an object of named parameters, not "
-				  "%s",
-				  type_name(obj));
+		                  *path ? path : "params",
+		                  "must be an object of named parameters, not "
+		                  "%s",
+		                  type_name(obj));
 	if (obj) {
 		cJSON_ArrayForEach(m, obj)
 		{
@@ -197,10 +204,11 @@ int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
 				if (!*path && strcmp(m->string, "units") == 0)
 					continue;
 				accepted_names(spec, list, sizeof list);
-				return proto_fail(c, PROTO_INVALID_PARAMS, full,
-						  "unknown parameter; accepted: "
-						  "%s",
-						  count ? list : "none");
+				return proto_fail(
+				    c, PROTO_INVALID_PARAMS, full,
+				    "unknown parameter; accepted: "
+				    "%s",
+				    count ? list : "none");
 			}
 			a->item[i] = m;
 		}
@@ -211,8 +219,9 @@ int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
 		snprintf(full, sizeof full, "%s%s", path, p->name);
 		if (!v) {
 			if (p->flags & PP_REQUIRED)
-				return proto_fail(c, PROTO_INVALID_PARAMS, full,
-						  "required parameter is missing");
+				return proto_fail(
+				    c, PROTO_INVALID_PARAMS, full,
+				    "required parameter is missing");
 			continue;
 		}
 		switch (p->type) {
@@ -226,11 +235,11 @@ int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
 			    v->valuedouble != floor(v->valuedouble) ||
 			    fabs(v->valuedouble) > 9007199254740992.0)
 				return proto_fail(c, PROTO_INVALID_PARAMS, full,
-						  "must be an integer, not %s",
-						  cJSON_IsNumber(v)
-						      ? "a fractional or huge "
-							"number"
-						      : type_name(v));
+				                  "must be an integer, not %s",
+				                  cJSON_IsNumber(v)
+				                      ? "a fractional or huge "
+				                        "number"
+				                      : type_name(v));
 			break;
 		case PT_STR:
 			if (!cJSON_IsString(v))
@@ -248,14 +257,13 @@ int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
 			if (!cJSON_IsArray(v))
 				goto wrong;
 			break;
-		case PT_ANY:
-			break;
+		case PT_ANY: break;
 		}
 		continue;
 	wrong:
 		return proto_fail(c, PROTO_INVALID_PARAMS, full,
-				  "must be %s, not %s", want_name(p->type),
-				  type_name(v));
+		                  "must be %s, not %s", want_name(p->type),
+		                  type_name(v));
 	}
 	/* Broadcast lengths per group: arrays must agree, scalars follow. */
 	for (int g = 0; g < PROTO_MAX_GROUPS; g++)
@@ -267,7 +275,7 @@ int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
 			continue;
 		if (g < 0 || g >= PROTO_MAX_GROUPS)
 			return proto_fail(c, PROTO_INTERNAL_ERROR, spec[i].name,
-					  "bad broadcast group");
+			                  "bad broadcast group");
 		if (a->any_array[g] && x->n != a->n[g]) {
 			size_t j;
 			for (j = 0; j < i; j++)
@@ -275,9 +283,9 @@ int proto_args_parse(proto_call *c, const cJSON *obj, const char *path,
 					break;
 			snprintf(full, sizeof full, "%s%s", path, spec[i].name);
 			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-					  "array length %zu does not match "
-					  "length %zu of '%s%s'",
-					  x->n, a->n[g], path, spec[j].name);
+			                  "array length %zu does not match "
+			                  "length %zu of '%s%s'",
+			                  x->n, a->n[g], path, spec[j].name);
 		}
 		a->any_array[g] = 1;
 		a->n[g] = x->n;
@@ -315,7 +323,7 @@ double proto_num_or(const proto_args *a, const char *name, double dflt)
 }
 
 const char *proto_str_or(const proto_args *a, const char *name,
-			 const char *dflt)
+                         const char *dflt)
 {
 	const cJSON *v = proto_item_of(a, name);
 	return cJSON_IsString(v) ? v->valuestring : dflt;
@@ -328,7 +336,7 @@ int proto_bool_or(const proto_args *a, const char *name, int dflt)
 }
 
 int proto_enum_of(proto_call *c, const proto_args *a, const char *name,
-		  const char *const *names, int dflt)
+                  const char *const *names, int dflt)
 {
 	const char *s = proto_str_or(a, name, NULL);
 	char list[512], full[160];
@@ -342,27 +350,27 @@ int proto_enum_of(proto_call *c, const proto_args *a, const char *name,
 	list[0] = '\0';
 	for (int i = 0; names[i] && used < sizeof list; i++) {
 		int n = snprintf(list + used, sizeof list - used, "%s%s",
-				 i ? ", " : "", names[i]);
+		                 i ? ", " : "", names[i]);
 		if (n < 0)
 			break;
 		used += (size_t)n;
 	}
 	snprintf(full, sizeof full, "%s%s", a->path, name);
 	proto_fail(c, PROTO_INVALID_PARAMS, full,
-		   "unknown value '%s'; accepted: %s", s, list);
+	           "unknown value '%s'; accepted: %s", s, list);
 	return -1;
 }
 
 int proto_join_len(proto_call *c, const proto_vec *v, const char *path,
-		   size_t *n, int *any_array, char *from, size_t from_size)
+                   size_t *n, int *any_array, char *from, size_t from_size)
 {
 	if (!v->present || !v->is_array)
 		return 0;
 	if (*any_array && v->n != *n)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "array length %zu does not match length %zu "
-				  "of '%s'",
-				  v->n, *n, from);
+		                  "array length %zu does not match length %zu "
+		                  "of '%s'",
+		                  v->n, *n, from);
 	if (!*any_array) {
 		*any_array = 1;
 		*n = v->n;
@@ -377,14 +385,14 @@ int proto_check_size(proto_call *c, size_t samples, size_t work)
 
 	if (lim->max_samples && samples > lim->max_samples)
 		return proto_fail(c, PROTO_LIMIT_EXCEEDED, NULL,
-				  "%zu samples exceed the limit of %zu per "
-				  "request; split the request",
-				  samples, lim->max_samples);
+		                  "%zu samples exceed the limit of %zu per "
+		                  "request; split the request",
+		                  samples, lim->max_samples);
 	if (lim->max_work && work > lim->max_work)
 		return proto_fail(c, PROTO_LIMIT_EXCEEDED, NULL,
-				  "%zu evaluations (samples x angles) exceed "
-				  "the limit of %zu per request; split the "
-				  "request",
-				  work, lim->max_work);
+		                  "%zu evaluations (samples x angles) exceed "
+		                  "the limit of %zu per request; split the "
+		                  "request",
+		                  work, lim->max_work);
 	return 0;
 }

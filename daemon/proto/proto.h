@@ -35,8 +35,8 @@ typedef struct proto_limits {
 	size_t max_conns;       /* concurrent connections */
 	size_t out_high_water;  /* unsent bytes per connection: stop reading */
 	size_t out_hard_limit;  /* unsent bytes per connection past which a
-				   client that stops taking bytes for
-				   stall_timeout_s is closed */
+	                           client that stops taking bytes for
+	                           stall_timeout_s is closed */
 	size_t global_budget;   /* buffered bytes over all connections */
 	double idle_timeout_s;  /* 0 = off */
 	double stall_timeout_s; /* slow-reader rule window */
@@ -58,7 +58,7 @@ typedef struct proto_server_stats {
 	uint64_t bytes_in, bytes_out;
 	uint64_t buffered_bytes;
 	uint64_t reads_paused;
-	const char *transport;      /* "stdio", "unix:PATH", ... */
+	const char *transport; /* "stdio", "unix:PATH", ... */
 } proto_server_stats;
 
 typedef struct proto_ctx proto_ctx;
@@ -84,13 +84,13 @@ void proto_session_free(proto_session *s);
  * call from a worker thread as long as one session is used by one thread
  * at a time. */
 int rw_proto_handle(proto_session *s, const char *line, size_t len,
-		    proto_buf *out);
+                    proto_buf *out);
 
 /* Appends an error response with id null: used by the server for lines it
  * refuses before parsing (too long). `param` and `reason` go into
  * error.data; either may be NULL. Counts the error. */
 void proto_error_line(proto_ctx *ctx, proto_buf *out, int code,
-		      const char *param, const char *reason);
+                      const char *param, const char *reason);
 
 /* The published caution text (also in README and service.info). */
 extern const char proto_caution[];

@@ -4,106 +4,106 @@
 #include "proto/internal.h"
 
 const proto_qc_info proto_qc_legend[] = {
-	{QC_INPUT_INVALID, "input_invalid", QC_IMPOSSIBLE,
-	 "an input of the sample is missing, not finite, or has no meaning "
-	 "(e.g. a negative velocity or slowness, or a pair with no real "
-	 "solution); outputs are null"},
-	{QC_RHO_NONPOSITIVE, "density_nonpositive", QC_IMPOSSIBLE,
-	 "density <= 0; outputs are null"},
-	{QC_NU_IMPOSSIBLE, "poisson_impossible", QC_IMPOSSIBLE,
-	 "Poisson's ratio outside [-1, 0.5) (equivalently K < 0 or mu <= 0); "
-	 "outputs are null"},
-	{QC_MODULUS_NEGATIVE, "modulus_negative", QC_IMPOSSIBLE,
-	 "a bulk modulus < 0 or a shear modulus <= 0; outputs are null"},
-	{QC_NU_NEGATIVE, "poisson_negative", QC_IMPLAUSIBLE,
-	 "Poisson's ratio < 0: possible for a solid, implausible for "
-	 "sedimentary rock (the usual 0 to 0.5 check, common practice)"},
-	{QC_RHO_RANGE, "density_implausible", QC_IMPLAUSIBLE,
-	 "density outside the plausibility range (default 1.0-3.2 g/cm3, "
-	 "common practice; params qc.rho_min, qc.rho_max)"},
-	{QC_VP_RANGE, "vp_implausible", QC_IMPLAUSIBLE,
-	 "vp outside the plausibility range (default 1200-7500 m/s, common "
-	 "practice; params qc.vp_min, qc.vp_max)"},
-	{QC_VS_RANGE, "vs_implausible", QC_IMPLAUSIBLE,
-	 "vs outside the plausibility range (default 0-4500 m/s, common "
-	 "practice; params qc.vs_min, qc.vs_max)"},
-	{QC_REFL_MEDIUM, "medium_impossible", QC_IMPOSSIBLE,
-	 "a medium of the interface or sample is impossible (vp <= 0, "
-	 "rho <= 0, vs < 0, 3 vp^2 <= 4 vs^2, or a VTI medium the Thomsen "
-	 "checks refuse); its reflectivity outputs are null"},
-	{QC_REFL_POSTCRITICAL, "postcritical", QC_RANGE,
-	 "incidence at or past the P critical angle (and so past any S "
-	 "one): the exact coefficients are complex (their _im and _phase "
-	 "members), the linearised forms are not valid there and are null"},
-	{QC_REFL_UNDEFINED, "approximation_undefined", QC_RANGE,
-	 "a requested formula has no value for this sample although the "
-	 "media are possible (90 deg incidence, gray_lmr with a mean lambda "
-	 "of 0, EI of a fluid at a non-zero angle, overflow); that value is "
-	 "null, the others are given"},
-	{QC_REFL_NO_CRIT_P, "no_critical_p", QC_INPUT,
-	 "vp of the lower medium is not above vp of the upper: there is no P "
-	 "critical angle and critical_p is null"},
-	{QC_REFL_NO_CRIT_S, "no_critical_s", QC_INPUT,
-	 "vs of the lower medium is not above vp of the upper (or it is a "
-	 "fluid): there is no S critical angle and critical_s is null"},
-	{QC_ANISO_UNSTABLE, "stiffness_unstable", QC_IMPOSSIBLE,
-	 "the VTI stiffness is not positive definite, C33 <= C44, vs0 is "
-	 "not in (0, vp0), delta admits no real C13, or a fluid (vs0 = 0) is "
-	 "given anisotropy; outputs are null"},
-	{QC_DRHO_HIGH, "density_correction_high", QC_INPUT,
-	 "|drho| above drho_limit (default 0.05 g/cm3, the strict end of "
-	 "the 0.05-0.10 g/cm3 common practice): the density log is doubtful "
-	 "(replaced by a prediction only with rho_replace_bad)"},
-	{QC_WASHOUT, "washout", QC_INPUT,
-	 "caliper exceeds bit size by more than washout_limit (default "
-	 "1 in = 0.0254 m, common practice): pad and sonic readings are "
-	 "doubtful"},
-	{QC_VS_PREDICTED, "vs_predicted", QC_PREDICTED,
-	 "vs was predicted from vp (vs_predicted_by in the result names the "
-	 "relation), not measured"},
-	{QC_RHO_PREDICTED, "density_predicted", QC_PREDICTED,
-	 "density was predicted from vp (rho_predicted_by names the "
-	 "relation), not measured"},
-	{QC_LOG_MISSING, "input_missing", QC_INPUT,
-	 "an input curve is null (missing) at this sample; outputs that need "
-	 "it are null unless predicted"},
-	{QC_EMP_RANGE, "empirical_extrapolated", QC_RANGE,
-	 "an empirical relation was used outside the range it was fitted on "
-	 "(protocol-docs/logs.md lists the ranges)"},
-	{QC_SUBST_FAILED, "substitution_failed", QC_IMPOSSIBLE,
-	 "Gassmann substitution impossible at this sample (missing or "
-	 "unphysical input, fluid outside the correlations' domain); "
-	 "substituted outputs are null"},
-	{QC_SUBST_CAUTION, "substitution_caution", QC_RANGE,
-	 "substitution computed with a caution: dry-frame K < 0 or above "
-	 "the mineral's, porosity below 0.05, or a fluid property outside "
-	 "its fitted range"},
-	{QC_FLUID_CALIBRATION, "fluid_outside_calibration", QC_RANGE,
-	 "a pore-fluid input (pressure, temperature, salinity, gas gravity, "
-	 "oil API, gas pseudo-reduced p or T) is outside the range Batzle & "
-	 "Wang 1992 fitted; the value is extrapolated (ranges in "
-	 "fluids.md)"},
-	{QC_FLUID_GOR_EXCESS, "gor_above_saturation", QC_IMPLAUSIBLE,
-	 "the oil's GOR exceeds the gas it can dissolve at this pressure "
-	 "and temperature (Batzle & Wang 1992 eq. 21): free gas would be "
-	 "present, so a single live-oil phase is not the real state"},
-	{QC_FLUID_BOILING, "water_boiling", QC_IMPLAUSIBLE,
-	 "pressure below the boiling pressure of pure water at this "
-	 "temperature (IAPWS-IF97 eq. 30): the brine would be vapour; the "
-	 "liquid correlation is extrapolated"},
-	{QC_FLUID_FAILED, "fluid_unphysical", QC_IMPOSSIBLE,
-	 "a fluid correlation gives no physical value here (non-positive "
-	 "density or velocity far outside its fit); outputs that need it "
-	 "are null"},
-	{QC_GASSMANN_KDRY, "dry_frame_impossible", QC_IMPOSSIBLE,
-	 "Gassmann's dry-frame bulk modulus is below 0 or above the "
-	 "mineral's: the logs, porosity, mineral and fluid are inconsistent; "
-	 "k_dry is reported, the substituted rock is null"},
-	{QC_GASSMANN_PHI_LOW, "porosity_low_gassmann", QC_RANGE,
-	 "porosity below 0.05: Gassmann's substitution is ill-conditioned "
-	 "(errors in the mineral modulus and logs are amplified roughly as "
-	 "1/porosity; common practice)"},
-	{0, NULL, QC_INPUT, NULL},
+    {QC_INPUT_INVALID, "input_invalid", QC_IMPOSSIBLE,
+     "an input of the sample is missing, not finite, or has no meaning "
+     "(e.g. a negative velocity or slowness, or a pair with no real "
+     "solution); outputs are null"},
+    {QC_RHO_NONPOSITIVE, "density_nonpositive", QC_IMPOSSIBLE,
+     "density <= 0; outputs are null"},
+    {QC_NU_IMPOSSIBLE, "poisson_impossible", QC_IMPOSSIBLE,
+     "Poisson's ratio outside [-1, 0.5) (equivalently K < 0 or mu <= 0); "
+     "outputs are null"},
+    {QC_MODULUS_NEGATIVE, "modulus_negative", QC_IMPOSSIBLE,
+     "a bulk modulus < 0 or a shear modulus <= 0; outputs are null"},
+    {QC_NU_NEGATIVE, "poisson_negative", QC_IMPLAUSIBLE,
+     "Poisson's ratio < 0: possible for a solid, implausible for "
+     "sedimentary rock (the usual 0 to 0.5 check, common practice)"},
+    {QC_RHO_RANGE, "density_implausible", QC_IMPLAUSIBLE,
+     "density outside the plausibility range (default 1.0-3.2 g/cm3, "
+     "common practice; params qc.rho_min, qc.rho_max)"},
+    {QC_VP_RANGE, "vp_implausible", QC_IMPLAUSIBLE,
+     "vp outside the plausibility range (default 1200-7500 m/s, common "
+     "practice; params qc.vp_min, qc.vp_max)"},
+    {QC_VS_RANGE, "vs_implausible", QC_IMPLAUSIBLE,
+     "vs outside the plausibility range (default 0-4500 m/s, common "
+     "practice; params qc.vs_min, qc.vs_max)"},
+    {QC_REFL_MEDIUM, "medium_impossible", QC_IMPOSSIBLE,
+     "a medium of the interface or sample is impossible (vp <= 0, "
+     "rho <= 0, vs < 0, 3 vp^2 <= 4 vs^2, or a VTI medium the Thomsen "
+     "checks refuse); its reflectivity outputs are null"},
+    {QC_REFL_POSTCRITICAL, "postcritical", QC_RANGE,
+     "incidence at or past the P critical angle (and so past any S "
+     "one): the exact coefficients are complex (their _im and _phase "
+     "members), the linearised forms are not valid there and are null"},
+    {QC_REFL_UNDEFINED, "approximation_undefined", QC_RANGE,
+     "a requested formula has no value for this sample although the "
+     "media are possible (90 deg incidence, gray_lmr with a mean lambda "
+     "of 0, EI of a fluid at a non-zero angle, overflow); that value is "
+     "null, the others are given"},
+    {QC_REFL_NO_CRIT_P, "no_critical_p", QC_INPUT,
+     "vp of the lower medium is not above vp of the upper: there is no P "
+     "critical angle and critical_p is null"},
+    {QC_REFL_NO_CRIT_S, "no_critical_s", QC_INPUT,
+     "vs of the lower medium is not above vp of the upper (or it is a "
+     "fluid): there is no S critical angle and critical_s is null"},
+    {QC_ANISO_UNSTABLE, "stiffness_unstable", QC_IMPOSSIBLE,
+     "the VTI stiffness is not positive definite, C33 <= C44, vs0 is "
+     "not in (0, vp0), delta admits no real C13, or a fluid (vs0 = 0) is "
+     "given anisotropy; outputs are null"},
+    {QC_DRHO_HIGH, "density_correction_high", QC_INPUT,
+     "|drho| above drho_limit (default 0.05 g/cm3, the strict end of "
+     "the 0.05-0.10 g/cm3 common practice): the density log is doubtful "
+     "(replaced by a prediction only with rho_replace_bad)"},
+    {QC_WASHOUT, "washout", QC_INPUT,
+     "caliper exceeds bit size by more than washout_limit (default "
+     "1 in = 0.0254 m, common practice): pad and sonic readings are "
+     "doubtful"},
+    {QC_VS_PREDICTED, "vs_predicted", QC_PREDICTED,
+     "vs was predicted from vp (vs_predicted_by in the result names the "
+     "relation), not measured"},
+    {QC_RHO_PREDICTED, "density_predicted", QC_PREDICTED,
+     "density was predicted from vp (rho_predicted_by names the "
+     "relation), not measured"},
+    {QC_LOG_MISSING, "input_missing", QC_INPUT,
+     "an input curve is null (missing) at this sample; outputs that need "
+     "it are null unless predicted"},
+    {QC_EMP_RANGE, "empirical_extrapolated", QC_RANGE,
+     "an empirical relation was used outside the range it was fitted on "
+     "(protocol-docs/logs.md lists the ranges)"},
+    {QC_SUBST_FAILED, "substitution_failed", QC_IMPOSSIBLE,
+     "Gassmann substitution impossible at this sample (missing or "
+     "unphysical input, fluid outside the correlations' domain); "
+     "substituted outputs are null"},
+    {QC_SUBST_CAUTION, "substitution_caution", QC_RANGE,
+     "substitution computed with a caution: dry-frame K < 0 or above "
+     "the mineral's, porosity below 0.05, or a fluid property outside "
+     "its fitted range"},
+    {QC_FLUID_CALIBRATION, "fluid_outside_calibration", QC_RANGE,
+     "a pore-fluid input (pressure, temperature, salinity, gas gravity, "
+     "oil API, gas pseudo-reduced p or T) is outside the range Batzle & "
+     "Wang 1992 fitted; the value is extrapolated (ranges in "
+     "fluids.md)"},
+    {QC_FLUID_GOR_EXCESS, "gor_above_saturation", QC_IMPLAUSIBLE,
+     "the oil's GOR exceeds the gas it can dissolve at this pressure "
+     "and temperature (Batzle & Wang 1992 eq. 21): free gas would be "
+     "present, so a single live-oil phase is not the real state"},
+    {QC_FLUID_BOILING, "water_boiling", QC_IMPLAUSIBLE,
+     "pressure below the boiling pressure of pure water at this "
+     "temperature (IAPWS-IF97 eq. 30): the brine would be vapour; the "
+     "liquid correlation is extrapolated"},
+    {QC_FLUID_FAILED, "fluid_unphysical", QC_IMPOSSIBLE,
+     "a fluid correlation gives no physical value here (non-positive "
+     "density or velocity far outside its fit); outputs that need it "
+     "are null"},
+    {QC_GASSMANN_KDRY, "dry_frame_impossible", QC_IMPOSSIBLE,
+     "Gassmann's dry-frame bulk modulus is below 0 or above the "
+     "mineral's: the logs, porosity, mineral and fluid are inconsistent; "
+     "k_dry is reported, the substituted rock is null"},
+    {QC_GASSMANN_PHI_LOW, "porosity_low_gassmann", QC_RANGE,
+     "porosity below 0.05: Gassmann's substitution is ill-conditioned "
+     "(errors in the mineral modulus and logs are amplified roughly as "
+     "1/porosity; common practice)"},
+    {0, NULL, QC_INPUT, NULL},
 };
 
 const char *proto_qc_class_name(proto_qc_class c)

@@ -15,7 +15,6 @@
 #include "rockwire/rock.h"
 #include "rockwire/status.h"
 
-
 #define NUMS(name, kind, fl)                                                   \
 	{                                                                      \
 		name, PT_NUMS, kind, (fl) | PP_NULLS, 0                        \
@@ -255,8 +254,8 @@ static int substitute(proto_call *c)
 		                  "required for a dry frame: the rock density "
 		                  "is (1 - phi) rho_min + phi rho_fluid");
 	if (logs) {
-		fo = proto__fluid_desc_parse(c, proto_item_of(a, "fluid_in_place"),
-		                             "fluid_in_place.");
+		fo = proto__fluid_desc_parse(
+		    c, proto_item_of(a, "fluid_in_place"), "fluid_in_place.");
 		if (!fo)
 			return -1;
 	}
@@ -348,8 +347,8 @@ static int substitute(proto_call *c)
 		rw_elastic e;
 		if (isfinite(x->r.vp_ms) &&
 		    rw_elastic_from_velocities(x->r.vp_ms, x->r.vs_ms,
-					       x->r.rho_kgm3, &e,
-					       NULL) == RW_OK)
+		                               x->r.rho_kgm3, &e,
+		                               NULL) == RW_OK)
 			qc[i] |= proto_qc_plausible(&ranges, &e);
 	}
 	proto_w_obj_begin(c, NULL);

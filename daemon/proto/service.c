@@ -13,10 +13,10 @@ extern const char rw_openrpc_doc[];
 extern const size_t rw_openrpc_doc_len;
 
 const char proto_caution[] =
-	"rockwire gives screening estimates from published rock-physics "
-	"relations. They are not a substitute for qualified review, local "
-	"regulations and licensed practice, and must never be the sole basis "
-	"for well-control or other drilling and completion decisions.";
+    "rockwire gives screening estimates from published rock-physics "
+    "relations. They are not a substitute for qualified review, local "
+    "regulations and licensed practice, and must never be the sole basis "
+    "for well-control or other drilling and completion decisions.";
 
 static int discover(proto_call *c)
 {
@@ -56,7 +56,7 @@ static void write_limits(proto_call *c)
 	proto_w_int(c, "output_high_water_bytes", (long long)l->out_high_water);
 	proto_w_int(c, "output_hard_limit_bytes", (long long)l->out_hard_limit);
 	proto_w_int(c, "global_buffer_budget_bytes",
-		    (long long)l->global_budget);
+	            (long long)l->global_budget);
 	proto_w_num(c, "idle_timeout_s", PK_NONE, l->idle_timeout_s);
 	proto_w_num(c, "stall_timeout_s", PK_NONE, l->stall_timeout_s);
 	proto_w_num(c, "drain_timeout_s", PK_NONE, l->drain_timeout_s);
@@ -71,8 +71,7 @@ static int info(proto_call *c)
 	proto_w_str(c, "name", "rockwire");
 	proto_w_str(c, "version", RW_VERSION);
 	proto_w_str(c, "protocol", "JSON-RPC 2.0, one JSON value per line");
-	proto_w_str(c, "transport",
-		    proto_ctx_server_stats(c->ctx)->transport);
+	proto_w_str(c, "transport", proto_ctx_server_stats(c->ctx)->transport);
 	proto_w_str(c, "caution", proto_caution);
 	write_limits(c);
 	proto_units_describe(c);
@@ -98,9 +97,9 @@ static int info(proto_call *c)
 static const proto_param no_params[] = {{NULL, PT_ANY, PK_NONE, 0, 0}};
 
 const proto_method proto_service_methods[] = {
-	{"rpc.discover", discover, no_params,
-	 "The OpenRPC document describing every method."},
-	{"service.info", info, no_params,
-	 "Version, limits, units, QC legend, counters and the caution."},
-	{NULL, NULL, NULL, NULL},
+    {"rpc.discover", discover, no_params,
+     "The OpenRPC document describing every method."},
+    {"service.info", info, no_params,
+     "Version, limits, units, QC legend, counters and the caution."},
+    {NULL, NULL, NULL, NULL},
 };

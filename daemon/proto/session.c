@@ -21,8 +21,7 @@ static const proto_param *spec_entry(const char *name)
 	return NULL;
 }
 
-static const proto_param *method_entry(const proto_method *m,
-				       const char *name)
+static const proto_param *method_entry(const proto_method *m, const char *name)
 {
 	if (!m->params)
 		return NULL;
@@ -37,9 +36,7 @@ static int has_number(const cJSON *v)
 	const cJSON *e;
 	if (cJSON_IsNumber(v))
 		return 1;
-	cJSON_ArrayForEach(e, v)
-		if (has_number(e))
-			return 1;
+	cJSON_ArrayForEach(e, v) if (has_number(e)) return 1;
 	return 0;
 }
 
@@ -48,12 +45,11 @@ static int has_number(const cJSON *v)
  * with no number never do; a top-level number depends on its own kind
  * only; numbers inside objects are assumed to depend on any kind. */
 static int units_matter(const proto_param *p, const cJSON *v,
-			const proto_units *a, const proto_units *b)
+                        const proto_units *a, const proto_units *b)
 {
 	if (!has_number(v))
 		return 0;
-	if (p && (p->type == PT_NUMS || p->type == PT_NUM ||
-		  p->type == PT_INT))
+	if (p && (p->type == PT_NUMS || p->type == PT_NUM || p->type == PT_INT))
 		return p->kind != PK_NONE && a->sel[p->kind] != b->sel[p->kind];
 	return memcmp(a, b, sizeof *a) != 0;
 }
@@ -77,21 +73,21 @@ int proto__session_merge(proto_call *c, const cJSON *params, cJSON **merged)
 		if (units_matter(p, d, &s->units, &c->units)) {
 			cJSON_Delete(tmp);
 			return proto_fail(c, PROTO_INVALID_PARAMS, "units",
-					  "the session default '%s' was set in "
-					  "the session's units, which this "
-					  "request's units would change; give "
-					  "%s in the request, or change units "
-					  "with session.set",
-					  d->string, d->string);
+			                  "the session default '%s' was set in "
+			                  "the session's units, which this "
+			                  "request's units would change; give "
+			                  "%s in the request, or change units "
+			                  "with session.set",
+			                  d->string, d->string);
 		}
 		if (!tmp) {
 			tmp = cJSON_CreateObject();
 			if (!tmp)
 				return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-						  "out of memory");
+				                  "out of memory");
 			cJSON_ArrayForEach(m, params)
-				cJSON_AddItemReferenceToObject(tmp, m->string,
-							       (cJSON *)m);
+			    cJSON_AddItemReferenceToObject(tmp, m->string,
+			                                   (cJSON *)m);
 		}
 		cJSON_AddItemReferenceToObject(tmp, d->string, (cJSON *)d);
 		if (c->n_inherited < PROTO_MAX_PARAMS)
@@ -118,11 +114,10 @@ static int set(proto_call *c)
 
 	if (!c->params || !c->params->child)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "params",
-				  "give at least one default to set");
-	if (proto__units_apply(c,
-			       cJSON_GetObjectItemCaseSensitive(c->params,
-								"units"),
-			       "units", &units))
+		                  "give at least one default to set");
+	if (proto__units_apply(
+	        c, cJSON_GetObjectItemCaseSensitive(c->params, "units"),
+	        "units", &units))
 		return -1;
 	/* Stored defaults keep the units they were given in: a change of
 	 * units that would change what one of them means is refused,
@@ -132,10 +127,10 @@ static int set(proto_call *c)
 		cJSON_ArrayForEach(d, s->defaults)
 		{
 			if (cJSON_GetObjectItemCaseSensitive(c->params,
-							     d->string))
+			                                     d->string))
 				continue;
 			if (units_matter(spec_entry(d->string), d, &s->units,
-					 &units))
+			                 &units))
 				return proto_fail(
 				    c, PROTO_INVALID_PARAMS, "units",
 				    "the session default '%s' was set in the "
@@ -160,15 +155,15 @@ static int set(proto_call *c)
 		p = spec_entry(m->string);
 		if (!p)
 			return proto_fail(c, PROTO_INVALID_PARAMS, m->string,
-					  "no method takes this parameter, so "
-					  "it cannot be a session default");
+			                  "no method takes this parameter, so "
+			                  "it cannot be a session default");
 		one[0] = *p;
 		one[0].flags &= ~PP_REQUIRED;
 		memset(&one[1], 0, sizeof one[1]);
 		wrap = cJSON_CreateObject();
 		if (!wrap)
 			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-					  "out of memory");
+			                  "out of memory");
 		cJSON_AddItemReferenceToObject(wrap, m->string, (cJSON *)m);
 		c->units = units;
 		rc = proto_args_parse(c, wrap, "", one, &a);
@@ -180,7 +175,7 @@ static int set(proto_call *c)
 	defaults = s->defaults ? s->defaults : cJSON_CreateObject();
 	if (!defaults)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-				  "out of memory");
+		                  "out of memory");
 	cJSON_ArrayForEach(m, c->params)
 	{
 		cJSON *copy;
@@ -191,11 +186,11 @@ static int set(proto_call *c)
 			if (!s->defaults)
 				cJSON_Delete(defaults);
 			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-					  "out of memory");
+			                  "out of memory");
 		}
 		if (cJSON_GetObjectItemCaseSensitive(defaults, m->string))
 			cJSON_ReplaceItemInObjectCaseSensitive(defaults,
-							       m->string, copy);
+			                                       m->string, copy);
 		else
 			cJSON_AddItemToObject(defaults, m->string, copy);
 	}
@@ -213,7 +208,7 @@ static void write_session(proto_call *c)
 	proto_w_obj_begin(c, "units");
 	for (int k = 1; k < PK_COUNT; k++)
 		proto_w_str(c, proto_kind_name((proto_kind)k),
-			    proto_unit_name(&s->units, (proto_kind)k));
+		            proto_unit_name(&s->units, (proto_kind)k));
 	proto_w_obj_end(c);
 	if (s->defaults)
 		proto_w_json(c, "defaults", s->defaults);
@@ -252,11 +247,11 @@ static int reset(proto_call *c)
 static const proto_param no_params[] = {{NULL, PT_ANY, PK_NONE, 0, 0}};
 
 const proto_method proto_session_methods[] = {
-	{"session.set", set_and_show, NULL,
-	 "Set per-connection units and parameter defaults."},
-	{"session.get", get, no_params,
-	 "Show the connection's units and defaults."},
-	{"session.reset", reset, no_params,
-	 "Clear the connection's defaults and units."},
-	{NULL, NULL, NULL, NULL},
+    {"session.set", set_and_show, NULL,
+     "Set per-connection units and parameter defaults."},
+    {"session.get", get, no_params,
+     "Show the connection's units and defaults."},
+    {"session.reset", reset, no_params,
+     "Clear the connection's defaults and units."},
+    {NULL, NULL, NULL, NULL},
 };

@@ -20,59 +20,65 @@ typedef struct kind_def {
 } kind_def;
 
 #define FT 0.3048
-#define PSI_MPA 0.006894757293168361 /* 1 psi = 6894.757... Pa (exact def.
-					via lbf and inch) */
+#define PSI_MPA                                                                \
+	0.006894757293168361 /* 1 psi = 6894.757... Pa (exact def.             \
+	                        via lbf and inch) */
 /* 1 scf/bbl in L/L: 0.028316846592 m^3 / 0.158987294928 m^3. */
 #define SCF_PER_BBL 0.1781076067
 
 static const unit_def u_velocity[] = {
-	{"m/s", NULL, 1, 0}, {"km/s", NULL, 1000, 0}, {"ft/s", NULL, FT, 0}};
-static const unit_def u_slowness[] = {
-	{"us/ft", NULL, 1e-6 / FT, 0}, {"us/m", NULL, 1e-6, 0}};
-static const unit_def u_density[] = {
-	{"g/cm3", "g/cc", 1000, 0}, {"kg/m3", "kg/m^3", 1, 0}};
+    {"m/s", NULL, 1, 0}, {"km/s", NULL, 1000, 0}, {"ft/s", NULL, FT, 0}};
+static const unit_def u_slowness[] = {{"us/ft", NULL, 1e-6 / FT, 0},
+                                      {"us/m", NULL, 1e-6, 0}};
+static const unit_def u_density[] = {{"g/cm3", "g/cc", 1000, 0},
+                                     {"kg/m3", "kg/m^3", 1, 0}};
 static const unit_def u_modulus[] = {
-	{"GPa", NULL, 1e9, 0}, {"MPa", NULL, 1e6, 0}, {"Pa", NULL, 1, 0}};
-static const unit_def u_pressure[] = {
-	{"MPa", NULL, 1, 0}, {"kPa", NULL, 1e-3, 0}, {"bar", NULL, 0.1, 0},
-	{"psi", NULL, PSI_MPA, 0}};
+    {"GPa", NULL, 1e9, 0}, {"MPa", NULL, 1e6, 0}, {"Pa", NULL, 1, 0}};
+static const unit_def u_pressure[] = {{"MPa", NULL, 1, 0},
+                                      {"kPa", NULL, 1e-3, 0},
+                                      {"bar", NULL, 0.1, 0},
+                                      {"psi", NULL, PSI_MPA, 0}};
 static const unit_def u_temperature[] = {
-	{"degC", NULL, 1, 0}, {"degF", NULL, 5.0 / 9.0, -32.0 * 5.0 / 9.0},
-	{"K", NULL, 1, -273.15}};
+    {"degC", NULL, 1, 0},
+    {"degF", NULL, 5.0 / 9.0, -32.0 * 5.0 / 9.0},
+    {"K", NULL, 1, -273.15}};
 static const unit_def u_length[] = {{"m", NULL, 1, 0}, {"ft", NULL, FT, 0}};
-static const unit_def u_impedance[] = {
-	{"m/s*g/cm3", NULL, 1000, 0}, {"kg/m2s", NULL, 1, 0},
-	{"ft/s*g/cm3", NULL, FT * 1000, 0}};
+static const unit_def u_impedance[] = {{"m/s*g/cm3", NULL, 1000, 0},
+                                       {"kg/m2s", NULL, 1, 0},
+                                       {"ft/s*g/cm3", NULL, FT * 1000, 0}};
 static const unit_def u_salinity[] = {
-	{"ppm", NULL, 1e-6, 0}, {"g/kg", NULL, 1e-3, 0},
-	{"fraction", NULL, 1, 0}};
-static const unit_def u_gor[] = {
-	{"L/L", "m3/m3", 1, 0}, {"scf/bbl", NULL, SCF_PER_BBL, 0}};
-static const unit_def u_angle[] = {
-	{"deg", NULL, M_PI / 180.0, 0}, {"rad", NULL, 1, 0}};
-static const unit_def u_grad_p[] = {
-	{"MPa/m", NULL, 1, 0}, {"kPa/m", NULL, 1e-3, 0},
-	{"psi/ft", NULL, PSI_MPA / FT, 0}};
+    {"ppm", NULL, 1e-6, 0}, {"g/kg", NULL, 1e-3, 0}, {"fraction", NULL, 1, 0}};
+static const unit_def u_gor[] = {{"L/L", "m3/m3", 1, 0},
+                                 {"scf/bbl", NULL, SCF_PER_BBL, 0}};
+static const unit_def u_angle[] = {{"deg", NULL, M_PI / 180.0, 0},
+                                   {"rad", NULL, 1, 0}};
+static const unit_def u_grad_p[] = {{"MPa/m", NULL, 1, 0},
+                                    {"kPa/m", NULL, 1e-3, 0},
+                                    {"psi/ft", NULL, PSI_MPA / FT, 0}};
 static const unit_def u_grad_t[] = {
-	{"degC/km", NULL, 1e-3, 0}, {"degC/m", NULL, 1, 0},
-	{"degF/100ft", NULL, 5.0 / 9.0 / (100 * FT), 0}};
+    {"degC/km", NULL, 1e-3, 0},
+    {"degC/m", NULL, 1, 0},
+    {"degF/100ft", NULL, 5.0 / 9.0 / (100 * FT), 0}};
 
-#define KIND(n, a) {n, a, sizeof a / sizeof a[0]}
+#define KIND(n, a)                                                             \
+	{                                                                      \
+		n, a, sizeof a / sizeof a[0]                                   \
+	}
 static const kind_def kinds[PK_COUNT] = {
-	[PK_NONE] = {"none", NULL, 0},
-	[PK_VELOCITY] = KIND("velocity", u_velocity),
-	[PK_SLOWNESS] = KIND("slowness", u_slowness),
-	[PK_DENSITY] = KIND("density", u_density),
-	[PK_MODULUS] = KIND("modulus", u_modulus),
-	[PK_PRESSURE] = KIND("pressure", u_pressure),
-	[PK_TEMPERATURE] = KIND("temperature", u_temperature),
-	[PK_LENGTH] = KIND("length", u_length),
-	[PK_IMPEDANCE] = KIND("impedance", u_impedance),
-	[PK_SALINITY] = KIND("salinity", u_salinity),
-	[PK_GOR] = KIND("gor", u_gor),
-	[PK_ANGLE] = KIND("angle", u_angle),
-	[PK_GRADIENT_P] = KIND("pressure_gradient", u_grad_p),
-	[PK_GRADIENT_T] = KIND("temperature_gradient", u_grad_t),
+    [PK_NONE] = {"none", NULL, 0},
+    [PK_VELOCITY] = KIND("velocity", u_velocity),
+    [PK_SLOWNESS] = KIND("slowness", u_slowness),
+    [PK_DENSITY] = KIND("density", u_density),
+    [PK_MODULUS] = KIND("modulus", u_modulus),
+    [PK_PRESSURE] = KIND("pressure", u_pressure),
+    [PK_TEMPERATURE] = KIND("temperature", u_temperature),
+    [PK_LENGTH] = KIND("length", u_length),
+    [PK_IMPEDANCE] = KIND("impedance", u_impedance),
+    [PK_SALINITY] = KIND("salinity", u_salinity),
+    [PK_GOR] = KIND("gor", u_gor),
+    [PK_ANGLE] = KIND("angle", u_angle),
+    [PK_GRADIENT_P] = KIND("pressure_gradient", u_grad_p),
+    [PK_GRADIENT_T] = KIND("temperature_gradient", u_grad_t),
 };
 
 const char *proto_kind_name(proto_kind k)
@@ -118,7 +124,7 @@ void proto_units_list(proto_kind k, char *buf, size_t size)
 		return;
 	for (size_t i = 0; i < kinds[k].count && used < size; i++) {
 		int n = snprintf(buf + used, size - used, "%s%s", i ? ", " : "",
-				 kinds[k].units[i].name);
+		                 kinds[k].units[i].name);
 		if (n < 0)
 			break;
 		used += (size_t)n;
@@ -134,7 +140,7 @@ static int kind_by_name(const char *name)
 }
 
 int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
-		       proto_units *u)
+                       proto_units *u)
 {
 	const cJSON *m;
 	char list[256];
@@ -143,8 +149,8 @@ int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
 		return 0;
 	if (!cJSON_IsObject(obj))
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-				  "must be an object mapping a quantity kind "
-				  "to a unit, e.g. {\"velocity\": \"km/s\"}");
+		                  "must be an object mapping a quantity kind "
+		                  "to a unit, e.g. {\"velocity\": \"km/s\"}");
 	cJSON_ArrayForEach(m, obj)
 	{
 		int k = kind_by_name(m->string);
@@ -154,23 +160,23 @@ int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
 			list[0] = '\0';
 			for (int j = 1; j < PK_COUNT && used < sizeof list;
 			     j++) {
-				int n = snprintf(list + used,
-						 sizeof list - used, "%s%s",
-						 j > 1 ? ", " : "",
-						 kinds[j].name);
+				int n = snprintf(
+				    list + used, sizeof list - used, "%s%s",
+				    j > 1 ? ", " : "", kinds[j].name);
 				if (n < 0)
 					break;
 				used += (size_t)n;
 			}
-			return proto_fail(c, PROTO_INVALID_PARAMS, path,
-					  "unknown quantity kind '%s'; accepted: "
-					  "%s",
-					  m->string, list);
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, path,
+			    "unknown quantity kind '%s'; accepted: "
+			    "%s",
+			    m->string, list);
 		}
 		if (!cJSON_IsString(m)) {
 			return proto_fail(c, PROTO_INVALID_PARAMS, path,
-					  "%s: the unit must be a string",
-					  m->string);
+			                  "%s: the unit must be a string",
+			                  m->string);
 		}
 		for (i = 0; i < kinds[k].count; i++) {
 			const unit_def *d = &kinds[k].units[i];
@@ -181,8 +187,8 @@ int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
 		if (i == kinds[k].count) {
 			proto_units_list((proto_kind)k, list, sizeof list);
 			return proto_fail(c, PROTO_INVALID_PARAMS, path,
-					  "unknown %s unit '%s'; accepted: %s",
-					  m->string, m->valuestring, list);
+			                  "unknown %s unit '%s'; accepted: %s",
+			                  m->string, m->valuestring, list);
 		}
 		u->sel[k] = (unsigned char)i;
 	}

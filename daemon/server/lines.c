@@ -58,8 +58,8 @@ int srv_lines_append(srv_lines *lb, const char *data, size_t n)
 	}
 	if (!n)
 		return 0;
-	if (lb->start && (lb->start >= lb->len - lb->start ||
-			  lb->cap - lb->len < n))
+	if (lb->start &&
+	    (lb->start >= lb->len - lb->start || lb->cap - lb->len < n))
 		compact(lb);
 	if (lb->cap - lb->len < n) {
 		size_t cap = lb->cap ? lb->cap : 4096;

@@ -15,9 +15,9 @@ typedef struct srv_lines {
 } srv_lines;
 
 typedef enum srv_line_status {
-	SRV_LINE_NONE,     /* no complete line buffered */
-	SRV_LINE_OK,       /* *line, *len hold one line without its '\n' */
-	SRV_LINE_OVERSIZE  /* a line passed max_line; it is being skipped */
+	SRV_LINE_NONE,    /* no complete line buffered */
+	SRV_LINE_OK,      /* *line, *len hold one line without its '\n' */
+	SRV_LINE_OVERSIZE /* a line passed max_line; it is being skipped */
 } srv_line_status;
 
 void srv_lines_init(srv_lines *lb, size_t max_line);
@@ -29,8 +29,7 @@ void srv_lines_free(srv_lines *lb);
 int srv_lines_append(srv_lines *lb, const char *data, size_t n);
 /* Takes the next line. The pointer stays valid until the next append.
  * SRV_LINE_OVERSIZE is returned once per oversized line. */
-srv_line_status srv_lines_next(srv_lines *lb, const char **line,
-			       size_t *len);
+srv_line_status srv_lines_next(srv_lines *lb, const char **line, size_t *len);
 /* Takes what is left as a final line at end of input (no '\n'); returns
  * SRV_LINE_NONE when nothing is left or the tail is being discarded. */
 srv_line_status srv_lines_tail(srv_lines *lb, const char **line, size_t *len);

@@ -86,8 +86,8 @@ int srv__notify_open(srv_notify *n)
 	memcpy(n->addr.sun_path, e, len);
 	if (e[0] == '@')
 		n->addr.sun_path[0] = '\0'; /* abstract namespace */
-	n->addr_len = (socklen_t)(offsetof(struct sockaddr_un, sun_path) +
-				  len + (e[0] == '/'));
+	n->addr_len = (socklen_t)(offsetof(struct sockaddr_un, sun_path) + len +
+	                          (e[0] == '/'));
 	unsetenv("NOTIFY_SOCKET");
 	n->fd = socket(AF_UNIX, SOCK_DGRAM | SOCK_CLOEXEC, 0);
 	return n->fd < 0 ? -1 : 1;
@@ -101,7 +101,7 @@ int srv__notify_send(srv_notify *n, const char *msg)
 		return 0;
 	do
 		r = sendto(n->fd, msg, strlen(msg), MSG_NOSIGNAL,
-			   (const struct sockaddr *)&n->addr, n->addr_len);
+		           (const struct sockaddr *)&n->addr, n->addr_len);
 	while (r < 0 && errno == EINTR);
 	return r < 0 ? -1 : 0;
 }

@@ -8,7 +8,7 @@
 #include <sys/un.h>
 
 typedef struct srv_notify {
-	int fd;                    /* datagram socket, or -1 */
+	int fd; /* datagram socket, or -1 */
 	struct sockaddr_un addr;
 	socklen_t addr_len;
 } srv_notify;

@@ -47,9 +47,9 @@
 #include "server/sd.h"
 #include "server/srv.h"
 
-#define READ_CHUNK 65536
-#define TICK_MS 250                 /* idle and slow-reader checks */
-#define STALL_PROGRESS (64u << 10)  /* bytes that count as progress */
+#define READ_CHUNK     65536
+#define TICK_MS        250         /* idle and slow-reader checks */
+#define STALL_PROGRESS (64u << 10) /* bytes that count as progress */
 
 typedef struct srv srv;
 typedef struct conn conn;
@@ -67,8 +67,8 @@ typedef union any_handle {
 
 struct conn {
 	srv *srv;
-	conn *prev, *next;        /* all connections */
-	conn *ready_next;         /* ready list */
+	conn *prev, *next; /* all connections */
+	conn *ready_next;  /* ready list */
 	int in_ready;
 
 	enum io_kind in_kind;
@@ -77,44 +77,44 @@ struct conn {
 	uv_file in_fd;
 	int64_t in_off;
 	uv_fs_t in_req;
-	int in_inflight;          /* a file read is in flight */
-	char *in_buf;             /* file input buffer */
+	int in_inflight; /* a file read is in flight */
+	char *in_buf;    /* file input buffer */
 
 	enum io_kind out_kind;
-	any_handle outh;          /* stdout handle when separate */
+	any_handle outh; /* stdout handle when separate */
 	uv_stream_t *out_stream;
 	int out_open;
 	uv_file out_fd;
 	uv_fs_t out_req;
 	uv_write_t wreq;
 
-	proto_buf pending;        /* responses not yet handed to a write */
-	char *wdata;              /* the write in flight */
+	proto_buf pending; /* responses not yet handed to a write */
+	char *wdata;       /* the write in flight */
 	size_t wlen, woff;
 	int writing;
-	uint64_t out_handed;      /* bytes handed to stream writes */
-	uint64_t out_done;        /* bytes known written */
+	uint64_t out_handed; /* bytes handed to stream writes */
+	uint64_t out_done;   /* bytes known written */
 
 	srv_lines lines;
 	proto_session *session;
 
-	int is_socket;            /* accepted from a listener (not stdio) */
-	int reading;              /* input is being read */
-	int eof;                  /* no more input will come */
-	int drop_tail;            /* at eof, a line without '\n' is dropped */
-	int paused;               /* unsent output above the high-water mark */
-	int in_full;              /* buffered input above the high-water mark */
-	int budget_wait;          /* reads wait for the global budget */
-	int peer_done;            /* the peer stopped sending: exempt */
+	int is_socket;   /* accepted from a listener (not stdio) */
+	int reading;     /* input is being read */
+	int eof;         /* no more input will come */
+	int drop_tail;   /* at eof, a line without '\n' is dropped */
+	int paused;      /* unsent output above the high-water mark */
+	int in_full;     /* buffered input above the high-water mark */
+	int budget_wait; /* reads wait for the global budget */
+	int peer_done;   /* the peer stopped sending: exempt */
 	int closing;
-	int busy;                 /* a line is in the thread pool */
+	int busy; /* a line is in the thread pool */
 	int refs;
 
-	size_t acct;              /* bytes counted in stats->buffered_bytes */
-	uint64_t active_ms;       /* last byte in or out */
-	uint64_t stall_ms;        /* start of the current progress window */
-	uint64_t stall_mark;      /* out_sent at stall_ms */
-	uint64_t seen_sent;       /* out_sent at the last tick */
+	size_t acct;         /* bytes counted in stats->buffered_bytes */
+	uint64_t active_ms;  /* last byte in or out */
+	uint64_t stall_ms;   /* start of the current progress window */
+	uint64_t stall_mark; /* out_sent at stall_ms */
+	uint64_t seen_sent;  /* out_sent at the last tick */
 
 	uv_work_t work;
 	char *work_line;
@@ -130,8 +130,8 @@ typedef struct srv_listener {
 	any_handle h;
 	enum lst_kind kind;
 	int open;
-	int activated;            /* passed in by the service manager */
-	char *path;               /* Unix path we created, to remove */
+	int activated; /* passed in by the service manager */
+	char *path;    /* Unix path we created, to remove */
 	dev_t dev;
 	ino_t ino;
 	char name[128];
@@ -178,7 +178,7 @@ void srv_log(const char *level, const char *fmt, ...)
 	vsnprintf(msg, sizeof msg, fmt, ap);
 	va_end(ap);
 	fprintf(stderr, "%s rockwired[%ld]: %s: %s\n", stamp, (long)getpid(),
-		level, msg);
+	        level, msg);
 }
 
 int srv_log_open(const char *path)
@@ -256,9 +256,9 @@ static void budget_check(srv *s)
 	if (!s->over_budget && now > budget) {
 		s->over_budget = 1;
 		srv_log("warning",
-			"%llu bytes buffered over all connections, past the "
-			"budget of %zu: reads wait",
-			(unsigned long long)now, budget);
+		        "%llu bytes buffered over all connections, past the "
+		        "budget of %zu: reads wait",
+		        (unsigned long long)now, budget);
 		for (c = s->conns; c; c = c->next) {
 			c->budget_wait = !c->peer_done;
 			conn_update_read(c);
@@ -278,8 +278,8 @@ static void conn_account(conn *c)
 {
 	srv *s = c->srv;
 	size_t now = c->closing ? 0
-				: srv_lines_buffered(&c->lines) +
-					  conn_unsent(c) + c->work_len;
+	                        : srv_lines_buffered(&c->lines) +
+	                              conn_unsent(c) + c->work_len;
 
 	s->stats->buffered_bytes += now;
 	s->stats->buffered_bytes -= c->acct;
@@ -415,7 +415,7 @@ static void read_start(conn *c)
 		int rc = uv_read_start(&c->in.s, on_alloc, on_read);
 		if (rc < 0) {
 			srv_log("warning", "%s: read start: %s", c->name,
-				uv_strerror(rc));
+			        uv_strerror(rc));
 			c->reading = 0;
 			on_eof(c);
 		}
@@ -431,7 +431,7 @@ static void conn_update_read(conn *c)
 	size_t high = c->srv->cfg->limits.out_high_water;
 
 	c->in_full = high && srv_lines_buffered(&c->lines) > high &&
-		     srv_lines_has_line(&c->lines);
+	             srv_lines_has_line(&c->lines);
 	if (c->paused || c->in_full || c->budget_wait)
 		read_stop(c);
 	else
@@ -444,7 +444,7 @@ static void conn_feed(conn *c, const char *data, size_t n)
 	c->active_ms = uv_now(c->srv->loop);
 	if (srv_lines_append(&c->lines, data, n)) {
 		srv_log("error", "%s: out of memory buffering input; closing",
-			c->name);
+		        c->name);
 		conn_close(c);
 		return;
 	}
@@ -481,7 +481,7 @@ static void on_read(uv_stream_t *st, ssize_t nread, const uv_buf_t *buf)
 	} else if (nread < 0) {
 		if (nread != UV_ECONNRESET)
 			srv_log("warning", "%s: read: %s", c->name,
-				uv_strerror((int)nread));
+			        uv_strerror((int)nread));
 		/* The peer is gone: nobody is left to answer. */
 		conn_close(c);
 	}
@@ -503,7 +503,7 @@ static void on_file_read(uv_fs_t *req)
 		} else {
 			if (n < 0)
 				srv_log("warning", "%s: read: %s", c->name,
-					uv_strerror((int)n));
+				        uv_strerror((int)n));
 			on_eof(c);
 		}
 	}
@@ -521,7 +521,7 @@ static void file_read_next(conn *c)
 	c->refs++;
 	c->in_inflight = 1;
 	rc = uv_fs_read(c->srv->loop, &c->in_req, c->in_fd, &b, 1, c->in_off,
-			on_file_read);
+	                on_file_read);
 	if (rc < 0) {
 		c->refs--;
 		c->in_inflight = 0;
@@ -579,8 +579,8 @@ static void drain_kernel(conn *c, int keep)
 
 static void conn_check_done(conn *c)
 {
-	if (c->closing || !c->eof || c->busy || c->writing ||
-	    c->pending.len || srv_lines_buffered(&c->lines))
+	if (c->closing || !c->eof || c->busy || c->writing || c->pending.len ||
+	    srv_lines_buffered(&c->lines))
 		return;
 	if (c->srv->stopping)
 		drain_kernel(c, 0);
@@ -596,7 +596,7 @@ static void write_done(conn *c, int status, size_t n)
 		if (!c->closing && status != UV_ECANCELED &&
 		    status != UV_EPIPE && status != UV_ECONNRESET)
 			srv_log("warning", "%s: write: %s", c->name,
-				uv_strerror(status));
+			        uv_strerror(status));
 		free(c->wdata);
 		c->wdata = NULL;
 		c->wlen = c->woff = 0;
@@ -649,16 +649,16 @@ static void on_file_written(uv_fs_t *req)
 static void file_write_next(conn *c)
 {
 	uv_buf_t b = uv_buf_init(c->wdata + c->woff,
-				 (unsigned)(c->wlen - c->woff > 0x40000000
-						? 0x40000000
-						: c->wlen - c->woff));
+	                         (unsigned)(c->wlen - c->woff > 0x40000000
+	                                        ? 0x40000000
+	                                        : c->wlen - c->woff));
 	int rc;
 
 	c->out_req.data = c;
 	c->refs++;
 	c->writing = 1;
 	rc = uv_fs_write(c->srv->loop, &c->out_req, c->out_fd, &b, 1, -1,
-			 on_file_written);
+	                 on_file_written);
 	if (rc < 0) {
 		c->refs--;
 		write_done(c, rc, 0);
@@ -696,7 +696,7 @@ static void on_work(uv_work_t *w)
 {
 	conn *c = w->data;
 	c->work_rc = rw_proto_handle(c->session, c->work_line, c->work_len,
-				     &c->work_out);
+	                             &c->work_out);
 }
 
 static void on_work_done(uv_work_t *w, int status)
@@ -710,16 +710,15 @@ static void on_work_done(uv_work_t *w, int status)
 	c->busy = 0;
 	if (!c->closing) {
 		if (c->work_out.oom)
-			proto_error_line(c->srv->ctx, &c->pending,
-					 -32603, NULL,
-					 "out of memory building the response");
+			proto_error_line(c->srv->ctx, &c->pending, -32603, NULL,
+			                 "out of memory building the response");
 		else if (!c->pending.len) {
 			proto_buf tmp = c->pending;
 			c->pending = c->work_out;
 			c->work_out = tmp;
 		} else {
 			proto_buf_append(&c->pending, c->work_out.data,
-					 c->work_out.len);
+			                 c->work_out.len);
 		}
 		proto_buf_free(&c->work_out);
 		conn_flush(c);
@@ -746,7 +745,7 @@ static void dispatch_line(conn *c, const char *line, size_t len)
 			c->busy = 1;
 			c->refs++;
 			if (uv_queue_work(s->loop, &c->work, on_work,
-					  on_work_done) == 0)
+			                  on_work_done) == 0)
 				return;
 			c->busy = 0;
 			c->refs--;
@@ -758,7 +757,7 @@ static void dispatch_line(conn *c, const char *line, size_t len)
 	if (rw_proto_handle(c->session, line, len, &c->pending)) {
 		c->pending.oom = 0;
 		proto_error_line(s->ctx, &c->pending, -32603, NULL,
-				 "out of memory building the response");
+		                 "out of memory building the response");
 	}
 }
 
@@ -768,9 +767,9 @@ static void oversize(conn *c)
 
 	c->srv->stats->lines_oversized++;
 	snprintf(why, sizeof why,
-		 "line longer than the limit of %zu bytes; skipped up to its "
-		 "newline",
-		 c->srv->cfg->limits.max_line);
+	         "line longer than the limit of %zu bytes; skipped up to its "
+	         "newline",
+	         c->srv->cfg->limits.max_line);
 	proto_error_line(c->srv->ctx, &c->pending, -32600, NULL, why);
 }
 
@@ -789,9 +788,9 @@ static int conn_dispatch(conn *c, int budget)
 				/* Shutdown cut this line short: it is not a
 				 * request, so it is not answered. */
 				srv_log("info",
-					"%s: dropped %zu bytes of an "
-					"unfinished line at shutdown",
-					c->name, len);
+				        "%s: dropped %zu bytes of an "
+				        "unfinished line at shutdown",
+				        c->name, len);
 				break;
 			}
 		}
@@ -873,8 +872,8 @@ static void conn_tick(conn *c, uint64_t now)
 	size_t hard = cfg->limits.out_hard_limit;
 	uint64_t stall = (uint64_t)(cfg->limits.stall_timeout_s * 1000);
 	uint64_t idle = (uint64_t)(cfg->limits.idle_timeout_s * 1000);
-	int held = (hard && unsent > hard) ||
-		   (c->srv->over_budget && c->paused);
+	int held =
+	    (hard && unsent > hard) || (c->srv->over_budget && c->paused);
 
 	if (sent != c->seen_sent) {
 		c->seen_sent = sent;
@@ -886,16 +885,16 @@ static void conn_tick(conn *c, uint64_t now)
 	} else if (now - c->stall_ms >= stall) {
 		c->srv->stats->connections_closed_slow++;
 		srv_log("warning",
-			"%s: closed as slow: %zu bytes of answers unsent and "
-			"under %u bytes taken in %.1f s",
-			c->name, unsent, STALL_PROGRESS,
-			cfg->limits.stall_timeout_s);
+		        "%s: closed as slow: %zu bytes of answers unsent and "
+		        "under %u bytes taken in %.1f s",
+		        c->name, unsent, STALL_PROGRESS,
+		        cfg->limits.stall_timeout_s);
 		conn_close(c);
 		return;
 	}
 	if (idle && !c->busy && now - c->active_ms >= idle) {
 		srv_log("info", "%s: closed after %.1f s idle", c->name,
-			cfg->limits.idle_timeout_s);
+		        cfg->limits.idle_timeout_s);
 		c->srv->stats->connections_closed_idle++;
 		conn_close(c);
 	}
@@ -950,15 +949,13 @@ static void on_tick(uv_timer_t *t)
 /* ---- stdio -------------------------------------------------------------- */
 
 static int open_side(srv *s, conn *c, int fd, int readable, any_handle *h,
-		     enum io_kind *kind, uv_file *file)
+                     enum io_kind *kind, uv_file *file)
 {
 	uv_handle_type t = uv_guess_handle(fd);
 	int rc;
 
 	switch (t) {
-	case UV_TTY:
-		rc = uv_tty_init(s->loop, &h->tty, fd, readable);
-		break;
+	case UV_TTY: rc = uv_tty_init(s->loop, &h->tty, fd, readable); break;
 	case UV_NAMED_PIPE:
 		rc = uv_pipe_init(s->loop, &h->pipe, 0);
 		if (rc == 0 && (rc = uv_pipe_open(&h->pipe, fd)) < 0)
@@ -997,8 +994,7 @@ static int start_stdio(srv *s)
 	if (open_side(s, c, 0, 1, &c->in, &c->in_kind, &c->in_fd) < 0)
 		goto fail;
 	c->in_open = c->in_kind == IO_STREAM;
-	if (c->in_kind == IO_FILE &&
-	    !(c->in_buf = malloc(READ_CHUNK)))
+	if (c->in_kind == IO_FILE && !(c->in_buf = malloc(READ_CHUNK)))
 		goto fail;
 	if (open_side(s, c, 1, 0, &c->outh, &c->out_kind, &c->out_fd) < 0)
 		goto fail;
@@ -1044,7 +1040,7 @@ static void on_connection(uv_stream_t *server, int status)
 
 	if (status < 0) {
 		srv_log("warning", "%s: accept: %s", l->name,
-			uv_strerror(status));
+		        uv_strerror(status));
 		return;
 	}
 	c = conn_new(s, l->kind == LST_TCP ? "tcp" : "unix");
@@ -1077,10 +1073,10 @@ static void on_connection(uv_stream_t *server, int status)
 	if (s->stats->connections_open > s->cfg->limits.max_conns) {
 		s->stats->connections_refused++;
 		srv_log("warning", "%s: refused, %zu connections open (limit)",
-			c->name, s->cfg->limits.max_conns);
+		        c->name, s->cfg->limits.max_conns);
 		proto_error_line(s->ctx, &c->pending, -32000, NULL,
-				 "server busy: too many connections; retry "
-				 "later");
+		                 "server busy: too many connections; retry "
+		                 "later");
 		c->eof = 1;
 		conn_flush(c);
 		return;
@@ -1097,13 +1093,14 @@ static int reclaim_stale(const char *path)
 	int fd, rc, err;
 
 	if (lstat(path, &st) < 0)
-		return errno == ENOENT ? 0 : (srv_log("error", "%s: %s", path,
-						      strerror(errno)),
-					      -1);
+		return errno == ENOENT
+		           ? 0
+		           : (srv_log("error", "%s: %s", path, strerror(errno)),
+		              -1);
 	if (!S_ISSOCK(st.st_mode)) {
 		srv_log("error",
-			"%s exists and is not a socket; refusing to touch it",
-			path);
+		        "%s exists and is not a socket; refusing to touch it",
+		        path);
 		return -1;
 	}
 	memset(&sa, 0, sizeof sa);
@@ -1123,19 +1120,19 @@ static int reclaim_stale(const char *path)
 	close(fd);
 	if (rc == 0) {
 		srv_log("error",
-			"another daemon is already listening on %s; stop it or "
-			"choose another --socket",
-			path);
+		        "another daemon is already listening on %s; stop it or "
+		        "choose another --socket",
+		        path);
 		return -1;
 	}
 	if (err != ECONNREFUSED) {
 		srv_log("error", "%s: cannot probe the existing socket: %s",
-			path, strerror(err));
+		        path, strerror(err));
 		return -1;
 	}
 	if (unlink(path) < 0) {
 		srv_log("error", "%s: cannot remove stale socket: %s", path,
-			strerror(errno));
+		        strerror(errno));
 		return -1;
 	}
 	srv_log("info", "removed stale socket %s", path);
@@ -1215,8 +1212,7 @@ static int is_loopback(const struct sockaddr *sa)
 		return (ntohl(a->sin_addr.s_addr) >> 24) == 127;
 	}
 	if (sa->sa_family == AF_INET6) {
-		const struct sockaddr_in6 *a =
-			(const struct sockaddr_in6 *)sa;
+		const struct sockaddr_in6 *a = (const struct sockaddr_in6 *)sa;
 		const unsigned char *b = a->sin6_addr.s6_addr;
 		if (IN6_IS_ADDR_LOOPBACK(&a->sin6_addr))
 			return 1;
@@ -1230,8 +1226,7 @@ static void addr_text(const struct sockaddr *sa, char *buf, size_t size)
 	char host[INET6_ADDRSTRLEN] = "?";
 
 	if (sa->sa_family == AF_INET6) {
-		const struct sockaddr_in6 *a =
-			(const struct sockaddr_in6 *)sa;
+		const struct sockaddr_in6 *a = (const struct sockaddr_in6 *)sa;
 		inet_ntop(AF_INET6, &a->sin6_addr, host, sizeof host);
 		snprintf(buf, size, "tcp:[%s]:%d", host, ntohs(a->sin6_port));
 	} else {
@@ -1245,15 +1240,15 @@ static void warn_no_auth(const srv_listener *l, int loopback)
 {
 	if (loopback)
 		srv_log("warning",
-			"%s: the protocol has no authentication: any local "
-			"user can connect to this port",
-			l->name);
+		        "%s: the protocol has no authentication: any local "
+		        "user can connect to this port",
+		        l->name);
 	else
 		srv_log("warning",
-			"%s: listening beyond loopback (--allow-remote): the "
-			"protocol has no authentication or encryption; anyone "
-			"who can reach this address can use the daemon",
-			l->name);
+		        "%s: listening beyond loopback (--allow-remote): the "
+		        "protocol has no authentication or encryption; anyone "
+		        "who can reach this address can use the daemon",
+		        l->name);
 }
 
 /* Parses "HOST:PORT" or "[V6]:PORT" and listens there. */
@@ -1293,17 +1288,17 @@ static int start_tcp(srv *s, const char *spec)
 	hints.ai_flags |= AI_NUMERICHOST;
 	if ((rc = getaddrinfo(host, port, &hints, &ai)) != 0 || !ai) {
 		srv_log("error",
-			"--listen tcp:%s: not a numeric address and port (%s)",
-			spec, gai_strerror(rc));
+		        "--listen tcp:%s: not a numeric address and port (%s)",
+		        spec, gai_strerror(rc));
 		return -1;
 	}
 	loop = is_loopback(ai->ai_addr);
 	if (!loop && !s->cfg->allow_remote) {
 		srv_log("error",
-			"--listen tcp:%s: not a loopback address; the protocol "
-			"has no authentication, so give --allow-remote to "
-			"listen beyond this host",
-			spec);
+		        "--listen tcp:%s: not a loopback address; the protocol "
+		        "has no authentication, so give --allow-remote to "
+		        "listen beyond this host",
+		        spec);
 		freeaddrinfo(ai);
 		return -1;
 	}
@@ -1313,7 +1308,7 @@ static int start_tcp(srv *s, const char *spec)
 	}
 	snprintf(l->name, sizeof l->name, "tcp:%s", spec);
 	rc = uv_tcp_bind(&l->h.tcp, ai->ai_addr,
-			 ai->ai_family == AF_INET6 ? UV_TCP_IPV6ONLY : 0);
+	                 ai->ai_family == AF_INET6 ? UV_TCP_IPV6ONLY : 0);
 	freeaddrinfo(ai);
 	if (rc < 0) {
 		srv_log("error", "bind tcp:%s: %s", spec, uv_strerror(rc));
@@ -1329,7 +1324,7 @@ static int start_tcp(srv *s, const char *spec)
 	return 0;
 bad:
 	srv_log("error", "--listen tcp:%s: expected HOST:PORT or [V6]:PORT",
-		spec);
+	        spec);
 	return -1;
 }
 
@@ -1346,12 +1341,12 @@ static int start_activated(srv *s, int fd)
 	    getsockopt(fd, SOL_SOCKET, SO_TYPE, &type, &tl) < 0 ||
 	    getsockopt(fd, SOL_SOCKET, SO_ACCEPTCONN, &acc, &al) < 0) {
 		srv_log("error", "activated fd %d: not a socket: %s", fd,
-			strerror(errno));
+		        strerror(errno));
 		return -1;
 	}
 	if (type != SOCK_STREAM || !acc) {
 		srv_log("error",
-			"activated fd %d: not a listening stream socket", fd);
+		        "activated fd %d: not a listening stream socket", fd);
 		return -1;
 	}
 	if (ss.ss_family == AF_UNIX) {
@@ -1360,10 +1355,10 @@ static int start_activated(srv *s, int fd)
 			return -1;
 		if (len > offsetof(struct sockaddr_un, sun_path) &&
 		    u->sun_path[0])
-			snprintf(l->name, sizeof l->name, "unix:%.*s",
-				 (int)(len - offsetof(struct sockaddr_un,
-						      sun_path)),
-				 u->sun_path);
+			snprintf(
+			    l->name, sizeof l->name, "unix:%.*s",
+			    (int)(len - offsetof(struct sockaddr_un, sun_path)),
+			    u->sun_path);
 		else
 			snprintf(l->name, sizeof l->name, "unix:fd%d", fd);
 		rc = uv_pipe_open(&l->h.pipe, fd);
@@ -1373,9 +1368,9 @@ static int start_activated(srv *s, int fd)
 			char a[128];
 			addr_text((struct sockaddr *)&ss, a, sizeof a);
 			srv_log("error",
-				"activated %s: not a loopback address; give "
-				"--allow-remote to serve it",
-				a);
+			        "activated %s: not a loopback address; give "
+			        "--allow-remote to serve it",
+			        a);
 			return -1;
 		}
 		if (!(l = listener_new(s, LST_TCP)))
@@ -1386,7 +1381,7 @@ static int start_activated(srv *s, int fd)
 			warn_no_auth(l, loop);
 	} else {
 		srv_log("error", "activated fd %d: unsupported address family",
-			fd);
+		        fd);
 		return -1;
 	}
 	l->activated = 1;
@@ -1397,7 +1392,7 @@ static int start_activated(srv *s, int fd)
 	if (listener_listen(l) < 0)
 		return -1;
 	srv_log("info", "listening on %s (passed by the service manager)",
-		l->name);
+	        l->name);
 	return 0;
 }
 
@@ -1408,7 +1403,7 @@ static void transport_text(srv *s)
 	s->transport[0] = '\0';
 	for (int i = 0; i < s->n_lst && n < sizeof s->transport; i++) {
 		int w = snprintf(s->transport + n, sizeof s->transport - n,
-				 "%s%s", i ? " " : "", s->lst[i].name);
+		                 "%s%s", i ? " " : "", s->lst[i].name);
 		if (w < 0)
 			break;
 		n += (size_t)w;
@@ -1425,9 +1420,9 @@ static int start_listeners(srv *s)
 	nfd = srv__listen_fds(fds, SRV_MAX_LISTEN, &ignored);
 	if (ignored)
 		srv_log("warning",
-			"LISTEN_FDS/LISTEN_PID present but %s; ignored",
-			nfd ? "more sockets than supported"
-			    : "not meant for this process");
+		        "LISTEN_FDS/LISTEN_PID present but %s; ignored",
+		        nfd ? "more sockets than supported"
+		            : "not meant for this process");
 	for (int i = 0; i < nfd; i++)
 		if (start_activated(s, fds[i]) < 0)
 			return -1;
@@ -1439,8 +1434,10 @@ static int start_listeners(srv *s)
 		else if (strncmp(spec, "tcp:", 4) == 0)
 			rc = start_tcp(s, spec + 4);
 		else {
-			srv_log("error", "--listen %s: expected unix:PATH or "
-				"tcp:HOST:PORT", spec);
+			srv_log("error",
+			        "--listen %s: expected unix:PATH or "
+			        "tcp:HOST:PORT",
+			        spec);
 			rc = -1;
 		}
 		if (rc < 0)
@@ -1448,7 +1445,7 @@ static int start_listeners(srv *s)
 	}
 	if (!nfd && !cfg->n_listen &&
 	    start_unix(s, srv_default_socket_path(path, sizeof path),
-		       cfg->socket_mode) < 0)
+	               cfg->socket_mode) < 0)
 		return -1;
 	s->listening = 1;
 	transport_text(s);
@@ -1534,7 +1531,7 @@ static void srv_stop(srv *s, const char *why)
 
 	if (s->stopping) {
 		srv_log("warning", "%s again: closing remaining connections",
-			why);
+		        why);
 		close_all(s);
 		return;
 	}
@@ -1557,7 +1554,7 @@ static void srv_stop(srv *s, const char *why)
 		conn_unref(c);
 	}
 	uv_timer_start(&s->drain_timer, on_drain_timeout,
-		       (uint64_t)(s->cfg->limits.drain_timeout_s * 1000), 0);
+	               (uint64_t)(s->cfg->limits.drain_timeout_s * 1000), 0);
 	srv_maybe_finish(s);
 }
 
@@ -1568,11 +1565,12 @@ static void on_signal(uv_signal_t *h, int signum)
 	if (signum == SIGHUP) {
 		if (!s->cfg->log_path) {
 			srv_log("info", "SIGHUP: logs go to stderr; nothing to "
-				"reopen");
+			                "reopen");
 		} else if (srv_log_open(s->cfg->log_path) < 0) {
-			srv_log("warning", "SIGHUP: cannot reopen %s: %s; "
-				"logging to the old file",
-				s->cfg->log_path, strerror(errno));
+			srv_log("warning",
+			        "SIGHUP: cannot reopen %s: %s; "
+			        "logging to the old file",
+			        s->cfg->log_path, strerror(errno));
 		} else {
 			srv_log("info", "SIGHUP: log reopened");
 		}
@@ -1590,7 +1588,7 @@ int srv_run(const srv_config *cfg)
 	signal(SIGPIPE, SIG_IGN);
 	if (cfg->log_path && srv_log_open(cfg->log_path) < 0) {
 		srv_log("error", "--log %s: %s", cfg->log_path,
-			strerror(errno));
+		        strerror(errno));
 		return SRV_EXIT_RUNTIME;
 	}
 	s = calloc(1, sizeof *s);
@@ -1637,10 +1635,10 @@ int srv_run(const srv_config *cfg)
 		close_all(s);
 	} else {
 		snprintf(msg, sizeof msg, "READY=1\nSTATUS=serving %s",
-			 s->stats->transport);
+		         s->stats->transport);
 		if (srv__notify_send(&s->notify, msg) < 0)
 			srv_log("warning", "readiness notification failed: %s",
-				strerror(errno));
+			        strerror(errno));
 	}
 	srv_maybe_finish(s);
 	uv_run(s->loop, UV_RUN_DEFAULT);

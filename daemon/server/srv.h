@@ -10,28 +10,28 @@
 #include "proto/proto.h"
 
 /* Exit codes of rockwired (documented in --help and DEVELOPERS.md). */
-#define SRV_EXIT_OK 0       /* clean shutdown */
-#define SRV_EXIT_USAGE 2    /* bad command line */
-#define SRV_EXIT_LISTEN 3   /* cannot listen: path busy, live daemon, ... */
-#define SRV_EXIT_RUNTIME 4  /* loop or I/O failure */
+#define SRV_EXIT_OK      0 /* clean shutdown */
+#define SRV_EXIT_USAGE   2 /* bad command line */
+#define SRV_EXIT_LISTEN  3 /* cannot listen: path busy, live daemon, ... */
+#define SRV_EXIT_RUNTIME 4 /* loop or I/O failure */
 
 /* Listeners given on the command line, plus those passed in by socket
  * activation (LISTEN_FDS), at most this many in all. */
 #define SRV_MAX_LISTEN 8
 
 typedef struct srv_config {
-	int use_stdio;              /* serve stdin/stdout */
+	int use_stdio; /* serve stdin/stdout */
 	/* "unix:PATH" or "tcp:HOST:PORT" ("tcp:[V6]:PORT"); HOST is a
 	 * numeric address or "localhost". */
 	const char *listen[SRV_MAX_LISTEN];
 	int n_listen;
-	int allow_remote;           /* TCP on a non-loopback address */
-	unsigned socket_mode;       /* Unix socket permission bits (0600) */
-	const char *log_path;       /* log file (reopened on SIGHUP), or
-				       NULL for stderr */
-	int lines_per_turn;         /* fairness: lines dispatched per turn */
-	size_t offload_bytes;       /* lines at least this long go to the
-				       thread pool (0 = never) */
+	int allow_remote;     /* TCP on a non-loopback address */
+	unsigned socket_mode; /* Unix socket permission bits (0600) */
+	const char *log_path; /* log file (reopened on SIGHUP), or
+	                         NULL for stderr */
+	int lines_per_turn;   /* fairness: lines dispatched per turn */
+	size_t offload_bytes; /* lines at least this long go to the
+	                         thread pool (0 = never) */
 	proto_limits limits;
 } srv_config;
 
@@ -50,6 +50,6 @@ int srv_run(const srv_config *cfg);
 int srv_log_open(const char *path);
 /* One log line on stderr: "TIME rockwired[pid]: level: message". */
 void srv_log(const char *level, const char *fmt, ...)
-	__attribute__((format(printf, 2, 3)));
+    __attribute__((format(printf, 2, 3)));
 
 #endif

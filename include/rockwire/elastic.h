@@ -46,11 +46,12 @@ typedef enum rw_elastic_pair {
 } rw_elastic_pair;
 
 /* Why a sample is physically impossible: bits set by the conversions. */
-#define RW_ELASTIC_BAD_INPUT 0x1u /* non-finite, non-positive velocity or
-				     slowness, or no real solution */
-#define RW_ELASTIC_BAD_RHO   0x2u /* density <= 0 */
-#define RW_ELASTIC_BAD_MU    0x4u /* shear modulus <= 0 (nu >= 0.5) */
-#define RW_ELASTIC_BAD_K     0x8u /* bulk modulus < 0 (nu < -1) */
+#define RW_ELASTIC_BAD_INPUT                                                   \
+	0x1u                    /* non-finite, non-positive velocity or        \
+	                           slowness, or no real solution */
+#define RW_ELASTIC_BAD_RHO 0x2u /* density <= 0 */
+#define RW_ELASTIC_BAD_MU  0x4u /* shear modulus <= 0 (nu >= 0.5) */
+#define RW_ELASTIC_BAD_K   0x8u /* bulk modulus < 0 (nu < -1) */
 
 /* Classifies the pair (a, b) as determining an isotropic solid with a
  * given density or not. Pure; no errors. */
@@ -67,20 +68,20 @@ const char *rw_elastic_qty_name(rw_elastic_qty q);
  * errors: RW_EINVAL for a pair that is not accepted; RW_EDOM when the
  * sample is physically impossible (all outputs NaN). */
 int rw_elastic_from_pair(double rho, rw_elastic_qty a, double va,
-			 rw_elastic_qty b, double vb, rw_elastic *out,
-			 unsigned *why);
+                         rw_elastic_qty b, double vb, rw_elastic *out,
+                         unsigned *why);
 
 /* Computes the full set from vp, vs (m/s) and rho (kg/m^3), the usual log
  * case. Same errors and *why as rw_elastic_from_pair. */
 int rw_elastic_from_velocities(double vp, double vs, double rho,
-			       rw_elastic *out, unsigned *why);
+                               rw_elastic *out, unsigned *why);
 
 /* Computes the full set from rho (kg/m^3), the P-wave modulus m and the
  * shear modulus mu (Pa). Impossible when rho <= 0, mu <= 0 or
  * k = m - 4/3 mu < 0 (equivalently nu outside [-1, 0.5)).
  * errors: RW_EDOM (outputs NaN, *why set). */
 int rw_elastic_from_moduli(double rho, double m, double mu, rw_elastic *out,
-			   unsigned *why);
+                           unsigned *why);
 
 #ifdef __cplusplus
 }

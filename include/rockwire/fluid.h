@@ -49,15 +49,18 @@ extern "C" {
 #define RW_FLUID_WARN_SAL_RANGE 0x04u /* salinity outside fitted range */
 #define RW_FLUID_WARN_G_RANGE   0x08u /* gas gravity outside fitted range */
 #define RW_FLUID_WARN_API_RANGE 0x10u /* oil API gravity outside fit */
-#define RW_FLUID_WARN_PR_RANGE  0x20u /* gas pseudo-reduced T or p outside
-				       * the Z-factor fit */
-#define RW_FLUID_WARN_GOR_MAX   0x40u /* GOR above the gas the oil can
-				       * dissolve at p, T (B&W eq. 21):
-				       * free gas would be present */
-#define RW_FLUID_WARN_VAPOUR    0x80u /* p below the saturation pressure
-				       * of pure water at T (IAPWS-IF97
-				       * eq. 30): water would boil; the
-				       * liquid correlation is extrapolated */
+#define RW_FLUID_WARN_PR_RANGE                                                 \
+	0x20u /* gas pseudo-reduced T or p outside                             \
+	       * the Z-factor fit */
+#define RW_FLUID_WARN_GOR_MAX                                                  \
+	0x40u /* GOR above the gas the oil can                                 \
+	       * dissolve at p, T (B&W eq. 21):                                \
+	       * free gas would be present */
+#define RW_FLUID_WARN_VAPOUR                                                   \
+	0x80u /* p below the saturation pressure                               \
+	       * of pure water at T (IAPWS-IF97                                \
+	       * eq. 30): water would boil; the                                \
+	       * liquid correlation is extrapolated */
 
 /* Fitted ranges (warning thresholds), see the header paragraph.
  * Water and brine, B&W 1992 (from memory: the velocity polynomial eq. 28
@@ -123,7 +126,7 @@ typedef struct rw_fluid_phase {
  * RW_ERANGE when the polynomials give a non-positive density or velocity
  * (far outside the fit). Outputs NaN on error. */
 int rw_fluid_water_props(double p_mpa, double t_degc, rw_fluid_phase *out,
-			 unsigned *warn);
+                         unsigned *warn);
 
 /* NaCl brine after Batzle & Wang 1992: density eq. 27b, velocity eq. 29,
  * K = rho v^2. sal_frac: NaCl weight fraction in [0, 0.35]; p, t as for
@@ -133,7 +136,7 @@ int rw_fluid_water_props(double p_mpa, double t_degc, rw_fluid_phase *out,
  * errors: RW_EDOM for p <= 0, t < -22 degC, salinity outside [0, 0.35] or
  * non-finite input; RW_ERANGE for a non-positive result. NaN on error. */
 int rw_fluid_brine_props(double p_mpa, double t_degc, double sal_frac,
-			 rw_fluid_phase *out, unsigned *warn);
+                         rw_fluid_phase *out, unsigned *warn);
 
 /* Saturation (boiling) pressure of pure water at t_degc, MPa, after
  * IAPWS-IF97 eq. 30 (valid 0.01-373.946 degC).
@@ -151,7 +154,7 @@ int rw_fluid_water_psat(double t_degc, double *psat_mpa);
  * or non-finite input; RW_ERANGE when Z or the K_S denominator is not
  * positive (far outside the fit). Outputs (and *z) NaN on error. */
 int rw_fluid_gas_props(double p_mpa, double t_degc, double gravity,
-		       rw_fluid_phase *out, double *z, unsigned *warn);
+                       rw_fluid_phase *out, double *z, unsigned *warn);
 
 /* Dead (gas-free) oil after Batzle & Wang 1992: reference density
  * rho_0 = 141.5 / (API + 131.5) g/cm^3, pressure correction eq. 18,
@@ -161,7 +164,7 @@ int rw_fluid_gas_props(double p_mpa, double t_degc, double gravity,
  * errors: RW_EDOM for p <= 0, t <= -273.15 degC, api <= 0.5 or non-finite;
  * RW_ERANGE for a non-positive result. NaN on error. */
 int rw_fluid_deadoil_props(double p_mpa, double t_degc, double api,
-			   rw_fluid_phase *out, unsigned *warn);
+                           rw_fluid_phase *out, unsigned *warn);
 
 /* Live (gas-saturated) oil after Batzle & Wang 1992. gor_ll: dissolved
  * gas R_G in L/L (>= 0); gas_gravity of the dissolved gas (> 0).
@@ -176,8 +179,8 @@ int rw_fluid_deadoil_props(double p_mpa, double t_degc, double api,
  * gas_gravity <= 0, rho' >= 1.08 g/cm^3 or non-finite input; RW_ERANGE
  * for a non-positive result. Outputs (and *b0) NaN on error. */
 int rw_fluid_liveoil_props(double p_mpa, double t_degc, double api,
-			   double gor_ll, double gas_gravity,
-			   rw_fluid_phase *out, double *b0, unsigned *warn);
+                           double gor_ll, double gas_gravity,
+                           rw_fluid_phase *out, double *b0, unsigned *warn);
 
 /* Mixtures of n pore-fluid phases with saturations sat[i] (fractions of
  * the pore volume, each in [0, 1], summing to 1 within 1e-6; they are used
@@ -188,12 +191,12 @@ int rw_fluid_liveoil_props(double p_mpa, double t_degc, double api,
  * non-positive or non-finite k or rho. Output NaN on error. */
 
 /* Wood 1955 (uniform saturation): 1/K = sum S_i / K_i (Reuss average). */
-int rw_fluid_mix_wood(size_t n, const rw_fluid_phase *phase,
-		      const double *sat, rw_fluid_phase *out);
+int rw_fluid_mix_wood(size_t n, const rw_fluid_phase *phase, const double *sat,
+                      rw_fluid_phase *out);
 
 /* Voigt average K = sum S_i K_i (patchy-saturation upper bound). */
-int rw_fluid_mix_voigt(size_t n, const rw_fluid_phase *phase,
-		       const double *sat, rw_fluid_phase *out);
+int rw_fluid_mix_voigt(size_t n, const rw_fluid_phase *phase, const double *sat,
+                       rw_fluid_phase *out);
 
 /* Brie et al. 1995 patchy mixing: K = (K_w - K_hc) S_w^e + K_hc, where
  * phase[i_water] is the water (brine) phase with saturation S_w, and K_hc
@@ -205,9 +208,8 @@ int rw_fluid_mix_voigt(size_t n, const rw_fluid_phase *phase,
  * drops below the Wood mix of all phases, as the published formula does.
  * errors: as above, plus RW_EINVAL for i_water >= n and RW_EDOM for e < 1
  * or non-finite e. */
-int rw_fluid_mix_brie(size_t n, const rw_fluid_phase *phase,
-		      const double *sat, size_t i_water, double exponent,
-		      rw_fluid_phase *out);
+int rw_fluid_mix_brie(size_t n, const rw_fluid_phase *phase, const double *sat,
+                      size_t i_water, double exponent, rw_fluid_phase *out);
 
 #ifdef __cplusplus
 }

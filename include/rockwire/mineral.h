@@ -69,9 +69,9 @@ enum {
  * modulus, density or fraction, or a fraction above 1. Outputs NaN on
  * error. */
 int rw_mineral_mix(int method, size_t n, const double *k_pa,
-		   const double *mu_pa, const double *rho_kgm3,
-		   const double *frac, double *k_out_pa, double *mu_out_pa,
-		   double *rho_out_kgm3);
+                   const double *mu_pa, const double *rho_kgm3,
+                   const double *frac, double *k_out_pa, double *mu_out_pa,
+                   double *rho_out_kgm3);
 
 #ifdef __cplusplus
 }

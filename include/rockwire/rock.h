@@ -16,11 +16,13 @@ extern "C" {
 #endif
 
 /* Warning bits (a set; 0 = none). The result is still computed. */
-#define RW_ROCK_WARN_KDRY_NEG 0x01u /* dry-frame K < 0: the inputs are
-				     * inconsistent with Gassmann (e.g. a
-				     * wrong K_min, K_fl or porosity) */
-#define RW_ROCK_WARN_KDRY_GT_KMIN 0x02u /* dry-frame K > mineral K: a frame
-					 * stiffer than its mineral */
+#define RW_ROCK_WARN_KDRY_NEG                                                  \
+	0x01u /* dry-frame K < 0: the inputs are                               \
+	       * inconsistent with Gassmann (e.g. a                            \
+	       * wrong K_min, K_fl or porosity) */
+#define RW_ROCK_WARN_KDRY_GT_KMIN                                              \
+	0x02u                      /* dry-frame K > mineral K: a frame         \
+	                            * stiffer than its mineral */
 #define RW_ROCK_WARN_PHI_LOW 0x04u /* porosity below RW_ROCK_PHI_LOW */
 
 /* Low-porosity warning threshold, a fraction. Below about 5 % the change
@@ -41,7 +43,7 @@ extern "C" {
  * non-finite input; RW_ERANGE when the denominator is not positive or the
  * result is not finite. *k_sat_pa NaN on error. */
 int rw_rock_gassmann_sat(double k_dry_pa, double k_min_pa, double k_fl_pa,
-			 double phi, double *k_sat_pa, unsigned *warn);
+                         double phi, double *k_sat_pa, unsigned *warn);
 
 /* Dry-frame bulk modulus from the saturated one, Gassmann 1951 inverted
  * (Mavko, Mukerji & Dvorkin 2009, chapter 6):
@@ -52,7 +54,7 @@ int rw_rock_gassmann_sat(double k_dry_pa, double k_min_pa, double k_fl_pa,
  * errors: RW_EDOM as above or k_sat <= 0; RW_ERANGE when the denominator
  * is zero or the result not finite. *k_dry_pa NaN on error. */
 int rw_rock_gassmann_dry(double k_sat_pa, double k_min_pa, double k_fl_pa,
-			 double phi, double *k_dry_pa, unsigned *warn);
+                         double phi, double *k_dry_pa, unsigned *warn);
 
 /* Result of a substitution: velocities, density and moduli of the rock
  * with the new fluid, and the dry-frame bulk modulus used. */
@@ -76,11 +78,11 @@ typedef struct rw_rock_subst {
  * errors: RW_EDOM for an input outside the ranges above or non-finite;
  * RW_ERANGE when rho_2 <= 0, K_2 <= 0 or a Gassmann denominator vanishes.
  * All outputs NaN on error. */
-int rw_rock_fluid_subst(double vp_ms, double vs_ms, double rho_kgm3,
-			double phi, double k_min_pa, double k_fl_old_pa,
-			double rho_fl_old_kgm3, double k_fl_new_pa,
-			double rho_fl_new_kgm3, rw_rock_subst *out,
-			unsigned *warn);
+int rw_rock_fluid_subst(double vp_ms, double vs_ms, double rho_kgm3, double phi,
+                        double k_min_pa, double k_fl_old_pa,
+                        double rho_fl_old_kgm3, double k_fl_new_pa,
+                        double rho_fl_new_kgm3, rw_rock_subst *out,
+                        unsigned *warn);
 
 /* Saturated rock from a dry frame: k_dry_pa >= 0, mu_dry_pa >= 0,
  * phi in (0, 1), mineral k_min_pa > 0 and rho_min_kgm3 > 0, fluid
@@ -91,9 +93,9 @@ int rw_rock_fluid_subst(double vp_ms, double vs_ms, double rho_kgm3,
  * errors: RW_EDOM for an input outside those ranges or non-finite;
  * RW_ERANGE as rw_rock_gassmann_sat. All outputs NaN on error. */
 int rw_rock_gassmann_frame(double k_dry_pa, double mu_dry_pa, double phi,
-			   double k_min_pa, double rho_min_kgm3,
-			   double k_fl_pa, double rho_fl_kgm3,
-			   rw_rock_subst *out, unsigned *warn);
+                           double k_min_pa, double rho_min_kgm3, double k_fl_pa,
+                           double rho_fl_kgm3, rw_rock_subst *out,
+                           unsigned *warn);
 
 #ifdef __cplusplus
 }

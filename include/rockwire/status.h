@@ -9,11 +9,11 @@ extern "C" {
 #endif
 
 enum {
-	RW_OK = 0,       /* success */
-	RW_EDOM = 1,     /* input outside the domain of the formula */
-	RW_ERANGE = 2,   /* result not representable or not physical */
-	RW_EINVAL = 3,   /* inconsistent or underdetermined inputs */
-	RW_EMAXITER = 4  /* an iteration did not converge */
+	RW_OK = 0,      /* success */
+	RW_EDOM = 1,    /* input outside the domain of the formula */
+	RW_ERANGE = 2,  /* result not representable or not physical */
+	RW_EINVAL = 3,  /* inconsistent or underdetermined inputs */
+	RW_EMAXITER = 4 /* an iteration did not converge */
 };
 
 /* Returns a static, human-readable description of a status code; never

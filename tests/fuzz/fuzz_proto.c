@@ -51,7 +51,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 		size -= first + 1;
 		if (memchr(data, '\n', size))
 			size = (size_t)((const char *)memchr(data, '\n', size) -
-					(const char *)data);
+			                (const char *)data);
 	}
 	rw_proto_handle(s, (const char *)data, size, &out);
 	if (out.len && out.data[out.len - 1] != '\n')

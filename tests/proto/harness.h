@@ -97,20 +97,20 @@ static inline void h_close_to(double got, double want, double rel)
 {
 	if (!(fabs(got - want) <= rel * fabs(want))) {
 		print_error("got %.10g want %.10g (rel tol %g)\n", got, want,
-			    rel);
+		            rel);
 		fail();
 	}
 }
 
 /* Runs line and checks it fails with -32602 naming param. */
 static inline void h_expect_invalid(harness *h, const char *line,
-				    const char *param)
+                                    const char *param)
 {
 	cJSON *r = h_call(h, line);
 	assert_non_null(r);
 	if (h_code(r) != -32602 || strcmp(h_param(r), param) != 0) {
 		print_error("code %d param '%s', want -32602 '%s' for %s\n",
-			    h_code(r), h_param(r), param, line);
+		            h_code(r), h_param(r), param, line);
 		fail();
 	}
 	cJSON_Delete(r);

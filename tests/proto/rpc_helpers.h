@@ -64,7 +64,7 @@ static inline const cJSON *result_of(const cJSON *resp)
 /* Calls and checks that the call fails with -32602 naming `param` and
  * (when want is not NULL) a reason containing `want`. */
 static inline void expect_invalid(const char *line, const char *param,
-                           const char *want)
+                                  const char *want)
 {
 	cJSON *r = call(line);
 	const cJSON *e = cJSON_GetObjectItemCaseSensitive(r, "error");

@@ -15,8 +15,8 @@
 
 #include "proto/harness.h"
 
-#define REQ(method, params)                                                  \
-	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"" method                 \
+#define REQ(method, params)                                                    \
+	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"" method                   \
 	"\",\"params\":" params "}"
 
 static int setup(void **state)
@@ -35,14 +35,14 @@ static int teardown(void **state)
 }
 
 static void expect_error(harness *h, const char *line, int code,
-			 const char *param, int id_null)
+                         const char *param, int id_null)
 {
 	cJSON *r = h_call(h, line);
 	if (!r)
 		fail_msg("no JSON response for %s: '%s'", line, h->out.data);
 	if (h_code(r) != code)
 		fail_msg("%s: code %d, want %d (%s)", line, h_code(r), code,
-			 h->out.data);
+		         h->out.data);
 	if (param && strcmp(h_param(r), param) != 0)
 		fail_msg("%s: param '%s', want '%s'", line, h_param(r), param);
 	if (id_null)
@@ -57,22 +57,26 @@ static void test_spec_examples(void **state)
 	const char *raw;
 
 	/* rpc call with invalid JSON */
-	expect_error(h, "{\"jsonrpc\": \"2.0\", \"method\": \"foobar, "
-			"\"params\": \"bar\", \"baz]",
-		     -32700, NULL, 1);
+	expect_error(h,
+	             "{\"jsonrpc\": \"2.0\", \"method\": \"foobar, "
+	             "\"params\": \"bar\", \"baz]",
+	             -32700, NULL, 1);
 	/* invalid Request object: method must be a string */
-	expect_error(h, "{\"jsonrpc\": \"2.0\", \"method\": 1, \"params\": "
-			"\"bar\"}",
-		     -32600, "method", 1);
+	expect_error(h,
+	             "{\"jsonrpc\": \"2.0\", \"method\": 1, \"params\": "
+	             "\"bar\"}",
+	             -32600, "method", 1);
 	/* non-existent method */
-	expect_error(h, "{\"jsonrpc\": \"2.0\", \"method\": \"foobar\", "
-			"\"id\": \"1\"}",
-		     -32601, "method", 0);
+	expect_error(h,
+	             "{\"jsonrpc\": \"2.0\", \"method\": \"foobar\", "
+	             "\"id\": \"1\"}",
+	             -32601, "method", 0);
 	/* batch, invalid JSON */
-	expect_error(h, "[{\"jsonrpc\": \"2.0\", \"method\": \"sum\", "
-			"\"params\": [1,2,4], \"id\": \"1\"},{\"jsonrpc\": "
-			"\"2.0\", \"method\"]",
-		     -32700, NULL, 1);
+	expect_error(h,
+	             "[{\"jsonrpc\": \"2.0\", \"method\": \"sum\", "
+	             "\"params\": [1,2,4], \"id\": \"1\"},{\"jsonrpc\": "
+	             "\"2.0\", \"method\"]",
+	             -32700, NULL, 1);
 	/* empty array: one error object, not an array */
 	expect_error(h, "[]", -32600, NULL, 1);
 	/* an invalid batch but not empty: an array holding one error */
@@ -93,19 +97,19 @@ static void test_spec_examples(void **state)
 	}
 	/* all notifications: nothing at all */
 	raw = h_raw(h, "[{\"jsonrpc\":\"2.0\",\"method\":\"service.info\"},"
-		       "{\"jsonrpc\":\"2.0\",\"method\":\"nope\"}]");
+	               "{\"jsonrpc\":\"2.0\",\"method\":\"nope\"}]");
 	assert_string_equal(raw, "");
 	/* a mixed batch: responses for the calls only, in order */
 	raw = h_raw(h, "[{\"jsonrpc\":\"2.0\",\"method\":\"service.info\","
-		       "\"id\":\"a\"},{\"jsonrpc\":\"2.0\",\"method\":"
-		       "\"service.info\"},{\"foo\":\"boo\"},{\"jsonrpc\":"
-		       "\"2.0\",\"method\":\"nope\",\"id\":5}]");
+	               "\"id\":\"a\"},{\"jsonrpc\":\"2.0\",\"method\":"
+	               "\"service.info\"},{\"foo\":\"boo\"},{\"jsonrpc\":"
+	               "\"2.0\",\"method\":\"nope\",\"id\":5}]");
 	{
 		cJSON *r = cJSON_Parse(raw);
 		assert_int_equal(cJSON_GetArraySize(r), 3);
 		assert_string_equal(
 		    cJSON_GetObjectItem(cJSON_GetArrayItem(r, 0), "id")
-			->valuestring,
+		        ->valuestring,
 		    "a");
 		assert_int_equal(h_code(cJSON_GetArrayItem(r, 1)), -32600);
 		assert_int_equal(h_code(cJSON_GetArrayItem(r, 2)), -32601);
@@ -113,7 +117,7 @@ static void test_spec_examples(void **state)
 	}
 	/* exactly one line per response */
 	raw = h_raw(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-		       "\"rpc.discover\"}");
+	               "\"rpc.discover\"}");
 	assert_non_null(strchr(raw, '\n'));
 	assert_int_equal(strchr(raw, '\n') - raw + 1, (long)strlen(raw));
 }
@@ -124,15 +128,15 @@ static void test_ids_and_envelope(void **state)
 	cJSON *r;
 
 	r = h_call(h, "{\"jsonrpc\":\"2.0\",\"id\":\"x-7\",\"method\":"
-		      "\"service.info\"}");
+	              "\"service.info\"}");
 	assert_string_equal(cJSON_GetObjectItem(r, "id")->valuestring, "x-7");
 	cJSON_Delete(r);
 	r = h_call(h, "{\"jsonrpc\":\"2.0\",\"id\":42,\"method\":"
-		      "\"service.info\"}");
+	              "\"service.info\"}");
 	assert_int_equal(cJSON_GetObjectItem(r, "id")->valueint, 42);
 	cJSON_Delete(r);
 	r = h_call(h, "{\"jsonrpc\":\"2.0\",\"id\":null,\"method\":"
-		      "\"service.info\"}");
+	              "\"service.info\"}");
 	assert_true(cJSON_IsNull(cJSON_GetObjectItem(r, "id")));
 	assert_non_null(h_result(r, "version"));
 	cJSON_Delete(r);
@@ -142,42 +146,49 @@ static void test_ids_and_envelope(void **state)
 	/* blank and CR-terminated lines */
 	assert_string_equal(h_raw(h, "   "), "");
 	r = h_call(h, "{\"jsonrpc\":\"2.0\",\"id\":3,\"method\":"
-		      "\"service.info\"}\r");
+	              "\"service.info\"}\r");
 	assert_int_equal(h_code(r), 0);
 	cJSON_Delete(r);
 	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":[1],\"method\":\"x\"}",
-		     -32600, "id", 1);
+	             -32600, "id", 1);
 	expect_error(h, "{\"jsonrpc\":\"1.0\",\"id\":1,\"method\":\"x\"}",
-		     -32600, "jsonrpc", 0);
+	             -32600, "jsonrpc", 0);
 	expect_error(h, "{\"id\":1,\"method\":\"service.info\"}", -32600,
-		     "jsonrpc", 0);
-	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-			"\"service.info\",\"extra\":1}",
-		     -32600, "extra", 0);
-	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"id\":2,\"method\":"
-			"\"service.info\"}",
-		     -32600, "id", 1);
-	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-			"\"service.info\",\"params\":5}",
-		     -32600, "params", 0);
-	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-			"\"service.info\",\"params\":[1]}",
-		     -32602, "params", 0);
-	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-			"\"service.info\",\"params\":{\"x\":1}}",
-		     -32602, "x", 0);
+	             "jsonrpc", 0);
+	expect_error(h,
+	             "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	             "\"service.info\",\"extra\":1}",
+	             -32600, "extra", 0);
+	expect_error(h,
+	             "{\"jsonrpc\":\"2.0\",\"id\":1,\"id\":2,\"method\":"
+	             "\"service.info\"}",
+	             -32600, "id", 1);
+	expect_error(h,
+	             "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	             "\"service.info\",\"params\":5}",
+	             -32600, "params", 0);
+	expect_error(h,
+	             "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	             "\"service.info\",\"params\":[1]}",
+	             -32602, "params", 0);
+	expect_error(h,
+	             "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	             "\"service.info\",\"params\":{\"x\":1}}",
+	             -32602, "x", 0);
 	/* bytes: invalid UTF-8, raw control bytes, trailing garbage */
-	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"\xc3\x28\"}",
-		     -32700, NULL, 1);
+	expect_error(h,
+	             "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"\xc3\x28\"}",
+	             -32700, NULL, 1);
 	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"a\x01\"}",
-		     -32700, NULL, 1);
+	             -32700, NULL, 1);
 	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"x\"} x",
-		     -32700, NULL, 1);
+	             -32700, NULL, 1);
 	expect_error(h, "NaN", -32700, NULL, 1);
 	/* U+0000 would be cut short by the parser: refused, not shortened */
-	expect_error(h, "{\"jsonrpc\":\"2.0\",\"id\":\"a\\u0000b\","
-			"\"method\":\"service.info\"}",
-		     -32600, NULL, 1);
+	expect_error(h,
+	             "{\"jsonrpc\":\"2.0\",\"id\":\"a\\u0000b\","
+	             "\"method\":\"service.info\"}",
+	             -32600, NULL, 1);
 	/* nesting beyond the limit (64) is refused before parsing */
 	{
 		char deep[400];
@@ -198,8 +209,8 @@ static void test_elastic_convert(void **state)
 	cJSON *r;
 	const cJSON *vp, *qc, *u;
 
-	r = h_call(h, REQ("elastic.convert",
-			  "{\"rho\":2.65,\"k\":36.6,\"mu\":45}"));
+	r = h_call(
+	    h, REQ("elastic.convert", "{\"rho\":2.65,\"k\":36.6,\"mu\":45}"));
 	/* quartz: Mavko et al. 2009 mineral table (from memory) gives Vp
 	 * about 6038 m/s */
 	assert_true(fabs(h_result(r, "vp")->valuedouble - 6038) < 1);
@@ -207,13 +218,13 @@ static void test_elastic_convert(void **state)
 	u = h_result(r, "units");
 	assert_string_equal(cJSON_GetObjectItem(u, "vp")->valuestring, "m/s");
 	assert_string_equal(cJSON_GetObjectItem(u, "dtp")->valuestring,
-			    "us/ft");
+	                    "us/ft");
 	cJSON_Delete(r);
 
 	/* broadcasting: one array, scalars follow */
 	r = h_call(h, REQ("elastic.convert",
-			  "{\"rho\":[2.2,2.3,null],\"vp\":3000,\"vs\":[1500,"
-			  "2200,1500]}"));
+	                  "{\"rho\":[2.2,2.3,null],\"vp\":3000,\"vs\":[1500,"
+	                  "2200,1500]}"));
 	vp = h_result(r, "vp");
 	qc = h_result(r, "qc");
 	assert_int_equal(cJSON_GetArraySize(vp), 3);
@@ -227,8 +238,9 @@ static void test_elastic_convert(void **state)
 	cJSON_Delete(r);
 
 	/* impossible sample: vp/vs below 2/sqrt(3) gives K < 0 */
-	r = h_call(h, REQ("elastic.convert",
-			  "{\"rho\":2.3,\"vp\":[3000,3000],\"vs\":[1500,2700]}"));
+	r = h_call(h,
+	           REQ("elastic.convert",
+	               "{\"rho\":2.3,\"vp\":[3000,3000],\"vs\":[1500,2700]}"));
 	vp = h_result(r, "vp");
 	qc = h_result(r, "qc");
 	assert_true(cJSON_IsNull(cJSON_GetArrayItem(vp, 1)));
@@ -238,12 +250,11 @@ static void test_elastic_convert(void **state)
 
 	/* units in and out: km/s and kg/m3, slowness in us/m */
 	r = h_call(h, REQ("elastic.convert",
-			  "{\"rho\":2300,\"vp\":3,\"vs\":1.5,\"units\":{"
-			  "\"velocity\":\"km/s\",\"density\":\"kg/m3\","
-			  "\"slowness\":\"us/m\",\"modulus\":\"MPa\"}}"));
+	                  "{\"rho\":2300,\"vp\":3,\"vs\":1.5,\"units\":{"
+	                  "\"velocity\":\"km/s\",\"density\":\"kg/m3\","
+	                  "\"slowness\":\"us/m\",\"modulus\":\"MPa\"}}"));
 	assert_true(fabs(h_result(r, "vp")->valuedouble - 3) < 1e-12);
-	assert_true(fabs(h_result(r, "dtp")->valuedouble - 1e6 / 3000) <
-		    1e-9);
+	assert_true(fabs(h_result(r, "dtp")->valuedouble - 1e6 / 3000) < 1e-9);
 	/* mu = rho vs^2 = 2300 * 1500^2 Pa = 5175 MPa */
 	assert_true(fabs(h_result(r, "mu")->valuedouble - 5175) < 1e-9);
 	assert_string_equal(
@@ -252,60 +263,69 @@ static void test_elastic_convert(void **state)
 	cJSON_Delete(r);
 
 	/* slowness input: 100 us/ft is 3048 m/s */
-	r = h_call(h, REQ("elastic.convert",
-			  "{\"rho\":2.3,\"dtp\":100,\"dts\":200}"));
+	r = h_call(
+	    h, REQ("elastic.convert", "{\"rho\":2.3,\"dtp\":100,\"dts\":200}"));
 	assert_true(fabs(h_result(r, "vp")->valuedouble - 3048) < 1e-9);
 	cJSON_Delete(r);
 
 	/* structural mistakes */
 	expect_error(h, REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500}"),
-		     -32602, "rho", 0);
+	             -32602, "rho", 0);
 	expect_error(h, REQ("elastic.convert", "{\"rho\":2.3,\"vp\":3000}"),
-		     -32602, "vp", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"k\":9}"),
-		     -32602, NULL, 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":3000,\"ai\":6900}"),
-		     -32602, "ai", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":3000,\"e\":20}"),
-		     -32602, "e", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":[2.3,2.4],\"vp\":[3000,3100,3200],"
-			    "\"vs\":1500}"),
-		     -32602, "vp", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":\"3000\",\"vs\":1500}"),
-		     -32602, "vp", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":[3000,\"x\"],\"vs\":1500}"),
-		     -32602, "vp", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":1e400,\"vs\":1500}"),
-		     -32602, "vp", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":[],\"vs\":1500}"),
-		     -32602, "vp", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"vq\":1}"),
-		     -32602, "vq", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":3,\"vs\":1,\"units\":{"
-			    "\"velocity\":\"mph\"}}"),
-		     -32602, "units", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":3,\"vs\":1,\"units\":{"
-			    "\"speed\":\"m/s\"}}"),
-		     -32602, "units", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"qc\":{"
-			    "\"vp_min\":9000,\"vp_max\":100}}"),
-		     -32602, "qc.", 0);
-	expect_error(h, REQ("elastic.convert",
-			    "{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"qc\":{"
-			    "\"vpmin\":9000}}"),
-		     -32602, "qc.vpmin", 0);
+	             -32602, "vp", 0);
+	expect_error(h,
+	             REQ("elastic.convert",
+	                 "{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"k\":9}"),
+	             -32602, NULL, 0);
+	expect_error(
+	    h, REQ("elastic.convert", "{\"rho\":2.3,\"vp\":3000,\"ai\":6900}"),
+	    -32602, "ai", 0);
+	expect_error(
+	    h, REQ("elastic.convert", "{\"rho\":2.3,\"vp\":3000,\"e\":20}"),
+	    -32602, "e", 0);
+	expect_error(h,
+	             REQ("elastic.convert",
+	                 "{\"rho\":[2.3,2.4],\"vp\":[3000,3100,3200],"
+	                 "\"vs\":1500}"),
+	             -32602, "vp", 0);
+	expect_error(
+	    h,
+	    REQ("elastic.convert", "{\"rho\":2.3,\"vp\":\"3000\",\"vs\":1500}"),
+	    -32602, "vp", 0);
+	expect_error(h,
+	             REQ("elastic.convert",
+	                 "{\"rho\":2.3,\"vp\":[3000,\"x\"],\"vs\":1500}"),
+	             -32602, "vp", 0);
+	expect_error(
+	    h, REQ("elastic.convert", "{\"rho\":2.3,\"vp\":1e400,\"vs\":1500}"),
+	    -32602, "vp", 0);
+	expect_error(
+	    h, REQ("elastic.convert", "{\"rho\":2.3,\"vp\":[],\"vs\":1500}"),
+	    -32602, "vp", 0);
+	expect_error(h,
+	             REQ("elastic.convert",
+	                 "{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"vq\":1}"),
+	             -32602, "vq", 0);
+	expect_error(h,
+	             REQ("elastic.convert",
+	                 "{\"rho\":2.3,\"vp\":3,\"vs\":1,\"units\":{"
+	                 "\"velocity\":\"mph\"}}"),
+	             -32602, "units", 0);
+	expect_error(h,
+	             REQ("elastic.convert",
+	                 "{\"rho\":2.3,\"vp\":3,\"vs\":1,\"units\":{"
+	                 "\"speed\":\"m/s\"}}"),
+	             -32602, "units", 0);
+	expect_error(h,
+	             REQ("elastic.convert",
+	                 "{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"qc\":{"
+	                 "\"vp_min\":9000,\"vp_max\":100}}"),
+	             -32602, "qc.", 0);
+	expect_error(h,
+	             REQ("elastic.convert",
+	                 "{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"qc\":{"
+	                 "\"vpmin\":9000}}"),
+	             -32602, "qc.vpmin", 0);
 }
 
 /* Overridden plausibility ranges change the flags, not the values. */
@@ -313,8 +333,8 @@ static void test_qc_override(void **state)
 {
 	harness *h = *state;
 	cJSON *r = h_call(h, REQ("elastic.convert",
-				 "{\"rho\":1.9,\"vp\":1300,\"vs\":300,\"qc\":{"
-				 "\"vp_min\":1500}}"));
+	                         "{\"rho\":1.9,\"vp\":1300,\"vs\":300,\"qc\":{"
+	                         "\"vp_min\":1500}}"));
 	assert_true(h_result(r, "qc")->valueint & (1 << 6));
 	assert_true(fabs(h_result(r, "vp")->valuedouble - 1300) < 1e-9);
 	cJSON_Delete(r);
@@ -327,16 +347,15 @@ static void test_service_info(void **state)
 	harness *h = *state;
 	cJSON *r = h_call(h, REQ("service.info", "{}"));
 	const cJSON *c = h_result(r, "counters");
-	assert_non_null(strstr(h_result(r, "caution")->valuestring,
-			       "qualified review"));
-	assert_true(cJSON_GetObjectItem(h_result(r, "limits"),
-					"max_line_bytes")
-			->valuedouble >= 64.0 * 1024 * 1024);
+	assert_non_null(
+	    strstr(h_result(r, "caution")->valuestring, "qualified review"));
+	assert_true(cJSON_GetObjectItem(h_result(r, "limits"), "max_line_bytes")
+	                ->valuedouble >= 64.0 * 1024 * 1024);
 	assert_true(cJSON_GetArraySize(h_result(r, "qc_flags")) >= 8);
 	assert_true(cJSON_GetObjectItem(c, "requests")->valueint >= 1);
-	assert_true(cJSON_GetObjectItem(cJSON_GetObjectItem(c, "errors"),
-					"-32602")
-			->valueint >= 0);
+	assert_true(
+	    cJSON_GetObjectItem(cJSON_GetObjectItem(c, "errors"), "-32602")
+	        ->valueint >= 0);
 	cJSON_Delete(r);
 	r = h_call(h, REQ("rpc.discover", "{}"));
 	assert_string_equal(h_result(r, "openrpc")->valuestring, "1.2.6");
@@ -356,18 +375,18 @@ static void test_session(void **state)
 	r = h_call(h, REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500}"));
 	assert_true(fabs(h_result(r, "rho")->valuedouble - 2.5) < 1e-12);
 	cJSON_Delete(r);
-	r = h_call(h, REQ("elastic.convert",
-			  "{\"vp\":3000,\"vs\":1500,\"rho\":2.1}"));
+	r = h_call(
+	    h, REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500,\"rho\":2.1}"));
 	assert_true(fabs(h_result(r, "rho")->valuedouble - 2.1) < 1e-12);
 	cJSON_Delete(r);
 	expect_error(h, REQ("session.set", "{\"rho\":\"heavy\"}"), -32602,
-		     "rho", 0);
+	             "rho", 0);
 	expect_error(h, REQ("session.set", "{\"nonesuch\":1}"), -32602,
-		     "nonesuch", 0);
+	             "nonesuch", 0);
 	r = h_call(h, REQ("session.reset", "{}"));
 	cJSON_Delete(r);
 	expect_error(h, REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500}"),
-		     -32602, "rho", 0);
+	             -32602, "rho", 0);
 }
 
 /* A million samples complete (no default limit below that). */
@@ -379,12 +398,12 @@ static void test_million_samples(void **state)
 	cJSON *r;
 
 	len += (size_t)snprintf(line + len, cap - len,
-				"{\"jsonrpc\":\"2.0\",\"id\":9,\"method\":"
-				"\"elastic.convert\",\"params\":{\"rho\":2.4,"
-				"\"vs\":1500,\"vp\":[");
+	                        "{\"jsonrpc\":\"2.0\",\"id\":9,\"method\":"
+	                        "\"elastic.convert\",\"params\":{\"rho\":2.4,"
+	                        "\"vs\":1500,\"vp\":[");
 	for (size_t i = 0; i < n; i++)
 		len += (size_t)snprintf(line + len, cap - len, "%s%zu",
-					i ? "," : "", 3000 + i % 1000);
+		                        i ? "," : "", 3000 + i % 1000);
 	len += (size_t)snprintf(line + len, cap - len, "]}}");
 	h->out.len = 0;
 	rw_proto_handle(h->s, line, len, &h->out);
@@ -399,19 +418,17 @@ static void test_million_samples(void **state)
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test_setup_teardown(test_spec_examples, setup,
-						teardown),
-		cmocka_unit_test_setup_teardown(test_ids_and_envelope, setup,
-						teardown),
-		cmocka_unit_test_setup_teardown(test_elastic_convert, setup,
-						teardown),
-		cmocka_unit_test_setup_teardown(test_qc_override, setup,
-						teardown),
-		cmocka_unit_test_setup_teardown(test_service_info, setup,
-						teardown),
-		cmocka_unit_test_setup_teardown(test_session, setup, teardown),
-		cmocka_unit_test_setup_teardown(test_million_samples, setup,
-						teardown),
+	    cmocka_unit_test_setup_teardown(test_spec_examples, setup,
+	                                    teardown),
+	    cmocka_unit_test_setup_teardown(test_ids_and_envelope, setup,
+	                                    teardown),
+	    cmocka_unit_test_setup_teardown(test_elastic_convert, setup,
+	                                    teardown),
+	    cmocka_unit_test_setup_teardown(test_qc_override, setup, teardown),
+	    cmocka_unit_test_setup_teardown(test_service_info, setup, teardown),
+	    cmocka_unit_test_setup_teardown(test_session, setup, teardown),
+	    cmocka_unit_test_setup_teardown(test_million_samples, setup,
+	                                    teardown),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -33,9 +33,6 @@ static int teardown(void **state)
 	return 0;
 }
 
-
-
-
 static void test_gardner(void **state)
 {
 	(void)state;
@@ -135,14 +132,16 @@ static void test_han(void **state)
 	cJSON *r = h_call(&H, REQ("{\"relation\":\"han\",\"porosity\":0.2,"
 	                          "\"clay\":[0.1,0.6]}"));
 	h_close_to(h_num(r, "vp", 0), 1000 * (5.59 - 6.93 * 0.2 - 2.18 * 0.1),
-	         1e-12);
+	           1e-12);
 	h_close_to(h_num(r, "vs", 0), 1000 * (3.52 - 4.91 * 0.2 - 1.89 * 0.1),
-	         1e-12);
+	           1e-12);
 	assert_int_equal((int)h_num(r, "qc", 1), 1 << 29); /* clay > 0.5 */
 	cJSON_Delete(r);
-	h_expect_invalid(&H, REQ("{\"relation\":\"han\",\"porosity\":0.2,\"clay\":0,"
-	                 "\"effective_pressure\":15}"),
-	             "effective_pressure");
+	h_expect_invalid(
+	    &H,
+	    REQ("{\"relation\":\"han\",\"porosity\":0.2,\"clay\":0,"
+	        "\"effective_pressure\":15}"),
+	    "effective_pressure");
 }
 
 static void test_wyllie_raymer(void **state)
@@ -181,42 +180,53 @@ static void test_errors(void **state)
 	(void)state;
 	h_expect_invalid(&H, REQ("{\"vp\":3000}"), "relation");
 	h_expect_invalid(&H, REQ("{\"relation\":\"lindseth\",\"vp\":3000}"),
-	             "relation");
+	                 "relation");
 	h_expect_invalid(&H, REQ("{\"relation\":\"gardner\"}"), "vp");
-	h_expect_invalid(&H, REQ("{\"relation\":\"gardner\",\"vp\":1,\"dtp\":1}"),
-	             "dtp");
-	h_expect_invalid(&H, REQ("{\"relation\":\"gardner\",\"vp\":3000,\"rho\":2}"),
-	             "rho");
-	h_expect_invalid(&H, REQ("{\"relation\":\"gardner\",\"vp\":3000,"
-	                 "\"gardner_a\":-1}"),
-	             "gardner_a");
-	h_expect_invalid(&H, REQ("{\"relation\":\"gardner\",\"vp\":3000,"
-	                 "\"gardner_b\":0}"),
-	             "gardner_b");
-	h_expect_invalid(&H, REQ("{\"relation\":\"mudrock_vs\",\"vp\":3000,"
-	                 "\"lithology\":\"shale\"}"),
-	             "lithology");
-	h_expect_invalid(&H, REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
-	                 "\"lithology\":\"granite\"}"),
-	             "lithology");
-	h_expect_invalid(&H, REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
-	                 "\"lithology\":{\"sandstone\":0.5,\"shale\":0.4}}"),
-	             "lithology");
-	h_expect_invalid(&H, REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
-	                 "\"lithology\":{\"chalk\":1}}"),
-	             "lithology.chalk");
-	h_expect_invalid(&H, REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
-	                 "\"lithology\":{\"shale\":2}}"),
-	             "lithology.shale");
-	h_expect_invalid(&H, REQ("{\"relation\":\"wyllie\",\"porosity\":0.2,"
-	                 "\"v_matrix\":5000}"),
-	             "v_fluid");
-	h_expect_invalid(&H, REQ("{\"relation\":\"han\",\"porosity\":[0.1,0.2],"
-	                 "\"clay\":[0,0,0]}"),
-	             "clay");
-	h_expect_invalid(&H, REQ("{\"relation\":\"gardner\",\"vp\":3000,\"x\":1}"),
-	             "x");
-	h_expect_invalid(&H, REQ("{\"relation\":\"gardner\",\"vp\":\"fast\"}"), "vp");
+	h_expect_invalid(
+	    &H, REQ("{\"relation\":\"gardner\",\"vp\":1,\"dtp\":1}"), "dtp");
+	h_expect_invalid(
+	    &H, REQ("{\"relation\":\"gardner\",\"vp\":3000,\"rho\":2}"), "rho");
+	h_expect_invalid(&H,
+	                 REQ("{\"relation\":\"gardner\",\"vp\":3000,"
+	                     "\"gardner_a\":-1}"),
+	                 "gardner_a");
+	h_expect_invalid(&H,
+	                 REQ("{\"relation\":\"gardner\",\"vp\":3000,"
+	                     "\"gardner_b\":0}"),
+	                 "gardner_b");
+	h_expect_invalid(&H,
+	                 REQ("{\"relation\":\"mudrock_vs\",\"vp\":3000,"
+	                     "\"lithology\":\"shale\"}"),
+	                 "lithology");
+	h_expect_invalid(&H,
+	                 REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
+	                     "\"lithology\":\"granite\"}"),
+	                 "lithology");
+	h_expect_invalid(
+	    &H,
+	    REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
+	        "\"lithology\":{\"sandstone\":0.5,\"shale\":0.4}}"),
+	    "lithology");
+	h_expect_invalid(&H,
+	                 REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
+	                     "\"lithology\":{\"chalk\":1}}"),
+	                 "lithology.chalk");
+	h_expect_invalid(&H,
+	                 REQ("{\"relation\":\"greenberg_castagna\",\"vp\":3000,"
+	                     "\"lithology\":{\"shale\":2}}"),
+	                 "lithology.shale");
+	h_expect_invalid(&H,
+	                 REQ("{\"relation\":\"wyllie\",\"porosity\":0.2,"
+	                     "\"v_matrix\":5000}"),
+	                 "v_fluid");
+	h_expect_invalid(&H,
+	                 REQ("{\"relation\":\"han\",\"porosity\":[0.1,0.2],"
+	                     "\"clay\":[0,0,0]}"),
+	                 "clay");
+	h_expect_invalid(
+	    &H, REQ("{\"relation\":\"gardner\",\"vp\":3000,\"x\":1}"), "x");
+	h_expect_invalid(&H, REQ("{\"relation\":\"gardner\",\"vp\":\"fast\"}"),
+	                 "vp");
 }
 
 int main(void)

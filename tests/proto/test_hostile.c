@@ -21,12 +21,12 @@
 #include "proto/proto.h"
 #include "server/lines.h"
 
-#define OK_REQ                                                               \
-	"{\"jsonrpc\":\"2.0\",\"id\":\"probe\",\"method\":"                  \
-	"\"elastic.convert\",\"params\":{\"rho\":2.4,\"vp\":3000,"           \
+#define OK_REQ                                                                 \
+	"{\"jsonrpc\":\"2.0\",\"id\":\"probe\",\"method\":"                    \
+	"\"elastic.convert\",\"params\":{\"rho\":2.4,\"vp\":3000,"             \
 	"\"vs\":1500}}"
-#define EC(params)                                                           \
-	"{\"jsonrpc\":\"2.0\",\"id\":7,\"method\":\"elastic.convert\","      \
+#define EC(params)                                                             \
+	"{\"jsonrpc\":\"2.0\",\"id\":7,\"method\":\"elastic.convert\","        \
 	"\"params\":" params "}"
 
 enum { NO_ANSWER = 1, RESULT_QC = 2, BATCH = 3 };
@@ -34,141 +34,188 @@ enum { NO_ANSWER = 1, RESULT_QC = 2, BATCH = 3 };
 typedef struct hcase {
 	const char *name;
 	const char *line;
-	size_t len;          /* 0: strlen(line) */
-	int expect;          /* a JSON-RPC error code, NO_ANSWER, RESULT_QC
-				(result with a non-zero qc and null vp), or
-				BATCH */
-	const char *param;   /* error.data.param wanted, or NULL */
-	int batch_n;         /* BATCH: responses wanted ... */
-	int batch_code;      /* ... each with this code (0 = a result) */
+	size_t len;        /* 0: strlen(line) */
+	int expect;        /* a JSON-RPC error code, NO_ANSWER, RESULT_QC
+	                      (result with a non-zero qc and null vp), or
+	                      BATCH */
+	const char *param; /* error.data.param wanted, or NULL */
+	int batch_n;       /* BATCH: responses wanted ... */
+	int batch_code;    /* ... each with this code (0 = a result) */
 } hcase;
 
 static const hcase corpus[] = {
-	/* framing and JSON text (RFC 8259) */
-	{"truncated object", "{\"jsonrpc\":\"2.0\",\"id\":1,\"meth", 0,
-	 -32700, NULL, 0, 0},
-	{"truncated string", "{\"jsonrpc\":\"2.0\",\"id\":\"abc", 0, -32700,
-	 NULL, 0, 0},
-	{"truncated array", "[{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"x\"}",
-	 0, -32700, NULL, 0, 0},
-	{"lone brace", "}", 0, -32700, NULL, 0, 0},
-	{"trailing garbage", "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-	 "\"service.info\"} x", 0, -32700, NULL, 0, 0},
-	{"two values", "{} {}", 0, -32700, NULL, 0, 0},
-	{"deep nesting arrays", NULL, 0, -32600, NULL, 0, 0},
-	{"deep nesting objects", NULL, 0, -32600, NULL, 0, 0},
-	{"NUL byte raw", "{\"jsonrpc\":\"2.0\",\0\"id\":1}", 24, -32700,
-	 NULL, 0, 0},
-	{"NUL only", "\0", 1, -32700, NULL, 0, 0},
-	{"control byte", "{\"jsonrpc\":\"2.0\",\"id\":1,\x01\"method\":"
-	 "\"service.info\"}", 0, -32700, NULL, 0, 0},
-	{"invalid UTF-8 lone continuation", "{\"id\":\"\x80\"}", 0, -32700,
-	 NULL, 0, 0},
-	{"invalid UTF-8 overlong", "{\"id\":\"\xc0\xaf\"}", 0, -32700, NULL,
-	 0, 0},
-	{"invalid UTF-8 surrogate", "{\"id\":\"\xed\xa0\x80\"}", 0, -32700,
-	 NULL, 0, 0},
-	{"invalid UTF-8 truncated", "{\"id\":\"\xe2\x82", 0, -32700, NULL, 0,
-	 0},
-	{"invalid UTF-8 above U+10FFFF", "{\"id\":\"\xf4\x90\x80\x80\"}", 0,
-	 -32700, NULL, 0, 0},
-	{"NaN literal", EC("{\"rho\":2.4,\"vp\":NaN,\"vs\":1500}"), 0, -32700,
-	 NULL, 0, 0},
-	{"Infinity literal", EC("{\"rho\":2.4,\"vp\":Infinity,\"vs\":1500}"),
-	 0, -32700, NULL, 0, 0},
-	{"-Infinity literal", EC("{\"rho\":2.4,\"vp\":-Infinity,\"vs\":1}"),
-	 0, -32700, NULL, 0, 0},
-	{"1e400", EC("{\"rho\":2.4,\"vp\":1e400,\"vs\":1500}"), 0, -32602,
-	 "vp", 0, 0},
-	{"-1e400 in array", EC("{\"rho\":2.4,\"vp\":[3000,-1e400],"
-	 "\"vs\":1500}"), 0, -32602, "vp", 0, 0},
-	/* envelope (JSON-RPC 2.0 section 4) */
-	{"missing jsonrpc", "{\"id\":1,\"method\":\"service.info\"}", 0,
-	 -32600, "jsonrpc", 0, 0},
-	{"wrong jsonrpc", "{\"jsonrpc\":\"1.0\",\"id\":1,\"method\":"
-	 "\"service.info\"}", 0, -32600, "jsonrpc", 0, 0},
-	{"jsonrpc as number", "{\"jsonrpc\":2.0,\"id\":1,\"method\":"
-	 "\"service.info\"}", 0, -32600, "jsonrpc", 0, 0},
-	{"missing method", "{\"jsonrpc\":\"2.0\",\"id\":1}", 0, -32600,
-	 "method", 0, 0},
-	{"method as number", "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":5}", 0,
-	 -32600, "method", 0, 0},
-	{"unknown method", "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-	 "\"elastic.nothing\"}", 0, -32601, "method", 0, 0},
-	{"unknown member", "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-	 "\"service.info\",\"extra\":1}", 0, -32600, "extra", 0, 0},
-	{"params a string", "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-	 "\"service.info\",\"params\":\"x\"}", 0, -32600, "params", 0, 0},
-	{"params an array", EC("[2.4,3000,1500]"), 0, -32602, "params", 0, 0},
-	{"request a number", "42", 0, -32600, NULL, 0, 0},
-	{"request a string", "\"service.info\"", 0, -32600, NULL, 0, 0},
-	{"request null", "null", 0, -32600, NULL, 0, 0},
-	{"duplicate key top", "{\"jsonrpc\":\"2.0\",\"id\":1,\"id\":2,"
-	 "\"method\":\"service.info\"}", 0, -32600, "id", 0, 0},
-	{"duplicate key nested", EC("{\"rho\":2.4,\"vp\":3000,\"vp\":3100,"
-	 "\"vs\":1500}"), 0, -32600, "vp", 0, 0},
-	/* every id type (JSON-RPC 2.0 section 4: string, number, null) */
-	{"id string", "{\"jsonrpc\":\"2.0\",\"id\":\"a-1\",\"method\":"
-	 "\"service.info\"}", 0, 0, NULL, 0, 0},
-	{"id integer", "{\"jsonrpc\":\"2.0\",\"id\":-17,\"method\":"
-	 "\"service.info\"}", 0, 0, NULL, 0, 0},
-	{"id fraction", "{\"jsonrpc\":\"2.0\",\"id\":2.5,\"method\":"
-	 "\"service.info\"}", 0, 0, NULL, 0, 0},
-	{"id null", "{\"jsonrpc\":\"2.0\",\"id\":null,\"method\":"
-	 "\"service.info\"}", 0, 0, NULL, 0, 0},
-	{"id true", "{\"jsonrpc\":\"2.0\",\"id\":true,\"method\":"
-	 "\"service.info\"}", 0, -32600, "id", 0, 0},
-	{"id object", "{\"jsonrpc\":\"2.0\",\"id\":{},\"method\":"
-	 "\"service.info\"}", 0, -32600, "id", 0, 0},
-	{"id array", "{\"jsonrpc\":\"2.0\",\"id\":[1],\"method\":"
-	 "\"service.info\"}", 0, -32600, "id", 0, 0},
-	{"id 1e400", "{\"jsonrpc\":\"2.0\",\"id\":1e400,\"method\":"
-	 "\"service.info\"}", 0, -32600, "id", 0, 0},
-	{"notification", "{\"jsonrpc\":\"2.0\",\"method\":\"service.info\"}",
-	 0, NO_ANSWER, NULL, 0, 0},
-	{"notification with bad params", "{\"jsonrpc\":\"2.0\",\"method\":"
-	 "\"elastic.convert\",\"params\":{\"rho\":\"x\"}}", 0, NO_ANSWER,
-	 NULL, 0, 0},
-	{"blank line", "  \t ", 0, NO_ANSWER, NULL, 0, 0},
-	{"CR only", "\r", 0, NO_ANSWER, NULL, 0, 0},
-	/* parameters (DESIGN.md: structural mistakes fail with -32602,
-	 * unphysical samples give null and a QC flag) */
-	{"negative density", EC("{\"rho\":-2.4,\"vp\":3000,\"vs\":1500}"), 0,
-	 RESULT_QC, NULL, 0, 0},
-	{"vs above vp", EC("{\"rho\":2.4,\"vp\":1500,\"vs\":3000}"), 0,
-	 RESULT_QC, NULL, 0, 0},
-	{"mismatched lengths", EC("{\"rho\":2.4,\"vp\":[3000,3100],"
-	 "\"vs\":[1500,1600,1700]}"), 0, -32602, "vs", 0, 0},
-	{"empty array", EC("{\"rho\":2.4,\"vp\":[],\"vs\":1500}"), 0, -32602,
-	 "vp", 0, 0},
-	{"wrong type string", EC("{\"rho\":\"2.4\",\"vp\":3000,\"vs\":1500}"),
-	 0, -32602, "rho", 0, 0},
-	{"wrong type bool", EC("{\"rho\":2.4,\"vp\":true,\"vs\":1500}"), 0,
-	 -32602, "vp", 0, 0},
-	{"wrong type object", EC("{\"rho\":2.4,\"vp\":{},\"vs\":1500}"), 0,
-	 -32602, "vp", 0, 0},
-	{"string in array", EC("{\"rho\":2.4,\"vp\":[3000,\"x\"],"
-	 "\"vs\":1500}"), 0, -32602, "vp", 0, 0},
-	{"unknown parameter", EC("{\"rho\":2.4,\"vp\":3000,\"vs\":1500,"
-	 "\"colour\":1}"), 0, -32602, "colour", 0, 0},
-	{"missing density", EC("{\"vp\":3000,\"vs\":1500}"), 0, -32602, NULL,
-	 0, 0},
-	{"one quantity only", EC("{\"rho\":2.4,\"vp\":3000}"), 0, -32602,
-	 NULL, 0, 0},
-	{"unknown unit", EC("{\"rho\":2.4,\"vp\":3000,\"vs\":1500,\"units\":"
-	 "{\"velocity\":\"furlong/fortnight\"}}"), 0, -32602, NULL, 0, 0},
-	{"units not an object", EC("{\"rho\":2.4,\"vp\":3000,\"vs\":1500,"
-	 "\"units\":3}"), 0, -32602, "units", 0, 0},
-	/* batches (JSON-RPC 2.0 section 6) */
-	{"empty batch", "[]", 0, -32600, NULL, 0, 0},
-	{"batch of junk", "[1,2,3]", 0, BATCH, NULL, 3, -32600},
-	{"batch mixed", "[{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-	 "\"service.info\"},{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
-	 "\"nope\"},{\"jsonrpc\":\"2.0\",\"method\":\"service.info\"}]", 0,
-	 BATCH, NULL, 2, 99},
-	{"batch all notifications", "[{\"jsonrpc\":\"2.0\",\"method\":"
-	 "\"service.info\"}]", 0, NO_ANSWER, NULL, 0, 0},
-	{"huge batch", NULL, 0, -32600, NULL, 0, 0},
+    /* framing and JSON text (RFC 8259) */
+    {"truncated object", "{\"jsonrpc\":\"2.0\",\"id\":1,\"meth", 0, -32700,
+     NULL, 0, 0},
+    {"truncated string", "{\"jsonrpc\":\"2.0\",\"id\":\"abc", 0, -32700, NULL,
+     0, 0},
+    {"truncated array", "[{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"x\"}", 0,
+     -32700, NULL, 0, 0},
+    {"lone brace", "}", 0, -32700, NULL, 0, 0},
+    {"trailing garbage",
+     "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+     "\"service.info\"} x",
+     0, -32700, NULL, 0, 0},
+    {"two values", "{} {}", 0, -32700, NULL, 0, 0},
+    {"deep nesting arrays", NULL, 0, -32600, NULL, 0, 0},
+    {"deep nesting objects", NULL, 0, -32600, NULL, 0, 0},
+    {"NUL byte raw", "{\"jsonrpc\":\"2.0\",\0\"id\":1}", 24, -32700, NULL, 0,
+     0},
+    {"NUL only", "\0", 1, -32700, NULL, 0, 0},
+    {"control byte",
+     "{\"jsonrpc\":\"2.0\",\"id\":1,\x01\"method\":"
+     "\"service.info\"}",
+     0, -32700, NULL, 0, 0},
+    {"invalid UTF-8 lone continuation", "{\"id\":\"\x80\"}", 0, -32700, NULL, 0,
+     0},
+    {"invalid UTF-8 overlong", "{\"id\":\"\xc0\xaf\"}", 0, -32700, NULL, 0, 0},
+    {"invalid UTF-8 surrogate", "{\"id\":\"\xed\xa0\x80\"}", 0, -32700, NULL, 0,
+     0},
+    {"invalid UTF-8 truncated", "{\"id\":\"\xe2\x82", 0, -32700, NULL, 0, 0},
+    {"invalid UTF-8 above U+10FFFF", "{\"id\":\"\xf4\x90\x80\x80\"}", 0, -32700,
+     NULL, 0, 0},
+    {"NaN literal", EC("{\"rho\":2.4,\"vp\":NaN,\"vs\":1500}"), 0, -32700, NULL,
+     0, 0},
+    {"Infinity literal", EC("{\"rho\":2.4,\"vp\":Infinity,\"vs\":1500}"), 0,
+     -32700, NULL, 0, 0},
+    {"-Infinity literal", EC("{\"rho\":2.4,\"vp\":-Infinity,\"vs\":1}"), 0,
+     -32700, NULL, 0, 0},
+    {"1e400", EC("{\"rho\":2.4,\"vp\":1e400,\"vs\":1500}"), 0, -32602, "vp", 0,
+     0},
+    {"-1e400 in array",
+     EC("{\"rho\":2.4,\"vp\":[3000,-1e400],"
+        "\"vs\":1500}"),
+     0, -32602, "vp", 0, 0},
+    /* envelope (JSON-RPC 2.0 section 4) */
+    {"missing jsonrpc", "{\"id\":1,\"method\":\"service.info\"}", 0, -32600,
+     "jsonrpc", 0, 0},
+    {"wrong jsonrpc",
+     "{\"jsonrpc\":\"1.0\",\"id\":1,\"method\":"
+     "\"service.info\"}",
+     0, -32600, "jsonrpc", 0, 0},
+    {"jsonrpc as number",
+     "{\"jsonrpc\":2.0,\"id\":1,\"method\":"
+     "\"service.info\"}",
+     0, -32600, "jsonrpc", 0, 0},
+    {"missing method", "{\"jsonrpc\":\"2.0\",\"id\":1}", 0, -32600, "method", 0,
+     0},
+    {"method as number", "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":5}", 0,
+     -32600, "method", 0, 0},
+    {"unknown method",
+     "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+     "\"elastic.nothing\"}",
+     0, -32601, "method", 0, 0},
+    {"unknown member",
+     "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+     "\"service.info\",\"extra\":1}",
+     0, -32600, "extra", 0, 0},
+    {"params a string",
+     "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+     "\"service.info\",\"params\":\"x\"}",
+     0, -32600, "params", 0, 0},
+    {"params an array", EC("[2.4,3000,1500]"), 0, -32602, "params", 0, 0},
+    {"request a number", "42", 0, -32600, NULL, 0, 0},
+    {"request a string", "\"service.info\"", 0, -32600, NULL, 0, 0},
+    {"request null", "null", 0, -32600, NULL, 0, 0},
+    {"duplicate key top",
+     "{\"jsonrpc\":\"2.0\",\"id\":1,\"id\":2,"
+     "\"method\":\"service.info\"}",
+     0, -32600, "id", 0, 0},
+    {"duplicate key nested",
+     EC("{\"rho\":2.4,\"vp\":3000,\"vp\":3100,"
+        "\"vs\":1500}"),
+     0, -32600, "vp", 0, 0},
+    /* every id type (JSON-RPC 2.0 section 4: string, number, null) */
+    {"id string",
+     "{\"jsonrpc\":\"2.0\",\"id\":\"a-1\",\"method\":"
+     "\"service.info\"}",
+     0, 0, NULL, 0, 0},
+    {"id integer",
+     "{\"jsonrpc\":\"2.0\",\"id\":-17,\"method\":"
+     "\"service.info\"}",
+     0, 0, NULL, 0, 0},
+    {"id fraction",
+     "{\"jsonrpc\":\"2.0\",\"id\":2.5,\"method\":"
+     "\"service.info\"}",
+     0, 0, NULL, 0, 0},
+    {"id null",
+     "{\"jsonrpc\":\"2.0\",\"id\":null,\"method\":"
+     "\"service.info\"}",
+     0, 0, NULL, 0, 0},
+    {"id true",
+     "{\"jsonrpc\":\"2.0\",\"id\":true,\"method\":"
+     "\"service.info\"}",
+     0, -32600, "id", 0, 0},
+    {"id object",
+     "{\"jsonrpc\":\"2.0\",\"id\":{},\"method\":"
+     "\"service.info\"}",
+     0, -32600, "id", 0, 0},
+    {"id array",
+     "{\"jsonrpc\":\"2.0\",\"id\":[1],\"method\":"
+     "\"service.info\"}",
+     0, -32600, "id", 0, 0},
+    {"id 1e400",
+     "{\"jsonrpc\":\"2.0\",\"id\":1e400,\"method\":"
+     "\"service.info\"}",
+     0, -32600, "id", 0, 0},
+    {"notification", "{\"jsonrpc\":\"2.0\",\"method\":\"service.info\"}", 0,
+     NO_ANSWER, NULL, 0, 0},
+    {"notification with bad params",
+     "{\"jsonrpc\":\"2.0\",\"method\":"
+     "\"elastic.convert\",\"params\":{\"rho\":\"x\"}}",
+     0, NO_ANSWER, NULL, 0, 0},
+    {"blank line", "  \t ", 0, NO_ANSWER, NULL, 0, 0},
+    {"CR only", "\r", 0, NO_ANSWER, NULL, 0, 0},
+    /* parameters (DESIGN.md: structural mistakes fail with -32602,
+     * unphysical samples give null and a QC flag) */
+    {"negative density", EC("{\"rho\":-2.4,\"vp\":3000,\"vs\":1500}"), 0,
+     RESULT_QC, NULL, 0, 0},
+    {"vs above vp", EC("{\"rho\":2.4,\"vp\":1500,\"vs\":3000}"), 0, RESULT_QC,
+     NULL, 0, 0},
+    {"mismatched lengths",
+     EC("{\"rho\":2.4,\"vp\":[3000,3100],"
+        "\"vs\":[1500,1600,1700]}"),
+     0, -32602, "vs", 0, 0},
+    {"empty array", EC("{\"rho\":2.4,\"vp\":[],\"vs\":1500}"), 0, -32602, "vp",
+     0, 0},
+    {"wrong type string", EC("{\"rho\":\"2.4\",\"vp\":3000,\"vs\":1500}"), 0,
+     -32602, "rho", 0, 0},
+    {"wrong type bool", EC("{\"rho\":2.4,\"vp\":true,\"vs\":1500}"), 0, -32602,
+     "vp", 0, 0},
+    {"wrong type object", EC("{\"rho\":2.4,\"vp\":{},\"vs\":1500}"), 0, -32602,
+     "vp", 0, 0},
+    {"string in array",
+     EC("{\"rho\":2.4,\"vp\":[3000,\"x\"],"
+        "\"vs\":1500}"),
+     0, -32602, "vp", 0, 0},
+    {"unknown parameter",
+     EC("{\"rho\":2.4,\"vp\":3000,\"vs\":1500,"
+        "\"colour\":1}"),
+     0, -32602, "colour", 0, 0},
+    {"missing density", EC("{\"vp\":3000,\"vs\":1500}"), 0, -32602, NULL, 0, 0},
+    {"one quantity only", EC("{\"rho\":2.4,\"vp\":3000}"), 0, -32602, NULL, 0,
+     0},
+    {"unknown unit",
+     EC("{\"rho\":2.4,\"vp\":3000,\"vs\":1500,\"units\":"
+        "{\"velocity\":\"furlong/fortnight\"}}"),
+     0, -32602, NULL, 0, 0},
+    {"units not an object",
+     EC("{\"rho\":2.4,\"vp\":3000,\"vs\":1500,"
+        "\"units\":3}"),
+     0, -32602, "units", 0, 0},
+    /* batches (JSON-RPC 2.0 section 6) */
+    {"empty batch", "[]", 0, -32600, NULL, 0, 0},
+    {"batch of junk", "[1,2,3]", 0, BATCH, NULL, 3, -32600},
+    {"batch mixed",
+     "[{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+     "\"service.info\"},{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
+     "\"nope\"},{\"jsonrpc\":\"2.0\",\"method\":\"service.info\"}]",
+     0, BATCH, NULL, 2, 99},
+    {"batch all notifications",
+     "[{\"jsonrpc\":\"2.0\",\"method\":"
+     "\"service.info\"}]",
+     0, NO_ANSWER, NULL, 0, 0},
+    {"huge batch", NULL, 0, -32600, NULL, 0, 0},
 };
 #define N_CORPUS (sizeof corpus / sizeof corpus[0])
 
@@ -180,7 +227,7 @@ typedef struct fixture {
 } fixture;
 
 static char *repeat(const char *head, const char *unit, size_t n,
-		    const char *tail)
+                    const char *tail)
 {
 	size_t hl = strlen(head), ul = strlen(unit), tl = strlen(tail);
 	char *s = malloc(hl + ul * n + tl + 1), *p = s;
@@ -207,10 +254,12 @@ static int setup(void **state)
 	/* 65 levels: one past the default depth of 64. */
 	f->deep_arr = repeat("", "[", 65, "");
 	f->deep_obj = repeat("", "{\"a\":", 65, "1");
-	f->huge_batch = repeat("[", "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-			       "\"service.info\"},", 100,
-			       "{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
-			       "\"service.info\"}]");
+	f->huge_batch = repeat("[",
+	                       "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	                       "\"service.info\"},",
+	                       100,
+	                       "{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
+	                       "\"service.info\"}]");
 	*state = f;
 	return 0;
 }
@@ -231,8 +280,7 @@ static int teardown(void **state)
 
 /* Runs one line; returns the parsed response or NULL when there is none
  * (fails the test when there is output that is not one JSON line). */
-static cJSON *run(fixture *f, const char *line, size_t len,
-		  const char *name)
+static cJSON *run(fixture *f, const char *line, size_t len, const char *name)
 {
 	cJSON *r;
 
@@ -242,12 +290,12 @@ static cJSON *run(fixture *f, const char *line, size_t len,
 		return NULL;
 	if (f->out.data[f->out.len - 1] != '\n' ||
 	    memchr(f->out.data, '\n', f->out.len) !=
-		    f->out.data + f->out.len - 1)
+	        f->out.data + f->out.len - 1)
 		fail_msg("%s: response is not exactly one line", name);
 	r = cJSON_ParseWithLength(f->out.data, f->out.len);
 	if (!r)
 		fail_msg("%s: response is not JSON: %.*s", name,
-			 (int)f->out.len, f->out.data);
+		         (int)f->out.len, f->out.data);
 	return r;
 }
 
@@ -268,14 +316,14 @@ static void check_error(const cJSON *r, const hcase *k)
 
 	if (code_of(r) != k->expect)
 		fail_msg("%s: code %d, want %d", k->name, code_of(r),
-			 k->expect);
+		         k->expect);
 	if (!cJSON_IsString(why) || !*why->valuestring)
 		fail_msg("%s: error without a reason", k->name);
-	if (k->param && (!cJSON_IsString(p) ||
-			 strcmp(p->valuestring, k->param) != 0))
+	if (k->param &&
+	    (!cJSON_IsString(p) || strcmp(p->valuestring, k->param) != 0))
 		fail_msg("%s: param %s, want %s", k->name,
-			 cJSON_IsString(p) ? p->valuestring : "(none)",
-			 k->param);
+		         cJSON_IsString(p) ? p->valuestring : "(none)",
+		         k->param);
 }
 
 static void check_case(fixture *f, const hcase *k)
@@ -311,7 +359,8 @@ static void check_case(fixture *f, const hcase *k)
 			fail_msg("%s: qc flags not set", k->name);
 		if (!cJSON_IsNull(vp))
 			fail_msg("%s: output of an unphysical sample is not "
-				 "null", k->name);
+			         "null",
+			         k->name);
 		break;
 	}
 	case BATCH: {
@@ -323,23 +372,23 @@ static void check_case(fixture *f, const hcase *k)
 		{
 			if (k->batch_code != 99 && code_of(e) != k->batch_code)
 				fail_msg("%s: element code %d, want %d",
-					 k->name, code_of(e), k->batch_code);
+				         k->name, code_of(e), k->batch_code);
 			n++;
 		}
 		if (n != k->batch_n)
 			fail_msg("%s: %d responses, want %d", k->name, n,
-				 k->batch_n);
+			         k->batch_n);
 		break;
 	}
 	case 0:
 		if (!r || code_of(r))
 			fail_msg("%s: want a result, got %.*s", k->name,
-				 (int)f->out.len, f->out.data);
+			         (int)f->out.len, f->out.data);
 		break;
 	default:
 		if (!r)
 			fail_msg("%s: no answer, want error %d", k->name,
-				 k->expect);
+			         k->expect);
 		check_error(r, k);
 		break;
 	}
@@ -376,23 +425,23 @@ static void test_corpus(void **state)
 static void test_ids_echoed(void **state)
 {
 	fixture *f = *state;
-	static const char *const ids[] = {"\"a-1\"", "-17", "2.5", "null",
-					  "\"\"", "0", "\"\\u00e9\""};
+	static const char *const ids[] = {
+	    "\"a-1\"", "-17", "2.5", "null", "\"\"", "0", "\"\\u00e9\""};
 
 	for (size_t i = 0; i < sizeof ids / sizeof ids[0]; i++) {
 		char line[200];
 		cJSON *r, *want;
 		snprintf(line, sizeof line,
-			 "{\"jsonrpc\":\"2.0\",\"id\":%s,\"method\":\"nope\"}",
-			 ids[i]);
+		         "{\"jsonrpc\":\"2.0\",\"id\":%s,\"method\":\"nope\"}",
+		         ids[i]);
 		r = run(f, line, strlen(line), ids[i]);
 		want = cJSON_Parse(ids[i]);
 		assert_non_null(r);
 		assert_non_null(want);
 		if (!cJSON_Compare(cJSON_GetObjectItemCaseSensitive(r, "id"),
-				   want, 1))
+		                   want, 1))
 			fail_msg("id %s not echoed: %.*s", ids[i],
-				 (int)f->out.len, f->out.data);
+			         (int)f->out.len, f->out.data);
 		assert_int_equal(code_of(r), -32601);
 		cJSON_Delete(want);
 		cJSON_Delete(r);
@@ -472,10 +521,10 @@ static void test_framer_shrinks(void **state)
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_corpus),
-		cmocka_unit_test(test_ids_echoed),
-		cmocka_unit_test(test_framer_oversize),
-		cmocka_unit_test(test_framer_shrinks),
+	    cmocka_unit_test(test_corpus),
+	    cmocka_unit_test(test_ids_echoed),
+	    cmocka_unit_test(test_framer_oversize),
+	    cmocka_unit_test(test_framer_shrinks),
 	};
 
 	gsl_set_error_handler_off();

@@ -45,13 +45,10 @@ static int teardown(void **state)
 	return 0;
 }
 
-
 static uint32_t qc(const cJSON *r, int i)
 {
 	return (uint32_t)h_num(r, "qc", i);
 }
-
-
 
 static void test_elastic_set(void **state)
 {
@@ -72,7 +69,7 @@ static void test_elastic_set(void **state)
 	h_close_to(h_num(r, "mu", 0), mu / 1e9, 1e-12);
 	h_close_to(h_num(r, "k", 0), k / 1e9, 1e-12);
 	h_close_to(h_num(r, "nu", 0),
-	         (vp * vp - 2 * vs * vs) / (2 * (vp * vp - vs * vs)), 1e-12);
+	           (vp * vp - 2 * vs * vs) / (2 * (vp * vp - vs * vs)), 1e-12);
 	h_close_to(h_num(r, "ai", 0), vp * 2.3, 1e-12);
 	h_close_to(h_num(r, "si", 0), vs * 2.3, 1e-12);
 	h_close_to(h_num(r, "vpvs", 0), 1.8, 1e-12);
@@ -309,108 +306,140 @@ static void test_errors(void **state)
 {
 	(void)state;
 	h_expect_invalid(&H, REQ("{\"dts\":180,\"rhob\":2.3}"), "dtp");
-	h_expect_invalid(&H, REQ("{\"vp\":3000,\"dtp\":100,\"dts\":180,\"rhob\":2.3}"),
-	             "dtp");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"vs\":1,\"dts\":180,\"rhob\":2.3}"),
-	             "dts");
+	h_expect_invalid(
+	    &H, REQ("{\"vp\":3000,\"dtp\":100,\"dts\":180,\"rhob\":2.3}"),
+	    "dtp");
+	h_expect_invalid(
+	    &H, REQ("{\"dtp\":100,\"vs\":1,\"dts\":180,\"rhob\":2.3}"), "dts");
 	h_expect_invalid(&H, REQ("{\"dtp\":100,\"rhob\":2.3}"), "dts");
 	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180}"), "rhob");
-	h_expect_invalid(&H, REQ("{\"dtp\":[100,90],\"dts\":[180,170,160],"
-	                 "\"rhob\":2.3}"),
-	             "dts");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"caliper\":0.3}"),
-	             "bit_size");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50}"),
-	             "gr_clean");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50,"
-	                 "\"vsh\":0.2}"),
-	             "gr");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"gr_clean\":20}"),
-	             "gr_clean");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":\"magic\"}"),
-	             "vs_predict");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rho_predict\":\"x\"}"),
-	             "rho_predict");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"rho_replace_bad\":true}"),
-	             "rho_replace_bad");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"gardner_a\":0.3}"),
-	             "gardner_a");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"drho_limit\":0}"),
-	             "drho_limit");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"washout_limit\":-1}"),
-	             "washout_limit");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":"
-	                 "\"greenberg_castagna\",\"lithology\":{\"sandstone\":"
-	                 "0.3}}"),
-	             "lithology");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"rhob\":2.3,\"vsh\":0.3,"
-	                 "\"vs_predict\":\"greenberg_castagna\","
-	                 "\"lithology\":\"shale\"}"),
-	             "lithology");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"qc\":{\"vp_min\":5000,\"vp_max\":4000}}"),
-	             "qc.");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"qc\":{\"k_max\":1}}"),
-	             "qc.k_max");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"mineral\":\"quartz\"}"),
-	             "mineral");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
-	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-	             "fluid_in_place");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2,"
-	                 "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-	             "porosity");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"porosity\":0.2,\"fluid_in_place\":{\"k\":2,"
-	                 "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-	             "mineral");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"porosity\":0.2,\"mineral\":\"unobtainium\","
-	                 "\"fluid_in_place\":{\"k\":2,\"rho\":1},"
-	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-	             "mineral");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
-	                 "\"fluid_in_place\":{\"k\":2},"
-	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-	             "fluid_in_place.rho");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
-	                 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
-	                 "\"fluid_new\":{\"k\":1,\"rho\":1},"
-	                 "\"temperature\":60}"),
-	             "pressure");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
-	                 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
-	                 "\"fluid_new\":{\"k\":1,\"rho\":1},\"pressure\":20,"
-	                 "\"temperature_gradient\":30}"),
-	             "surface_temperature");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
-	                 "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
-	                 "\"fluid_new\":{\"k\":1,\"rho\":1},"
-	                 "\"pressure_gradient\":0.01,\"temperature\":60}"),
-	             "depth");
-	h_expect_invalid(&H, REQ("{\"dtp\":[100,90],\"dts\":180,\"rhob\":2.3,"
-	                 "\"porosity\":0.2,\"mineral\":\"quartz\","
-	                 "\"fluid_in_place\":{\"k\":[2,2,2],\"rho\":1},"
-	                 "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
-	             "fluid_in_place.k");
-	h_expect_invalid(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"bogus\":1}"),
-	             "bogus");
-	h_expect_invalid(&H, REQ("{\"dtp\":[100,\"x\"],\"dts\":180,\"rhob\":2.3}"),
-	             "dtp");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":[100,90],\"dts\":[180,170,160],"
+	                     "\"rhob\":2.3}"),
+	                 "dts");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"caliper\":0.3}"),
+	                 "bit_size");
+	h_expect_invalid(
+	    &H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50}"),
+	    "gr_clean");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50,"
+	                     "\"vsh\":0.2}"),
+	                 "gr");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"gr_clean\":20}"),
+	                 "gr_clean");
+	h_expect_invalid(
+	    &H, REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":\"magic\"}"),
+	    "vs_predict");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rho_predict\":\"x\"}"),
+	                 "rho_predict");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"rho_replace_bad\":true}"),
+	                 "rho_replace_bad");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"gardner_a\":0.3}"),
+	                 "gardner_a");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"drho_limit\":0}"),
+	                 "drho_limit");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"washout_limit\":-1}"),
+	                 "washout_limit");
+	h_expect_invalid(
+	    &H,
+	    REQ("{\"dtp\":100,\"rhob\":2.3,\"vs_predict\":"
+	        "\"greenberg_castagna\",\"lithology\":{\"sandstone\":"
+	        "0.3}}"),
+	    "lithology");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"rhob\":2.3,\"vsh\":0.3,"
+	                     "\"vs_predict\":\"greenberg_castagna\","
+	                     "\"lithology\":\"shale\"}"),
+	                 "lithology");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"qc\":{\"vp_min\":5000,\"vp_max\":4000}}"),
+	                 "qc.");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"qc\":{\"k_max\":1}}"),
+	                 "qc.k_max");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"mineral\":\"quartz\"}"),
+	                 "mineral");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"porosity\":0.2,\"mineral\":\"quartz\","
+	                     "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	                 "fluid_in_place");
+	h_expect_invalid(
+	    &H,
+	    REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	        "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2,"
+	        "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	    "porosity");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"porosity\":0.2,\"fluid_in_place\":{\"k\":2,"
+	                     "\"rho\":1},\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	                 "mineral");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"porosity\":0.2,\"mineral\":\"unobtainium\","
+	                     "\"fluid_in_place\":{\"k\":2,\"rho\":1},"
+	                     "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	                 "mineral");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	                     "\"porosity\":0.2,\"mineral\":\"quartz\","
+	                     "\"fluid_in_place\":{\"k\":2},"
+	                     "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	                 "fluid_in_place.rho");
+	h_expect_invalid(
+	    &H,
+	    REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	        "\"porosity\":0.2,\"mineral\":\"quartz\","
+	        "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
+	        "\"fluid_new\":{\"k\":1,\"rho\":1},"
+	        "\"temperature\":60}"),
+	    "pressure");
+	h_expect_invalid(
+	    &H,
+	    REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	        "\"porosity\":0.2,\"mineral\":\"quartz\","
+	        "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
+	        "\"fluid_new\":{\"k\":1,\"rho\":1},\"pressure\":20,"
+	        "\"temperature_gradient\":30}"),
+	    "surface_temperature");
+	h_expect_invalid(
+	    &H,
+	    REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
+	        "\"porosity\":0.2,\"mineral\":\"quartz\","
+	        "\"fluid_in_place\":{\"brine\":{\"salinity\":1000}},"
+	        "\"fluid_new\":{\"k\":1,\"rho\":1},"
+	        "\"pressure_gradient\":0.01,\"temperature\":60}"),
+	    "depth");
+	h_expect_invalid(&H,
+	                 REQ("{\"dtp\":[100,90],\"dts\":180,\"rhob\":2.3,"
+	                     "\"porosity\":0.2,\"mineral\":\"quartz\","
+	                     "\"fluid_in_place\":{\"k\":[2,2,2],\"rho\":1},"
+	                     "\"fluid_new\":{\"k\":1,\"rho\":1}}"),
+	                 "fluid_in_place.k");
+	h_expect_invalid(
+	    &H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"bogus\":1}"),
+	    "bogus");
+	h_expect_invalid(
+	    &H, REQ("{\"dtp\":[100,\"x\"],\"dts\":180,\"rhob\":2.3}"), "dtp");
 }
 
 int main(void)

@@ -51,10 +51,11 @@ static double direct_subst(double k1, double km, double kf1, double kf2,
  * their definitions. */
 static void test_worked_example(void **state)
 {
-	cJSON *r = call(SUB("{\"vp\":3200,\"vs\":1750,\"rho\":2.28,"
-	                    "\"porosity\":0.24,\"mineral\":\"quartz\","
-	                    "\"fluid_in_place\":{\"k\":2.9,\"rho\":1.04},\"fluid_new\":"
-	                    "{\"k\":0.08,\"rho\":0.22}}"));
+	cJSON *r = call(
+	    SUB("{\"vp\":3200,\"vs\":1750,\"rho\":2.28,"
+	        "\"porosity\":0.24,\"mineral\":\"quartz\","
+	        "\"fluid_in_place\":{\"k\":2.9,\"rho\":1.04},\"fluid_new\":"
+	        "{\"k\":0.08,\"rho\":0.22}}"));
 	const cJSON *res = result_of(r);
 	rw_mineral q;
 	double km, rho = 2280, mu = rho * 1750.0 * 1750.0;
@@ -99,11 +100,12 @@ static void test_worked_example(void **state)
  * invertible for a fixed frame). */
 static void test_round_trip(void **state)
 {
-	cJSON *a = call(SUB("{\"vp\":[2800,3400],\"vs\":[1400,1900],\"rho\":"
-	                    "[2.2,2.35],\"porosity\":[0.28,0.18],\"mineral\":"
-	                    "{\"k\":37,\"rho\":2.65},\"fluid_in_place\":{\"k\":2.7,"
-	                    "\"rho\":1.02},\"fluid_new\":{\"k\":0.1,\"rho\":"
-	                    "0.25}}"));
+	cJSON *a =
+	    call(SUB("{\"vp\":[2800,3400],\"vs\":[1400,1900],\"rho\":"
+	             "[2.2,2.35],\"porosity\":[0.28,0.18],\"mineral\":"
+	             "{\"k\":37,\"rho\":2.65},\"fluid_in_place\":{\"k\":2.7,"
+	             "\"rho\":1.02},\"fluid_new\":{\"k\":0.1,\"rho\":"
+	             "0.25}}"));
 	const cJSON *ra = result_of(a);
 	char line[640];
 	cJSON *b;
@@ -198,15 +200,17 @@ static void test_units(void **state)
 	const cJSON *ra, *rb;
 
 	(void)state;
-	a = call(SUB("{\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
-	             "\"mineral\":\"quartz\",\"pressure\":20.684271879505,"
-	             "\"temperature\":80,\"fluid_in_place\":{\"brine\":{\"salinity\":"
-	             "50000}},\"fluid_new\":{\"oil\":{\"api\":40,\"gor\":120,"
-	             "\"gas_gravity\":0.7}}}"));
+	a = call(SUB(
+	    "{\"vp\":3000,\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
+	    "\"mineral\":\"quartz\",\"pressure\":20.684271879505,"
+	    "\"temperature\":80,\"fluid_in_place\":{\"brine\":{\"salinity\":"
+	    "50000}},\"fluid_new\":{\"oil\":{\"api\":40,\"gor\":120,"
+	    "\"gas_gravity\":0.7}}}"));
 	snprintf(line, sizeof line,
 	         SUB("{\"vp\":%.17g,\"vs\":%.17g,\"rho\":2250,\"porosity\":"
 	             "0.25,\"mineral\":\"quartz\",\"pressure\":%.17g,"
-	             "\"temperature\":176,\"fluid_in_place\":{\"brine\":{\"salinity\":"
+	             "\"temperature\":176,\"fluid_in_place\":{\"brine\":{"
+	             "\"salinity\":"
 	             "50000}},\"fluid_new\":{\"oil\":{\"api\":40,\"gor\":120,"
 	             "\"gas_gravity\":0.7}},\"units\":{\"velocity\":\"ft/s\","
 	             "\"density\":\"kg/m3\",\"modulus\":\"MPa\",\"pressure\":"
@@ -278,12 +282,13 @@ static void test_frame(void **state)
  * negative modulus. */
 static void test_qc(void **state)
 {
-	cJSON *r = call(SUB("{\"vp\":[5000,3000,3000,1500,1200],\"vs\":[3000,"
-	                    "1600,1600,200,1100],\"rho\":[2.6,2.25,2.25,2.0,"
-	                    "2.0],\"porosity\":[0.03,1.2,null,0.1,0.2],"
-	                    "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2.8,"
-	                    "\"rho\":1.05},\"fluid_new\":{\"k\":0.05,\"rho\":"
-	                    "0.2}}"));
+	cJSON *r =
+	    call(SUB("{\"vp\":[5000,3000,3000,1500,1200],\"vs\":[3000,"
+	             "1600,1600,200,1100],\"rho\":[2.6,2.25,2.25,2.0,"
+	             "2.0],\"porosity\":[0.03,1.2,null,0.1,0.2],"
+	             "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2.8,"
+	             "\"rho\":1.05},\"fluid_new\":{\"k\":0.05,\"rho\":"
+	             "0.2}}"));
 	const cJSON *res = result_of(r);
 
 	(void)state;
@@ -338,12 +343,13 @@ static void test_errors(void **state)
 	expect_invalid(SUB("{\"k_dry\":5,\"porosity\":0.2,\"mineral\":"
 	                   "\"quartz\"," FN "}"),
 	               "mu_dry", "required");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\"," FN "}"), "fluid_in_place",
-	               "fluid in place");
+	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\"," FN "}"),
+	               "fluid_in_place", "fluid in place");
 	expect_invalid(SUB("{\"k_dry\":5,\"mu_dry\":4,\"porosity\":0.2,"
 	                   "\"mineral\":\"quartz\"," FL FN "}"),
 	               "fluid_in_place", "fluid_new");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
+	expect_invalid(SUB("{" LOGS
+	                   "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
 	                   "2.8,\"rho\":1.05}}"),
 	               "fluid_new", "required");
 	expect_invalid(SUB("{" LOGS FL FN "}"), "mineral", "required");
@@ -376,13 +382,16 @@ static void test_errors(void **state)
 	expect_invalid(SUB("{\"k_dry\":5,\"mu_dry\":4,\"porosity\":0.2,"
 	                   "\"mineral\":{\"k\":36}," FN "}"),
 	               "mineral.rho", "dry frame");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
+	expect_invalid(SUB("{" LOGS
+	                   "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
 	                   "2.8}," FN "}"),
 	               "fluid_in_place.rho", "required");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
+	expect_invalid(SUB("{" LOGS
+	                   "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
 	                   "-2.8,\"rho\":1}," FN "}"),
 	               "fluid_in_place.k", "> 0");
-	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
+	expect_invalid(SUB("{" LOGS
+	                   "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":"
 	                   "2.8,\"rho\":1,\"brine\":{\"salinity\":0}}," FN "}"),
 	               "fluid_in_place.brine", "not both");
 	expect_invalid(SUB("{" LOGS "\"mineral\":\"quartz\",\"pressure\":20,"
@@ -419,29 +428,29 @@ static void test_output_plausibility(void **state)
 	(void)state;
 
 	r = call("{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-		 "\"rock.substitute\",\"params\":{\"vp\":3000,\"vs\":1600,"
-		 "\"rho\":2.25,\"porosity\":0.25,\"mineral\":\"quartz\","
-		 "\"fluid_in_place\":{\"k\":2.6,\"rho\":1.03},"
-		 "\"fluid_new\":{\"k\":0.06,\"rho\":0.2}}}");
+	         "\"rock.substitute\",\"params\":{\"vp\":3000,\"vs\":1600,"
+	         "\"rho\":2.25,\"porosity\":0.25,\"mineral\":\"quartz\","
+	         "\"fluid_in_place\":{\"k\":2.6,\"rho\":1.03},"
+	         "\"fluid_new\":{\"k\":0.06,\"rho\":0.2}}}");
 	assert_int_equal(qc_at(result_of(r), 0), 0);
 	cJSON_Delete(r);
 	r = call("{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-		 "\"rock.substitute\",\"params\":{\"vp\":3000,\"vs\":1600,"
-		 "\"rho\":2.25,\"porosity\":0.25,\"mineral\":\"quartz\","
-		 "\"fluid_in_place\":{\"k\":2.6,\"rho\":1.03},"
-		 "\"fluid_new\":{\"k\":0.06,\"rho\":0.2},\"qc\":{"
-		 "\"nu_min\":0.2}}}");
+	         "\"rock.substitute\",\"params\":{\"vp\":3000,\"vs\":1600,"
+	         "\"rho\":2.25,\"porosity\":0.25,\"mineral\":\"quartz\","
+	         "\"fluid_in_place\":{\"k\":2.6,\"rho\":1.03},"
+	         "\"fluid_new\":{\"k\":0.06,\"rho\":0.2},\"qc\":{"
+	         "\"nu_min\":0.2}}}");
 	assert_int_equal(qc_at(result_of(r), 0), 1u << 4);
 	/* the values are unchanged by the flag */
 	assert_true(fabs(num(result_of(r), "rho") - 2.0425) < 1e-12);
 	cJSON_Delete(r);
 	expect_invalid("{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
-		       "\"rock.substitute\",\"params\":{\"vp\":3000,"
-		       "\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
-		       "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2.6,"
-		       "\"rho\":1.03},\"fluid_new\":{\"k\":0.06,\"rho\":0.2},"
-		       "\"qc\":{\"nu\":1}}}",
-		       "qc.nu", "unknown");
+	               "\"rock.substitute\",\"params\":{\"vp\":3000,"
+	               "\"vs\":1600,\"rho\":2.25,\"porosity\":0.25,"
+	               "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2.6,"
+	               "\"rho\":1.03},\"fluid_new\":{\"k\":0.06,\"rho\":0.2},"
+	               "\"qc\":{\"nu\":1}}}",
+	               "qc.nu", "unknown");
 }
 
 int main(void)

@@ -13,8 +13,8 @@
 
 #include "proto/harness.h"
 
-#define REQ(method, params)                                                  \
-	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"" method                 \
+#define REQ(method, params)                                                    \
+	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"" method                   \
 	"\",\"params\":" params "}"
 
 #define LOGS "\"vp\":3000,\"vs\":1500,\"rhob\":2.3"
@@ -39,32 +39,34 @@ static void test_log_unused_defaults(void **state)
 
 	h_init(&h);
 	/* explicit but unused: refused, naming the parameter */
-	assert_int_equal(code_of(&h, REQ("log.process", "{" LOGS
-					 ",\"pressure\":25}"),
-				 param, sizeof param),
-			 -32602);
+	assert_int_equal(
+	    code_of(&h, REQ("log.process", "{" LOGS ",\"pressure\":25}"), param,
+	            sizeof param),
+	    -32602);
 	assert_string_equal(param, "pressure");
-	assert_int_equal(code_of(&h, REQ("log.process", "{" LOGS
-					 ",\"mineral\":\"quartz\"}"),
-				 param, sizeof param),
-			 -32602);
+	assert_int_equal(
+	    code_of(&h, REQ("log.process", "{" LOGS ",\"mineral\":\"quartz\"}"),
+	            param, sizeof param),
+	    -32602);
 	assert_string_equal(param, "mineral");
 	/* the same as session defaults: a plain log request still works */
-	assert_int_equal(code_of(&h, REQ("session.set",
-					 "{\"pressure\":25,\"temperature\":80,"
-					 "\"mineral\":\"quartz\"}"),
-				 param, sizeof param),
-			 0);
-	assert_int_equal(code_of(&h, REQ("log.process", "{" LOGS "}"), param,
-				 sizeof param),
-			 0);
+	assert_int_equal(
+	    code_of(&h,
+	            REQ("session.set", "{\"pressure\":25,\"temperature\":80,"
+	                               "\"mineral\":\"quartz\"}"),
+	            param, sizeof param),
+	    0);
+	assert_int_equal(
+	    code_of(&h, REQ("log.process", "{" LOGS "}"), param, sizeof param),
+	    0);
 	/* and a substitution request uses them */
 	assert_int_equal(
-	    code_of(&h, REQ("log.process",
-			    "{" LOGS ",\"porosity\":0.25,\"fluid_in_place\":{"
-			    "\"brine\":{\"salinity\":50000}},\"fluid_new\":{"
-			    "\"gas\":{\"gravity\":0.65}}}"),
-		    param, sizeof param),
+	    code_of(&h,
+	            REQ("log.process",
+	                "{" LOGS ",\"porosity\":0.25,\"fluid_in_place\":{"
+	                "\"brine\":{\"salinity\":50000}},\"fluid_new\":{"
+	                "\"gas\":{\"gravity\":0.65}}}"),
+	            param, sizeof param),
 	    0);
 	h_free(&h);
 }
@@ -77,20 +79,23 @@ static void test_fluid_brie_default(void **state)
 
 	h_init(&h);
 	assert_int_equal(
-	    code_of(&h, REQ("fluid.properties",
-			    "{\"pressure\":25,\"temperature\":80,\"brine\":{"
-			    "\"salinity\":50000},\"brie_exponent\":3}"),
-		    param, sizeof param),
+	    code_of(&h,
+	            REQ("fluid.properties",
+	                "{\"pressure\":25,\"temperature\":80,\"brine\":{"
+	                "\"salinity\":50000},\"brie_exponent\":3}"),
+	            param, sizeof param),
 	    -32602);
 	assert_string_equal(param, "brie_exponent");
-	assert_int_equal(code_of(&h, REQ("session.set", "{\"brie_exponent\":3}"),
-				 param, sizeof param),
-			 0);
+	assert_int_equal(code_of(&h,
+	                         REQ("session.set", "{\"brie_exponent\":3}"),
+	                         param, sizeof param),
+	                 0);
 	assert_int_equal(
-	    code_of(&h, REQ("fluid.properties",
-			    "{\"pressure\":25,\"temperature\":80,\"brine\":{"
-			    "\"salinity\":50000}}"),
-		    param, sizeof param),
+	    code_of(&h,
+	            REQ("fluid.properties",
+	                "{\"pressure\":25,\"temperature\":80,\"brine\":{"
+	                "\"salinity\":50000}}"),
+	            param, sizeof param),
 	    0);
 	h_free(&h);
 }
@@ -105,37 +110,41 @@ static void test_units_and_defaults(void **state)
 	(void)state;
 
 	h_init(&h);
-	assert_int_equal(code_of(&h, REQ("session.set",
-					 "{\"rho\":2.5,\"lithology\":"
-					 "\"shale\"}"),
-				 param, sizeof param),
-			 0);
+	assert_int_equal(
+	    code_of(&h,
+	            REQ("session.set", "{\"rho\":2.5,\"lithology\":"
+	                               "\"shale\"}"),
+	            param, sizeof param),
+	    0);
 	/* velocity in km/s does not touch a density or a string default */
 	r = h_call(&h, REQ("elastic.convert",
-			   "{\"vp\":3,\"vs\":1.5,\"units\":{\"velocity\":"
-			   "\"km/s\"}}"));
+	                   "{\"vp\":3,\"vs\":1.5,\"units\":{\"velocity\":"
+	                   "\"km/s\"}}"));
 	assert_int_equal(h_code(r), 0);
 	assert_true(fabs(h_result(r, "rho")->valuedouble - 2.5) < 1e-12);
 	cJSON_Delete(r);
 	/* density in kg/m3 would read 2.5 as 2.5 kg/m3: refused */
-	assert_int_equal(code_of(&h, REQ("elastic.convert",
-					 "{\"vp\":3000,\"vs\":1500,\"units\":"
-					 "{\"density\":\"kg/m3\"}}"),
-				 param, sizeof param),
-			 -32602);
+	assert_int_equal(
+	    code_of(&h,
+	            REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500,\"units\":"
+	                                   "{\"density\":\"kg/m3\"}}"),
+	            param, sizeof param),
+	    -32602);
 	assert_string_equal(param, "units");
 	/* the same change in the session: refused, unless rho is set again
 	 * in the same call */
-	assert_int_equal(code_of(&h, REQ("session.set",
-					 "{\"units\":{\"density\":\"kg/m3\"}}"),
-				 param, sizeof param),
-			 -32602);
+	assert_int_equal(
+	    code_of(&h,
+	            REQ("session.set", "{\"units\":{\"density\":\"kg/m3\"}}"),
+	            param, sizeof param),
+	    -32602);
 	assert_string_equal(param, "units");
-	assert_int_equal(code_of(&h, REQ("session.set",
-					 "{\"units\":{\"density\":\"kg/m3\"},"
-					 "\"rho\":2500}"),
-				 param, sizeof param),
-			 0);
+	assert_int_equal(
+	    code_of(&h,
+	            REQ("session.set", "{\"units\":{\"density\":\"kg/m3\"},"
+	                               "\"rho\":2500}"),
+	            param, sizeof param),
+	    0);
 	r = h_call(&h, REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500}"));
 	assert_true(fabs(h_result(r, "rho")->valuedouble - 2500) < 1e-9);
 	cJSON_Delete(r);
@@ -145,9 +154,9 @@ static void test_units_and_defaults(void **state)
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_log_unused_defaults),
-		cmocka_unit_test(test_fluid_brie_default),
-		cmocka_unit_test(test_units_and_defaults),
+	    cmocka_unit_test(test_log_unused_defaults),
+	    cmocka_unit_test(test_fluid_brie_default),
+	    cmocka_unit_test(test_units_and_defaults),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -22,7 +22,7 @@ static void num(const char *key, double x)
 }
 
 static void line(const char *kind, double p, double t, double s, int st,
-		 unsigned warn, const rw_fluid_phase *ph)
+                 unsigned warn, const rw_fluid_phase *ph)
 {
 	printf("{\"kind\":\"%s\"", kind);
 	num("p_mpa", p);
@@ -51,13 +51,13 @@ int main(void)
 			line("water", p, t, 0.0, st, warn, &ph);
 			for (is = 0; is < 3; is++) {
 				st = rw_fluid_brine_props(p, t, sal[is], &ph,
-							  &warn);
+				                          &warn);
 				line("brine", p, t, sal[is], st, warn, &ph);
 			}
 		}
 		st = rw_fluid_water_psat(t, &psat);
-		printf("{\"kind\":\"psat\",\"t_degc\":%.17g,\"status\":%d",
-		       t, st);
+		printf("{\"kind\":\"psat\",\"t_degc\":%.17g,\"status\":%d", t,
+		       st);
 		num("psat_mpa", psat);
 		printf("}\n");
 	}

@@ -18,7 +18,7 @@ static void assert_rel(double got, double want, double tol)
 	double err = fabs(got - want) / fmax(fabs(want), 1e-300);
 	if (!(err <= tol))
 		fail_msg("got %.12g want %.12g (rel err %.3g > %.3g)", got,
-			 want, err, tol);
+		         want, err, tol);
 }
 
 /* Mineral moduli: Mavko, Mukerji & Dvorkin 2009, mineral table (from
@@ -31,16 +31,16 @@ static void test_minerals_handbook(void **state)
 		const char *name;
 		double k, mu, rho, vp, vs;
 	} rows[] = {
-		{"quartz", 36.6, 45.0, 2650, 6038, 4121},
-		{"calcite", 76.8, 32.0, 2710, 6640, 3436},
+	    {"quartz", 36.6, 45.0, 2650, 6038, 4121},
+	    {"calcite", 76.8, 32.0, 2710, 6640, 3436},
 	};
 	(void)state;
 	for (size_t i = 0; i < sizeof rows / sizeof rows[0]; i++) {
 		rw_elastic o;
 		unsigned why = 99;
-		int st = rw_elastic_from_pair(rows[i].rho, RW_Q_K,
-					      rows[i].k * GPA, RW_Q_MU,
-					      rows[i].mu * GPA, &o, &why);
+		int st =
+		    rw_elastic_from_pair(rows[i].rho, RW_Q_K, rows[i].k * GPA,
+		                         RW_Q_MU, rows[i].mu * GPA, &o, &why);
 		assert_int_equal(st, RW_OK);
 		assert_int_equal(why, 0);
 		assert_true(fabs(o.vp - rows[i].vp) < 1.0);
@@ -60,7 +60,7 @@ static void test_astm_d2845(void **state)
 	rw_elastic o;
 	(void)state;
 	assert_int_equal(rw_elastic_from_velocities(vp, vs, rho, &o, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_rel(o.e, e, 1e-13);
 	assert_rel(o.nu, nu, 1e-13);
 	/* Vp^2 = (K + 4/3 mu)/rho and Vs^2 = mu/rho. */
@@ -75,9 +75,9 @@ static void test_poisson_quarter(void **state)
 {
 	rw_elastic o;
 	(void)state;
-	assert_int_equal(rw_elastic_from_velocities(3000 * sqrt(3.0), 3000,
-						    2300, &o, NULL),
-			 RW_OK);
+	assert_int_equal(
+	    rw_elastic_from_velocities(3000 * sqrt(3.0), 3000, 2300, &o, NULL),
+	    RW_OK);
 	assert_true(fabs(o.nu - 0.25) < 1e-15);
 }
 
@@ -87,37 +87,35 @@ static void test_poisson_quarter(void **state)
 static void test_round_trip_all_pairs(void **state)
 {
 	static const double rocks[][3] = {
-		{4200, 2300, 2450}, {2100, 600, 2100}, {6038, 4121, 2650},
-		{5000, 3400, 2500}, /* nu < 0 */
-		{1800, 300, 2000},  /* nu near 0.49 */
+	    {4200, 2300, 2450}, {2100, 600, 2100},
+	    {6038, 4121, 2650}, {5000, 3400, 2500}, /* nu < 0 */
+	    {1800, 300, 2000},                      /* nu near 0.49 */
 	};
 	int tested = 0;
 	(void)state;
 	for (size_t r = 0; r < sizeof rocks / sizeof rocks[0]; r++) {
 		rw_elastic ref;
-		assert_int_equal(rw_elastic_from_velocities(rocks[r][0],
-							    rocks[r][1],
-							    rocks[r][2], &ref,
-							    NULL),
-				 RW_OK);
+		assert_int_equal(
+		    rw_elastic_from_velocities(rocks[r][0], rocks[r][1],
+		                               rocks[r][2], &ref, NULL),
+		    RW_OK);
 		const double *vals = &ref.vp;
-		double v[RW_Q_COUNT] = {ref.vp, ref.vs, ref.k, ref.mu,
-					ref.lambda, ref.e, ref.nu, ref.m,
-					ref.ai, ref.si, ref.vpvs, ref.dtp,
-					ref.dts};
+		double v[RW_Q_COUNT] = {ref.vp,     ref.vs, ref.k,    ref.mu,
+		                        ref.lambda, ref.e,  ref.nu,   ref.m,
+		                        ref.ai,     ref.si, ref.vpvs, ref.dtp,
+		                        ref.dts};
 		(void)vals;
 		for (int a = 0; a < RW_Q_COUNT; a++)
 			for (int b = 0; b < RW_Q_COUNT; b++) {
 				rw_elastic o;
 				if (rw_elastic_pair_check(a, b) != RW_PAIR_OK)
 					continue;
-				int st = rw_elastic_from_pair(ref.rho, a, v[a],
-							      b, v[b], &o,
-							      NULL);
+				int st = rw_elastic_from_pair(
+				    ref.rho, a, v[a], b, v[b], &o, NULL);
 				if (st != RW_OK)
 					fail_msg("pair %s,%s rock %zu: %d",
-						 rw_elastic_qty_name(a),
-						 rw_elastic_qty_name(b), r, st);
+					         rw_elastic_qty_name(a),
+					         rw_elastic_qty_name(b), r, st);
 				assert_rel(o.vp, ref.vp, 1e-9);
 				assert_rel(o.vs, ref.vs, 1e-9);
 				assert_rel(o.k, ref.k, 1e-9);
@@ -139,18 +137,16 @@ static void test_round_trip_all_pairs(void **state)
 static void test_pair_classes(void **state)
 {
 	(void)state;
-	assert_int_equal(rw_elastic_pair_check(RW_Q_VP, RW_Q_VP),
-			 RW_PAIR_SAME);
+	assert_int_equal(rw_elastic_pair_check(RW_Q_VP, RW_Q_VP), RW_PAIR_SAME);
 	assert_int_equal(rw_elastic_pair_check(RW_Q_VP, RW_Q_AI),
-			 RW_PAIR_DEPENDENT);
+	                 RW_PAIR_DEPENDENT);
 	assert_int_equal(rw_elastic_pair_check(RW_Q_DTS, RW_Q_MU),
-			 RW_PAIR_DEPENDENT);
+	                 RW_PAIR_DEPENDENT);
 	assert_int_equal(rw_elastic_pair_check(RW_Q_NU, RW_Q_VPVS),
-			 RW_PAIR_DEPENDENT);
+	                 RW_PAIR_DEPENDENT);
 	assert_int_equal(rw_elastic_pair_check(RW_Q_E, RW_Q_M),
-			 RW_PAIR_TWO_ROOTS);
-	assert_int_equal(rw_elastic_pair_check(RW_Q_VS, RW_Q_E),
-			 RW_PAIR_OK);
+	                 RW_PAIR_TWO_ROOTS);
+	assert_int_equal(rw_elastic_pair_check(RW_Q_VS, RW_Q_E), RW_PAIR_OK);
 }
 
 /* Physically impossible samples: NaN outputs and the reason bits. */
@@ -159,38 +155,37 @@ static void test_impossible(void **state)
 	rw_elastic o;
 	unsigned why;
 	(void)state;
-	assert_int_equal(rw_elastic_from_velocities(3000, 2700, 2400, &o,
-						    &why),
-			 RW_EDOM); /* vp/vs < 2/sqrt(3): K < 0 */
+	assert_int_equal(rw_elastic_from_velocities(3000, 2700, 2400, &o, &why),
+	                 RW_EDOM); /* vp/vs < 2/sqrt(3): K < 0 */
 	assert_true(why & RW_ELASTIC_BAD_K);
 	assert_true(isnan(o.vp) && isnan(o.nu));
 	assert_int_equal(rw_elastic_from_velocities(3000, 1500, -1, &o, &why),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_true(why & RW_ELASTIC_BAD_RHO);
 	assert_int_equal(rw_elastic_from_velocities(3000, 0, 2400, &o, &why),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_true(why & RW_ELASTIC_BAD_MU);
 	assert_int_equal(rw_elastic_from_pair(2400, RW_Q_DTP, -1e-4, RW_Q_VS,
-					      1500, &o, &why),
-			 RW_EDOM);
+	                                      1500, &o, &why),
+	                 RW_EDOM);
 	assert_true(why & RW_ELASTIC_BAD_INPUT);
-	assert_int_equal(rw_elastic_from_pair(2400, RW_Q_NU, 0.6, RW_Q_VS,
-					      1500, &o, &why),
-			 RW_EDOM);
-	assert_int_equal(rw_elastic_from_pair(2400, RW_Q_VP, 3000, RW_Q_AI,
-					      7.2e6, &o, &why),
-			 RW_EINVAL);
+	assert_int_equal(
+	    rw_elastic_from_pair(2400, RW_Q_NU, 0.6, RW_Q_VS, 1500, &o, &why),
+	    RW_EDOM);
+	assert_int_equal(
+	    rw_elastic_from_pair(2400, RW_Q_VP, 3000, RW_Q_AI, 7.2e6, &o, &why),
+	    RW_EINVAL);
 }
 
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_minerals_handbook),
-		cmocka_unit_test(test_astm_d2845),
-		cmocka_unit_test(test_poisson_quarter),
-		cmocka_unit_test(test_round_trip_all_pairs),
-		cmocka_unit_test(test_pair_classes),
-		cmocka_unit_test(test_impossible),
+	    cmocka_unit_test(test_minerals_handbook),
+	    cmocka_unit_test(test_astm_d2845),
+	    cmocka_unit_test(test_poisson_quarter),
+	    cmocka_unit_test(test_round_trip_all_pairs),
+	    cmocka_unit_test(test_pair_classes),
+	    cmocka_unit_test(test_impossible),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

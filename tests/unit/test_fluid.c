@@ -21,7 +21,7 @@ static void assert_rel(double got, double want, double tol)
 {
 	if (!(fabs(got - want) <= tol * fabs(want)))
 		fail_msg("got %.15g, want %.15g (rel tol %g, rel dev %g)", got,
-			 want, tol, (got - want) / want);
+		         want, tol, (got - want) / want);
 }
 
 static void assert_phase_nan(const rw_fluid_phase *ph)
@@ -70,19 +70,19 @@ static void test_gas_ideal_limit(void **state)
 			if (tpr < RW_FLUID_GAS_TPR_MIN ||
 			    tpr > RW_FLUID_GAS_TPR_MAX)
 				continue;
-			assert_int_equal(rw_fluid_gas_props(p, t, grav[i], &ph,
-							    &z, &warn),
-					 RW_OK);
+			assert_int_equal(
+			    rw_fluid_gas_props(p, t, grav[i], &ph, &z, &warn),
+			    RW_OK);
 			assert_false(warn & RW_FLUID_WARN_PR_RANGE);
-			ideal = p * 1e6 * grav[i] * 0.0289644 /
-				(8.314462618 * tk);
+			ideal =
+			    p * 1e6 * grav[i] * 0.0289644 / (8.314462618 * tk);
 			assert_rel(ph.rho_kgm3 * z, ideal, 1e-12);
 			assert_true(fabs(z - 1.0) <= 0.03);
 			assert_true(fabs(ph.rho_kgm3 / ideal - 1.0) <= 0.031);
 			assert_true(ph.k_pa / (p * 1e6) >= 1.25);
 			assert_true(ph.k_pa / (p * 1e6) <= 1.36);
 			assert_rel(ph.k_pa, ph.rho_kgm3 * ph.v_ms * ph.v_ms,
-				   1e-12);
+			           1e-12);
 			n++;
 		}
 	}
@@ -106,12 +106,12 @@ static void test_gas_z_chart(void **state)
 	(void)state;
 	for (i = 0; i < sizeof(ref) / sizeof(ref[0]); i++) {
 		assert_int_equal(rw_fluid_gas_props(ref[i].ppr * ppc,
-						    ref[i].tpr * tpc - 273.15,
-						    g, &ph, &z, NULL),
-				 RW_OK);
+		                                    ref[i].tpr * tpc - 273.15,
+		                                    g, &ph, &z, NULL),
+		                 RW_OK);
 		if (!(fabs(z - ref[i].z) <= 0.03))
 			fail_msg("Z(%g, %g) = %g, chart %g", ref[i].tpr,
-				 ref[i].ppr, z, ref[i].z);
+			         ref[i].ppr, z, ref[i].z);
 	}
 }
 
@@ -123,12 +123,11 @@ static void test_gas_trends(void **state)
 
 	(void)state;
 	assert_int_equal(rw_fluid_gas_props(10.0, 80.0, 0.65, &a, NULL, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_int_equal(rw_fluid_gas_props(30.0, 80.0, 0.65, &b, NULL, NULL),
-			 RW_OK);
-	assert_int_equal(rw_fluid_gas_props(10.0, 120.0, 0.65, &c, NULL,
-					    NULL),
-			 RW_OK);
+	                 RW_OK);
+	assert_int_equal(rw_fluid_gas_props(10.0, 120.0, 0.65, &c, NULL, NULL),
+	                 RW_OK);
 	assert_true(b.rho_kgm3 > a.rho_kgm3 && b.k_pa > a.k_pa);
 	assert_true(c.rho_kgm3 < a.rho_kgm3);
 }
@@ -147,9 +146,9 @@ static void test_deadoil_standard(void **state)
 
 	(void)state;
 	for (i = 0; i < sizeof(api) / sizeof(api[0]); i++) {
-		assert_int_equal(rw_fluid_deadoil_props(0.101325, 15.56,
-							api[i], &ph, &warn),
-				 RW_OK);
+		assert_int_equal(
+		    rw_fluid_deadoil_props(0.101325, 15.56, api[i], &ph, &warn),
+		    RW_OK);
 		assert_int_equal(warn, 0);
 		assert_rel(ph.rho_kgm3, 141.5e3 / (api[i] + 131.5), 0.006);
 		assert_rel(ph.k_pa, ph.rho_kgm3 * ph.v_ms * ph.v_ms, 1e-12);
@@ -164,13 +163,13 @@ static void test_oil_trends(void **state)
 
 	(void)state;
 	assert_int_equal(rw_fluid_deadoil_props(20.0, 60.0, 30.0, &a, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_int_equal(rw_fluid_deadoil_props(20.0, 100.0, 30.0, &b, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_int_equal(rw_fluid_deadoil_props(40.0, 60.0, 30.0, &c, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_int_equal(rw_fluid_deadoil_props(20.0, 60.0, 45.0, &d, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_true(b.v_ms < a.v_ms && b.rho_kgm3 < a.rho_kgm3);
 	assert_true(c.v_ms > a.v_ms && c.rho_kgm3 > a.rho_kgm3);
 	assert_true(d.v_ms < a.v_ms && d.rho_kgm3 < a.rho_kgm3);
@@ -191,26 +190,24 @@ static void test_liveoil(void **state)
 
 	(void)state;
 	assert_int_equal(rw_fluid_liveoil_props(1e-6, 80.0, 30.0, 0.0, 0.6,
-						&live, &b0, &warn),
-			 RW_OK);
-	assert_int_equal(rw_fluid_deadoil_props(1e-6, 80.0, 30.0, &dead,
-						NULL),
-			 RW_OK);
+	                                        &live, &b0, &warn),
+	                 RW_OK);
+	assert_int_equal(rw_fluid_deadoil_props(1e-6, 80.0, 30.0, &dead, NULL),
+	                 RW_OK);
 	assert_rel(live.rho_kgm3, dead.rho_kgm3, 1e-3);
 	assert_true(b0 > 1.0);
 
 	assert_int_equal(rw_fluid_liveoil_props(30.0, 80.0, 30.0, 100.0, 0.6,
-						&gassy, &b0, &warn),
-			 RW_OK);
+	                                        &gassy, &b0, &warn),
+	                 RW_OK);
 	assert_int_equal(warn, 0);
 	assert_true(gassy.rho_kgm3 < live.rho_kgm3);
 	assert_true(gassy.v_ms < dead.v_ms);
-	assert_rel(gassy.k_pa, gassy.rho_kgm3 * gassy.v_ms * gassy.v_ms,
-		   1e-12);
+	assert_rel(gassy.k_pa, gassy.rho_kgm3 * gassy.v_ms * gassy.v_ms, 1e-12);
 
 	assert_int_equal(rw_fluid_liveoil_props(1.0, 80.0, 30.0, 100.0, 0.6,
-						&gassy, &b0, &warn),
-			 RW_OK);
+	                                        &gassy, &b0, &warn),
+	                 RW_OK);
 	assert_true(warn & RW_FLUID_WARN_GOR_MAX);
 }
 
@@ -225,11 +222,11 @@ static void test_brine_vs_water(void **state)
 	assert_int_equal(rw_fluid_water_props(30.0, 80.0, &w, &warn), RW_OK);
 	assert_int_equal(warn, 0);
 	assert_int_equal(rw_fluid_brine_props(30.0, 80.0, 0.0, &b0, &warn),
-			 RW_OK);
+	                 RW_OK);
 	assert_rel(b0.rho_kgm3, w.rho_kgm3, 1e-15);
 	assert_rel(b0.v_ms, w.v_ms, 1e-15);
 	assert_int_equal(rw_fluid_brine_props(30.0, 80.0, 0.1, &b, &warn),
-			 RW_OK);
+	                 RW_OK);
 	assert_true(b.rho_kgm3 > w.rho_kgm3 && b.v_ms > w.v_ms);
 	assert_true(b.k_pa > w.k_pa);
 }
@@ -250,17 +247,17 @@ static void test_warnings(void **state)
 	assert_int_equal(rw_fluid_water_props(0.1, 99.0, &ph, &warn), RW_OK);
 	assert_int_equal(warn, 0);
 	assert_int_equal(rw_fluid_brine_props(150.0, 50.0, 0.32, &ph, &warn),
-			 RW_OK);
+	                 RW_OK);
 	assert_int_equal(warn, RW_FLUID_WARN_P_RANGE | RW_FLUID_WARN_SAL_RANGE);
 	assert_int_equal(rw_fluid_gas_props(20.0, 200.0, 1.9, &ph, NULL, &warn),
-			 RW_OK);
+	                 RW_OK);
 	assert_int_equal(warn, RW_FLUID_WARN_G_RANGE);
 	/* Far outside the Z fit (T_pr 0.68) Z goes negative: RW_ERANGE. */
 	assert_int_equal(rw_fluid_gas_props(20.0, 80.0, 2.5, &ph, NULL, &warn),
-			 RW_ERANGE);
+	                 RW_ERANGE);
 	assert_phase_nan(&ph);
 	assert_int_equal(rw_fluid_deadoil_props(20.0, 80.0, 70.0, &ph, &warn),
-			 RW_OK);
+	                 RW_OK);
 	assert_int_equal(warn, RW_FLUID_WARN_API_RANGE);
 }
 
@@ -272,41 +269,40 @@ static void test_domain_errors(void **state)
 	double z = 0.0, b0 = 0.0;
 
 	(void)state;
-	assert_int_equal(rw_fluid_water_props(-1.0, 20.0, &ph, &warn),
-			 RW_EDOM);
+	assert_int_equal(rw_fluid_water_props(-1.0, 20.0, &ph, &warn), RW_EDOM);
 	assert_phase_nan(&ph);
 	assert_int_equal(rw_fluid_water_props(0.0, 20.0, &ph, &warn), RW_EDOM);
 	assert_int_equal(rw_fluid_water_props(10.0, -30.0, &ph, &warn),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_int_equal(rw_fluid_water_props(NAN, 20.0, &ph, &warn), RW_EDOM);
 	assert_int_equal(rw_fluid_brine_props(10.0, 20.0, -0.01, &ph, &warn),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_phase_nan(&ph);
 	assert_int_equal(rw_fluid_brine_props(10.0, 20.0, 0.36, &ph, &warn),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_int_equal(rw_fluid_gas_props(-5.0, 20.0, 0.6, &ph, &z, &warn),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_phase_nan(&ph);
 	assert_true(isnan(z));
 	assert_int_equal(rw_fluid_gas_props(5.0, -300.0, 0.6, &ph, &z, &warn),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_int_equal(rw_fluid_gas_props(5.0, 20.0, 0.0, &ph, &z, &warn),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_int_equal(rw_fluid_deadoil_props(-1.0, 20.0, 30.0, &ph, &warn),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_int_equal(rw_fluid_deadoil_props(10.0, 20.0, 0.0, &ph, &warn),
-			 RW_EDOM);
+	                 RW_EDOM);
 	assert_phase_nan(&ph);
 	assert_int_equal(rw_fluid_liveoil_props(10.0, 20.0, 30.0, -1.0, 0.6,
-						&ph, &b0, &warn),
-			 RW_EDOM);
+	                                        &ph, &b0, &warn),
+	                 RW_EDOM);
 	assert_true(isnan(b0));
 	assert_int_equal(rw_fluid_liveoil_props(10.0, 20.0, 30.0, 50.0, 0.0,
-						&ph, &b0, &warn),
-			 RW_EDOM);
+	                                        &ph, &b0, &warn),
+	                 RW_EDOM);
 	assert_int_equal(rw_fluid_liveoil_props(-10.0, 20.0, 30.0, 50.0, 0.6,
-						&ph, &b0, &warn),
-			 RW_EDOM);
+	                                        &ph, &b0, &warn),
+	                 RW_EDOM);
 	assert_phase_nan(&ph);
 	assert_int_equal(rw_fluid_water_psat(-5.0, &z), RW_EDOM);
 	assert_true(isnan(z));
@@ -316,13 +312,12 @@ static void test_domain_errors(void **state)
 static void three_phases(rw_fluid_phase ph[3])
 {
 	assert_int_equal(rw_fluid_brine_props(30.0, 80.0, 0.05, &ph[0], NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_int_equal(rw_fluid_liveoil_props(30.0, 80.0, 35.0, 80.0, 0.65,
-						&ph[1], NULL, NULL),
-			 RW_OK);
-	assert_int_equal(rw_fluid_gas_props(30.0, 80.0, 0.65, &ph[2], NULL,
-					    NULL),
-			 RW_OK);
+	                                        &ph[1], NULL, NULL),
+	                 RW_OK);
+	assert_int_equal(
+	    rw_fluid_gas_props(30.0, 80.0, 0.65, &ph[2], NULL, NULL), RW_OK);
 }
 
 /* Wood 1955 is the Reuss average (Wood 1955; Mavko et al. 2009): checked
@@ -342,14 +337,14 @@ static void test_wood_is_reuss(void **state)
 		rho[i] = ph[i].rho_kgm3;
 	}
 	assert_int_equal(rw_fluid_mix_wood(3, ph, sat, &mix), RW_OK);
-	assert_int_equal(rw_mineral_mix(RW_MIX_REUSS, 3, k, mu, rho, sat, &kr,
-					&mur, &rhor),
-			 RW_OK);
+	assert_int_equal(
+	    rw_mineral_mix(RW_MIX_REUSS, 3, k, mu, rho, sat, &kr, &mur, &rhor),
+	    RW_OK);
 	assert_rel(mix.k_pa, kr, 1e-14);
 	assert_rel(mix.k_pa, 1.0 / (0.5 / k[0] + 0.3 / k[1] + 0.2 / k[2]),
-		   1e-14);
+	           1e-14);
 	assert_rel(mix.rho_kgm3, 0.5 * rho[0] + 0.3 * rho[1] + 0.2 * rho[2],
-		   1e-14);
+	           1e-14);
 	assert_rel(mix.v_ms, sqrt(mix.k_pa / mix.rho_kgm3), 1e-14);
 }
 
@@ -390,12 +385,12 @@ static void test_brie(void **state)
 	prev = INFINITY;
 	for (e = 1.0; e <= 40.0; e *= 1.5) {
 		assert_int_equal(rw_fluid_mix_brie(3, ph, sat3, 0, e, &b),
-				 RW_OK);
+		                 RW_OK);
 		assert_true(b.k_pa >= khc * (1 - 1e-12));
 		assert_true(b.k_pa <= v.k_pa * (1 + 1e-12));
 		assert_true(b.k_pa < prev);
 		assert_rel(b.k_pa, (ph[0].k_pa - khc) * pow(0.4, e) + khc,
-			   1e-13);
+		           1e-13);
 		prev = b.k_pa;
 	}
 	assert_int_equal(rw_fluid_mix_wood(3, ph, sat3, &w), RW_OK);
@@ -415,12 +410,11 @@ static void test_mix_errors(void **state)
 	assert_phase_nan(&out);
 	assert_int_equal(rw_fluid_mix_voigt(3, ph, sum_low, &out), RW_EINVAL);
 	assert_int_equal(rw_fluid_mix_brie(3, ph, sum_low, 0, 2.0, &out),
-			 RW_EINVAL);
+	                 RW_EINVAL);
 	assert_int_equal(rw_fluid_mix_wood(3, ph, neg, &out), RW_EDOM);
 	assert_int_equal(rw_fluid_mix_wood(0, ph, ok, &out), RW_EINVAL);
 	assert_int_equal(rw_fluid_mix_wood(3, NULL, ok, &out), RW_EINVAL);
-	assert_int_equal(rw_fluid_mix_brie(3, ph, ok, 3, 2.0, &out),
-			 RW_EINVAL);
+	assert_int_equal(rw_fluid_mix_brie(3, ph, ok, 3, 2.0, &out), RW_EINVAL);
 	assert_int_equal(rw_fluid_mix_brie(3, ph, ok, 0, 0.5, &out), RW_EDOM);
 	assert_phase_nan(&out);
 	assert_int_equal(rw_fluid_mix_wood(3, ph, near, &out), RW_OK);
@@ -432,19 +426,19 @@ static void test_mix_errors(void **state)
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_scf_per_bbl),
-		cmocka_unit_test(test_gas_ideal_limit),
-		cmocka_unit_test(test_gas_z_chart),
-		cmocka_unit_test(test_gas_trends),
-		cmocka_unit_test(test_deadoil_standard),
-		cmocka_unit_test(test_oil_trends),
-		cmocka_unit_test(test_liveoil),
-		cmocka_unit_test(test_brine_vs_water),
-		cmocka_unit_test(test_warnings),
-		cmocka_unit_test(test_domain_errors),
-		cmocka_unit_test(test_wood_is_reuss),
-		cmocka_unit_test(test_brie),
-		cmocka_unit_test(test_mix_errors),
+	    cmocka_unit_test(test_scf_per_bbl),
+	    cmocka_unit_test(test_gas_ideal_limit),
+	    cmocka_unit_test(test_gas_z_chart),
+	    cmocka_unit_test(test_gas_trends),
+	    cmocka_unit_test(test_deadoil_standard),
+	    cmocka_unit_test(test_oil_trends),
+	    cmocka_unit_test(test_liveoil),
+	    cmocka_unit_test(test_brine_vs_water),
+	    cmocka_unit_test(test_warnings),
+	    cmocka_unit_test(test_domain_errors),
+	    cmocka_unit_test(test_wood_is_reuss),
+	    cmocka_unit_test(test_brie),
+	    cmocka_unit_test(test_mix_errors),
 	};
 
 	gsl_set_error_handler_off();

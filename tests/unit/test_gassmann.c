@@ -19,14 +19,14 @@ static void assert_rel(double got, double want, double tol)
 {
 	if (!(fabs(got - want) <= tol * fabs(want)))
 		fail_msg("got %.15g, want %.15g (rel tol %g, rel dev %g)", got,
-			 want, tol, (got - want) / want);
+		         want, tol, (got - want) / want);
 }
 
 static void assert_subst_nan(const rw_rock_subst *s)
 {
 	assert_true(isnan(s->vp_ms) && isnan(s->vs_ms) && isnan(s->rho_kgm3));
 	assert_true(isnan(s->k_sat_pa) && isnan(s->mu_pa) &&
-		    isnan(s->k_dry_pa));
+	            isnan(s->k_dry_pa));
 }
 
 /* dry -> sat -> dry returns K_dry to 1e-12 relative (algebraic inverse,
@@ -45,10 +45,10 @@ static void test_round_trip(void **state)
 		double k0 = kdry[i / 12], f = phi[(i / 3) % 4], kf = kfl[i % 3];
 
 		assert_int_equal(rw_rock_gassmann_sat(k0, km, kf, f, &ks, NULL),
-				 RW_OK);
+		                 RW_OK);
 		assert_true(ks > k0);
 		assert_int_equal(rw_rock_gassmann_dry(ks, km, kf, f, &kd, NULL),
-				 RW_OK);
+		                 RW_OK);
 		assert_rel(kd, k0, 1e-12);
 	}
 }
@@ -64,16 +64,15 @@ static void test_limits(void **state)
 
 	(void)state;
 	for (kd = 0.0; kd <= 30e9; kd += 5e9) {
-		assert_int_equal(rw_rock_gassmann_sat(kd, km, km, 0.2, &ks,
-						      NULL),
-				 RW_OK);
+		assert_int_equal(
+		    rw_rock_gassmann_sat(kd, km, km, 0.2, &ks, NULL), RW_OK);
 		assert_rel(ks, km, 1e-13);
 	}
 	assert_int_equal(rw_rock_gassmann_sat(0.0, km, 2.5e9, 0.3, &ks, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_rel(ks, 1.0 / (0.3 / 2.5e9 + 0.7 / km), 1e-14);
 	assert_int_equal(rw_rock_gassmann_sat(km, km, 2.5e9, 0.3, &ks, NULL),
-			 RW_OK);
+	                 RW_OK);
 	assert_rel(ks, km, 1e-14);
 }
 
@@ -104,9 +103,9 @@ static void test_worked_example(void **state)
 
 	(void)state;
 	assert_int_equal(rw_rock_fluid_subst(3000.0, 1600.0, 2250.0, 0.25,
-					     36.6e9, 2.7e9, 1050.0, 0.05e9,
-					     150.0, &s, &warn),
-			 RW_OK);
+	                                     36.6e9, 2.7e9, 1050.0, 0.05e9,
+	                                     150.0, &s, &warn),
+	                 RW_OK);
 	assert_int_equal(warn, 0);
 	assert_rel(s.mu_pa, 5.76e9, 1e-15);
 	assert_rel(s.k_dry_pa, 6.214252e9, 1e-6);
@@ -129,21 +128,19 @@ static void test_gas_effect(void **state)
 
 	(void)state;
 	assert_int_equal(rw_fluid_brine_props(30.0, 80.0, 0.05, &brine, NULL),
-			 RW_OK);
-	assert_int_equal(rw_fluid_gas_props(30.0, 80.0, 0.65, &gas, NULL,
-					    NULL),
-			 RW_OK);
-	assert_int_equal(rw_rock_gassmann_frame(8e9, 7e9, 0.22, 36.6e9,
-						2650.0, brine.k_pa,
-						brine.rho_kgm3, &b, &warn),
-			 RW_OK);
+	                 RW_OK);
+	assert_int_equal(rw_fluid_gas_props(30.0, 80.0, 0.65, &gas, NULL, NULL),
+	                 RW_OK);
+	assert_int_equal(rw_rock_gassmann_frame(8e9, 7e9, 0.22, 36.6e9, 2650.0,
+	                                        brine.k_pa, brine.rho_kgm3, &b,
+	                                        &warn),
+	                 RW_OK);
 	assert_int_equal(warn, 0);
 	assert_rel(b.rho_kgm3, 0.78 * 2650.0 + 0.22 * brine.rho_kgm3, 1e-15);
-	assert_int_equal(rw_rock_fluid_subst(b.vp_ms, b.vs_ms, b.rho_kgm3,
-					     0.22, 36.6e9, brine.k_pa,
-					     brine.rho_kgm3, gas.k_pa,
-					     gas.rho_kgm3, &g, &warn),
-			 RW_OK);
+	assert_int_equal(rw_rock_fluid_subst(b.vp_ms, b.vs_ms, b.rho_kgm3, 0.22,
+	                                     36.6e9, brine.k_pa, brine.rho_kgm3,
+	                                     gas.k_pa, gas.rho_kgm3, &g, &warn),
+	                 RW_OK);
 	assert_true(g.vp_ms < b.vp_ms);
 	assert_true(g.rho_kgm3 < b.rho_kgm3);
 	assert_true(g.vp_ms * g.rho_kgm3 < b.vp_ms * b.rho_kgm3);
@@ -151,20 +148,20 @@ static void test_gas_effect(void **state)
 	assert_rel(g.mu_pa, b.mu_pa, 1e-12);
 	assert_rel(g.k_dry_pa, 8e9, 1e-10);
 
-	assert_int_equal(rw_rock_gassmann_frame(8e9, 7e9, 0.22, 36.6e9,
-						2650.0, gas.k_pa, gas.rho_kgm3,
-						&g2, &warn),
-			 RW_OK);
+	assert_int_equal(rw_rock_gassmann_frame(8e9, 7e9, 0.22, 36.6e9, 2650.0,
+	                                        gas.k_pa, gas.rho_kgm3, &g2,
+	                                        &warn),
+	                 RW_OK);
 	assert_rel(g.vp_ms, g2.vp_ms, 1e-10);
 	assert_rel(g.vs_ms, g2.vs_ms, 1e-12);
 	assert_rel(g.rho_kgm3, g2.rho_kgm3, 1e-12);
 
 	/* brine -> brine is the identity */
-	assert_int_equal(rw_rock_fluid_subst(b.vp_ms, b.vs_ms, b.rho_kgm3,
-					     0.22, 36.6e9, brine.k_pa,
-					     brine.rho_kgm3, brine.k_pa,
-					     brine.rho_kgm3, &g, &warn),
-			 RW_OK);
+	assert_int_equal(rw_rock_fluid_subst(b.vp_ms, b.vs_ms, b.rho_kgm3, 0.22,
+	                                     36.6e9, brine.k_pa, brine.rho_kgm3,
+	                                     brine.k_pa, brine.rho_kgm3, &g,
+	                                     &warn),
+	                 RW_OK);
 	assert_rel(g.vp_ms, b.vp_ms, 1e-12);
 }
 
@@ -178,29 +175,25 @@ static void test_warnings(void **state)
 	double k;
 
 	(void)state;
-	assert_int_equal(rw_rock_gassmann_sat(30e9, 36.6e9, 2.5e9, 0.03, &k,
-					      &warn),
-			 RW_OK);
+	assert_int_equal(
+	    rw_rock_gassmann_sat(30e9, 36.6e9, 2.5e9, 0.03, &k, &warn), RW_OK);
 	assert_int_equal(warn, RW_ROCK_WARN_PHI_LOW);
-	assert_int_equal(rw_rock_gassmann_sat(20e9, 36.6e9, 2.5e9, 0.05, &k,
-					      &warn),
-			 RW_OK);
+	assert_int_equal(
+	    rw_rock_gassmann_sat(20e9, 36.6e9, 2.5e9, 0.05, &k, &warn), RW_OK);
 	assert_int_equal(warn, 0);
 	/* K1 = 2000 * 1500^2 = 4.5e9 is below the Reuss value of quartz and
 	 * brine at phi 0.3 (1/(0.3/2.7e9 + 0.7/36.6e9) = 7.7e9): K_dry < 0 */
 	assert_int_equal(rw_rock_fluid_subst(1500.0, 0.0, 2000.0, 0.3, 36.6e9,
-					     2.7e9, 1050.0, 0.05e9, 150.0, &s,
-					     &warn),
-			 RW_ERANGE);
-	assert_int_equal(rw_rock_gassmann_dry(4.5e9, 36.6e9, 2.7e9, 0.3, &k,
-					      &warn),
-			 RW_OK);
+	                                     2.7e9, 1050.0, 0.05e9, 150.0, &s,
+	                                     &warn),
+	                 RW_ERANGE);
+	assert_int_equal(
+	    rw_rock_gassmann_dry(4.5e9, 36.6e9, 2.7e9, 0.3, &k, &warn), RW_OK);
 	assert_true(k < 0.0);
 	assert_true(warn & RW_ROCK_WARN_KDRY_NEG);
 	/* K_sat 40 GPa above quartz's 36.6 GPa: K_dry = 112.52 / 2.8209 GPa */
-	assert_int_equal(rw_rock_gassmann_dry(40.0e9, 36.6e9, 2.5e9, 0.2, &k,
-					      &warn),
-			 RW_OK);
+	assert_int_equal(
+	    rw_rock_gassmann_dry(40.0e9, 36.6e9, 2.5e9, 0.2, &k, &warn), RW_OK);
 	assert_true(k > 36.6e9);
 	assert_true(warn & RW_ROCK_WARN_KDRY_GT_KMIN);
 }
@@ -216,65 +209,61 @@ static void test_errors(void **state)
 	(void)state;
 	for (i = 0; i < 5; i++) {
 		assert_int_equal(rw_rock_gassmann_sat(8e9, 36.6e9, 2.5e9,
-						      badphi[i], &k, &warn),
-				 RW_EDOM);
+		                                      badphi[i], &k, &warn),
+		                 RW_EDOM);
 		assert_true(isnan(k));
 		assert_int_equal(rw_rock_gassmann_dry(12e9, 36.6e9, 2.5e9,
-						      badphi[i], &k, &warn),
-				 RW_EDOM);
-		assert_int_equal(rw_rock_fluid_subst(3000, 1600, 2250,
-						     badphi[i], 36.6e9, 2.7e9,
-						     1050, 0.05e9, 150, &s,
-						     &warn),
-				 RW_EDOM);
+		                                      badphi[i], &k, &warn),
+		                 RW_EDOM);
+		assert_int_equal(
+		    rw_rock_fluid_subst(3000, 1600, 2250, badphi[i], 36.6e9,
+		                        2.7e9, 1050, 0.05e9, 150, &s, &warn),
+		    RW_EDOM);
 		assert_subst_nan(&s);
 		assert_int_equal(rw_rock_gassmann_frame(8e9, 7e9, badphi[i],
-							36.6e9, 2650, 2.5e9,
-							1050, &s, &warn),
-				 RW_EDOM);
+		                                        36.6e9, 2650, 2.5e9,
+		                                        1050, &s, &warn),
+		                 RW_EDOM);
 		assert_subst_nan(&s);
 	}
-	assert_int_equal(rw_rock_gassmann_sat(8e9, 36.6e9, -1.0, 0.2, &k,
-					      NULL),
-			 RW_EDOM);
+	assert_int_equal(rw_rock_gassmann_sat(8e9, 36.6e9, -1.0, 0.2, &k, NULL),
+	                 RW_EDOM);
 	assert_int_equal(rw_rock_gassmann_sat(8e9, 0.0, 2.5e9, 0.2, &k, NULL),
-			 RW_EDOM);
-	assert_int_equal(rw_rock_gassmann_dry(-1.0, 36.6e9, 2.5e9, 0.2, &k,
-					      NULL),
-			 RW_EDOM);
+	                 RW_EDOM);
+	assert_int_equal(
+	    rw_rock_gassmann_dry(-1.0, 36.6e9, 2.5e9, 0.2, &k, NULL), RW_EDOM);
 	/* vp^2 < 4/3 vs^2: negative bulk modulus */
 	assert_int_equal(rw_rock_fluid_subst(2000, 1800, 2250, 0.2, 36.6e9,
-					     2.7e9, 1050, 0.05e9, 150, &s,
-					     NULL),
-			 RW_EDOM);
+	                                     2.7e9, 1050, 0.05e9, 150, &s,
+	                                     NULL),
+	                 RW_EDOM);
 	assert_subst_nan(&s);
 	assert_int_equal(rw_rock_fluid_subst(3000, 1600, -2250, 0.2, 36.6e9,
-					     2.7e9, 1050, 0.05e9, 150, &s,
-					     NULL),
-			 RW_EDOM);
+	                                     2.7e9, 1050, 0.05e9, 150, &s,
+	                                     NULL),
+	                 RW_EDOM);
 	/* new density would be negative: 900 + 0.9 (1 - 1050) < 0 */
 	assert_int_equal(rw_rock_fluid_subst(3000, 1600, 900, 0.9, 36.6e9,
-					     2.7e9, 1050, 2.7e9, 1.0, &s,
-					     NULL),
-			 RW_ERANGE);
+	                                     2.7e9, 1050, 2.7e9, 1.0, &s, NULL),
+	                 RW_ERANGE);
 	assert_subst_nan(&s);
 	assert_int_equal(rw_rock_gassmann_frame(-1.0, 7e9, 0.2, 36.6e9, 2650,
-						2.5e9, 1050, &s, NULL),
-			 RW_EDOM);
+	                                        2.5e9, 1050, &s, NULL),
+	                 RW_EDOM);
 	assert_int_equal(rw_rock_gassmann_frame(8e9, 7e9, 0.2, 36.6e9, 2650,
-						0.0, 1050, &s, NULL),
-			 RW_EDOM);
+	                                        0.0, 1050, &s, NULL),
+	                 RW_EDOM);
 }
 
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_round_trip),
-		cmocka_unit_test(test_limits),
-		cmocka_unit_test(test_worked_example),
-		cmocka_unit_test(test_gas_effect),
-		cmocka_unit_test(test_warnings),
-		cmocka_unit_test(test_errors),
+	    cmocka_unit_test(test_round_trip),
+	    cmocka_unit_test(test_limits),
+	    cmocka_unit_test(test_worked_example),
+	    cmocka_unit_test(test_gas_effect),
+	    cmocka_unit_test(test_warnings),
+	    cmocka_unit_test(test_errors),
 	};
 
 	gsl_set_error_handler_off();

@@ -17,25 +17,25 @@
 #include "server/lines.h"
 
 static const char stream[] =
-	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"service.info\"}\n"
-	"\n"
-	"{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":\"elastic.convert\","
-	"\"params\":{\"rho\":2.3,\"vp\":[3000,3100],\"vs\":1500}}\r\n"
-	"[{\"jsonrpc\":\"2.0\",\"id\":3,\"method\":\"nope\"}]\n"
-	"{\"jsonrpc\":\"2.0\",\"id\":4,\"method\":\"elastic.convert\","
-	"\"params\":{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"pad\":\""
-	"xxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxx"
-	"xxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxx"
-	"\"}}\n"
-	"garbage\n"
-	"{\"jsonrpc\":\"2.0\",\"id\":5,\"method\":\"rpc.discover\"}\n"
-	"{\"jsonrpc\":\"2.0\",\"id\":6,\"method\":\"service.info\"}";
+    "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"service.info\"}\n"
+    "\n"
+    "{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":\"elastic.convert\","
+    "\"params\":{\"rho\":2.3,\"vp\":[3000,3100],\"vs\":1500}}\r\n"
+    "[{\"jsonrpc\":\"2.0\",\"id\":3,\"method\":\"nope\"}]\n"
+    "{\"jsonrpc\":\"2.0\",\"id\":4,\"method\":\"elastic.convert\","
+    "\"params\":{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"pad\":\""
+    "xxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxx"
+    "xxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxx"
+    "\"}}\n"
+    "garbage\n"
+    "{\"jsonrpc\":\"2.0\",\"id\":5,\"method\":\"rpc.discover\"}\n"
+    "{\"jsonrpc\":\"2.0\",\"id\":6,\"method\":\"service.info\"}";
 
 /* Feeds `stream` in chunks of the sizes produced by next_chunk and runs
  * every line through the protocol; returns all output (caller frees).
  * max_line 150 makes request 4 oversized. */
 static char *run(size_t (*next_chunk)(size_t left, unsigned *seed),
-		 unsigned seed, int *oversized)
+                 unsigned seed, int *oversized)
 {
 	proto_ctx *ctx = proto_ctx_new(NULL);
 	proto_session *s = proto_session_new(ctx);
@@ -58,7 +58,7 @@ static char *run(size_t (*next_chunk)(size_t left, unsigned *seed),
 			if (st == SRV_LINE_OVERSIZE) {
 				(*oversized)++;
 				proto_error_line(ctx, &out, -32600, NULL,
-						 "too long");
+				                 "too long");
 			} else {
 				rw_proto_handle(s, line, len, &out);
 			}
@@ -151,8 +151,7 @@ static void test_oversize_streaming(void **state)
 		memset(exact, 'b', 100);
 		exact[100] = '\n';
 		srv_lines_append(&lb, exact, sizeof exact);
-		assert_int_equal(srv_lines_next(&lb, &line, &len),
-				 SRV_LINE_OK);
+		assert_int_equal(srv_lines_next(&lb, &line, &len), SRV_LINE_OK);
 		assert_int_equal(len, 100);
 	}
 	srv_lines_free(&lb);
@@ -161,8 +160,8 @@ static void test_oversize_streaming(void **state)
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_framings_agree),
-		cmocka_unit_test(test_oversize_streaming),
+	    cmocka_unit_test(test_framings_agree),
+	    cmocka_unit_test(test_oversize_streaming),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -30,11 +30,10 @@ static void assert_rel(double got, double want, double tol)
  * minerals the brief requires are present. */
 static void test_table(void **state)
 {
-	static const char *need[] = {"quartz",    "calcite",  "dolomite",
-				     "clay",      "illite",   "kaolinite",
-				     "smectite",  "albite",   "anhydrite",
-				     "halite",    "pyrite",   "siderite",
-				     "feldspar"};
+	static const char *need[] = {
+	    "quartz",    "calcite",  "dolomite", "clay",      "illite",
+	    "kaolinite", "smectite", "albite",   "anhydrite", "halite",
+	    "pyrite",    "siderite", "feldspar"};
 	size_t n = rw_mineral_count(), i, j, idx;
 	rw_mineral m, m2;
 	const char *c;
@@ -89,20 +88,26 @@ struct mixset {
  * a solid with brine (mu = 0), and an ill-ordered pair (stiffer K with the
  * softer mu). Values are typical, not tabulated references. */
 static const struct mixset sets[] = {
-	{3, {36.6e9, 76.8e9, 21e9}, {45e9, 32e9, 7e9}, {2650, 2710, 2600},
-	 {0.6, 0.25, 0.15}},
-	{2, {36.6e9, 2.5e9}, {45e9, 0.0}, {2650, 1050}, {0.75, 0.25}},
-	{2, {70e9, 30e9}, {20e9, 40e9}, {2800, 2600}, {0.5, 0.5}},
-	{4, {36.6e9, 76.8e9, 21e9, 2.5e9}, {45e9, 32e9, 7e9, 0.0},
-	 {2650, 2710, 2600, 1050}, {0.5, 0.2, 0.1, 0.2}},
+    {3,
+     {36.6e9, 76.8e9, 21e9},
+     {45e9, 32e9, 7e9},
+     {2650, 2710, 2600},
+     {0.6, 0.25, 0.15}},
+    {2, {36.6e9, 2.5e9}, {45e9, 0.0}, {2650, 1050}, {0.75, 0.25}},
+    {2, {70e9, 30e9}, {20e9, 40e9}, {2800, 2600}, {0.5, 0.5}},
+    {4,
+     {36.6e9, 76.8e9, 21e9, 2.5e9},
+     {45e9, 32e9, 7e9, 0.0},
+     {2650, 2710, 2600, 1050},
+     {0.5, 0.2, 0.1, 0.2}},
 };
 
 static void mix(int method, const struct mixset *s, double *k, double *mu,
-		double *rho)
+                double *rho)
 {
-	assert_int_equal(rw_mineral_mix(method, s->n, s->k, s->mu, s->rho,
-					s->f, k, mu, rho),
-			 RW_OK);
+	assert_int_equal(
+	    rw_mineral_mix(method, s->n, s->k, s->mu, s->rho, s->f, k, mu, rho),
+	    RW_OK);
 }
 
 /* Reuss <= HS- <= HS+ <= Voigt for K and mu (Hashin & Shtrikman 1963;
@@ -111,8 +116,8 @@ static void mix(int method, const struct mixset *s, double *k, double *mu,
 static void test_bounds_order(void **state)
 {
 	size_t i, j;
-	double kv, muv, kr, mur, kh, muh, ku, muu, kl, mul, rv, rr, rh, ru,
-		rl, rho;
+	double kv, muv, kr, mur, kh, muh, ku, muu, kl, mul, rv, rr, rh, ru, rl,
+	    rho;
 
 	(void)state;
 	for (i = 0; i < sizeof(sets) / sizeof(sets[0]); i++) {
@@ -169,12 +174,11 @@ static double hs2_k(double k1, double mu1, double f1, double k2, double f2)
 	return k1 + f2 / (1.0 / (k2 - k1) + f1 / (k1 + 4.0 / 3.0 * mu1));
 }
 
-static double hs2_mu(double k1, double mu1, double f1, double mu2,
-		     double f2)
+static double hs2_mu(double k1, double mu1, double f1, double mu2, double f2)
 {
 	return mu1 + f2 / (1.0 / (mu2 - mu1) +
-			   2.0 * f1 * (k1 + 2.0 * mu1) /
-				   (5.0 * mu1 * (k1 + 4.0 / 3.0 * mu1)));
+	                   2.0 * f1 * (k1 + 2.0 * mu1) /
+	                       (5.0 * mu1 * (k1 + 4.0 / 3.0 * mu1)));
 }
 
 static void test_hs_two_phase(void **state)
@@ -189,11 +193,11 @@ static void test_hs_two_phase(void **state)
 		f[0] = fq[i];
 		f[1] = 1.0 - fq[i];
 		assert_int_equal(rw_mineral_mix(RW_MIX_HS_UPPER, 2, k, mu, r, f,
-						&ku, &muu, NULL),
-				 RW_OK);
+		                                &ku, &muu, NULL),
+		                 RW_OK);
 		assert_int_equal(rw_mineral_mix(RW_MIX_HS_LOWER, 2, k, mu, r, f,
-						&kl, &mul, NULL),
-				 RW_OK);
+		                                &kl, &mul, NULL),
+		                 RW_OK);
 		assert_rel(ku, hs2_k(k[0], mu[0], f[0], k[1], f[1]), 1e-12);
 		assert_rel(muu, hs2_mu(k[0], mu[0], f[0], mu[1], f[1]), 1e-12);
 		assert_rel(kl, hs2_k(k[1], mu[1], f[1], k[0], f[0]), 1e-12);
@@ -216,12 +220,12 @@ static void test_equal_mu(void **state)
 	for (i = 0; i < 3; i++)
 		s += f[i] / (k[i] + 4.0 / 3.0 * 20e9);
 	exact = 1.0 / s - 4.0 / 3.0 * 20e9;
-	assert_int_equal(rw_mineral_mix(RW_MIX_HS_UPPER, 3, k, mu, r, f, &ku,
-					&muu, NULL),
-			 RW_OK);
-	assert_int_equal(rw_mineral_mix(RW_MIX_HS_LOWER, 3, k, mu, r, f, &kl,
-					&mul, NULL),
-			 RW_OK);
+	assert_int_equal(
+	    rw_mineral_mix(RW_MIX_HS_UPPER, 3, k, mu, r, f, &ku, &muu, NULL),
+	    RW_OK);
+	assert_int_equal(
+	    rw_mineral_mix(RW_MIX_HS_LOWER, 3, k, mu, r, f, &kl, &mul, NULL),
+	    RW_OK);
 	assert_rel(ku, exact, 1e-14);
 	assert_rel(kl, exact, 1e-14);
 	assert_rel(muu, 20e9, 1e-14);
@@ -237,9 +241,8 @@ static void test_single(void **state)
 
 	(void)state;
 	for (m = RW_MIX_VOIGT; m <= RW_MIX_HS_LOWER; m++) {
-		assert_int_equal(rw_mineral_mix(m, 2, k, mu, r, f, &ko, &muo,
-						&ro),
-				 RW_OK);
+		assert_int_equal(
+		    rw_mineral_mix(m, 2, k, mu, r, f, &ko, &muo, &ro), RW_OK);
 		assert_rel(ko, 76.8e9, 1e-14);
 		assert_rel(muo, 32e9, 1e-14);
 		assert_rel(ro, 2710, 1e-15);
@@ -254,41 +257,41 @@ static void test_mix_errors(void **state)
 	double kneg[2] = {-1.0, 21e9}, knan[2] = {NAN, 21e9};
 
 	(void)state;
-	assert_int_equal(rw_mineral_mix(RW_MIX_HILL, 2, k, mu, r, f_bad, &ko,
-					&muo, &ro),
-			 RW_EINVAL);
+	assert_int_equal(
+	    rw_mineral_mix(RW_MIX_HILL, 2, k, mu, r, f_bad, &ko, &muo, &ro),
+	    RW_EINVAL);
 	assert_true(isnan(ko) && isnan(muo) && isnan(ro));
-	assert_int_equal(rw_mineral_mix(RW_MIX_HILL, 2, k, mu, r, f_neg, &ko,
-					&muo, &ro),
-			 RW_EDOM);
-	assert_int_equal(rw_mineral_mix(RW_MIX_HILL, 2, kneg, mu, r, f, &ko,
-					&muo, &ro),
-			 RW_EDOM);
-	assert_int_equal(rw_mineral_mix(RW_MIX_HILL, 2, knan, mu, r, f, &ko,
-					&muo, &ro),
-			 RW_EDOM);
+	assert_int_equal(
+	    rw_mineral_mix(RW_MIX_HILL, 2, k, mu, r, f_neg, &ko, &muo, &ro),
+	    RW_EDOM);
+	assert_int_equal(
+	    rw_mineral_mix(RW_MIX_HILL, 2, kneg, mu, r, f, &ko, &muo, &ro),
+	    RW_EDOM);
+	assert_int_equal(
+	    rw_mineral_mix(RW_MIX_HILL, 2, knan, mu, r, f, &ko, &muo, &ro),
+	    RW_EDOM);
 	assert_int_equal(rw_mineral_mix(99, 2, k, mu, r, f, &ko, &muo, &ro),
-			 RW_EINVAL);
-	assert_int_equal(rw_mineral_mix(RW_MIX_HILL, 0, k, mu, r, f, &ko,
-					&muo, &ro),
-			 RW_EINVAL);
-	assert_int_equal(rw_mineral_mix(RW_MIX_HILL, 2, NULL, mu, r, f, &ko,
-					&muo, &ro),
-			 RW_EINVAL);
+	                 RW_EINVAL);
+	assert_int_equal(
+	    rw_mineral_mix(RW_MIX_HILL, 0, k, mu, r, f, &ko, &muo, &ro),
+	    RW_EINVAL);
+	assert_int_equal(
+	    rw_mineral_mix(RW_MIX_HILL, 2, NULL, mu, r, f, &ko, &muo, &ro),
+	    RW_EINVAL);
 	assert_true(isnan(ko));
 }
 
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(test_table),
-		cmocka_unit_test(test_lookup_errors),
-		cmocka_unit_test(test_bounds_order),
-		cmocka_unit_test(test_hs_lower_with_fluid),
-		cmocka_unit_test(test_hs_two_phase),
-		cmocka_unit_test(test_equal_mu),
-		cmocka_unit_test(test_single),
-		cmocka_unit_test(test_mix_errors),
+	    cmocka_unit_test(test_table),
+	    cmocka_unit_test(test_lookup_errors),
+	    cmocka_unit_test(test_bounds_order),
+	    cmocka_unit_test(test_hs_lower_with_fluid),
+	    cmocka_unit_test(test_hs_two_phase),
+	    cmocka_unit_test(test_equal_mu),
+	    cmocka_unit_test(test_single),
+	    cmocka_unit_test(test_mix_errors),
 	};
 
 	gsl_set_error_handler_off();

@@ -94,7 +94,7 @@ static void check_stats(const cli_wits_stats *s)
 	assert_int_equal(s->bad_records, 2); /* 01X8, long */
 	assert_int_equal(s->unterminated, 1);
 	assert_int_equal(s->empty, 2); /* blank, and abc's text-only record */
-	assert_int_equal(s->bad_lines, 1); /* 01X8 */
+	assert_int_equal(s->bad_lines, 1);  /* 01X8 */
 	assert_int_equal(s->text_items, 2); /* abc, nan */
 	assert_int_equal(s->long_lines, 1);
 	assert_int_equal(s->garbage, 2); /* HELLO RIG, stray !! */

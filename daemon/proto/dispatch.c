@@ -583,3 +583,81 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 	cJSON_Delete(root);
 	return out->oom ? -1 : 0;
 }
+
+/* ---- work estimate ------------------------------------------------------ */
+
+/* The longest numeric array anywhere inside v (1 for scalars). */
+static size_t longest_array(const cJSON *v)
+{
+	size_t best = 1;
+	const cJSON *e;
+
+	if (cJSON_IsArray(v)) {
+		size_t n = (size_t)cJSON_GetArraySize(v);
+		if (v->child &&
+		    (cJSON_IsNumber(v->child) || cJSON_IsNull(v->child)))
+			best = n > best ? n : best;
+	}
+	cJSON_ArrayForEach(e, v)
+	{
+		size_t n = longest_array(e);
+		if (n > best)
+			best = n;
+	}
+	return best;
+}
+
+/* Work of one request: the product over broadcast groups of the longest
+ * array given for the group (group 0 also takes nested objects). */
+static size_t request_cost(proto_session *s, const cJSON *req)
+{
+	const cJSON *method = cJSON_GetObjectItemCaseSensitive(req, "method");
+	const cJSON *params = cJSON_GetObjectItemCaseSensitive(req, "params");
+	const proto_method *m;
+	size_t len[PROTO_MAX_GROUPS], work = 1;
+
+	if (!cJSON_IsString(method) ||
+	    !(m = proto_method_find(method->valuestring)) || !m->params)
+		return 1;
+	for (int g = 0; g < PROTO_MAX_GROUPS; g++)
+		len[g] = 1;
+	for (const proto_param *p = m->params; p->name; p++) {
+		const cJSON *v =
+		    cJSON_GetObjectItemCaseSensitive(params, p->name);
+		size_t n;
+		if (!v && s->defaults)
+			v = cJSON_GetObjectItemCaseSensitive(s->defaults,
+			                                     p->name);
+		if (!v)
+			continue;
+		n = longest_array(v);
+		if (p->group >= 0 && p->group < PROTO_MAX_GROUPS &&
+		    n > len[p->group])
+			len[p->group] = n;
+	}
+	for (int g = 0; g < PROTO_MAX_GROUPS; g++)
+		work = len[g] && work > SIZE_MAX / len[g] ? SIZE_MAX
+		                                          : work * len[g];
+	return work;
+}
+
+size_t rw_proto_cost(proto_session *s, const char *line, size_t len)
+{
+	cJSON *root = cJSON_ParseWithLengthOpts(line, len, NULL, 0);
+	size_t work = 0;
+	const cJSON *e;
+
+	if (!root)
+		return 1;
+	if (cJSON_IsArray(root)) {
+		cJSON_ArrayForEach(e, root)
+		{
+			size_t w = request_cost(s, e);
+			work = work > SIZE_MAX - w ? SIZE_MAX : work + w;
+		}
+	} else {
+		work = request_cost(s, root);
+	}
+	cJSON_Delete(root);
+	return work ? work : 1;
+}

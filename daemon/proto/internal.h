@@ -14,16 +14,6 @@
 
 #include "proto/proto.h"
 
-/* ---- JSON-RPC error codes ---------------------------------------------- */
-#define PROTO_PARSE_ERROR      -32700
-#define PROTO_INVALID_REQUEST  -32600
-#define PROTO_METHOD_NOT_FOUND -32601
-#define PROTO_INVALID_PARAMS   -32602
-#define PROTO_INTERNAL_ERROR   -32603
-/* Application codes (-32000..-32099), documented in protocol-docs. */
-#define PROTO_SERVER_BUSY    -32000
-#define PROTO_LIMIT_EXCEEDED -32001
-
 /* ---- units -------------------------------------------------------------- */
 /* Quantity kinds. Internal (canonical) units are those the core expects:
  * m/s, s/m, kg/m^3, Pa, MPa (pressure), degC, m, kg/(m^2 s), weight

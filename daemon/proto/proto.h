@@ -7,6 +7,16 @@
 #include <stddef.h>
 #include <stdint.h>
 
+/* JSON-RPC 2.0 error codes, shared by the protocol and the server. */
+#define PROTO_PARSE_ERROR      -32700
+#define PROTO_INVALID_REQUEST  -32600
+#define PROTO_METHOD_NOT_FOUND -32601
+#define PROTO_INVALID_PARAMS   -32602
+#define PROTO_INTERNAL_ERROR   -32603
+/* Application codes (-32000..-32099), documented in protocol-docs. */
+#define PROTO_SERVER_BUSY    -32000
+#define PROTO_LIMIT_EXCEEDED -32001
+
 /* A growable output buffer. `oom` is set (and further appends ignored) when
  * an allocation fails or the buffer would pass `limit` (0 = no limit). */
 typedef struct proto_buf {
@@ -85,6 +95,15 @@ void proto_session_free(proto_session *s);
  * at a time. */
 int rw_proto_handle(proto_session *s, const char *line, size_t len,
                     proto_buf *out);
+
+/* Estimates the work of a request line in sample evaluations (samples x
+ * angles and other broadcast dimensions, over every request of a batch,
+ * counting parameters the session supplies), without running it, so the
+ * server can decide to run it off the event loop. Lines that do not
+ * parse, or name no known method, cost 1. Reads the session: call it
+ * from the thread that owns the session, with no request of it in
+ * flight. */
+size_t rw_proto_cost(proto_session *s, const char *line, size_t len);
 
 /* Appends an error response with id null: used by the server for lines it
  * refuses before parsing (too long). `param` and `reason` go into

@@ -205,6 +205,19 @@ void proto_units_describe(proto_call *c)
 		for (size_t i = 0; i < kinds[k].count; i++)
 			proto_w_str(c, NULL, kinds[k].units[i].name);
 		proto_w_arr_end(c);
+		/* value in the default unit = value * scale + offset, so a
+		 * client converts with the daemon's factors, not its own. */
+		proto_w_obj_begin(c, "to_default");
+		for (size_t i = 0; i < kinds[k].count; i++) {
+			const unit_def *d = &kinds[k].units[i];
+			const unit_def *d0 = &kinds[k].units[0];
+			proto_w_obj_begin(c, d->name);
+			proto_w_num(c, "scale", PK_NONE, d->scale / d0->scale);
+			proto_w_num(c, "offset", PK_NONE,
+			            (d->offset - d0->offset) / d0->scale);
+			proto_w_obj_end(c);
+		}
+		proto_w_obj_end(c);
 		proto_w_obj_end(c);
 	}
 	proto_w_obj_end(c);

@@ -710,7 +710,8 @@ static void on_work_done(uv_work_t *w, int status)
 	c->busy = 0;
 	if (!c->closing) {
 		if (c->work_out.oom)
-			proto_error_line(c->srv->ctx, &c->pending, -32603, NULL,
+			proto_error_line(c->srv->ctx, &c->pending,
+			                 PROTO_INTERNAL_ERROR, NULL,
 			                 "out of memory building the response");
 		else if (!c->pending.len) {
 			proto_buf tmp = c->pending;
@@ -756,8 +757,8 @@ static void dispatch_line(conn *c, const char *line, size_t len)
 	}
 	if (rw_proto_handle(c->session, line, len, &c->pending)) {
 		c->pending.oom = 0;
-		proto_error_line(s->ctx, &c->pending, -32603, NULL,
-		                 "out of memory building the response");
+		proto_error_line(s->ctx, &c->pending, PROTO_INTERNAL_ERROR,
+		                 NULL, "out of memory building the response");
 	}
 }
 
@@ -770,7 +771,8 @@ static void oversize(conn *c)
 	         "line longer than the limit of %zu bytes; skipped up to its "
 	         "newline",
 	         c->srv->cfg->limits.max_line);
-	proto_error_line(c->srv->ctx, &c->pending, -32600, NULL, why);
+	proto_error_line(c->srv->ctx, &c->pending, PROTO_INVALID_REQUEST, NULL,
+	                 why);
 }
 
 /* Dispatches up to `budget` lines. Returns 1 when more may be ready. The
@@ -1074,7 +1076,7 @@ static void on_connection(uv_stream_t *server, int status)
 		s->stats->connections_refused++;
 		srv_log("warning", "%s: refused, %zu connections open (limit)",
 		        c->name, s->cfg->limits.max_conns);
-		proto_error_line(s->ctx, &c->pending, -32000, NULL,
+		proto_error_line(s->ctx, &c->pending, PROTO_SERVER_BUSY, NULL,
 		                 "server busy: too many connections; retry "
 		                 "later");
 		c->eof = 1;

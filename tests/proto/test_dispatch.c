@@ -415,6 +415,36 @@ static void test_million_samples(void **state)
 	free(line);
 }
 
+/* The work estimate the server uses to keep heavy requests off the event
+ * loop: samples x angles, counting session defaults; batches add up. */
+static void test_cost(void **state)
+{
+	harness *h = *state;
+	const char *small = "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	                    "\"elastic.convert\",\"params\":{\"rho\":2.3,"
+	                    "\"vp\":3000,\"vs\":1500}}";
+	const char *series = "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	                     "\"reflect.series\",\"params\":{\"vp\":[1,2,3,"
+	                     "4],\"vs\":1,\"rho\":1,\"angle\":[0,10,20]}}";
+	const char *inherit = "{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
+	                      "\"elastic.convert\",\"params\":{\"vp\":3000,"
+	                      "\"vs\":1500}}";
+	char batch[1024];
+	cJSON *r;
+
+	assert_int_equal(rw_proto_cost(h->s, small, strlen(small)), 1);
+	assert_int_equal(rw_proto_cost(h->s, series, strlen(series)), 12);
+	assert_int_equal(rw_proto_cost(h->s, "{", 1), 1);
+	snprintf(batch, sizeof batch, "[%s,%s]", small, series);
+	assert_int_equal(rw_proto_cost(h->s, batch, strlen(batch)), 13);
+	r = h_call(h, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	              "\"session.set\",\"params\":{\"rho\":[2.1,2.2,2.3,"
+	              "2.4,2.5]}}");
+	assert_int_equal(h_code(r), 0);
+	cJSON_Delete(r);
+	assert_int_equal(rw_proto_cost(h->s, inherit, strlen(inherit)), 5);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -429,6 +459,7 @@ int main(void)
 	    cmocka_unit_test_setup_teardown(test_session, setup, teardown),
 	    cmocka_unit_test_setup_teardown(test_million_samples, setup,
 	                                    teardown),
+	    cmocka_unit_test_setup_teardown(test_cost, setup, teardown),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -326,8 +326,15 @@ int rw_fluid_liveoil_props(double p_mpa, double t_degc, double api,
 		w |= RW_FLUID_WARN_G_RANGE;
 	/* B&W eq. 21 (from memory): the most gas the oil can dissolve. */
 	rgmax = 2.03 * g * pow(p * exp(0.02878 * api - 0.00377 * t), 1.205);
-	if (rg > rgmax)
+	if (rg > rgmax) {
+		/* Free gas: no single live-oil phase to describe. */
 		w |= RW_FLUID_WARN_GOR_MAX;
+		warn_set(warn, w);
+		phase_nan(out);
+		if (b0)
+			*b0 = NAN;
+		return RW_ERANGE;
+	}
 	warn_set(warn, w);
 
 	st = phase_finish(out, 1000.0 * rhog, bw_oil_v_ms(rhop, p, t));
@@ -414,33 +421,35 @@ int rw_fluid_mix_voigt(size_t n, const rw_fluid_phase *phase, const double *sat,
 }
 
 int rw_fluid_mix_brie(size_t n, const rw_fluid_phase *phase, const double *sat,
-                      size_t i_water, double exponent, rw_fluid_phase *out)
+                      size_t i_gas, double exponent, rw_fluid_phase *out)
 {
-	double sw, shc, c = 0.0, khc, k;
+	double sg, sl = 0.0, c = 0.0, kliq, k;
 	size_t i;
 	int st = mix_check(n, phase, sat);
 
-	if (st == RW_OK && i_water >= n)
-		st = RW_EINVAL;
 	if (st == RW_OK && !(isfinite(exponent) && exponent >= 1.0))
 		st = RW_EDOM;
 	if (st != RW_OK) {
 		phase_nan(out);
 		return st;
 	}
-	sw = sat[i_water];
-	shc = 0.0;
+	if (i_gas >= n)
+		return rw_fluid_mix_wood(n, phase, sat, out); /* no gas */
+	sg = sat[i_gas];
 	for (i = 0; i < n; i++)
-		if (i != i_water)
-			shc += sat[i];
-	if (shc <= 0.0) {
-		k = phase[i_water].k_pa; /* water only */
+		if (i != i_gas)
+			sl += sat[i];
+	if (sl <= 0.0) {
+		k = phase[i_gas].k_pa; /* gas only */
 	} else {
+		/* Brie et al. 1995: the liquids mix uniformly (Wood), the gas
+		 * in patches. */
 		for (i = 0; i < n; i++)
-			if (i != i_water)
-				c += (sat[i] / shc) / phase[i].k_pa;
-		khc = 1.0 / c;
-		k = (phase[i_water].k_pa - khc) * pow(sw, exponent) + khc;
+			if (i != i_gas)
+				c += (sat[i] / sl) / phase[i].k_pa;
+		kliq = 1.0 / c;
+		k = (kliq - phase[i_gas].k_pa) * pow(1.0 - sg, exponent) +
+		    phase[i_gas].k_pa;
 	}
 	return mix_out(out, k, mix_rho(n, phase, sat));
 }

@@ -174,10 +174,14 @@ int rw_fluid_deadoil_props(double p_mpa, double t_degc, double api,
  * in the velocity eq. 20b; K = rho_G v^2. Eq. 24 is the density at the
  * bubble point; compression of the oil above it is not modelled. b0 may be
  * NULL. Warnings: as dead oil, plus G_RANGE, and GOR_MAX when gor_ll
- * exceeds R_G(max) of eq. 21 at p, t (the oil cannot hold that much gas).
+ * exceeds R_G(max) of eq. 21 at p, t: the oil cannot hold that much gas,
+ * free gas would coexist, and the single-phase live-oil relations do not
+ * apply, so the outputs are NaN with RW_ERANGE (a GOR of 3000 L/L would
+ * otherwise give an "oil" of 0.27 g/cm^3 at 217 m/s).
  * errors: RW_EDOM for p <= 0, t <= -273.15 degC, api <= 0.5, gor < 0,
  * gas_gravity <= 0, rho' >= 1.08 g/cm^3 or non-finite input; RW_ERANGE
- * for a non-positive result. Outputs (and *b0) NaN on error. */
+ * for GOR above R_G(max) or a non-positive result. Outputs (and *b0) NaN
+ * on error. */
 int rw_fluid_liveoil_props(double p_mpa, double t_degc, double api,
                            double gor_ll, double gas_gravity,
                            rw_fluid_phase *out, double *b0, unsigned *warn);
@@ -198,18 +202,18 @@ int rw_fluid_mix_wood(size_t n, const rw_fluid_phase *phase, const double *sat,
 int rw_fluid_mix_voigt(size_t n, const rw_fluid_phase *phase, const double *sat,
                        rw_fluid_phase *out);
 
-/* Brie et al. 1995 patchy mixing: K = (K_w - K_hc) S_w^e + K_hc, where
- * phase[i_water] is the water (brine) phase with saturation S_w, and K_hc
- * is the Wood mix of all other (hydrocarbon) phases with their saturations
- * renormalised to sum to 1 (K_hc is not needed, and K = K_w, when
- * S_w = 1). exponent e >= 1 (e = 1 is the Voigt average for one water and
- * one hydrocarbon phase; e < 1 would exceed the Voigt bound). As e grows K
- * falls towards K_hc; for large e (about 5 and more for gas and brine) it
- * drops below the Wood mix of all phases, as the published formula does.
- * errors: as above, plus RW_EINVAL for i_water >= n and RW_EDOM for e < 1
- * or non-finite e. */
+/* Brie et al. 1995 patchy mixing: K = (K_liquid - K_gas) (1 - S_gas)^e
+ * + K_gas, where phase[i_gas] is the gas with saturation S_gas and
+ * K_liquid is the Wood mix of all other (liquid: brine, oil) phases with
+ * their saturations renormalised to sum to 1. Without gas (i_gas >= n) it
+ * is the Wood mix of all phases; with gas alone (S_gas = 1), K_gas.
+ * exponent e >= 1 (e = 1 is the Voigt average for one liquid and one gas
+ * phase; e < 1 would exceed the Voigt bound). As e grows K falls towards
+ * K_gas; for large e (about 5 and more for gas and brine) it drops below
+ * the Wood mix of all phases, as the published formula does.
+ * errors: as above, plus RW_EDOM for e < 1 or non-finite e. */
 int rw_fluid_mix_brie(size_t n, const rw_fluid_phase *phase, const double *sat,
-                      size_t i_water, double exponent, rw_fluid_phase *out);
+                      size_t i_gas, double exponent, rw_fluid_phase *out);
 
 #ifdef __cplusplus
 }

@@ -181,7 +181,9 @@ static void test_oil_trends(void **state)
  * density equals the dead-oil density at p -> 0 within 0.1 % (B&W 1992,
  * eqs. 19, 23, 24). (b) Dissolved gas lowers density and velocity (B&W
  * 1992 figures; common practice). (c) B_0 > 1 above the reference
- * temperature. (d) More gas than eq. 21 allows raises GOR_MAX. */
+ * temperature. (d) More gas than eq. 21 allows raises GOR_MAX and gives
+ * no oil: the oil cannot hold that gas, so free gas coexists and the
+ * single-phase relations do not apply (B&W 1992, eq. 21). */
 static void test_liveoil(void **state)
 {
 	rw_fluid_phase live, dead, gassy;
@@ -207,8 +209,13 @@ static void test_liveoil(void **state)
 
 	assert_int_equal(rw_fluid_liveoil_props(1.0, 80.0, 30.0, 100.0, 0.6,
 	                                        &gassy, &b0, &warn),
-	                 RW_OK);
+	                 RW_ERANGE);
 	assert_true(warn & RW_FLUID_WARN_GOR_MAX);
+	assert_true(isnan(gassy.k_pa) && isnan(gassy.rho_kgm3) && isnan(b0));
+	/* 3000 L/L at 30 MPa is far past eq. 21's limit (about 200 L/L). */
+	assert_int_equal(rw_fluid_liveoil_props(30.0, 80.0, 35.0, 3000.0, 0.7,
+	                                        &gassy, &b0, &warn),
+	                 RW_ERANGE);
 }
 
 /* Salt makes water denser and faster (B&W 1992 figures; IAPWS-08 in the
@@ -348,48 +355,68 @@ static void test_wood_is_reuss(void **state)
 	assert_rel(mix.v_ms, sqrt(mix.k_pa / mix.rho_kgm3), 1e-14);
 }
 
-/* Brie et al. 1995: e = 1 gives the Voigt average for one water and one
- * hydrocarbon phase; S_w = 1 gives K_w; for e >= 1 the result lies
- * between K_hc (the Wood mix of the hydrocarbons alone, reached as
- * e -> infinity) and Voigt, and falls as e grows (from the formula,
- * Brie et al. 1995). It is not bounded below by the Wood mix of all
- * phases: for large e it drops under it. */
+/* Brie et al. 1995, K = (K_liquid - K_gas) (1 - S_gas)^e + K_gas with
+ * K_liquid the Wood mix of the liquids: e = 1 gives the Voigt average for
+ * one liquid and one gas phase; S_gas = 0 gives the Wood mix of the
+ * liquids (brine + oil at 50/50 is Wood, not a patchy mix); gas + oil
+ * without brine is defined; S_gas = 1 gives K_gas; for e >= 1 the result
+ * lies between K_gas and Voigt and falls as e grows (from the formula).
+ * It is not bounded below by the Wood mix of all phases: for large e it
+ * drops under it. Phases here: 0 brine, 1 gas, 2 oil. */
 static void test_brie(void **state)
 {
 	rw_fluid_phase ph[3], two[2], b, v, w;
 	double sat2[2] = {0.6, 0.4}, sat3[3] = {0.4, 0.35, 0.25};
-	double one[3] = {1.0, 0.0, 0.0}, e, khc, prev;
+	double half[2] = {0.5, 0.5}, e, kliq, prev;
 
 	(void)state;
-	three_phases(ph);
+	three_phases(ph); /* brine, oil, gas */
+	b = ph[1];
+	ph[1] = ph[2];
+	ph[2] = b;
+	/* brine + gas, e = 1: Voigt */
 	two[0] = ph[0];
-	two[1] = ph[2];
-	assert_int_equal(rw_fluid_mix_brie(2, two, sat2, 0, 1.0, &b), RW_OK);
+	two[1] = ph[1];
+	assert_int_equal(rw_fluid_mix_brie(2, two, sat2, 1, 1.0, &b), RW_OK);
 	assert_int_equal(rw_fluid_mix_voigt(2, two, sat2, &v), RW_OK);
 	assert_rel(b.k_pa, v.k_pa, 1e-14);
 	assert_rel(b.rho_kgm3, v.rho_kgm3, 1e-14);
-	/* water index other than 0 */
-	two[0] = ph[2];
-	two[1] = ph[0];
-	sat2[0] = 0.4;
-	sat2[1] = 0.6;
-	assert_int_equal(rw_fluid_mix_brie(2, two, sat2, 1, 1.0, &w), RW_OK);
-	assert_rel(w.k_pa, v.k_pa, 1e-14);
+	/* brine + gas, e = 3: (K_w - K_g) S_w^3 + K_g, as before */
+	assert_int_equal(rw_fluid_mix_brie(2, two, sat2, 1, 3.0, &b), RW_OK);
+	assert_rel(b.k_pa, (ph[0].k_pa - ph[1].k_pa) * pow(0.6, 3) + ph[1].k_pa,
+	           1e-14);
+	/* brine + oil, no gas: the Wood mix whatever e */
+	two[0] = ph[0];
+	two[1] = ph[2];
+	assert_int_equal(rw_fluid_mix_brie(2, two, half, 2, 3.0, &b), RW_OK);
+	assert_int_equal(rw_fluid_mix_wood(2, two, half, &w), RW_OK);
+	assert_rel(b.k_pa, w.k_pa, 1e-15);
+	/* gas + oil without brine: (K_oil - K_gas) S_oil^e + K_gas */
+	two[0] = ph[1];
+	two[1] = ph[2];
+	assert_int_equal(rw_fluid_mix_brie(2, two, sat2, 0, 3.0, &b), RW_OK);
+	assert_rel(b.k_pa, (ph[2].k_pa - ph[1].k_pa) * pow(0.4, 3) + ph[1].k_pa,
+	           1e-14);
+	/* gas alone */
+	{
+		double g1[2] = {1.0, 0.0};
+		assert_int_equal(rw_fluid_mix_brie(2, two, g1, 0, 3.0, &b),
+		                 RW_OK);
+		assert_rel(b.k_pa, ph[1].k_pa, 1e-15);
+	}
 
-	assert_int_equal(rw_fluid_mix_brie(3, ph, one, 0, 3.0, &b), RW_OK);
-	assert_rel(b.k_pa, ph[0].k_pa, 1e-15);
-
-	/* K_hc: Wood mix of phases 1 and 2 at 0.35/0.6 and 0.25/0.6. */
-	khc = 1.0 / ((0.35 / 0.6) / ph[1].k_pa + (0.25 / 0.6) / ph[2].k_pa);
+	/* three phases: K_liquid = Wood of brine 0.4/0.65, oil 0.25/0.65 */
+	kliq = 1.0 / ((0.4 / 0.65) / ph[0].k_pa + (0.25 / 0.65) / ph[2].k_pa);
 	assert_int_equal(rw_fluid_mix_voigt(3, ph, sat3, &v), RW_OK);
 	prev = INFINITY;
 	for (e = 1.0; e <= 40.0; e *= 1.5) {
-		assert_int_equal(rw_fluid_mix_brie(3, ph, sat3, 0, e, &b),
+		assert_int_equal(rw_fluid_mix_brie(3, ph, sat3, 1, e, &b),
 		                 RW_OK);
-		assert_true(b.k_pa >= khc * (1 - 1e-12));
+		assert_true(b.k_pa >= ph[1].k_pa * (1 - 1e-12));
 		assert_true(b.k_pa <= v.k_pa * (1 + 1e-12));
 		assert_true(b.k_pa < prev);
-		assert_rel(b.k_pa, (ph[0].k_pa - khc) * pow(0.4, e) + khc,
+		assert_rel(b.k_pa,
+		           (kliq - ph[1].k_pa) * pow(0.65, e) + ph[1].k_pa,
 		           1e-13);
 		prev = b.k_pa;
 	}
@@ -414,8 +441,7 @@ static void test_mix_errors(void **state)
 	assert_int_equal(rw_fluid_mix_wood(3, ph, neg, &out), RW_EDOM);
 	assert_int_equal(rw_fluid_mix_wood(0, ph, ok, &out), RW_EINVAL);
 	assert_int_equal(rw_fluid_mix_wood(3, NULL, ok, &out), RW_EINVAL);
-	assert_int_equal(rw_fluid_mix_brie(3, ph, ok, 3, 2.0, &out), RW_EINVAL);
-	assert_int_equal(rw_fluid_mix_brie(3, ph, ok, 0, 0.5, &out), RW_EDOM);
+	assert_int_equal(rw_fluid_mix_brie(3, ph, ok, 1, 0.5, &out), RW_EDOM);
 	assert_phase_nan(&out);
 	assert_int_equal(rw_fluid_mix_wood(3, ph, near, &out), RW_OK);
 	ph[1].k_pa = 0.0;

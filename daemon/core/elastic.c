@@ -80,7 +80,9 @@ int rw_elastic_from_moduli(double rho, double m, double mu, rw_elastic *out,
 	if (!(mu > 0))
 		bad |= RW_ELASTIC_BAD_MU;
 	k = m - 4.0 / 3.0 * mu;
-	if (!(k >= 0))
+	/* K = 0 (nu = -1) is a solid with no resistance to compression:
+	 * impossible, as the reflectivity checks also hold it. */
+	if (!(k > 0))
 		bad |= RW_ELASTIC_BAD_K;
 	if (why)
 		*why = bad;

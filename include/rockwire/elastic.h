@@ -51,7 +51,7 @@ typedef enum rw_elastic_pair {
 	                           slowness, or no real solution */
 #define RW_ELASTIC_BAD_RHO 0x2u /* density <= 0 */
 #define RW_ELASTIC_BAD_MU  0x4u /* shear modulus <= 0 (nu >= 0.5) */
-#define RW_ELASTIC_BAD_K   0x8u /* bulk modulus < 0 (nu < -1) */
+#define RW_ELASTIC_BAD_K   0x8u /* bulk modulus <= 0 (nu <= -1) */
 
 /* Classifies the pair (a, b) as determining an isotropic solid with a
  * given density or not. Pure; no errors. */
@@ -78,7 +78,7 @@ int rw_elastic_from_velocities(double vp, double vs, double rho,
 
 /* Computes the full set from rho (kg/m^3), the P-wave modulus m and the
  * shear modulus mu (Pa). Impossible when rho <= 0, mu <= 0 or
- * k = m - 4/3 mu < 0 (equivalently nu outside [-1, 0.5)).
+ * k = m - 4/3 mu <= 0 (equivalently nu outside (-1, 0.5)).
  * errors: RW_EDOM (outputs NaN, *why set). */
 int rw_elastic_from_moduli(double rho, double m, double mu, rw_elastic *out,
                            unsigned *why);

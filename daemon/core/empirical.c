@@ -7,7 +7,11 @@
 #include <math.h>
 #include <stddef.h>
 
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_roots.h>
+
 #include "rockwire/empirical.h"
+#include "rockwire/rock.h"
 
 /* Fitted velocity span of Gardner et al. 1974 (m/s), from memory. */
 #define GARDNER_VMIN 1500.0
@@ -322,5 +326,130 @@ int rw_emp_rhg_porosity(double v_ms, double v_ma_ms, double v_fl_ms,
 	if (p >= RHG_PHI_MAX)
 		warn_set(warn, RW_EMP_WARN_POROSITY);
 	*phi = p;
+	return RW_OK;
+}
+
+/* ---- Greenberg & Castagna in situ --------------------------------------- */
+
+typedef struct gc_insitu {
+	double vp, rho, phi, k_min, k_fl, rho_fl, k_b, rho_b;
+	const double *frac;
+	unsigned warn;
+	int bad; /* Gassmann or the regression failed at the trial vs */
+} gc_insitu;
+
+/* The in-situ vs the procedure returns for a trial vs, minus the trial:
+ * zero at the consistent shear velocity. */
+static double gc_residual(double vs, void *arg)
+{
+	gc_insitu *g = arg;
+	rw_rock_subst b;
+	double vs_b;
+	unsigned w = 0;
+
+	if (rw_rock_fluid_subst(g->vp, vs, g->rho, g->phi, g->k_min, g->k_fl,
+	                        g->rho_fl, g->k_b, g->rho_b, &b,
+	                        NULL) != RW_OK ||
+	    rw_emp_gc_vs_mixed(b.vp_ms, g->frac, &vs_b, &w) != RW_OK) {
+		g->bad = 1;
+		return NAN;
+	}
+	g->warn = w;
+	/* mu is the same in both fluids: rho_b vs_b^2 = rho vs^2 */
+	return vs_b * sqrt(b.rho_kgm3 / g->rho) - vs;
+}
+
+int rw_emp_gc_vs_insitu(double vp_ms, double rho_kgm3, double phi,
+                        double k_min_pa, double k_fl_pa, double rho_fl_kgm3,
+                        double k_brine_pa, double rho_brine_kgm3,
+                        const double frac[RW_EMP_NLITH], double *vs_ms,
+                        double *vs_brine_ms, unsigned *warn)
+{
+	gc_insitu g = {vp_ms,   rho_kgm3,    phi,        k_min_pa,
+	               k_fl_pa, rho_fl_kgm3, k_brine_pa, rho_brine_kgm3,
+	               frac,    0,           0};
+	gsl_root_fsolver *s = NULL;
+	gsl_function fn = {gc_residual, &g};
+	double lo, hi, flo = NAN, fhi = NAN, root = NAN, vs_b = NAN;
+	int st = RW_ERANGE, iter;
+
+	*vs_ms = NAN;
+	if (vs_brine_ms)
+		*vs_brine_ms = NAN;
+	if (warn)
+		*warn = 0;
+	if (!isfinite(vp_ms) || !isfinite(rho_kgm3) || !isfinite(phi) ||
+	    !isfinite(k_min_pa) || !isfinite(k_fl_pa) ||
+	    !isfinite(rho_fl_kgm3) || !isfinite(k_brine_pa) ||
+	    !isfinite(rho_brine_kgm3) || !frac || vp_ms <= 0 || rho_kgm3 <= 0 ||
+	    !(phi > 0 && phi < 1) || k_min_pa <= 0 || k_fl_pa <= 0 ||
+	    rho_fl_kgm3 <= 0 || k_brine_pa <= 0 || rho_brine_kgm3 <= 0)
+		return RW_EDOM;
+	/* vs from nearly 0 to just below vp sqrt(3/4) (K > 0): find the
+	 * first sign change on a coarse scan, where both ends are valid. */
+	for (int k = 1; k <= 64; k++) {
+		double v = vp_ms * sqrt(0.75) * k / 65.0;
+		double f;
+		g.bad = 0;
+		f = gc_residual(v, &g);
+		if (g.bad || isnan(f)) {
+			flo = NAN;
+			continue;
+		}
+		if (!isnan(flo) && (f == 0 || (f < 0) != (flo < 0))) {
+			hi = v;
+			fhi = f;
+			lo = v - vp_ms * sqrt(0.75) / 65.0;
+			break;
+		}
+		flo = f;
+	}
+	if (isnan(fhi))
+		return RW_ERANGE;
+	if (fhi == 0) {
+		root = hi;
+		st = RW_OK;
+	} else {
+		s = gsl_root_fsolver_alloc(gsl_root_fsolver_brent);
+		if (!s)
+			return RW_ERANGE;
+		if (gsl_root_fsolver_set(s, &fn, lo, hi) != GSL_SUCCESS) {
+			gsl_root_fsolver_free(s);
+			return RW_ERANGE;
+		}
+		st = RW_EMAXITER;
+		for (iter = 0; iter < 200; iter++) {
+			if (gsl_root_fsolver_iterate(s) != GSL_SUCCESS) {
+				st = RW_ERANGE;
+				break;
+			}
+			lo = gsl_root_fsolver_x_lower(s);
+			hi = gsl_root_fsolver_x_upper(s);
+			if (gsl_root_test_interval(lo, hi, 0, 1e-10) ==
+			    GSL_SUCCESS) {
+				root = gsl_root_fsolver_root(s);
+				st = RW_OK;
+				break;
+			}
+		}
+		gsl_root_fsolver_free(s);
+	}
+	if (st != RW_OK)
+		return st;
+	g.bad = 0;
+	if (isnan(gc_residual(root, &g)) || g.bad)
+		return RW_ERANGE;
+	{
+		rw_rock_subst b;
+		if (rw_rock_fluid_subst(vp_ms, root, rho_kgm3, phi, k_min_pa,
+		                        k_fl_pa, rho_fl_kgm3, k_brine_pa,
+		                        rho_brine_kgm3, &b, NULL) == RW_OK)
+			vs_b = b.vs_ms;
+	}
+	*vs_ms = root;
+	if (vs_brine_ms)
+		*vs_brine_ms = vs_b;
+	if (warn)
+		*warn = g.warn;
 	return RW_OK;
 }

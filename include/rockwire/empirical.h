@@ -164,6 +164,28 @@ int rw_emp_rhg_velocity(double phi, double v_ma_ms, double v_fl_ms,
 int rw_emp_rhg_porosity(double v_ms, double v_ma_ms, double v_fl_ms,
                         double *phi, unsigned *warn);
 
+/* Greenberg & Castagna 1992 shear velocity of a rock holding another
+ * pore fluid than brine (hydrocarbons): their relations hold for brine
+ * saturation, so the in-situ vs is the fixed point of: Gassmann from the
+ * in-situ fluid to brine with the trial vs, the brine-case vs from the
+ * brine vp (rw_emp_gc_vs_mixed), and back to the in-situ fluid, where mu
+ * is unchanged and vs = vs_brine sqrt(rho_brine / rho) (Greenberg &
+ * Castagna 1992; Mavko, Mukerji & Dvorkin 2009 sec. 7.9). Solved with
+ * GSL's Brent root finder to 1e-10 relative. vp_ms, rho_kgm3 measured in
+ * situ; phi in (0, 1); k_min_pa the mineral; k_fl/rho_fl the in-situ
+ * fluid; k_brine/rho_brine the brine that replaces it; frac as
+ * rw_emp_gc_vs_mixed. vs_brine_ms (may be NULL) receives the brine-case
+ * vs. warn: as rw_emp_gc_vs, for the brine vp.
+ * errors: RW_EDOM for an input out of range or non-finite; RW_ERANGE when
+ * no shear velocity is consistent (Gassmann fails over the whole range,
+ * e.g. the fluid is stiffer than the rock allows); RW_EMAXITER when the
+ * iteration does not converge. *vs_ms NaN on error. */
+int rw_emp_gc_vs_insitu(double vp_ms, double rho_kgm3, double phi,
+                        double k_min_pa, double k_fl_pa, double rho_fl_kgm3,
+                        double k_brine_pa, double rho_brine_kgm3,
+                        const double frac[RW_EMP_NLITH], double *vs_ms,
+                        double *vs_brine_ms, unsigned *warn);
+
 #ifdef __cplusplus
 }
 #endif

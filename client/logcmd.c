@@ -132,10 +132,10 @@ static const struct {
     {"si_sub", "shear impedance after fluid substitution"},
     {"vpvs_sub", "Vp/Vs after fluid substitution"},
     {"nu_sub", "Poisson's ratio after fluid substitution"},
-    {"k_fl_in_place", "bulk modulus of the fluid in place"},
-    {"rho_fl_in_place", "density of the fluid in place"},
-    {"k_fl_new", "bulk modulus of the new fluid"},
-    {"rho_fl_new", "density of the new fluid"},
+    {"fluid_in_place_k", "bulk modulus of the fluid in place"},
+    {"fluid_in_place_rho", "density of the fluid in place"},
+    {"fluid_new_k", "bulk modulus of the new fluid"},
+    {"fluid_new_rho", "density of the new fluid"},
     {"qc", "QC flag bits (0 clean; legend in ~Other)"},
 };
 
@@ -604,15 +604,12 @@ static int on_line(void *ctx, char *line, size_t len)
 		cJSON_ArrayForEach(q, fl)
 		{
 			const cJSON *b =
-			    cJSON_GetObjectItemCaseSensitive(q, "bit");
+			    cJSON_GetObjectItemCaseSensitive(q, "index");
 			const cJSON *nm =
 			    cJSON_GetObjectItemCaseSensitive(q, "name");
 			if (cJSON_IsNumber(b) && cJSON_IsString(nm)) {
-				unsigned v = (unsigned)b->valuedouble;
-				int bit = 0;
-				while (bit < 32 && v != (1u << bit))
-					bit++;
-				if (bit < 32 && !L->flag_name[bit])
+				int bit = (int)b->valuedouble;
+				if (bit >= 0 && bit < 32 && !L->flag_name[bit])
 					L->flag_name[bit] =
 					    strdup(nm->valuestring);
 			}

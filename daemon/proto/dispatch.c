@@ -1,7 +1,8 @@
 /* JSON-RPC 2.0 dispatch: checks the bytes of a line (UTF-8, control
  * characters, nesting), parses it, validates the request envelope, runs
  * the method through the one method table and frames the response or the
- * error. Batches and notifications follow the JSON-RPC 2.0 specification. */
+ * error. Batches and notifications follow the JSON-RPC 2.0 specification;
+ * a numeric id is echoed as the text it was given in. */
 #include <math.h>
 #include <stdatomic.h>
 #include <stdio.h>
@@ -9,168 +10,9 @@
 #include <string.h>
 
 #include "proto/internal.h"
-
-/* ---- the method table ---------------------------------------------------- */
-
-static const proto_method *const families[] = {
-    proto_service_methods, proto_session_methods,        proto_elastic_methods,
-    proto_thomsen_methods, proto_fluid_methods,          proto_mineral_methods,
-    proto_rock_methods,    proto_rock_empirical_methods, proto_reflect_methods,
-    proto_log_methods,
-};
-
-const proto_method *proto_method_at(size_t i)
-{
-	for (size_t f = 0; f < sizeof families / sizeof families[0]; f++) {
-		const proto_method *m = families[f];
-		for (; m->name; m++)
-			if (i-- == 0)
-				return m;
-	}
-	return NULL;
-}
-
-const proto_method *proto_method_find(const char *name)
-{
-	const proto_method *m;
-	for (size_t i = 0; (m = proto_method_at(i)); i++)
-		if (strcmp(m->name, name) == 0)
-			return m;
-	return NULL;
-}
+#include "proto/session.h"
 
 /* ---- context, session, counters ----------------------------------------- */
-
-static const int counted_codes[] = {
-    PROTO_PARSE_ERROR,    PROTO_INVALID_REQUEST, PROTO_METHOD_NOT_FOUND,
-    PROTO_INVALID_PARAMS, PROTO_INTERNAL_ERROR,  PROTO_SERVER_BUSY,
-    PROTO_LIMIT_EXCEEDED,
-};
-#define N_CODES (sizeof counted_codes / sizeof counted_codes[0])
-
-struct proto_ctx {
-	proto_limits limits;
-	proto_server_stats server;
-	atomic_ullong requests, notifications, responses;
-	atomic_ullong errors[N_CODES];
-};
-
-void proto_limits_default(proto_limits *lim)
-{
-	lim->max_line = 64u << 20;
-	lim->max_samples = 0;
-	lim->max_work = 0;
-	lim->max_batch = 10000;
-	lim->max_depth = 64;
-	lim->max_conns = 1024;
-	lim->out_high_water = 1u << 20;
-	lim->out_hard_limit = 32u << 20;
-	lim->global_budget = (size_t)1 << 31;
-	lim->idle_timeout_s = 0;
-	lim->stall_timeout_s = 30;
-	lim->drain_timeout_s = 8;
-}
-
-proto_ctx *proto_ctx_new(const proto_limits *lim)
-{
-	proto_ctx *ctx = calloc(1, sizeof *ctx);
-	if (!ctx)
-		return NULL;
-	if (lim)
-		ctx->limits = *lim;
-	else
-		proto_limits_default(&ctx->limits);
-	ctx->server.transport = "none";
-	return ctx;
-}
-
-void proto_ctx_free(proto_ctx *ctx)
-{
-	free(ctx);
-}
-
-proto_server_stats *proto_ctx_server_stats(proto_ctx *ctx)
-{
-	return &ctx->server;
-}
-
-const proto_limits *proto_ctx_limits(const proto_ctx *ctx)
-{
-	return &ctx->limits;
-}
-
-proto_session *proto_session_new(proto_ctx *ctx)
-{
-	proto_session *s = calloc(1, sizeof *s);
-	if (!s)
-		return NULL;
-	s->ctx = ctx;
-	proto_units_default(&s->units);
-	return s;
-}
-
-void proto_session_free(proto_session *s)
-{
-	if (s)
-		cJSON_Delete(s->defaults);
-	free(s);
-}
-
-const proto_units *proto__session_units(const proto_session *s)
-{
-	return &s->units;
-}
-
-proto_ctx *proto__session_ctx(proto_session *s)
-{
-	return s->ctx;
-}
-
-void proto__count_request(proto_ctx *ctx, int notification)
-{
-	atomic_fetch_add(&ctx->requests, 1);
-	if (notification)
-		atomic_fetch_add(&ctx->notifications, 1);
-}
-
-void proto__count_error(proto_ctx *ctx, int code)
-{
-	for (size_t i = 0; i < N_CODES; i++)
-		if (counted_codes[i] == code)
-			atomic_fetch_add(&ctx->errors[i], 1);
-}
-
-void proto__write_counters(proto_call *c)
-{
-	proto_ctx *ctx = c->ctx;
-	const proto_server_stats *s = &ctx->server;
-	char code[16];
-
-	proto_w_obj_begin(c, "counters");
-	proto_w_int(c, "requests", (long long)atomic_load(&ctx->requests));
-	proto_w_int(c, "notifications",
-	            (long long)atomic_load(&ctx->notifications));
-	proto_w_obj_begin(c, "errors");
-	for (size_t i = 0; i < N_CODES; i++) {
-		snprintf(code, sizeof code, "%d", counted_codes[i]);
-		proto_w_int(c, code, (long long)atomic_load(&ctx->errors[i]));
-	}
-	proto_w_obj_end(c);
-	proto_w_int(c, "connections_total", (long long)s->connections_total);
-	proto_w_int(c, "connections_open", (long long)s->connections_open);
-	proto_w_int(c, "connections_refused",
-	            (long long)s->connections_refused);
-	proto_w_int(c, "connections_closed_slow",
-	            (long long)s->connections_closed_slow);
-	proto_w_int(c, "connections_closed_idle",
-	            (long long)s->connections_closed_idle);
-	proto_w_int(c, "lines_oversized", (long long)s->lines_oversized);
-	proto_w_int(c, "bytes_in", (long long)s->bytes_in);
-	proto_w_int(c, "bytes_out", (long long)s->bytes_out);
-	proto_w_int(c, "buffered_bytes", (long long)s->buffered_bytes);
-	proto_w_int(c, "reads_paused", (long long)s->reads_paused);
-	proto_w_obj_end(c);
-}
 
 /* ---- responses ---------------------------------------------------------- */
 
@@ -187,22 +29,37 @@ static const char *code_message(int code)
 	}
 }
 
-static void write_id(proto_buf *b, const cJSON *id)
-{
-	char tmp[32];
+/* A request id: the parsed value and, for a number, the text it was
+ * given in (JSON-RPC 2.0 asks for the id back as sent: 9007199254740993
+ * and 1.0000000000000002 must not come back rounded). */
+typedef struct req_id {
+	const cJSON *v;
+	const char *raw;
+	size_t raw_len;
+} req_id;
 
-	if (cJSON_IsString(id)) {
-		proto__buf_json_string(b, id->valuestring);
-	} else if (cJSON_IsNumber(id)) {
-		size_t n = proto_fmt_double(tmp, id->valuedouble);
-		proto_buf_append(b, tmp, n);
+static void write_id(proto_buf *b, const req_id *id)
+{
+	char tmp[40];
+
+	if (!id || !id->v) {
+		proto_buf_append(b, "null", 4);
+	} else if (cJSON_IsString(id->v)) {
+		proto__buf_json_string(b, id->v->valuestring);
+	} else if (cJSON_IsNumber(id->v)) {
+		if (id->raw && id->raw_len) {
+			proto_buf_append(b, id->raw, id->raw_len);
+		} else {
+			size_t n = proto_fmt_double(tmp, id->v->valuedouble);
+			proto_buf_append(b, tmp, n);
+		}
 	} else {
 		proto_buf_append(b, "null", 4);
 	}
 }
 
-static void write_error(proto_ctx *ctx, proto_buf *b, const cJSON *id, int code,
-                        const char *param, const char *reason)
+static void write_error(proto_ctx *ctx, proto_buf *b, const req_id *id,
+                        int code, const char *param, const char *reason)
 {
 	char tmp[24];
 	int n;
@@ -332,32 +189,150 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 	return 0;
 }
 
-/* Finds a duplicated key anywhere in the value; returns it or NULL. */
-static const char *find_duplicate_key(const cJSON *v)
+/* ---- duplicate keys ------------------------------------------------------ */
+
+/* FNV-1a, for the per-object key set. */
+static uint64_t key_hash(const char *s)
 {
-	const cJSON *a, *b;
+	uint64_t h = 1469598103934665603ull;
+	for (; *s; s++)
+		h = (h ^ (unsigned char)*s) * 1099511628211ull;
+	return h;
+}
+
+/* Finds a duplicated key anywhere in the value, in time linear in its
+ * size: one hash set per object. Returns the key, or NULL; *oom is set
+ * when the set could not be allocated. */
+static const char *find_duplicate_key(const cJSON *v, int *oom)
+{
+	const cJSON *a;
+	const char **set = NULL;
+	size_t n = 0, cap = 1;
 
 	if (!cJSON_IsObject(v) && !cJSON_IsArray(v))
 		return NULL;
+	if (cJSON_IsObject(v)) {
+		for (a = v->child; a; a = a->next)
+			n++;
+		while (cap < 2 * n)
+			cap <<= 1;
+		if (n > 1) {
+			set = calloc(cap, sizeof *set);
+			if (!set) {
+				*oom = 1;
+				return NULL;
+			}
+			for (a = v->child; a; a = a->next) {
+				size_t h =
+				    (size_t)key_hash(a->string) & (cap - 1);
+				while (set[h] && strcmp(set[h], a->string))
+					h = (h + 1) & (cap - 1);
+				if (set[h]) {
+					free(set);
+					return a->string;
+				}
+				set[h] = a->string;
+			}
+			free(set);
+		}
+	}
 	for (a = v->child; a; a = a->next) {
 		const char *d;
-		if (cJSON_IsObject(v))
-			for (b = a->next; b; b = b->next)
-				if (strcmp(a->string, b->string) == 0)
-					return a->string;
-		if ((a->child) && (d = find_duplicate_key(a)))
+		if (a->child && (d = find_duplicate_key(a, oom)))
 			return d;
+		if (*oom)
+			return NULL;
 	}
 	return NULL;
+}
+
+/* ---- raw member text ---------------------------------------------------- */
+
+/* Skips whitespace from p; returns the new position. */
+static size_t skip_ws(const char *s, size_t len, size_t p)
+{
+	while (p < len &&
+	       (s[p] == ' ' || s[p] == '\t' || s[p] == '\n' || s[p] == '\r'))
+		p++;
+	return p;
+}
+
+/* Skips one JSON value starting at p (the line parsed, so it is valid);
+ * returns the position after it. */
+static size_t skip_value(const char *s, size_t len, size_t p)
+{
+	int depth = 0, in_str = 0, esc = 0;
+
+	if (p < len && s[p] != '{' && s[p] != '[' && s[p] != '"') {
+		while (p < len && s[p] != ',' && s[p] != '}' && s[p] != ']' &&
+		       s[p] != ' ' && s[p] != '\t' && s[p] != '\n' &&
+		       s[p] != '\r')
+			p++;
+		return p;
+	}
+	for (; p < len; p++) {
+		char ch = s[p];
+		if (in_str) {
+			if (esc)
+				esc = 0;
+			else if (ch == '\\')
+				esc = 1;
+			else if (ch == '"' && (in_str = 0, depth == 0))
+				return p + 1;
+			continue;
+		}
+		if (ch == '"')
+			in_str = 1;
+		else if (ch == '{' || ch == '[')
+			depth++;
+		else if ((ch == '}' || ch == ']') && --depth == 0)
+			return p + 1;
+	}
+	return p;
+}
+
+/* The raw text of member "id" of the object at s[p..]: sets *at, *n. */
+static void raw_id(const char *s, size_t len, size_t p, const char **at,
+                   size_t *n)
+{
+	*at = NULL;
+	*n = 0;
+	p = skip_ws(s, len, p);
+	if (p >= len || s[p] != '{')
+		return;
+	p++;
+	for (;;) {
+		size_t k0, k1, v0;
+		p = skip_ws(s, len, p);
+		if (p >= len || s[p] != '"')
+			return;
+		k0 = p;
+		p = skip_value(s, len, p);
+		k1 = p;
+		p = skip_ws(s, len, p);
+		if (p >= len || s[p] != ':')
+			return;
+		p = skip_ws(s, len, p + 1);
+		v0 = p;
+		p = skip_value(s, len, p);
+		if (k1 - k0 == 4 && memcmp(s + k0, "\"id\"", 4) == 0) {
+			*at = s + v0;
+			*n = p - v0;
+			return;
+		}
+		p = skip_ws(s, len, p);
+		if (p >= len || s[p] != ',')
+			return;
+		p++;
+	}
 }
 
 /* ---- one request -------------------------------------------------------- */
 
 static void run_method(proto_session *s, const proto_method *m,
-                       const cJSON *params, const cJSON *id, proto_buf *out)
+                       const cJSON *params, const req_id *id, proto_buf *out)
 {
 	proto_call c;
-	cJSON *merged = (cJSON *)params;
 	size_t mark = out->len;
 
 	memset(&c, 0, sizeof c);
@@ -367,6 +342,7 @@ static void run_method(proto_session *s, const proto_method *m,
 	c.params = params;
 	c.out = out;
 	c.units = s->units;
+	c.inherit = proto__session_inherit;
 
 	proto_buf_append(out, "{\"jsonrpc\":\"2.0\",\"id\":", 22);
 	write_id(out, id);
@@ -377,21 +353,13 @@ static void run_method(proto_session *s, const proto_method *m,
 	} else if (!proto__units_apply(
 	               &c, cJSON_GetObjectItemCaseSensitive(params, "units"),
 	               "units", &c.units) &&
-	           !proto__session_merge(&c, params, &merged) &&
-	           (!m->params ||
-	            !proto_args_parse(&c, merged, "", m->params, &c.args))) {
-		c.params = merged;
-		if (m->handler(&c) == 0 && !c.err_code && !out->oom) {
-			proto_buf_append(out, "}", 1);
-			proto__arena_free(&c);
-			if (merged != params)
-				cJSON_Delete(merged);
-			return;
-		}
+	           !proto__run_method(&c) && !c.err_code && !out->oom) {
+		assert(c.depth == 0 && c.skip_depth == 0);
+		proto_buf_append(out, "}", 1);
+		proto__arena_free(&c);
+		return;
 	}
 	proto__arena_free(&c);
-	if (merged != params)
-		cJSON_Delete(merged);
 	if (out->oom) {
 		/* Drop the partial result and report it in the small room we
 		 * keep: the limit is lifted for the error line. */
@@ -412,12 +380,14 @@ static void run_method(proto_session *s, const proto_method *m,
 	write_error(s->ctx, out, id, c.err_code, c.err_param, c.err_reason);
 }
 
-/* Handles one request object; appends its response (or nothing for a
- * notification). */
-static void handle_one(proto_session *s, const cJSON *req, proto_buf *out)
+/* Handles one request object (raw text at line[p..]); appends its
+ * response, or nothing for a notification. */
+static void handle_one(proto_session *s, const cJSON *req, const char *line,
+                       size_t len, size_t p, proto_buf *out)
 {
-	const cJSON *ver, *method, *id = NULL, *params = NULL, *m;
+	const cJSON *ver, *method, *params = NULL, *m;
 	const proto_method *pm;
+	req_id id = {NULL, NULL, 0};
 	int has_id = 0;
 	char why[256];
 	size_t mark = out->len;
@@ -434,12 +404,17 @@ static void handle_one(proto_session *s, const cJSON *req, proto_buf *out)
 	m = cJSON_GetObjectItemCaseSensitive(req, "id");
 	if (m) {
 		has_id = 1;
+		if (cJSON_IsNumber(m))
+			raw_id(line, len, p, &id.raw, &id.raw_len);
+		/* a number is echoed as its text, so even 1e400 (beyond a
+		 * double) comes back as given */
 		if (cJSON_IsString(m) || cJSON_IsNull(m) ||
-		    (cJSON_IsNumber(m) && isfinite(m->valuedouble)))
-			id = m;
+		    (cJSON_IsNumber(m) &&
+		     (id.raw_len || isfinite(m->valuedouble))))
+			id.v = m;
 	}
 	proto__count_request(s->ctx, !has_id);
-	if (has_id && !id) {
+	if (has_id && !id.v) {
 		write_error(s->ctx, out, NULL, PROTO_INVALID_REQUEST, "id",
 		            "must be a string, a number or null");
 		return;
@@ -453,36 +428,48 @@ static void handle_one(proto_session *s, const cJSON *req, proto_buf *out)
 			         "unknown member '%.64s'; a request has "
 			         "jsonrpc, method, params and id",
 			         m->string);
-			write_error(s->ctx, out, id, PROTO_INVALID_REQUEST,
+			write_error(s->ctx, out, &id, PROTO_INVALID_REQUEST,
 			            m->string, why);
 			return;
 		}
 	}
 	if (!cJSON_IsString(ver) || strcmp(ver->valuestring, "2.0") != 0) {
-		write_error(s->ctx, out, id, PROTO_INVALID_REQUEST, "jsonrpc",
+		write_error(s->ctx, out, &id, PROTO_INVALID_REQUEST, "jsonrpc",
 		            ver ? "must be exactly \"2.0\""
 		                : "missing; must be \"2.0\"");
 		return;
 	}
 	if (!cJSON_IsString(method)) {
-		write_error(s->ctx, out, id, PROTO_INVALID_REQUEST, "method",
+		write_error(s->ctx, out, &id, PROTO_INVALID_REQUEST, "method",
 		            method ? "must be a string" : "missing");
 		return;
 	}
 	if (params && !cJSON_IsObject(params) && !cJSON_IsArray(params)) {
-		write_error(s->ctx, out, id, PROTO_INVALID_REQUEST, "params",
+		write_error(s->ctx, out, &id, PROTO_INVALID_REQUEST, "params",
 		            "must be an object or an array");
 		return;
 	}
 	pm = proto_method_find(method->valuestring);
 	if (!pm) {
-		snprintf(why, sizeof why,
-		         "no method '%.100s'; rpc.discover lists them",
-		         method->valuestring);
-		write_error(s->ctx, out, id, PROTO_METHOD_NOT_FOUND, "method",
+		const char *names[256], *near;
+		size_t n = 0;
+		const proto_method *x;
+		while (n < 256 && (x = proto_method_at(n)))
+			names[n++] = x->name;
+		near = proto__suggest(method->valuestring, names, n);
+		if (near)
+			snprintf(why, sizeof why,
+			         "no method '%.100s'; did you mean '%s'? "
+			         "rpc.discover lists them",
+			         method->valuestring, near);
+		else
+			snprintf(why, sizeof why,
+			         "no method '%.100s'; rpc.discover lists them",
+			         method->valuestring);
+		write_error(s->ctx, out, &id, PROTO_METHOD_NOT_FOUND, "method",
 		            why);
 	} else {
-		run_method(s, pm, params, id, out);
+		run_method(s, pm, params, &id, out);
 	}
 	if (!has_id)
 		out->len = mark; /* notifications are run, not answered */
@@ -492,11 +479,11 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
                     proto_buf *out)
 {
 	proto_ctx *ctx = s->ctx;
-	const char *end = NULL;
+	const char *end = NULL, *dup;
 	cJSON *root;
 	char why[256];
 	size_t i, mark = out->len;
-	int code;
+	int code, oom = 0;
 
 	if (len && line[len - 1] == '\r')
 		len--;
@@ -506,7 +493,7 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 	if (i == len)
 		return 0; /* blank lines are ignored */
 	code = check_bytes((const unsigned char *)line, len,
-	                   ctx->limits.max_depth, why, sizeof why);
+	                   proto_ctx_limits(ctx)->max_depth, why, sizeof why);
 	if (code) {
 		proto__count_request(ctx, 0);
 		proto_error_line(ctx, out, code, NULL, why);
@@ -529,13 +516,19 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 		proto_error_line(ctx, out, PROTO_PARSE_ERROR, NULL, why);
 		return out->oom ? -1 : 0;
 	}
-	const char *dup = find_duplicate_key(root);
-	if (dup) {
-		snprintf(why, sizeof why,
-		         "duplicate key '%.64s': each member may appear once",
-		         dup);
+	dup = find_duplicate_key(root, &oom);
+	if (dup || oom) {
+		if (dup)
+			snprintf(
+			    why, sizeof why,
+			    "duplicate key '%.64s': each member may appear "
+			    "once",
+			    dup);
 		proto__count_request(ctx, 0);
-		proto_error_line(ctx, out, PROTO_INVALID_REQUEST, dup, why);
+		proto_error_line(ctx, out,
+		                 dup ? PROTO_INVALID_REQUEST
+		                     : PROTO_INTERNAL_ERROR,
+		                 dup, dup ? why : "out of memory");
 		cJSON_Delete(root);
 		return out->oom ? -1 : 0;
 	}
@@ -543,15 +536,17 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 		size_t n = (size_t)cJSON_GetArraySize(root);
 		const cJSON *e;
 		int first = 1;
+		size_t p = skip_ws(line, len, 0) + 1; /* after '[' */
 		if (n == 0) {
 			proto__count_request(ctx, 0);
 			proto_error_line(ctx, out, PROTO_INVALID_REQUEST, NULL,
 			                 "empty batch");
-		} else if (ctx->limits.max_batch && n > ctx->limits.max_batch) {
+		} else if (proto_ctx_limits(ctx)->max_batch &&
+		           n > proto_ctx_limits(ctx)->max_batch) {
 			snprintf(why, sizeof why,
 			         "batch of %zu requests exceeds the limit of "
 			         "%zu",
-			         n, ctx->limits.max_batch);
+			         n, proto_ctx_limits(ctx)->max_batch);
 			proto__count_request(ctx, 0);
 			proto_error_line(ctx, out, PROTO_INVALID_REQUEST, NULL,
 			                 why);
@@ -559,11 +554,18 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 			proto_buf_append(out, "[", 1);
 			cJSON_ArrayForEach(e, root)
 			{
-				size_t before = out->len;
+				size_t before = out->len, body;
+				p = skip_ws(line, len, p);
 				if (!first)
 					proto_buf_append(out, ",", 1);
-				size_t body = out->len;
-				handle_one(s, e, out);
+				body = out->len;
+				handle_one(s, e, line, len, p, out);
+				/* next element: past this value and its comma
+				 */
+				p = skip_ws(line, len,
+				            skip_value(line, len, p));
+				if (p < len && line[p] == ',')
+					p++;
 				if (out->len == body)
 					out->len = before; /* notification */
 				else
@@ -576,7 +578,7 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 		}
 	} else {
 		size_t before = out->len;
-		handle_one(s, root, out);
+		handle_one(s, root, line, len, 0, out);
 		if (out->len != before)
 			proto_buf_append(out, "\n", 1);
 	}
@@ -608,37 +610,33 @@ static size_t longest_array(const cJSON *v)
 }
 
 /* Work of one request: the product over broadcast groups of the longest
- * array given for the group (group 0 also takes nested objects). */
+ * array given for the group (nested objects count for group 0), times
+ * the method's cost per evaluation. */
 static size_t request_cost(proto_session *s, const cJSON *req)
 {
 	const cJSON *method = cJSON_GetObjectItemCaseSensitive(req, "method");
 	const cJSON *params = cJSON_GetObjectItemCaseSensitive(req, "params");
 	const proto_method *m;
-	size_t len[PROTO_MAX_GROUPS], work = 1;
+	size_t len[PROTO_MAX_GROUPS];
+	double work = 1;
 
 	if (!cJSON_IsString(method) ||
 	    !(m = proto_method_find(method->valuestring)) || !m->params)
 		return 1;
 	for (int g = 0; g < PROTO_MAX_GROUPS; g++)
 		len[g] = 1;
-	for (const proto_param *p = m->params; p->name; p++) {
+	for (const proto_field *f = m->params->fields; f->name; f++) {
 		const cJSON *v =
-		    cJSON_GetObjectItemCaseSensitive(params, p->name);
-		size_t n;
-		if (!v && s->defaults)
-			v = cJSON_GetObjectItemCaseSensitive(s->defaults,
-			                                     p->name);
-		if (!v)
-			continue;
-		n = longest_array(v);
-		if (p->group >= 0 && p->group < PROTO_MAX_GROUPS &&
-		    n > len[p->group])
-			len[p->group] = n;
+		    cJSON_GetObjectItemCaseSensitive(params, f->name);
+		size_t n = v ? longest_array(v) : proto__session_len(s, m, f);
+		int g = f->type == PT_NUMS ? f->group : 0;
+		if (g < PROTO_MAX_GROUPS && n > len[g])
+			len[g] = n;
 	}
 	for (int g = 0; g < PROTO_MAX_GROUPS; g++)
-		work = len[g] && work > SIZE_MAX / len[g] ? SIZE_MAX
-		                                          : work * len[g];
-	return work;
+		work *= (double)len[g];
+	work *= m->cost > 0 ? m->cost : 1.0;
+	return work >= (double)SIZE_MAX ? SIZE_MAX : (size_t)work;
 }
 
 size_t rw_proto_cost(proto_session *s, const char *line, size_t len)

@@ -1,103 +1,78 @@
 /* The elastic family: elastic.convert, from density plus any two
  * independent isotropic quantities to the full set, per sample, with QC
- * flags. Also the plausibility ranges shared with the log family. */
+ * flags. Also the plausibility ranges (the `qc` object) shared with the
+ * rock and log families. The physics is in daemon/core/elastic.c. */
 #include <math.h>
 #include <stdlib.h>
 #include <string.h>
 
 #include "proto/internal.h"
+#include "proto/table.h"
 #include "rockwire/elastic.h"
 
-#define Q(name, kind)                                                          \
+/* ---- plausibility ranges ------------------------------------------------ */
+
+/* Common practice for sedimentary rock (protocol-docs/qc-flags.md). */
+#define R(member, k_, dv, text)                                                \
 	{                                                                      \
-		name, PT_NUMS, kind, PP_NULLS, 0                               \
+		PROTO_NUMS(proto_qc_ranges, member, k_, PF_SCALAR | PF_DFLT,   \
+		           text),                                              \
+		    .dflt = dv                                                 \
 	}
-
-static const proto_param convert_params[] = {
-    {"rho", PT_NUMS, PK_DENSITY, PP_REQUIRED | PP_NULLS, 0},
-    Q("vp", PK_VELOCITY),
-    Q("vs", PK_VELOCITY),
-    Q("k", PK_MODULUS),
-    Q("mu", PK_MODULUS),
-    Q("lambda", PK_MODULUS),
-    Q("e", PK_MODULUS),
-    Q("nu", PK_NONE),
-    Q("m", PK_MODULUS),
-    Q("ai", PK_IMPEDANCE),
-    Q("si", PK_IMPEDANCE),
-    Q("vpvs", PK_NONE),
-    Q("dtp", PK_SLOWNESS),
-    Q("dts", PK_SLOWNESS),
-    {"qc", PT_OBJ, PK_NONE, 0, 0},
-    {NULL, PT_ANY, PK_NONE, 0, 0},
+static const proto_field range_fields[] = {
+    R(rho_min, PK_DENSITY, 1000, "lowest plausible density"),
+    R(rho_max, PK_DENSITY, 3200, "highest plausible density"),
+    R(vp_min, PK_VELOCITY, 1200, "lowest plausible vp"),
+    R(vp_max, PK_VELOCITY, 7500, "highest plausible vp"),
+    R(vs_min, PK_VELOCITY, 0, "lowest plausible vs"),
+    R(vs_max, PK_VELOCITY, 4500, "highest plausible vs"),
+    R(nu_min, PK_NONE, 0, "lowest plausible Poisson's ratio"),
+    R(nu_max, PK_NONE, 0.5,
+      "Poisson's ratio at or above which a sample "
+      "is implausible"),
+    {0},
 };
+#undef R
 
-/* The full set in result order, with kinds and places in rw_elastic. */
-#define COL(m, kind)                                                           \
-	{                                                                      \
-#m, kind, offsetof(rw_elastic, m)                              \
+static int ranges_check(proto_call *c, void *dst)
+{
+	const proto_qc_ranges *r = dst;
+	if (r->rho_min.v[0] > r->rho_max.v[0] ||
+	    r->vp_min.v[0] > r->vp_max.v[0] ||
+	    r->vs_min.v[0] > r->vs_max.v[0] ||
+	    r->nu_min.v[0] > r->nu_max.v[0]) {
+		char *p = proto_strdup(c, r->hdr.path);
+		size_t n = p ? strlen(p) : 0;
+		if (n && p[n - 1] == '.')
+			p[n - 1] = '\0';
+		return proto_fail(c, PROTO_INVALID_PARAMS, n ? p : "qc",
+		                  "a minimum is above its maximum");
 	}
-static const struct {
-	const char *name;
-	proto_kind kind;
-	size_t off;
-} out_cols[] = {
-    COL(vp, PK_VELOCITY),  COL(vs, PK_VELOCITY),  COL(rho, PK_DENSITY),
-    COL(k, PK_MODULUS),    COL(mu, PK_MODULUS),   COL(lambda, PK_MODULUS),
-    COL(e, PK_MODULUS),    COL(nu, PK_NONE),      COL(m, PK_MODULUS),
-    COL(ai, PK_IMPEDANCE), COL(si, PK_IMPEDANCE), COL(vpvs, PK_NONE),
-    COL(dtp, PK_SLOWNESS), COL(dts, PK_SLOWNESS),
-};
-#undef COL
+	return 0;
+}
 
-static const proto_param range_params[] = {
-    {"rho_min", PT_NUM, PK_DENSITY, 0, 0},
-    {"rho_max", PT_NUM, PK_DENSITY, 0, 0},
-    {"vp_min", PT_NUM, PK_VELOCITY, 0, 0},
-    {"vp_max", PT_NUM, PK_VELOCITY, 0, 0},
-    {"vs_min", PT_NUM, PK_VELOCITY, 0, 0},
-    {"vs_max", PT_NUM, PK_VELOCITY, 0, 0},
-    {"nu_min", PT_NUM, PK_NONE, 0, 0},
-    {"nu_max", PT_NUM, PK_NONE, 0, 0},
-    {NULL, PT_ANY, PK_NONE, 0, 0},
+const proto_decl proto_qc_ranges_decl = {
+    .name = "qcRanges",
+    .fields = range_fields,
+    .size = sizeof(proto_qc_ranges),
+    .check = ranges_check,
+    .desc = "Plausibility ranges for sedimentary rock, in the request's "
+            "units, overriding the defaults (common practice)",
 };
 
 void proto_qc_ranges_default(proto_qc_ranges *r)
 {
-	/* Common practice for sedimentary rock (protocol-docs/qc-flags.md). */
-	r->rho_min = 1000, r->rho_max = 3200;
-	r->vp_min = 1200, r->vp_max = 7500;
-	r->vs_min = 0, r->vs_max = 4500;
-	r->nu_min = 0, r->nu_max = 0.5;
+	memset(r, 0, sizeof *r);
+	for (const proto_field *f = range_fields; f->name; f++) {
+		proto_vec *v = (proto_vec *)((unsigned char *)r + f->offset);
+		v->v = &f->dflt;
+		v->n = 1;
+	}
 }
 
-int proto_qc_ranges_parse(proto_call *c, const cJSON *obj, const char *path,
-                          proto_qc_ranges *r)
+uint64_t proto_qc_impossible(unsigned why)
 {
-	proto_args a;
-
-	if (!obj)
-		return 0;
-	if (proto_args_parse(c, obj, path, range_params, &a))
-		return -1;
-	r->rho_min = proto_num_or(&a, "rho_min", r->rho_min);
-	r->rho_max = proto_num_or(&a, "rho_max", r->rho_max);
-	r->vp_min = proto_num_or(&a, "vp_min", r->vp_min);
-	r->vp_max = proto_num_or(&a, "vp_max", r->vp_max);
-	r->vs_min = proto_num_or(&a, "vs_min", r->vs_min);
-	r->vs_max = proto_num_or(&a, "vs_max", r->vs_max);
-	r->nu_min = proto_num_or(&a, "nu_min", r->nu_min);
-	r->nu_max = proto_num_or(&a, "nu_max", r->nu_max);
-	if (r->rho_min > r->rho_max || r->vp_min > r->vp_max ||
-	    r->vs_min > r->vs_max || r->nu_min > r->nu_max)
-		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-		                  "a minimum is above its maximum");
-	return 0;
-}
-
-uint32_t proto_qc_impossible(unsigned why)
-{
-	uint32_t f = 0;
+	uint64_t f = 0;
 	if (why & RW_ELASTIC_BAD_INPUT)
 		f |= QC_INPUT_INVALID;
 	if (why & RW_ELASTIC_BAD_RHO)
@@ -107,94 +82,185 @@ uint32_t proto_qc_impossible(unsigned why)
 	return f;
 }
 
-uint32_t proto_qc_plausible(const proto_qc_ranges *r, const rw_elastic *e)
+uint64_t proto_qc_plausible(const proto_qc_ranges *r, const rw_elastic *e)
 {
-	uint32_t f = 0;
-	if (e->nu < r->nu_min || e->nu >= r->nu_max)
+	uint64_t f = 0;
+	if (e->nu < r->nu_min.v[0] || e->nu >= r->nu_max.v[0])
 		f |= QC_NU_NEGATIVE;
-	if (e->rho < r->rho_min || e->rho > r->rho_max)
+	if (e->rho < r->rho_min.v[0] || e->rho > r->rho_max.v[0])
 		f |= QC_RHO_RANGE;
-	if (e->vp < r->vp_min || e->vp > r->vp_max)
+	if (e->vp < r->vp_min.v[0] || e->vp > r->vp_max.v[0])
 		f |= QC_VP_RANGE;
-	if (e->vs < r->vs_min || e->vs > r->vs_max)
+	if (e->vs < r->vs_min.v[0] || e->vs > r->vs_max.v[0])
 		f |= QC_VS_RANGE;
 	return f;
 }
 
-static int convert(proto_call *c)
+/* ---- elastic.convert ---------------------------------------------------- */
+
+typedef struct convert_args {
+	proto_hdr hdr;
+	proto_vec rho;
+	proto_vec q[RW_Q_COUNT]; /* indexed by rw_elastic_qty */
+	proto_qc_ranges qc;
+	int pair[2]; /* derived: the two quantities given */
+} convert_args;
+
+typedef struct convert_row {
+	rw_elastic e;
+	uint64_t qc;
+} convert_row;
+
+#define Q(id, nm, k_, text)                                                    \
+	{                                                                      \
+		.name = nm, .type = PT_NUMS, .kind = k_, .flags = PF_NULLS,    \
+		.offset =                                                      \
+		    offsetof(convert_args, q) + (id) * sizeof(proto_vec),      \
+		.desc = text ". Give exactly two of the thirteen quantities"   \
+	}
+static const proto_field convert_fields[] = {
+    {PROTO_NUMS(convert_args, rho, PK_DENSITY, PF_REQ | PF_NULLS,
+                "bulk density; null marks a missing sample")},
+    Q(RW_Q_VP, "vp", PK_VELOCITY, "P-wave velocity"),
+    Q(RW_Q_VS, "vs", PK_VELOCITY, "S-wave velocity"),
+    Q(RW_Q_K, "k", PK_MODULUS, "bulk modulus"),
+    Q(RW_Q_MU, "mu", PK_MODULUS, "shear modulus"),
+    Q(RW_Q_LAMBDA, "lambda", PK_MODULUS, "Lame's first parameter"),
+    Q(RW_Q_E, "e", PK_MODULUS, "Young's modulus"),
+    Q(RW_Q_NU, "nu", PK_NONE, "Poisson's ratio"),
+    Q(RW_Q_M, "m", PK_MODULUS, "P-wave modulus rho vp^2"),
+    Q(RW_Q_AI, "ai", PK_IMPEDANCE, "acoustic impedance rho vp"),
+    Q(RW_Q_SI, "si", PK_IMPEDANCE, "shear impedance rho vs"),
+    Q(RW_Q_VPVS, "vpvs", PK_NONE, "velocity ratio vp/vs"),
+    Q(RW_Q_DTP, "dtp", PK_SLOWNESS, "compressional slowness"),
+    Q(RW_Q_DTS, "dts", PK_SLOWNESS, "shear slowness"),
+    {PROTO_FIELD(convert_args, qc, PT_OBJ, 0,
+                 "plausibility ranges overriding the defaults"),
+     .sub = &proto_qc_ranges_decl},
+    {0},
+};
+#undef Q
+
+static const char *const quantities[] = {"vp",   "vs",  "k",   "mu", "lambda",
+                                         "e",    "nu",  "m",   "ai", "si",
+                                         "vpvs", "dtp", "dts", NULL};
+
+static const proto_rule convert_rules[] = {
+    {PR_EXACTLY, NULL, 2, quantities,
+     "give rho and exactly two of vp, vs, k, mu, lambda, e, nu, m, ai, si, "
+     "vpvs, dtp, dts"},
+    {PR_END},
+};
+
+static const proto_decl convert_decl = {
+    .name = "",
+    .fields = convert_fields,
+    .rules = convert_rules,
+    .size = sizeof(convert_args),
+};
+
+static int convert_prepare(proto_call *c, void *args, proto_shape *sh)
 {
-	const proto_args *a = &c->args;
-	const proto_vec *rho = proto_vec_of(a, "rho");
-	const proto_vec *in[2] = {NULL, NULL};
-	rw_elastic_qty q[2] = {RW_Q_COUNT, RW_Q_COUNT};
-	proto_qc_ranges ranges;
-	rw_elastic *res;
-	uint32_t *flags;
-	size_t n = a->n[0], given = 0;
-	int arr = a->any_array[0];
 	static const char *const why_pair[] = {
 	    [RW_PAIR_SAME] = "the same quantity twice",
-	    [RW_PAIR_DEPENDENT] = "both fix the same property, so the "
-	                          "pair does not determine the rock",
-	    [RW_PAIR_TWO_ROOTS] = "the pair has two physical solutions, "
-	                          "so it does not determine the rock",
+	    [RW_PAIR_DEPENDENT] = "both fix the same property, so the pair "
+	                          "does not determine the rock",
+	    [RW_PAIR_TWO_ROOTS] = "the pair has two physical solutions, so it "
+	                          "does not determine the rock",
 	};
+	convert_args *a = args;
+	int n = 0;
+	rw_elastic_pair pc;
 
-	for (int i = 0; i < RW_Q_COUNT; i++) {
-		const proto_vec *v = proto_vec_of(a, rw_elastic_qty_name(i));
-		if (!v->present)
-			continue;
-		if (given < 2) {
-			in[given] = v;
-			q[given] = (rw_elastic_qty)i;
-		}
-		given++;
-	}
-	if (given != 2)
-		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  given ? rw_elastic_qty_name(q[0]) : "vp",
-		                  "give rho and exactly two of vp, vs, k, mu, "
-		                  "lambda, e, nu, m, ai, si, vpvs, dtp, dts "
-		                  "(%zu given)",
-		                  given);
-	rw_elastic_pair pc = rw_elastic_pair_check(q[0], q[1]);
+	(void)sh;
+	for (int i = 0; i < RW_Q_COUNT; i++)
+		if (a->q[i].present && n < 2)
+			a->pair[n++] = i;
+	assert(n == 2); /* the rule above */
+	pc = rw_elastic_pair_check(a->pair[0], a->pair[1]);
 	if (pc != RW_PAIR_OK)
-		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  rw_elastic_qty_name(q[1]), "%s and %s: %s",
-		                  rw_elastic_qty_name(q[0]),
-		                  rw_elastic_qty_name(q[1]), why_pair[pc]);
-	proto_qc_ranges_default(&ranges);
-	if (proto_qc_ranges_parse(c, proto_item_of(a, "qc"), "qc.", &ranges))
-		return -1;
-	if (proto_check_size(c, n, n))
-		return -1;
-	res = proto_alloc(c, n * sizeof *res);
-	flags = proto_alloc(c, n * sizeof *flags);
-	if (!res || !flags)
-		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-		                  "out of memory for %zu samples", n);
-	for (size_t i = 0; i < n; i++) {
-		unsigned why = 0;
-		int st = rw_elastic_from_pair(
-		    proto_at(rho, i), q[0], proto_at(in[0], i), q[1],
-		    proto_at(in[1], i), &res[i], &why);
-		flags[i] = st == RW_OK ? proto_qc_plausible(&ranges, &res[i])
-		                       : proto_qc_impossible(why);
-	}
-	proto_w_obj_begin(c, NULL);
-	proto_w_int(c, "n", (long long)n);
-	for (size_t k = 0; k < sizeof out_cols / sizeof out_cols[0]; k++)
-		proto_w_rows(c, out_cols[k].name, out_cols[k].kind, res,
-		             sizeof *res, out_cols[k].off, n, arr);
-	proto_w_flags(c, "qc", flags, n, arr);
-	proto_w_units(c);
-	proto_w_obj_end(c);
+		return proto_fail(
+		    c, PROTO_INVALID_PARAMS, rw_elastic_qty_name(a->pair[1]),
+		    "%s and %s: %s", rw_elastic_qty_name(a->pair[0]),
+		    rw_elastic_qty_name(a->pair[1]), why_pair[pc]);
+	if (!a->qc.hdr.present)
+		proto_qc_ranges_default(&a->qc);
 	return 0;
 }
 
-const proto_method proto_elastic_methods[] = {
-    {"elastic.convert", convert, convert_params,
-     "Full isotropic elastic set from density and any two independent "
-     "quantities."},
-    {NULL, NULL, NULL, NULL},
+static int convert_kernel(const void *args, size_t i, void *row, uint64_t *qc,
+                          void *ws)
+{
+	const convert_args *a = args;
+	convert_row *r = row;
+	double rho = proto_at(&a->rho, i);
+	double va = proto_at(&a->q[a->pair[0]], i);
+	double vb = proto_at(&a->q[a->pair[1]], i);
+	unsigned why = 0;
+
+	(void)ws;
+	if (isnan(rho) || isnan(va) || isnan(vb)) {
+		/* a null sample: missing, not impossible */
+		rw_elastic_from_pair(NAN, a->pair[0], NAN, a->pair[1], NAN,
+		                     &r->e, &why);
+		*qc = QC_LOG_MISSING;
+		return 0;
+	}
+	if (rw_elastic_from_pair(rho, a->pair[0], va, a->pair[1], vb, &r->e,
+	                         &why) == RW_OK)
+		*qc = proto_qc_plausible(&a->qc, &r->e);
+	else
+		*qc = proto_qc_impossible(why);
+	return 0;
+}
+
+#define OUT(m, k_, text)                                                       \
+	{                                                                      \
+		.name = #m, .type = PO_NUM, .kind = k_,                        \
+		.offset = offsetof(convert_row, e.m), .desc = text             \
+	}
+static const proto_output convert_outputs[] = {
+    {.name = "n", .type = PO_COUNT, .dim = D_REQ, .desc = "samples"},
+    OUT(vp, PK_VELOCITY, "P-wave velocity"),
+    OUT(vs, PK_VELOCITY, "S-wave velocity"),
+    OUT(rho, PK_DENSITY, "bulk density"),
+    OUT(k, PK_MODULUS, "bulk modulus"),
+    OUT(mu, PK_MODULUS, "shear modulus"),
+    OUT(lambda, PK_MODULUS, "Lame's first parameter"),
+    OUT(e, PK_MODULUS, "Young's modulus"),
+    OUT(nu, PK_NONE, "Poisson's ratio"),
+    OUT(m, PK_MODULUS, "P-wave modulus"),
+    OUT(ai, PK_IMPEDANCE, "acoustic impedance"),
+    OUT(si, PK_IMPEDANCE, "shear impedance"),
+    OUT(vpvs, PK_NONE, "vp/vs"),
+    OUT(dtp, PK_SLOWNESS, "compressional slowness"),
+    OUT(dts, PK_SLOWNESS, "shear slowness"),
+    {.name = "qc",
+     .type = PO_FLAGS,
+     .offset = offsetof(convert_row, qc),
+     .desc = "QC flags per sample"},
+    {0},
 };
+#undef OUT
+
+static const proto_method m_convert = {
+    .name = "elastic.convert",
+    .summary = "The full isotropic elastic set from density and any two "
+               "independent quantities.",
+    .description =
+        "Accepts rho plus exactly two of vp, vs, k, mu, lambda, e, nu, m, "
+        "ai, si, vpvs, dtp, dts. Pairs that fix the same property (vp with "
+        "ai, dtp or m; vs with si, dts or mu; nu with vpvs) or that have two "
+        "physical roots (e with vp, ai, dtp or m) are refused with -32602. "
+        "Impossible samples give null outputs and QC flags; a null input "
+        "gives null outputs flagged input_missing only.",
+    .params = &convert_decl,
+    .outputs = convert_outputs,
+    .prepare = convert_prepare,
+    .kernel = convert_kernel,
+    .row_size = sizeof(convert_row),
+    .qc_offset = offsetof(convert_row, qc),
+    .cost = 1,
+};
+
+const proto_method *const proto_elastic_methods[] = {&m_convert, NULL};

@@ -2,305 +2,288 @@
  * brine, hydrocarbon gas and dead or live oil at reservoir pressure and
  * temperature, and their mixture by saturation (Wood 1955, Brie et al.
  * 1995, Voigt), per sample with broadcasting and QC flags. Also the fluid
- * description shared with rock.substitute (proto__fluid_desc_*): the same
- * object shape, or an explicit {k, rho}, parsed and checked once per
- * request and evaluated per sample without allocation. */
+ * description rock.substitute and log.process embed (proto_fluid_decl):
+ * the same members, or an explicit {k, rho}. */
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
 
 #include "proto/desc.h"
 #include "proto/internal.h"
+#include "proto/table.h"
 #include "rockwire/fluid.h"
 #include "rockwire/status.h"
 
-enum { PH_BRINE = 0, PH_GAS = 1, PH_OIL = 2, N_PH = 3 };
-enum { MIX_WOOD = 0, MIX_BRIE = 1, MIX_VOIGT = 2 };
-
-static const char *const phase_names[N_PH] = {"brine", "gas", "oil"};
-static const char *const mix_names[] = {"wood", "brie", "voigt", NULL};
+const char *const proto_phase_names[] = {"brine", "gas", "oil", NULL};
+const char *const proto_mix_names[] = {"wood", "brie", "voigt", NULL};
 
 /* Default Brie exponent: 3, the value Brie et al. 1995 report as typical
  * for gas and brine in sands (from memory). */
 #define BRIE_EXPONENT_DEFAULT 3.0
+/* Below this many ppm a salinity given in the default unit is flagged:
+ * a value meant in g/kg or percent would look like this. */
+#define SALINITY_SUSPICIOUS 100e-6
 
-#define NUMS(name, kind, fl)                                                   \
-	{                                                                      \
-		name, PT_NUMS, kind, fl, 0                                     \
-	}
-#define DESC_MEMBERS                                                           \
-	{"brine", PT_OBJ, PK_NONE, 0, 0}, {"gas", PT_OBJ, PK_NONE, 0, 0},      \
-	    {"oil", PT_OBJ, PK_NONE, 0, 0},                                    \
-	    {"saturation", PT_OBJ, PK_NONE, 0, 0},                             \
-	    {"mix", PT_STR, PK_NONE, 0, 0},                                    \
-	{                                                                      \
-		"brie_exponent", PT_NUM, PK_NONE, 0, 0                         \
-	}
+/* ---- the phases --------------------------------------------------------- */
 
-static const proto_param properties_params[] = {
-    NUMS("pressure", PK_PRESSURE, PP_REQUIRED | PP_NULLS),
-    NUMS("temperature", PK_TEMPERATURE, PP_REQUIRED | PP_NULLS),
-    DESC_MEMBERS,
-    {NULL, PT_ANY, PK_NONE, 0, 0},
+static const proto_field brine_fields[] = {
+    {PROTO_NUMS(proto_brine, salinity, PK_SALINITY, PF_REQ | PF_NULLS | PF_LO,
+                "NaCl salinity (default ppm by weight; 0 is fresh water)"),
+     .lo = 0},
+    {0},
+};
+static const proto_decl brine_decl = {
+    .name = "brine",
+    .fields = brine_fields,
+    .size = sizeof(proto_brine),
+    .desc = "brine phase (Batzle & Wang 1992 eqs. 27-29)",
 };
 
-/* A fluid description inside rock.substitute: the same members, or an
- * explicit k and rho. */
-static const proto_param desc_params[] = {
-    DESC_MEMBERS,
-    NUMS("k", PK_MODULUS, 0),
-    NUMS("rho", PK_DENSITY, 0),
-    {NULL, PT_ANY, PK_NONE, 0, 0},
+static const proto_field gas_fields[] = {
+    {PROTO_NUMS(proto_gas, gravity, PK_NONE, PF_REQ | PF_NULLS,
+                "gas gravity relative to air (molar-mass ratio)")},
+    {0},
+};
+static const proto_decl gas_decl = {
+    .name = "gas",
+    .fields = gas_fields,
+    .size = sizeof(proto_gas),
+    .desc = "hydrocarbon gas phase (Batzle & Wang 1992 eqs. 9-11)",
 };
 
-static const proto_param brine_params[] = {
-    NUMS("salinity", PK_SALINITY, PP_REQUIRED),
-    {NULL, PT_ANY, PK_NONE, 0, 0},
+static const proto_field oil_fields[] = {
+    {PROTO_NUMS(proto_oil, api, PK_NONE, PF_REQ | PF_NULLS,
+                "oil gravity, degrees API")},
+    {PROTO_NUMS(proto_oil, gor, PK_GOR, PF_NULLS | PF_LO,
+                "dissolved gas-oil ratio (default L/L; scf/bbl accepted); "
+                "given = live oil, absent = dead oil"),
+     .lo = 0},
+    {PROTO_NUMS(proto_oil, gas_gravity, PK_NONE, PF_NULLS,
+                "gravity of the dissolved gas; required with gor, refused "
+                "without it")},
+    {0},
 };
-static const proto_param gas_params[] = {
-    NUMS("gravity", PK_NONE, PP_REQUIRED),
-    {NULL, PT_ANY, PK_NONE, 0, 0},
-};
-static const proto_param oil_params[] = {
-    NUMS("api", PK_NONE, PP_REQUIRED),
-    NUMS("gor", PK_GOR, 0),
-    NUMS("gas_gravity", PK_NONE, 0),
-    {NULL, PT_ANY, PK_NONE, 0, 0},
-};
-static const proto_param sat_params[] = {
-    NUMS("brine", PK_NONE, 0),
-    NUMS("gas", PK_NONE, 0),
-    NUMS("oil", PK_NONE, 0),
-    {NULL, PT_ANY, PK_NONE, 0, 0},
-};
-
-/* A parsed fluid description (arena memory of the call). */
-struct proto_fluid_desc {
-	int explicit_kr;  /* k and rho given */
-	proto_vec k, rho; /* explicit */
-	int has[N_PH];    /* phase described */
-	proto_vec sal, grav, api, gor, ggas;
-	int live;            /* oil.gor given */
-	proto_vec sat[N_PH]; /* saturations (n 0 = phase absent) */
-	double one;          /* backing store of an implied 1 */
-	int mix;
-	double brie_e;
-	size_t n; /* broadcast length (1 when all scalar) */
-	int any_array;
-	char len_from[160]; /* path of the array that set n */
-};
-
-/* Per-sample result of a description. */
-typedef struct fluid_sample {
-	rw_fluid_phase ph[N_PH];
-	double z, b0;
-	rw_fluid_phase mix;
-	uint32_t qc;
-} fluid_sample;
-
-/* Joins vector v (path `path`) into the broadcast length of d. */
-static int join_len(proto_call *c, struct proto_fluid_desc *d,
-                    const proto_vec *v, const char *path)
+static int oil_check(proto_call *c, void *dst)
 {
-	return proto_join_len(c, v, path, &d->n, &d->any_array, d->len_from,
-	                      sizeof d->len_from);
-}
-
-/* Parses a nested object with spec and copies member `name` (if any) to
- * *out, joining its length. */
-static int sub_vec(proto_call *c, struct proto_fluid_desc *d,
-                   const proto_args *a, const char *name, proto_vec *out)
-{
-	char full[160];
-
-	*out = *proto_vec_of(a, name);
-	snprintf(full, sizeof full, "%s%s", a->path, name);
-	return join_len(c, d, out, full);
-}
-
-/* Makes a path string in the call's arena: prefix + name + ".". */
-static const char *arena_path(proto_call *c, const char *prefix,
-                              const char *name)
-{
-	size_t n = strlen(prefix) + strlen(name) + 2;
-	char *s = proto_alloc(c, n);
-	if (s)
-		snprintf(s, n, "%s%s.", prefix, name);
-	return s;
-}
-
-/* Checks the saturations of every sample: each in [0, 1], the sum 1
- * within 1e-6 (the tolerance of the core's mixing functions). */
-static int check_saturations(proto_call *c, struct proto_fluid_desc *d,
-                             const char *path)
-{
-	char full[160];
-
-	for (int p = 0; p < N_PH; p++) {
-		const proto_vec *s = &d->sat[p];
-		for (size_t i = 0; s->n && i < s->n; i++) {
-			double v = s->v[i];
-			if (v >= 0.0 && v <= 1.0)
-				continue;
-			snprintf(full, sizeof full, "%ssaturation.%s", path,
-			         phase_names[p]);
-			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-			                  "%s%zu: saturation %.9g is outside "
-			                  "[0, 1]",
-			                  s->is_array ? "element " : "value ",
-			                  i, v);
-		}
-	}
-	for (size_t i = 0; i < d->n; i++) {
-		double sum = 0.0;
-		for (int p = 0; p < N_PH; p++)
-			if (d->has[p])
-				sum += proto_at(&d->sat[p], i);
-		if (fabs(sum - 1.0) > 1e-6) {
-			snprintf(full, sizeof full, "%ssaturation", path);
-			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-			                  "saturations sum to %.9g at sample "
-			                  "%zu, not 1 (tolerance 1e-6)",
-			                  sum, i);
-		}
-	}
+	proto_oil *o = dst;
+	if (o->gor.present && !o->gas_gravity.present)
+		return proto_fail(c, PROTO_INVALID_PARAMS,
+		                  proto_path(c, o->hdr.path, "gas_gravity", ""),
+		                  "required with gor: the gravity of the "
+		                  "dissolved gas (Batzle & Wang 1992 eqs. "
+		                  "21-24)");
+	if (!o->gor.present && o->gas_gravity.present)
+		return proto_fail(
+		    c, PROTO_INVALID_PARAMS,
+		    proto_path(c, o->hdr.path, "gas_gravity", ""),
+		    "only used for live oil: give gor as well, or "
+		    "drop gas_gravity for a dead oil");
 	return 0;
 }
 
-/* Parses the phase members, saturations and mixing rule of `a` (params
- * or a nested description whose path is a->path). */
-static int parse_phases(proto_call *c, const proto_args *a,
-                        struct proto_fluid_desc *d)
-{
-	static const proto_param *const specs[N_PH] = {brine_params, gas_params,
-	                                               oil_params};
-	const char *path = a->path;
-	char full[160];
-	proto_args sub;
-	int nph = 0;
+static const proto_decl oil_decl = {
+    .name = "oil",
+    .fields = oil_fields,
+    .size = sizeof(proto_oil),
+    .check = oil_check,
+    .desc = "oil phase, dead (eqs. 18-20a) or live (eqs. 20b-24)",
+};
 
-	for (int p = 0; p < N_PH; p++) {
-		const cJSON *o = proto_item_of(a, phase_names[p]);
-		const char *pp;
-		if (!o)
-			continue;
-		pp = arena_path(c, path, phase_names[p]);
-		if (!pp)
-			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-			                  "out of memory");
-		if (proto_args_parse(c, o, pp, specs[p], &sub))
-			return -1;
-		d->has[p] = 1;
-		nph++;
-		if (p == PH_BRINE && sub_vec(c, d, &sub, "salinity", &d->sal))
-			return -1;
-		if (p == PH_GAS && sub_vec(c, d, &sub, "gravity", &d->grav))
-			return -1;
-		if (p == PH_OIL) {
-			if (sub_vec(c, d, &sub, "api", &d->api) ||
-			    sub_vec(c, d, &sub, "gor", &d->gor) ||
-			    sub_vec(c, d, &sub, "gas_gravity", &d->ggas))
-				return -1;
-			d->live = d->gor.present;
-			snprintf(full, sizeof full, "%sgas_gravity", pp);
-			if (d->gor.present && !d->ggas.present)
-				return proto_fail(
-				    c, PROTO_INVALID_PARAMS, full,
-				    "required with gor: the gravity of the "
-				    "dissolved gas (Batzle & Wang 1992 eqs. "
-				    "21-24)");
-			if (!d->gor.present && d->ggas.present)
-				return proto_fail(
-				    c, PROTO_INVALID_PARAMS, full,
-				    "only used for live oil: give gor as well, "
-				    "or drop gas_gravity for a dead oil");
-		}
+static const proto_field sat_fields[] = {
+    {PROTO_NUMS(proto_sat, brine, PK_NONE, PF_NULLS | PF_FRACTION,
+                "brine saturation (fraction of pore volume)")},
+    {PROTO_NUMS(proto_sat, gas, PK_NONE, PF_NULLS | PF_FRACTION,
+                "gas saturation")},
+    {PROTO_NUMS(proto_sat, oil, PK_NONE, PF_NULLS | PF_FRACTION,
+                "oil saturation")},
+    {0},
+};
+static const proto_decl sat_decl = {
+    .name = "saturation",
+    .fields = sat_fields,
+    .size = sizeof(proto_sat),
+    .desc = "fraction of pore volume of each described phase, each in "
+            "[0, 1], summing to 1 within 1e-6 per sample; required with "
+            "more than one phase",
+};
+
+/* The members of a fluid by phases, in a struct that embeds a proto_fluid
+ * at `pre` (empty for proto_fluid itself). */
+#define PHASE_FIELDS(st, pre)                                                  \
+	{.name = "brine",                                                      \
+	 .type = PT_OBJ,                                                       \
+	 .offset = offsetof(st, pre brine),                                    \
+	 .sub = &brine_decl,                                                   \
+	 .desc = "brine phase"},                                               \
+	    {.name = "gas",                                                    \
+	     .type = PT_OBJ,                                                   \
+	     .offset = offsetof(st, pre gas),                                  \
+	     .sub = &gas_decl,                                                 \
+	     .desc = "hydrocarbon gas phase"},                                 \
+	    {.name = "oil",                                                    \
+	     .type = PT_OBJ,                                                   \
+	     .offset = offsetof(st, pre oil),                                  \
+	     .sub = &oil_decl,                                                 \
+	     .desc = "oil phase, dead or live"},                               \
+	    {.name = "saturation",                                             \
+	     .type = PT_OBJ,                                                   \
+	     .offset = offsetof(st, pre saturation),                           \
+	     .sub = &sat_decl,                                                 \
+	     .desc = "saturation of each described phase"},                    \
+	    {.name = "mix",                                                    \
+	     .type = PT_ENUM,                                                  \
+	     .flags = PF_DFLT,                                                 \
+	     .offset = offsetof(st, pre mix),                                  \
+	     .choices = proto_mix_names,                                       \
+	     .dflt_choice = PROTO_MIX_WOOD,                                    \
+	     .desc = "mixing rule: wood (uniform), brie (patchy, Brie et al. " \
+	             "1995), voigt (patchy upper bound)"},                     \
+	{                                                                      \
+		.name = "brie_exponent", .type = PT_NUMS,                      \
+		.flags = PF_SCALAR | PF_DFLT | PF_LO,                          \
+		.offset = offsetof(st, pre brie_exponent),                     \
+		.dflt = BRIE_EXPONENT_DEFAULT, .lo = 1,                        \
+		.desc = "Brie exponent e >= 1 (only with mix \"brie\"; e < 1 " \
+		        "would exceed the Voigt bound)"                        \
+	}
+
+/* Checks the phases, saturations and mixing rule of f (`path` its
+ * prefix, "" at the top of fluid.properties), derives has[], sat[]. */
+static int phases_check(proto_call *c, proto_fluid *f, const char *path)
+{
+	static const double one = 1.0;
+	const proto_hdr *ph[PROTO_NPHASES] = {&f->brine.hdr, &f->gas.hdr,
+	                                      &f->oil.hdr};
+	const proto_vec *sv[PROTO_NPHASES] = {
+	    &f->saturation.brine, &f->saturation.gas, &f->saturation.oil};
+	int nph = 0;
+	size_t n = 1;
+
+	for (int p = 0; p < PROTO_NPHASES; p++) {
+		f->has[p] = ph[p]->present;
+		nph += f->has[p];
 	}
 	if (!nph)
 		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  *path ? path : "brine",
+		                  *path ? proto_path(c, path, "brine", "")
+		                        : "brine",
 		                  "describe at least one phase: brine, gas or "
 		                  "oil");
-	const cJSON *so = proto_item_of(a, "saturation");
-	if (so) {
-		const char *sp = arena_path(c, path, "saturation");
-		if (!sp)
-			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-			                  "out of memory");
-		if (proto_args_parse(c, so, sp, sat_params, &sub))
-			return -1;
-		for (int p = 0; p < N_PH; p++) {
-			const proto_vec *s = proto_vec_of(&sub, phase_names[p]);
-			snprintf(full, sizeof full, "%s%s", sp, phase_names[p]);
-			if (s->present && !d->has[p])
+	f->live = f->oil.gor.present;
+	if (f->saturation.hdr.present) {
+		for (int p = 0; p < PROTO_NPHASES; p++) {
+			const char *full = proto_path(c, path, "saturation.",
+			                              proto_phase_names[p]);
+			if (sv[p]->present && !f->has[p])
 				return proto_fail(
 				    c, PROTO_INVALID_PARAMS, full,
 				    "no %s phase is described: describe it "
 				    "(%s%s) or drop its saturation",
-				    phase_names[p], path, phase_names[p]);
-			if (!s->present && d->has[p])
+				    proto_phase_names[p], path,
+				    proto_phase_names[p]);
+			if (!sv[p]->present && f->has[p])
 				return proto_fail(
 				    c, PROTO_INVALID_PARAMS, full,
 				    "required: the %s phase is described",
-				    phase_names[p]);
-			if (sub_vec(c, d, &sub, phase_names[p], &d->sat[p]))
-				return -1;
+				    proto_phase_names[p]);
+			f->sat[p] = *sv[p];
+			if (sv[p]->n > n)
+				n = sv[p]->n;
 		}
 	} else if (nph > 1) {
-		snprintf(full, sizeof full, "%ssaturation", path);
-		return proto_fail(c, PROTO_INVALID_PARAMS, full,
+		return proto_fail(c, PROTO_INVALID_PARAMS,
+		                  proto_path(c, path, "saturation", ""),
 		                  "required when more than one phase is "
 		                  "described");
 	} else {
-		d->one = 1.0;
-		for (int p = 0; p < N_PH; p++)
-			if (d->has[p]) {
-				d->sat[p].v = &d->one;
-				d->sat[p].n = 1;
-				d->sat[p].present = 1;
+		for (int p = 0; p < PROTO_NPHASES; p++) {
+			memset(&f->sat[p], 0, sizeof f->sat[p]);
+			if (f->has[p]) {
+				f->sat[p].v = &one;
+				f->sat[p].n = 1;
+				f->sat[p].present = 1;
 			}
+		}
 	}
-	d->mix = proto_enum_of(c, a, "mix", mix_names, MIX_WOOD);
-	if (d->mix < 0)
-		return -1;
-	snprintf(full, sizeof full, "%sbrie_exponent", path);
 	/* An exponent inherited from the session is let pass for the other
 	 * mixes; one given in the request is an error there. */
-	if (proto_vec_of(a, "brie_exponent")->present && d->mix != MIX_BRIE &&
-	    !(!*path && proto_arg_inherited(c, "brie_exponent")))
-		return proto_fail(c, PROTO_INVALID_PARAMS, full,
+	if (f->brie_exponent.present && !f->brie_exponent.inherited &&
+	    f->mix != PROTO_MIX_BRIE)
+		return proto_fail(c, PROTO_INVALID_PARAMS,
+		                  proto_path(c, path, "brie_exponent", ""),
 		                  "only used with mix \"brie\"");
-	d->brie_e = proto_num_or(a, "brie_exponent", BRIE_EXPONENT_DEFAULT);
-	if (!(d->brie_e >= 1.0))
-		return proto_fail(c, PROTO_INVALID_PARAMS, full,
-		                  "%.9g is below 1: the Brie et al. 1995 mix "
-		                  "would exceed the Voigt bound",
-		                  d->brie_e);
-	if (d->mix == MIX_BRIE && !d->has[PH_BRINE]) {
-		snprintf(full, sizeof full, "%smix", path);
-		return proto_fail(c, PROTO_INVALID_PARAMS, full,
-		                  "brie needs a brine phase (the water of "
-		                  "S_w^e, Brie et al. 1995)");
+	for (size_t i = 0; i < n; i++) {
+		double sum = 0.0;
+		for (int p = 0; p < PROTO_NPHASES; p++)
+			if (f->has[p])
+				sum += proto_at(&f->sat[p], i);
+		if (isnan(sum))
+			continue; /* a null saturation: that sample is missing
+			           */
+		if (fabs(sum - 1.0) > 1e-6)
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS,
+			    proto_path(c, path, "saturation", ""),
+			    "saturations sum to %.9g at sample %zu, "
+			    "not 1 (tolerance 1e-6)",
+			    sum, i);
 	}
-	return check_saturations(c, d, path);
+	f->salinity_unit = c->units.sel[PK_SALINITY] == 0;
+	f->brie_e = f->brie_exponent.v[0];
+	return 0;
 }
 
-static struct proto_fluid_desc *desc_new(proto_call *c)
+/* ---- the description shared with rock and log -------------------------- */
+
+static const char *const explicit_kr[] = {"k", "rho", NULL};
+static const char *const by_phases[] = {
+    "brine", "gas", "oil", "saturation", "mix", "brie_exponent", NULL};
+
+static const proto_field fluid_fields[] = {
+    PHASE_FIELDS(proto_fluid, ),
+    {PROTO_NUMS(proto_fluid, k, PK_MODULUS, PF_NULLS | PF_LO | PF_LO_OPEN,
+                "explicit bulk modulus (with rho, instead of phases)"),
+     .lo = 0},
+    {PROTO_NUMS(proto_fluid, rho, PK_DENSITY, PF_NULLS | PF_LO | PF_LO_OPEN,
+                "explicit density (with k)"),
+     .lo = 0},
+    {0},
+};
+
+static const proto_rule fluid_rules[] = {
+    {PR_ALL_OR_NONE, NULL, 0, explicit_kr,
+     "required: an explicit fluid needs both k and rho"},
+    {PR_FORBIDS, "k", 0, by_phases,
+     "give either k and rho, or a description by phases, not both"},
+    {PR_END},
+};
+
+static int fluid_check(proto_call *c, void *dst)
 {
-	struct proto_fluid_desc *d = proto_alloc(c, sizeof *d);
-	if (!d) {
-		proto_fail(c, PROTO_INTERNAL_ERROR, NULL, "out of memory");
-		return NULL;
+	proto_fluid *f = dst;
+	if (f->k.present) {
+		f->explicit_kr = 1;
+		return 0;
 	}
-	memset(d, 0, sizeof *d);
-	d->n = 1;
-	return d;
+	return phases_check(c, f, f->hdr.path);
 }
+
+const proto_decl proto_fluid_decl = {
+    .name = "fluid",
+    .fields = fluid_fields,
+    .rules = fluid_rules,
+    .size = sizeof(proto_fluid),
+    .check = fluid_check,
+    .desc = "A pore fluid: {k, rho} (explicit, both > 0), or phases as in "
+            "fluid.properties (brine, gas, oil, saturation, mix, "
+            "brie_exponent) evaluated at the sample's pressure and "
+            "temperature",
+};
 
 /* Maps core fluid warnings to QC bits. */
-static uint32_t warn_qc(unsigned w)
+static uint64_t warn_qc(unsigned w)
 {
-	uint32_t f = 0;
+	uint64_t f = 0;
 	if (w & (RW_FLUID_WARN_T_RANGE | RW_FLUID_WARN_P_RANGE |
 	         RW_FLUID_WARN_SAL_RANGE | RW_FLUID_WARN_G_RANGE |
 	         RW_FLUID_WARN_API_RANGE | RW_FLUID_WARN_PR_RANGE))
@@ -312,7 +295,7 @@ static uint32_t warn_qc(unsigned w)
 	return f;
 }
 
-static uint32_t status_qc(int st)
+static uint64_t status_qc(int st)
 {
 	if (st == RW_OK)
 		return 0;
@@ -324,270 +307,292 @@ static void phase_nan(rw_fluid_phase *p)
 	p->rho_kgm3 = p->k_pa = p->v_ms = NAN;
 }
 
-/* Evaluates sample i of a phase description at p (MPa), t (degC). */
-static void eval_sample(const struct proto_fluid_desc *d, size_t i, double p,
-                        double t, fluid_sample *s)
+void proto__fluid_eval(const proto_fluid *f, size_t i, double p, double t,
+                       proto_fluid_sample *s)
 {
-	rw_fluid_phase ph[N_PH];
-	double sat[N_PH];
-	size_t n = 0, iw = N_PH;
+	rw_fluid_phase ph[PROTO_NPHASES];
+	double sat[PROTO_NPHASES];
+	size_t n = 0, ig = PROTO_NPHASES;
 	int ok = 1, st;
 	unsigned w;
 
 	s->qc = 0;
 	s->z = s->b0 = NAN;
 	phase_nan(&s->mix);
-	for (int k = 0; k < N_PH; k++)
+	for (int k = 0; k < PROTO_NPHASES; k++)
 		phase_nan(&s->ph[k]);
-	if (!isfinite(p) || !isfinite(t)) {
-		s->qc = QC_INPUT_INVALID;
+	if (isnan(p) || isnan(t)) {
+		s->qc = QC_LOG_MISSING;
 		return;
 	}
-	if (d->has[PH_BRINE]) {
+	if (f->has[PROTO_BRINE]) {
+		double sal = proto_at(&f->brine.salinity, i);
 		w = 0;
-		st = rw_fluid_brine_props(p, t, proto_at(&d->sal, i),
-		                          &s->ph[PH_BRINE], &w);
+		if (isnan(sal)) {
+			s->qc |= QC_LOG_MISSING;
+		} else {
+			st = rw_fluid_brine_props(p, t, sal,
+			                          &s->ph[PROTO_BRINE], &w);
+			s->qc |= warn_qc(w) | status_qc(st);
+			if (f->salinity_unit && sal > 0 &&
+			    sal < SALINITY_SUSPICIOUS)
+				s->qc |= QC_SALINITY_LOW;
+		}
+	}
+	if (f->has[PROTO_GAS]) {
+		w = 0;
+		st = rw_fluid_gas_props(p, t, proto_at(&f->gas.gravity, i),
+		                        &s->ph[PROTO_GAS], &s->z, &w);
 		s->qc |= warn_qc(w) | status_qc(st);
 	}
-	if (d->has[PH_GAS]) {
+	if (f->has[PROTO_OIL]) {
 		w = 0;
-		st = rw_fluid_gas_props(p, t, proto_at(&d->grav, i),
-		                        &s->ph[PH_GAS], &s->z, &w);
-		s->qc |= warn_qc(w) | status_qc(st);
-	}
-	if (d->has[PH_OIL]) {
-		w = 0;
-		if (d->live)
+		if (f->live)
 			st = rw_fluid_liveoil_props(
-			    p, t, proto_at(&d->api, i), proto_at(&d->gor, i),
-			    proto_at(&d->ggas, i), &s->ph[PH_OIL], &s->b0, &w);
+			    p, t, proto_at(&f->oil.api, i),
+			    proto_at(&f->oil.gor, i),
+			    proto_at(&f->oil.gas_gravity, i), &s->ph[PROTO_OIL],
+			    &s->b0, &w);
 		else
-			st = rw_fluid_deadoil_props(p, t, proto_at(&d->api, i),
-			                            &s->ph[PH_OIL], &w);
+			st = rw_fluid_deadoil_props(p, t,
+			                            proto_at(&f->oil.api, i),
+			                            &s->ph[PROTO_OIL], &w);
 		s->qc |= warn_qc(w) | status_qc(st);
 	}
 	/* Mix the phases present in the sample; a phase at zero saturation
 	 * is reported but takes no part (so its failure does not void the
 	 * mix). */
-	for (int k = 0; k < N_PH; k++) {
+	for (int k = 0; k < PROTO_NPHASES; k++) {
 		double sk;
-		if (!d->has[k])
+		if (!f->has[k])
 			continue;
-		sk = proto_at(&d->sat[k], i);
+		sk = proto_at(&f->sat[k], i);
+		if (isnan(sk)) {
+			s->qc |= QC_LOG_MISSING;
+			return;
+		}
 		if (sk <= 0.0)
 			continue;
 		if (!isfinite(s->ph[k].k_pa))
 			ok = 0;
-		if (k == PH_BRINE)
-			iw = n;
+		if (k == PROTO_GAS)
+			ig = n;
 		ph[n] = s->ph[k];
 		sat[n++] = sk;
 	}
 	if (!ok)
 		return;
-	if (d->mix == MIX_VOIGT)
+	if (f->mix == PROTO_MIX_VOIGT)
 		st = rw_fluid_mix_voigt(n, ph, sat, &s->mix);
-	else if (d->mix == MIX_BRIE && iw < n)
-		st = rw_fluid_mix_brie(n, ph, sat, iw, d->brie_e, &s->mix);
-	else /* wood, or brie at S_w = 0 where it equals the Wood mix */
+	else if (f->mix == PROTO_MIX_BRIE)
+		st = rw_fluid_mix_brie(n, ph, sat, ig, f->brie_e, &s->mix);
+	else
 		st = rw_fluid_mix_wood(n, ph, sat, &s->mix);
 	if (st != RW_OK)
 		s->qc |= QC_FLUID_FAILED;
 }
 
-/* ---- the description shared with rock.substitute ---------------------- */
-
-/* Parses a fluid description object at `path` ("fluid."): either
- * {k, rho} (explicit, both required, k > 0 and rho > 0) or phases with
- * saturations and a mixing rule. NULL after proto_fail. */
-struct proto_fluid_desc *
-proto__fluid_desc_parse(proto_call *c, const cJSON *obj, const char *path)
+void proto__fluid_kr(const proto_fluid *f, size_t i, double p_mpa,
+                     double t_degc, double *k_pa, double *rho_kgm3,
+                     uint64_t *qc)
 {
-	struct proto_fluid_desc *d = desc_new(c);
-	proto_args a;
-	char full[160];
+	proto_fluid_sample s;
 
-	if (!d || proto_args_parse(c, obj, path, desc_params, &a))
-		return NULL;
-	d->k = *proto_vec_of(&a, "k");
-	d->rho = *proto_vec_of(&a, "rho");
-	if (d->k.present || d->rho.present) {
-		const char *bad = NULL;
-		for (const proto_param *p = desc_params; p->name; p++)
-			if (p->type != PT_NUMS && proto_item_of(&a, p->name))
-				bad = p->name;
-		if (bad) {
-			snprintf(full, sizeof full, "%s%s", path, bad);
-			proto_fail(c, PROTO_INVALID_PARAMS, full,
-			           "give either k and rho, or a description "
-			           "by phases, not both");
-			return NULL;
-		}
-		for (int m = 0; m < 2; m++) {
-			const proto_vec *v = m ? &d->rho : &d->k;
-			snprintf(full, sizeof full, "%s%s", path,
-			         m ? "rho" : "k");
-			if (!v->present) {
-				proto_fail(c, PROTO_INVALID_PARAMS, full,
-				           "required with %s", m ? "k" : "rho");
-				return NULL;
-			}
-			for (size_t i = 0; i < v->n; i++)
-				if (!(v->v[i] > 0.0)) {
-					proto_fail(
-					    c, PROTO_INVALID_PARAMS, full,
-					    "element %zu: must be > 0", i);
-					return NULL;
-				}
-			if (join_len(c, d, v, full))
-				return NULL;
-		}
-		d->explicit_kr = 1;
-		return d;
-	}
-	if (parse_phases(c, &a, d))
-		return NULL;
-	return d;
-}
-
-size_t proto__fluid_desc_len(const struct proto_fluid_desc *d, int *is_array,
-                             const char **len_from)
-{
-	*is_array = d->any_array;
-	*len_from = d->len_from;
-	return d->n;
-}
-
-int proto__fluid_desc_needs_pt(const struct proto_fluid_desc *d)
-{
-	return !d->explicit_kr;
-}
-
-/* Bulk modulus (Pa), density (kg/m^3) and QC bits of sample i of the
- * mixture at p_mpa, t_degc (ignored for an explicit fluid). NaN outputs
- * when the fluid cannot be computed (*qc says why). */
-void proto__fluid_desc_eval(const struct proto_fluid_desc *d, size_t i,
-                            double p_mpa, double t_degc, double *k_pa,
-                            double *rho_kgm3, uint32_t *qc)
-{
-	fluid_sample s;
-
-	if (d->explicit_kr) {
-		*k_pa = proto_at(&d->k, i);
-		*rho_kgm3 = proto_at(&d->rho, i);
-		*qc = 0;
+	if (f->explicit_kr) {
+		*k_pa = proto_at(&f->k, i);
+		*rho_kgm3 = proto_at(&f->rho, i);
+		*qc = isnan(*k_pa) || isnan(*rho_kgm3) ? QC_LOG_MISSING : 0;
 		return;
 	}
-	eval_sample(d, i, p_mpa, t_degc, &s);
+	proto__fluid_eval(f, i, p_mpa, t_degc, &s);
 	*k_pa = s.mix.k_pa;
 	*rho_kgm3 = s.mix.rho_kgm3;
 	*qc = s.qc;
 }
 
-/* The saturation vector of a phase ("brine", "gas", "oil"); NULL when the
- * phase is absent or the fluid explicit. */
-const double *proto__fluid_desc_sat(const struct proto_fluid_desc *d,
-                                    const char *phase, size_t *n, int *is_array)
-{
-	for (int p = 0; p < N_PH; p++)
-		if (strcmp(phase, phase_names[p]) == 0 && d->has[p] &&
-		    !d->explicit_kr) {
-			*n = d->sat[p].n;
-			*is_array = d->sat[p].is_array;
-			return d->sat[p].v;
-		}
-	return NULL;
-}
-
 /* ---- fluid.properties --------------------------------------------------- */
 
-static int properties(proto_call *c)
-{
-	const proto_args *a = &c->args;
-	const proto_vec *p = proto_vec_of(a, "pressure");
-	const proto_vec *t = proto_vec_of(a, "temperature");
-	struct proto_fluid_desc *d = desc_new(c);
-	fluid_sample *s;
-	uint32_t *qc;
-	double *sat;
-	size_t n;
-	int arr;
+typedef struct props_args {
+	proto_hdr hdr;
+	proto_vec pressure, temperature;
+	proto_fluid f;
+} props_args;
 
-	if (!d || parse_phases(c, a, d))
-		return -1;
-	/* p and T (group 0 at the top) join the nested arrays. */
-	if (join_len(c, d, p, "pressure") || join_len(c, d, t, "temperature"))
-		return -1;
-	n = d->n;
-	arr = d->any_array;
-	if (proto_check_size(c, n, n * N_PH))
-		return -1;
-	s = proto_alloc(c, n * sizeof *s);
-	qc = proto_alloc(c, n * sizeof *qc);
-	sat = proto_alloc_doubles(c, n);
-	if (!s || !qc || !sat)
-		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-		                  "out of memory for %zu samples", n);
-	for (size_t i = 0; i < n; i++) {
-		eval_sample(d, i, proto_at(p, i), proto_at(t, i), &s[i]);
-		qc[i] = s[i].qc;
-	}
-	proto_w_obj_begin(c, NULL);
-	proto_w_int(c, "n", (long long)n);
-	proto_w_str(c, "mix", mix_names[d->mix]);
-	if (d->mix == MIX_BRIE)
-		proto_w_num(c, "brie_exponent", PK_NONE, d->brie_e);
-	proto_w_vec(c, "pressure", PK_PRESSURE, p->v, n, p->n == 1 ? 0 : 1,
-	            arr);
-	proto_w_vec(c, "temperature", PK_TEMPERATURE, t->v, n,
-	            t->n == 1 ? 0 : 1, arr);
-	for (int k = 0; k < N_PH; k++) {
-		char key[32];
-		const proto_vec *sv = &d->sat[k];
-		if (!d->has[k])
-			continue;
-		for (size_t i = 0; i < n; i++)
-			sat[i] = proto_at(sv, i);
-		snprintf(key, sizeof key, "sat_%s", phase_names[k]);
-		proto_w_vec(c, key, PK_NONE, sat, n, 1, arr);
-	}
-	for (int k = 0; k < N_PH; k++) {
-		/* Keys must outlive the writer's unit notes: static names. */
-		static const char *const keys[N_PH][3] = {
-		    {"brine_rho", "brine_k", "brine_v"},
-		    {"gas_rho", "gas_k", "gas_v"},
-		    {"oil_rho", "oil_k", "oil_v"}};
-		if (!d->has[k])
-			continue;
-		size_t ph = offsetof(fluid_sample, ph) + k * sizeof s->ph[0];
-		proto_w_rows(c, keys[k][0], PK_DENSITY, s, sizeof *s,
-		             ph + offsetof(rw_fluid_phase, rho_kgm3), n, arr);
-		proto_w_rows(c, keys[k][1], PK_MODULUS, s, sizeof *s,
-		             ph + offsetof(rw_fluid_phase, k_pa), n, arr);
-		proto_w_rows(c, keys[k][2], PK_VELOCITY, s, sizeof *s,
-		             ph + offsetof(rw_fluid_phase, v_ms), n, arr);
-		if (k == PH_GAS)
-			PROTO_W_MEMBER(c, "gas_z", PK_NONE, s, fluid_sample, z,
-			               n, arr);
-		if (k == PH_OIL && d->live)
-			PROTO_W_MEMBER(c, "oil_b0", PK_NONE, s, fluid_sample,
-			               b0, n, arr);
-	}
-	PROTO_W_MEMBER(c, "mix_rho", PK_DENSITY, s, fluid_sample, mix.rho_kgm3,
-	               n, arr);
-	PROTO_W_MEMBER(c, "mix_k", PK_MODULUS, s, fluid_sample, mix.k_pa, n,
-	               arr);
-	PROTO_W_MEMBER(c, "mix_v", PK_VELOCITY, s, fluid_sample, mix.v_ms, n,
-	               arr);
-	proto_w_flags(c, "qc", qc, n, arr);
-	proto_w_units(c);
-	proto_w_obj_end(c);
+static const proto_field props_fields[] = {
+    {PROTO_NUMS(props_args, pressure, PK_PRESSURE, PF_REQ | PF_NULLS,
+                "pore pressure; null marks a missing sample")},
+    {PROTO_NUMS(props_args, temperature, PK_TEMPERATURE, PF_REQ | PF_NULLS,
+                "temperature; null marks a missing sample")},
+    PHASE_FIELDS(props_args, f.),
+    {0},
+};
+
+static int props_check(proto_call *c, void *dst)
+{
+	props_args *a = dst;
+	return phases_check(c, &a->f, "");
+}
+
+static const proto_decl props_decl = {
+    .name = "",
+    .fields = props_fields,
+    .size = sizeof(props_args),
+    .check = props_check,
+};
+
+static int props_kernel(const void *args, size_t i, void *row, uint64_t *qc,
+                        void *ws)
+{
+	const props_args *a = args;
+	proto_fluid_sample *s = row;
+
+	(void)ws;
+	proto__fluid_eval(&a->f, i, proto_at(&a->pressure, i),
+	                  proto_at(&a->temperature, i), s);
+	*qc = s->qc;
 	return 0;
 }
 
-const proto_method proto_fluid_methods[] = {
-    {"fluid.properties", properties, properties_params,
-     "Brine, gas and oil properties at pressure and temperature (Batzle "
-     "& Wang 1992) and their mixture by saturation."},
-    {NULL, NULL, NULL, NULL},
+static int has_brine(const void *a)
+{
+	return ((const props_args *)a)->f.has[PROTO_BRINE];
+}
+static int has_gas(const void *a)
+{
+	return ((const props_args *)a)->f.has[PROTO_GAS];
+}
+static int has_oil(const void *a)
+{
+	return ((const props_args *)a)->f.has[PROTO_OIL];
+}
+static int live_oil(const void *a)
+{
+	return has_oil(a) && ((const props_args *)a)->f.live;
+}
+static int is_brie(const void *a)
+{
+	return ((const props_args *)a)->f.mix == PROTO_MIX_BRIE;
+}
+
+#define PH(k, m)                                                               \
+	offsetof(proto_fluid_sample, ph) + (k) * sizeof(rw_fluid_phase) +      \
+	    offsetof(rw_fluid_phase, m)
+#define PHASE_OUT(nm, k, w)                                                    \
+	{.name = nm "_rho",                                                    \
+	 .type = PO_NUM,                                                       \
+	 .kind = PK_DENSITY,                                                   \
+	 .offset = PH(k, rho_kgm3),                                            \
+	 .when = w,                                                            \
+	 .desc = nm " density"},                                               \
+	    {.name = nm "_k",                                                  \
+	     .type = PO_NUM,                                                   \
+	     .kind = PK_MODULUS,                                               \
+	     .offset = PH(k, k_pa),                                            \
+	     .when = w,                                                        \
+	     .desc = nm " adiabatic bulk modulus"},                            \
+	{                                                                      \
+		.name = nm "_v", .type = PO_NUM, .kind = PK_VELOCITY,          \
+		.offset = PH(k, v_ms), .when = w, .desc = nm " sound speed"    \
+	}
+static const proto_output props_outputs[] = {
+    {.name = "n", .type = PO_COUNT, .dim = D_REQ, .desc = "samples"},
+    {.name = "mix",
+     .type = PO_ENUM,
+     .dim = D_REQ,
+     .offset = offsetof(props_args, f.mix),
+     .choices = proto_mix_names,
+     .desc = "mixing rule used"},
+    {.name = "brie_exponent",
+     .type = PO_NUM,
+     .dim = D_REQ,
+     .offset = offsetof(props_args, f.brie_e),
+     .when = is_brie,
+     .desc = "Brie exponent used"},
+    {.name = "pressure",
+     .type = PO_VEC,
+     .kind = PK_PRESSURE,
+     .dim = D_REQ,
+     .offset = offsetof(props_args, pressure),
+     .desc = "pressure (echoed)"},
+    {.name = "temperature",
+     .type = PO_VEC,
+     .kind = PK_TEMPERATURE,
+     .dim = D_REQ,
+     .offset = offsetof(props_args, temperature),
+     .desc = "temperature (echoed)"},
+    {.name = "sat_brine",
+     .type = PO_VEC,
+     .dim = D_REQ,
+     .offset = offsetof(props_args, f.sat[PROTO_BRINE]),
+     .when = has_brine,
+     .desc = "brine saturation (echoed)"},
+    {.name = "sat_gas",
+     .type = PO_VEC,
+     .dim = D_REQ,
+     .offset = offsetof(props_args, f.sat[PROTO_GAS]),
+     .when = has_gas,
+     .desc = "gas saturation (echoed)"},
+    {.name = "sat_oil",
+     .type = PO_VEC,
+     .dim = D_REQ,
+     .offset = offsetof(props_args, f.sat[PROTO_OIL]),
+     .when = has_oil,
+     .desc = "oil saturation (echoed)"},
+    PHASE_OUT("brine", PROTO_BRINE, has_brine),
+    PHASE_OUT("gas", PROTO_GAS, has_gas),
+    {.name = "gas_z",
+     .type = PO_NUM,
+     .offset = offsetof(proto_fluid_sample, z),
+     .when = has_gas,
+     .desc = "gas compressibility factor Z"},
+    PHASE_OUT("oil", PROTO_OIL, has_oil),
+    {.name = "oil_b0",
+     .type = PO_NUM,
+     .offset = offsetof(proto_fluid_sample, b0),
+     .when = live_oil,
+     .desc = "live-oil formation volume factor B0"},
+    {.name = "mix_rho",
+     .type = PO_NUM,
+     .kind = PK_DENSITY,
+     .offset = offsetof(proto_fluid_sample, mix.rho_kgm3),
+     .desc = "mixture density (saturation-weighted)"},
+    {.name = "mix_k",
+     .type = PO_NUM,
+     .kind = PK_MODULUS,
+     .offset = offsetof(proto_fluid_sample, mix.k_pa),
+     .desc = "mixture bulk modulus by the mixing rule"},
+    {.name = "mix_v",
+     .type = PO_NUM,
+     .kind = PK_VELOCITY,
+     .offset = offsetof(proto_fluid_sample, mix.v_ms),
+     .desc = "sqrt(K/rho) of the mixture"},
+    {.name = "qc",
+     .type = PO_FLAGS,
+     .offset = offsetof(proto_fluid_sample, qc),
+     .desc = "QC flags"},
+    {0},
 };
+
+static const proto_method m_props = {
+    .name = "fluid.properties",
+    .summary = "Brine, gas and oil properties at pressure and temperature "
+               "(Batzle & Wang 1992) and their mixture by saturation.",
+    .description =
+        "Describe one or more phases (brine, gas, dead or live oil); with "
+        "more than one, give saturation for each described phase, summing "
+        "to 1 within 1e-6 per sample (-32602 shows the sum). pressure, "
+        "temperature, salinity, gravities, GOR and saturations may be "
+        "arrays of one length (a depth profile or a sweep); scalars "
+        "broadcast. Every described phase is reported, also at zero "
+        "saturation. Samples outside the fitted ranges carry QC flag "
+        "fluid_outside_calibration; impossible samples are null with "
+        "flags. See fluids.md.",
+    .params = &props_decl,
+    .outputs = props_outputs,
+    .kernel = props_kernel,
+    .row_size = sizeof(proto_fluid_sample),
+    .qc_offset = offsetof(proto_fluid_sample, qc),
+    .cost = 3,
+};
+
+const proto_method *const proto_fluid_methods[] = {&m_props, NULL};

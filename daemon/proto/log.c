@@ -11,54 +11,14 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "proto/desc.h"
 #include "proto/internal.h"
-#include "proto/lith.h"
+#include "proto/table.h"
 #include "rockwire/elastic.h"
 #include "rockwire/empirical.h"
 #include "rockwire/fluid.h"
 #include "rockwire/mineral.h"
 #include "rockwire/rock.h"
-
-#define S(name, kind)                                                          \
-	{                                                                      \
-		name, PT_NUMS, kind, PP_NULLS, 0                               \
-	}
-
-static const proto_param process_params[] = {
-    S("depth", PK_LENGTH),
-    S("dtp", PK_SLOWNESS),
-    S("dts", PK_SLOWNESS),
-    S("vp", PK_VELOCITY),
-    S("vs", PK_VELOCITY),
-    S("rhob", PK_DENSITY),
-    S("drho", PK_DENSITY),
-    S("caliper", PK_LENGTH),
-    S("bit_size", PK_LENGTH),
-    S("gr", PK_NONE),
-    S("vsh", PK_NONE),
-    S("porosity", PK_NONE),
-    S("pressure", PK_PRESSURE),
-    S("temperature", PK_TEMPERATURE),
-    {"gr_clean", PT_NUM, PK_NONE, 0, 0},
-    {"gr_shale", PT_NUM, PK_NONE, 0, 0},
-    {"vs_predict", PT_STR, PK_NONE, 0, 0},
-    {"rho_predict", PT_STR, PK_NONE, 0, 0},
-    {"rho_replace_bad", PT_BOOL, PK_NONE, 0, 0},
-    {"gardner_a", PT_NUM, PK_NONE, 0, 0},
-    {"gardner_b", PT_NUM, PK_NONE, 0, 0},
-    {"lithology", PT_ANY, PK_NONE, 0, 0},
-    {"drho_limit", PT_NUM, PK_DENSITY, 0, 0},
-    {"washout_limit", PT_NUM, PK_LENGTH, 0, 0},
-    {"mineral", PT_ANY, PK_NONE, 0, 0},
-    {"fluid_in_place", PT_OBJ, PK_NONE, 0, 0},
-    {"fluid_new", PT_OBJ, PK_NONE, 0, 0},
-    {"pressure_gradient", PT_NUM, PK_GRADIENT_P, 0, 0},
-    {"temperature_gradient", PT_NUM, PK_GRADIENT_T, 0, 0},
-    {"surface_pressure", PT_NUM, PK_PRESSURE, 0, 0},
-    {"surface_temperature", PT_NUM, PK_TEMPERATURE, 0, 0},
-    {"qc", PT_OBJ, PK_NONE, 0, 0},
-    {NULL, PT_ANY, PK_NONE, 0, 0},
-};
 
 /* Default density-correction limit: |DRHO| above 0.05 g/cm3 marks the
  * density as doubtful (common practice quotes 0.05-0.10 g/cm3; the strict
@@ -68,65 +28,357 @@ static const proto_param process_params[] = {
  * (common practice: pad-contact density and sonic readings degrade once
  * the hole is enlarged by about an inch or more). */
 #define WASHOUT_LIMIT_M 0.0254
+/* Drilled holes run from about 3 in to 30 in (common practice); a bit
+ * size outside is most likely in another unit. */
+#define BIT_SIZE_MIN_M (3 * 0.0254)
+#define BIT_SIZE_MAX_M (30 * 0.0254)
 /* Standard atmosphere, MPa (definition), the default surface pressure. */
 #define ATM_MPA 0.101325
 
-/* ---- the method --------------------------------------------------------- */
-
-enum { VSP_NONE, VSP_GC, VSP_MUDROCK };
-static const char *const vs_pred_names[] = {"none", "greenberg_castagna",
-                                            "mudrock", NULL};
+enum { VSP_NONE, VSP_GC, VSP_MUDROCK, VSP_GC_INSITU };
+static const char *const vs_pred_names[] = {
+    "none", "greenberg_castagna", "mudrock", "greenberg_castagna_insitu", NULL};
 static const char *const rho_pred_names[] = {"none", "gardner", NULL};
 
-/* Output columns, in result order: the elastic set per sample, then the
- * substituted set. */
-typedef struct log_out {
-	double vp, vs, rho, k, mu, lambda, e, nu, ai, si, vpvs, vsh;
-	double vp_sub, vs_sub, rho_sub, k_sub, ai_sub, si_sub, vpvs_sub, nu_sub,
-	    k_fl_in_place, rho_fl_in_place, k_fl_new, rho_fl_new;
-} log_out;
+typedef struct log_args {
+	proto_hdr hdr;
+	proto_vec depth, dtp, dts, vp, vs, rhob, drho, caliper, bit_size;
+	proto_vec gr, vsh, porosity, pressure, temperature;
+	proto_vec gr_clean, gr_shale;
+	int vs_predict, rho_predict, rho_replace_bad;
+	proto_vec gardner_a, gardner_b;
+	proto_lith lithology;
+	proto_vec drho_limit, washout_limit;
+	proto_mineral mineral;
+	proto_fluid fluid_in_place, fluid_new, brine;
+	proto_vec pressure_gradient, temperature_gradient;
+	proto_vec surface_pressure, surface_temperature;
+	proto_qc_ranges qc;
+	/* derived */
+	int subst, need_pt, have_vsh, washout, insitu;
+	double rock_sum;
+} log_args;
 
-#define COL(m, kind)                                                           \
+#define S(m, k_, text)                                                         \
 	{                                                                      \
-#m, kind, offsetof(log_out, m)                                 \
+		PROTO_NUMS(log_args, m, k_, PF_NULLS, text)                    \
 	}
-static const struct {
-	const char *name;
-	proto_kind kind;
-	size_t off;
-} out_cols[] = {
-    COL(vp, PK_VELOCITY),
-    COL(vs, PK_VELOCITY),
-    COL(rho, PK_DENSITY),
-    COL(k, PK_MODULUS),
-    COL(mu, PK_MODULUS),
-    COL(lambda, PK_MODULUS),
-    COL(e, PK_MODULUS),
-    COL(nu, PK_NONE),
-    COL(ai, PK_IMPEDANCE),
-    COL(si, PK_IMPEDANCE),
-    COL(vpvs, PK_NONE),
-    COL(vsh, PK_NONE),
-    COL(vp_sub, PK_VELOCITY),
-    COL(vs_sub, PK_VELOCITY),
-    COL(rho_sub, PK_DENSITY),
-    COL(k_sub, PK_MODULUS),
-    COL(ai_sub, PK_IMPEDANCE),
-    COL(si_sub, PK_IMPEDANCE),
-    COL(vpvs_sub, PK_NONE),
-    COL(nu_sub, PK_NONE),
-    COL(k_fl_in_place, PK_MODULUS),
-    COL(rho_fl_in_place, PK_DENSITY),
-    COL(k_fl_new, PK_MODULUS),
-    COL(rho_fl_new, PK_DENSITY),
+#define SCALAR(m, k_, fl, text)                                                \
+	PROTO_NUMS(log_args, m, k_, PF_SCALAR | (fl), text)
+static const proto_field log_fields[] = {
+    S(depth, PK_LENGTH, "measured or true vertical depth of each sample"),
+    S(dtp, PK_SLOWNESS, "compressional slowness (or vp)"),
+    S(dts, PK_SLOWNESS, "shear slowness (or vs)"),
+    S(vp, PK_VELOCITY, "P velocity (instead of dtp)"),
+    S(vs, PK_VELOCITY, "S velocity (instead of dts)"),
+    S(rhob, PK_DENSITY, "bulk density"),
+    S(drho, PK_DENSITY, "density correction curve"),
+    S(caliper, PK_LENGTH, "caliper (hole diameter)"),
+    S(bit_size, PK_LENGTH,
+      "bit size (the washout check compares the caliper with it)"),
+    S(gr, PK_NONE, "gamma ray, API units (for the shale fraction)"),
+    {PROTO_NUMS(log_args, vsh, PK_NONE, PF_NULLS,
+                "shale volume fraction (instead of gr); values outside "
+                "[0, 1] are flagged input_invalid")},
+    {PROTO_NUMS(log_args, porosity, PK_NONE, PF_NULLS | PF_FRACTION,
+                "porosity (fraction), for fluid substitution")},
+    S(pressure, PK_PRESSURE, "pore pressure, for fluids by phases"),
+    S(temperature, PK_TEMPERATURE, "temperature, for fluids by phases"),
+    {PROTO_NUMS(log_args, gr_clean, PK_NONE, 0,
+                "gamma ray of clean rock (with gr)")},
+    {PROTO_NUMS(log_args, gr_shale, PK_NONE, 0,
+                "gamma ray of shale (with gr, above gr_clean)")},
+    {.name = "vs_predict",
+     .type = PT_ENUM,
+     .flags = PF_DFLT,
+     .offset = offsetof(log_args, vs_predict),
+     .choices = vs_pred_names,
+     .dflt_choice = VSP_NONE,
+     .desc = "predict a missing shear log: greenberg_castagna (brine "
+             "rock), mudrock (Castagna et al. 1985), or "
+             "greenberg_castagna_insitu (their iteration through Gassmann "
+             "for hydrocarbon-bearing rock: needs fluid_in_place, brine, "
+             "porosity and mineral)"},
+    {.name = "rho_predict",
+     .type = PT_ENUM,
+     .flags = PF_DFLT,
+     .offset = offsetof(log_args, rho_predict),
+     .choices = rho_pred_names,
+     .dflt_choice = 0,
+     .desc = "predict a missing density: gardner (Gardner et al. 1974)"},
+    {PROTO_FIELD(log_args, rho_replace_bad, PT_BOOL, 0,
+                 "also replace doubtful density (drho or washout) by the "
+                 "prediction")},
+    {PROTO_NUMS(log_args, gardner_a, PK_NONE, PF_DFLT | PF_LO | PF_LO_OPEN,
+                "Gardner a, for rho in g/cm3 and vp in m/s (default 0.31)"),
+     .dflt = RW_EMP_GARDNER_A, .lo = 0},
+    {PROTO_NUMS(log_args, gardner_b, PK_NONE, PF_DFLT | PF_LO | PF_LO_OPEN,
+                "Gardner b (default 0.25)"),
+     .dflt = RW_EMP_GARDNER_B, .lo = 0},
+    {PROTO_FIELD(log_args, lithology, PT_OBJ, 0,
+                 "lithology for greenberg_castagna (default sandstone)"),
+     .sub = &proto_lith_decl},
+    {SCALAR(drho_limit, PK_DENSITY, PF_DFLT | PF_LO | PF_LO_OPEN,
+            "|drho| above this flags the density (default 0.05 g/cm3); one "
+            "QC rule for the request"),
+     .dflt = DRHO_LIMIT_KGM3, .lo = 0},
+    {SCALAR(washout_limit, PK_LENGTH, PF_DFLT | PF_LO | PF_LO_OPEN,
+            "caliper - bit size above this flags a washout (default 1 in); "
+            "one QC rule for the request"),
+     .dflt = WASHOUT_LIMIT_M, .lo = 0},
+    {PROTO_FIELD(log_args, mineral, PT_OBJ, 0,
+                 "the mineral, for fluid substitution"),
+     .sub = &proto_mineral_decl},
+    {PROTO_FIELD(log_args, fluid_in_place, PT_OBJ, 0,
+                 "the fluid in place (substitution, greenberg_castagna_"
+                 "insitu)"),
+     .sub = &proto_fluid_decl},
+    {PROTO_FIELD(log_args, fluid_new, PT_OBJ, 0,
+                 "the new fluid of the substitution"),
+     .sub = &proto_fluid_decl},
+    {PROTO_FIELD(log_args, brine, PT_OBJ, 0,
+                 "the brine of the brine case (greenberg_castagna_insitu; "
+                 "default the brine phase of fluid_in_place at full "
+                 "saturation)"),
+     .sub = &proto_fluid_decl},
+    {SCALAR(pressure_gradient, PK_GRADIENT_P, 0,
+            "an assumed pore-pressure gradient for the fluid model "
+            "(pressure = surface_pressure + gradient x depth): an input "
+            "for fluid properties, not a pore-pressure prediction")},
+    {SCALAR(temperature_gradient, PK_GRADIENT_T, 0,
+            "temperature gradient (with surface_temperature and depth)")},
+    {SCALAR(surface_pressure, PK_PRESSURE, PF_DFLT,
+            "pressure at depth 0 (default 1 atm)"),
+     .dflt = ATM_MPA},
+    {SCALAR(surface_temperature, PK_TEMPERATURE, 0,
+            "temperature at depth 0 (with temperature_gradient)")},
+    {PROTO_FIELD(log_args, qc, PT_OBJ, 0, "plausibility ranges"),
+     .sub = &proto_qc_ranges_decl},
+    {0},
 };
-#undef COL
-#define N_ELASTIC_COLS 11 /* vp .. vpvs */
-#define COL_VSH        11
-#define COL_SUB        12
+#undef S
+#undef SCALAR
+
+static const char *const vp_dtp[] = {"vp", "dtp", NULL};
+static const char *const dtp_vp[] = {"dtp", "vp", NULL};
+static const char *const vs_dts[] = {"vs", "dts", NULL};
+static const char *const vsh_gr[] = {"vsh", "gr", NULL};
+static const char *const shear_src[] = {"dts", "vs", "vs_predict", NULL};
+static const char *const rho_src[] = {"rhob", "rho_predict", NULL};
+static const char *const gr_needs[] = {"gr_clean", "gr_shale", NULL};
+static const char *const fluids[] = {"fluid_in_place", "fluid_new", NULL};
+static const char *const subst_needs[] = {"porosity", "mineral", NULL};
+static const char *const insitu_needs[] = {"fluid_in_place", "porosity",
+                                           "mineral", NULL};
+static const proto_rule log_rules[] = {
+    {PR_AT_MOST, NULL, 1, vp_dtp, "give vp or dtp, not both"},
+    {PR_AT_MOST, NULL, 1, vs_dts, "give vs or dts, not both"},
+    {PR_AT_MOST, NULL, 1, vsh_gr, "give vsh or gr, not both"},
+    {PR_AT_LEAST, NULL, 1, dtp_vp, "give the compressional log: dtp or vp"},
+    {PR_AT_LEAST, NULL, 1, shear_src,
+     "give the shear log (dts or vs), or vs_predict \"greenberg_castagna\" "
+     "or \"mudrock\""},
+    {PR_AT_LEAST, NULL, 1, rho_src,
+     "give the density log rhob, or rho_predict \"gardner\""},
+    {PR_REQUIRES, "gr", 0, gr_needs,
+     "gr needs gr_clean and gr_shale (API units, gr_shale > gr_clean) for "
+     "the linear gamma-ray index"},
+    {PR_REQUIRES, "fluid_new", 0, fluids,
+     "fluid substitution needs both fluid_in_place and fluid_new"},
+    {PR_REQUIRES, "fluid_new", 0, subst_needs,
+     "fluid substitution needs the porosity log and the mineral (a table "
+     "name, {k, rho} or a mix)"},
+    {PR_REQUIRES, "vs_predict=greenberg_castagna_insitu", 0, insitu_needs,
+     "greenberg_castagna_insitu needs fluid_in_place, porosity and "
+     "mineral: it takes the rock to brine by Gassmann"},
+    {PR_END},
+};
+
+/* A parameter given in the request that the request does not use is an
+ * error (it would be silently ignored); one inherited from the session is
+ * let pass, since sessions hold defaults for several kinds of request. */
+static int unused(proto_call *c, const proto_vec *v, int obj_present,
+                  const char *name, const char *why)
+{
+	if (v && (!v->present || v->inherited))
+		return 0;
+	if (!v && !obj_present)
+		return 0;
+	return proto_fail(c, PROTO_INVALID_PARAMS, name,
+	                  "not used by this "
+	                  "request: %s",
+	                  why);
+}
+
+static const proto_decl log_decl;
+
+static int log_check(proto_call *c, void *dst)
+{
+	static const char *const pt_why =
+	    "it serves fluids described by phases at reservoir conditions";
+	log_args *a = dst;
+	double lith[RW_EMP_NLITH];
+
+	a->have_vsh = a->vsh.present || a->gr.present;
+	a->subst = a->fluid_new.hdr.present;
+	a->insitu = a->vs_predict == VSP_GC_INSITU;
+	if (a->fluid_in_place.hdr.present && !a->subst && !a->insitu &&
+	    !proto_inherited_at(a, &log_decl,
+	                        offsetof(log_args, fluid_in_place)))
+		return proto_fail(
+		    c, PROTO_INVALID_PARAMS, "fluid_new",
+		    "fluid substitution needs both fluid_in_place "
+		    "and fluid_new");
+	if (a->gr.present)
+		for (size_t i = 0; i < a->gr_clean.n || i < a->gr_shale.n; i++)
+			if (!(proto_at(&a->gr_shale, i) >
+			      proto_at(&a->gr_clean, i)))
+				return proto_fail(
+				    c, PROTO_INVALID_PARAMS, "gr_shale",
+				    "must be above gr_clean (%s%zu)",
+				    "element ", i);
+	if (!a->gr.present &&
+	    (unused(c, &a->gr_clean, 0, "gr_clean", "used only with gr") ||
+	     unused(c, &a->gr_shale, 0, "gr_shale", "used only with gr")))
+		return -1;
+	if (a->rho_replace_bad && a->rho_predict == 0)
+		return proto_fail(
+		    c, PROTO_INVALID_PARAMS, "rho_replace_bad",
+		    "replacing doubtful density needs rho_predict "
+		    "\"gardner\"");
+	if (a->rho_predict == 0 &&
+	    (unused(c, &a->gardner_a, 0, "gardner_a",
+	            "used only with rho_predict \"gardner\"") ||
+	     unused(c, &a->gardner_b, 0, "gardner_b",
+	            "used only with rho_predict \"gardner\"")))
+		return -1;
+	/* The washout check needs both curves: without one, say so and go
+	 * on without the check rather than refusing the samples. */
+	a->washout = a->caliper.present && a->bit_size.present;
+	if (a->caliper.present && !a->bit_size.present && !a->caliper.inherited)
+		proto_warn(c, "bit_size",
+		           "not given: the washout check (caliper against bit "
+		           "size) did not run");
+	if (a->bit_size.present && !a->caliper.present &&
+	    !a->bit_size.inherited)
+		proto_warn(c, "caliper",
+		           "not given: the washout check (caliper against bit "
+		           "size) did not run");
+	if (a->lithology.hdr.present)
+		for (int k = 0; k < RW_EMP_NLITH; k++)
+			lith[k] = a->lithology.frac[k].present
+			              ? a->lithology.frac[k].v[0]
+			              : 0;
+	else
+		proto__lith_fractions(NULL, lith);
+	a->rock_sum = lith[RW_EMP_SANDSTONE] + lith[RW_EMP_LIMESTONE] +
+	              lith[RW_EMP_DOLOMITE];
+	if ((a->vs_predict == VSP_GC || a->insitu) && a->have_vsh &&
+	    !(a->rock_sum > 0))
+		return proto_fail(
+		    c, PROTO_INVALID_PARAMS, "lithology",
+		    "with vsh or gr the shale fraction comes from "
+		    "the log; lithology must name at least one of "
+		    "sandstone, limestone, dolomite for the rest");
+	if (!a->subst && !a->insitu &&
+	    (unused(c, NULL,
+	            a->mineral.hdr.present &&
+	                !proto_inherited_at(a, &log_decl,
+	                                    offsetof(log_args, mineral)),
+	            "mineral", "it serves fluid substitution") ||
+	     unused(c, &a->porosity, 0, "porosity",
+	            "it serves fluid substitution")))
+		return -1;
+	if (a->insitu && !a->brine.hdr.present) {
+		/* the brine phase of the fluid in place, alone */
+		if (a->fluid_in_place.explicit_kr ||
+		    !a->fluid_in_place.has[PROTO_BRINE])
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, "brine",
+			    "required: fluid_in_place has no brine "
+			    "phase to take as the brine case");
+		static const double one = 1.0;
+		a->brine = a->fluid_in_place;
+		a->brine.has[PROTO_GAS] = a->brine.has[PROTO_OIL] = 0;
+		memset(&a->brine.sat, 0, sizeof a->brine.sat);
+		a->brine.sat[PROTO_BRINE].v = &one;
+		a->brine.sat[PROTO_BRINE].n = 1;
+		a->brine.sat[PROTO_BRINE].present = 1;
+		a->brine.mix = PROTO_MIX_WOOD;
+	}
+	a->need_pt =
+	    (a->subst &&
+	     (!a->fluid_in_place.explicit_kr || !a->fluid_new.explicit_kr)) ||
+	    (a->insitu &&
+	     (!a->fluid_in_place.explicit_kr || !a->brine.explicit_kr));
+	if (a->need_pt) {
+		int need_depth = 0;
+		if (!a->pressure.present) {
+			if (!a->pressure_gradient.present)
+				return proto_fail(
+				    c, PROTO_INVALID_PARAMS, "pressure",
+				    "fluid descriptions need the pore "
+				    "pressure: "
+				    "give pressure, or pressure_gradient with "
+				    "depth");
+			need_depth = 1;
+		}
+		if (!a->temperature.present) {
+			if (!a->temperature_gradient.present)
+				return proto_fail(
+				    c, PROTO_INVALID_PARAMS, "temperature",
+				    "fluid descriptions need the temperature: "
+				    "give temperature, or temperature_gradient "
+				    "with surface_temperature and depth");
+			if (!a->surface_temperature.present)
+				return proto_fail(
+				    c, PROTO_INVALID_PARAMS,
+				    "surface_temperature",
+				    "required with temperature_gradient");
+			need_depth = 1;
+		}
+		if (need_depth && !a->depth.present)
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, "depth",
+			    "required to apply pressure_gradient or "
+			    "temperature_gradient (depth is taken as true "
+			    "vertical depth below the surface)");
+	} else if (unused(c, &a->pressure, 0, "pressure", pt_why) ||
+	           unused(c, &a->temperature, 0, "temperature", pt_why) ||
+	           unused(c, &a->pressure_gradient, 0, "pressure_gradient",
+	                  pt_why) ||
+	           unused(c, &a->temperature_gradient, 0,
+	                  "temperature_gradient", pt_why) ||
+	           unused(c, &a->surface_temperature, 0, "surface_temperature",
+	                  pt_why) ||
+	           (a->surface_pressure.present &&
+	            unused(c, &a->surface_pressure, 0, "surface_pressure",
+	                   pt_why))) {
+		return -1;
+	}
+	if (!a->qc.hdr.present)
+		proto_qc_ranges_default(&a->qc);
+	return 0;
+}
+
+static const proto_decl log_decl = {
+    .name = "",
+    .fields = log_fields,
+    .rules = log_rules,
+    .size = sizeof(log_args),
+    .check = log_check,
+};
+
+/* Output columns: the elastic set per sample, then the substituted set. */
+typedef struct log_row {
+	double vp, vs, rho, k, mu, lambda, e, nu, ai, si, vpvs, vsh;
+	double vp_sub, vs_sub, rho_sub, k_sub, ai_sub, si_sub, vpvs_sub, nu_sub;
+	double k_fl_in_place, rho_fl_in_place, k_fl_new, rho_fl_new;
+	uint64_t qc;
+} log_row;
 
 /* Velocity from a velocity or a slowness vector (exactly one present or
- * neither); NaN when missing or not positive. */
+ * neither); NaN when missing, -1 when not positive. */
 static double vel(const proto_vec *v, const proto_vec *dt, size_t i)
 {
 	if (v->present)
@@ -138,465 +390,333 @@ static double vel(const proto_vec *v, const proto_vec *dt, size_t i)
 	return NAN;
 }
 
-static int either(proto_call *c, const char *a, const char *b)
-{
-	if (proto_item_of(&c->args, a) && proto_item_of(&c->args, b))
-		return proto_fail(c, PROTO_INVALID_PARAMS, b,
-		                  "give %s or %s, not both", a, b);
-	return 0;
-}
-
 /* Pressure (MPa) and temperature (degC) of sample i: the curves when
  * given, else surface value + gradient x depth. */
-typedef struct pt_src {
-	const proto_vec *p, *t, *depth;
-	double p0, gp, t0, gt;
-} pt_src;
-
-static void pt_at(const pt_src *s, size_t i, double *p, double *t)
+static void pt_at(const log_args *a, size_t i, double *p, double *t)
 {
-	double z = s->depth->present ? proto_at(s->depth, i) : NAN;
-	*p = s->p->present ? proto_at(s->p, i) : s->p0 + s->gp * z;
-	*t = s->t->present ? proto_at(s->t, i) : s->t0 + s->gt * z;
+	double z = a->depth.present ? proto_at(&a->depth, i) : NAN;
+	*p = a->pressure.present
+	         ? proto_at(&a->pressure, i)
+	         : a->surface_pressure.v[0] + a->pressure_gradient.v[0] * z;
+	*t = a->temperature.present ? proto_at(&a->temperature, i)
+	                            : a->surface_temperature.v[0] +
+	                                  a->temperature_gradient.v[0] * z;
 }
 
-/* Parameters that only fluid descriptions at reservoir conditions use. */
-static const char *const pt_names[] = {
-    "pressure",          "temperature",
-    "pressure_gradient", "temperature_gradient",
-    "surface_pressure",  "surface_temperature",
-};
-
-/* A parameter given in the request that this request does not use is an
- * error (it would be silently ignored); one inherited from the session is
- * let pass, since sessions hold defaults for several kinds of request.
- * Returns 1 after proto_fail, else 0. */
-static int unused(proto_call *c, const char *name)
+/* The lithology fractions of sample i for Greenberg & Castagna. */
+static void lith_at(const log_args *a, size_t i, double vsh,
+                    double fr[RW_EMP_NLITH])
 {
-	if (!proto_item_of(&c->args, name) || proto_arg_inherited(c, name))
-		return 0;
-	proto_fail(c, PROTO_INVALID_PARAMS, name,
-	           "not used by this request: it serves fluid substitution "
-	           "(fluid_in_place and fluid_new described by phases at "
-	           "reservoir conditions)");
-	return 1;
-}
+	double lith[RW_EMP_NLITH];
 
-static int pt_check(proto_call *c, pt_src *s)
-{
-	const proto_args *a = &c->args;
-	int need_depth = 0;
-
-	s->p = proto_vec_of(a, "pressure");
-	s->t = proto_vec_of(a, "temperature");
-	s->depth = proto_vec_of(a, "depth");
-	s->gp = proto_num_or(a, "pressure_gradient", NAN);
-	s->gt = proto_num_or(a, "temperature_gradient", NAN);
-	s->p0 = proto_num_or(a, "surface_pressure", ATM_MPA);
-	s->t0 = proto_num_or(a, "surface_temperature", NAN);
-	if (!s->p->present) {
-		if (!isfinite(s->gp))
-			return proto_fail(c, PROTO_INVALID_PARAMS, "pressure",
-			                  "fluid descriptions need the pore "
-			                  "pressure: give pressure, or "
-			                  "pressure_gradient with depth");
-		need_depth = 1;
+	if (a->lithology.hdr.present)
+		for (int k = 0; k < RW_EMP_NLITH; k++)
+			lith[k] = a->lithology.frac[k].present
+			              ? proto_at(&a->lithology.frac[k], i)
+			              : 0;
+	else
+		proto__lith_fractions(NULL, lith);
+	memcpy(fr, lith, sizeof lith);
+	if (a->have_vsh && !isnan(vsh)) {
+		double rock = lith[RW_EMP_SANDSTONE] + lith[RW_EMP_LIMESTONE] +
+		              lith[RW_EMP_DOLOMITE];
+		for (int j = 0; j < RW_EMP_SHALE; j++)
+			fr[j] = lith[j] / rock * (1 - vsh);
+		fr[RW_EMP_SHALE] = vsh;
 	}
-	if (!s->t->present) {
-		if (!isfinite(s->gt))
-			return proto_fail(c, PROTO_INVALID_PARAMS,
-			                  "temperature",
-			                  "fluid descriptions need the "
-			                  "temperature: give temperature, or "
-			                  "temperature_gradient with "
-			                  "surface_temperature and depth");
-		if (!isfinite(s->t0))
-			return proto_fail(c, PROTO_INVALID_PARAMS,
-			                  "surface_temperature",
-			                  "required with temperature_gradient");
-		need_depth = 1;
-	}
-	if (need_depth && !s->depth->present)
-		return proto_fail(c, PROTO_INVALID_PARAMS, "depth",
-		                  "required to apply pressure_gradient or "
-		                  "temperature_gradient (depth is taken as "
-		                  "true vertical depth below the surface)");
-	return 0;
 }
 
-/* A fluid or mineral description with arrays must match the samples. */
-static int desc_len_check(proto_call *c, size_t dn, int darr, const char *from,
-                          size_t n, int arr)
+static int log_kernel(const void *args, size_t i, void *row, uint64_t *qc,
+                      void *ws)
 {
-	if (!darr || (arr && dn == n))
-		return 0;
-	return proto_fail(c, PROTO_INVALID_PARAMS, from,
-	                  "array length %zu does not match the %zu log "
-	                  "sample(s); give one value or one per sample",
-	                  dn, n);
-}
+	const log_args *a = args;
+	log_row *r = row;
+	uint64_t fl = 0;
+	unsigned why = 0, warn = 0;
+	double v_p = vel(&a->vp, &a->dtp, i), v_s = vel(&a->vs, &a->dts, i);
+	double rho = a->rhob.present ? proto_at(&a->rhob, i) : NAN;
+	double vsh = NAN, p = NAN, t = NAN;
+	int bad_rho = 0, vsp_block = 0;
+	rw_elastic e;
 
-static int process(proto_call *c)
-{
-	const proto_args *a = &c->args;
-	const proto_vec *vp = proto_vec_of(a, "vp"),
-	                *dtp = proto_vec_of(a, "dtp");
-	const proto_vec *vs = proto_vec_of(a, "vs"),
-	                *dts = proto_vec_of(a, "dts");
-	const proto_vec *rhob = proto_vec_of(a, "rhob");
-	const proto_vec *drho = proto_vec_of(a, "drho");
-	const proto_vec *cal = proto_vec_of(a, "caliper");
-	const proto_vec *bs = proto_vec_of(a, "bit_size");
-	const proto_vec *gr = proto_vec_of(a, "gr");
-	const proto_vec *vshv = proto_vec_of(a, "vsh");
-	const proto_vec *phi = proto_vec_of(a, "porosity");
-	const proto_vec *depth = proto_vec_of(a, "depth");
-	double ga = proto_num_or(a, "gardner_a", RW_EMP_GARDNER_A);
-	double gb = proto_num_or(a, "gardner_b", RW_EMP_GARDNER_B);
-	double drho_lim = proto_num_or(a, "drho_limit", DRHO_LIMIT_KGM3);
-	double wash_lim = proto_num_or(a, "washout_limit", WASHOUT_LIMIT_M);
-	double gr0 = proto_num_or(a, "gr_clean", NAN);
-	double gr1 = proto_num_or(a, "gr_shale", NAN);
-	int replace_bad = proto_bool_or(a, "rho_replace_bad", 0);
-	double lith[RW_EMP_NLITH], rock_sum;
-	proto_qc_ranges ranges;
-	struct proto_fluid_desc *f_old = NULL, *f_new = NULL;
-	struct proto_mineral_desc *mineral = NULL;
-	const char *from;
-	size_t dn;
-	pt_src pts = {NULL, NULL, NULL, 0, 0, 0, 0};
-	int vsp, rhop, subst, have_vsh, is_arr, need_pt = 0;
-	size_t n = a->n[0];
-	int arr = a->any_array[0];
-	log_out *o;
-	uint32_t *flags;
-
-	if (either(c, "vp", "dtp") || either(c, "vs", "dts") ||
-	    either(c, "vsh", "gr"))
-		return -1;
-	if (!vp->present && !dtp->present)
-		return proto_fail(c, PROTO_INVALID_PARAMS, "dtp",
-		                  "give the compressional log: dtp or vp");
-	if (!vs->present && !dts->present && !proto_item_of(a, "vs_predict"))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "dts",
-		                  "give the shear log (dts or vs), or "
-		                  "vs_predict \"greenberg_castagna\" or "
-		                  "\"mudrock\"");
-	if (!rhob->present && !proto_item_of(a, "rho_predict"))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "rhob",
-		                  "give the density log rhob, or "
-		                  "rho_predict \"gardner\"");
-	if (cal->present != bs->present)
-		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  cal->present ? "bit_size" : "caliper",
-		                  "the washout check needs both caliper and "
-		                  "bit_size");
-	if (gr->present && !(isfinite(gr0) && isfinite(gr1) && gr1 > gr0))
-		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  isfinite(gr0) ? "gr_shale" : "gr_clean",
-		                  "gr needs gr_clean and gr_shale (API units, "
-		                  "gr_shale > gr_clean) for the linear "
-		                  "gamma-ray index");
-	if (!gr->present &&
-	    (proto_item_of(a, "gr_clean") || proto_item_of(a, "gr_shale")))
-		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  proto_item_of(a, "gr_clean") ? "gr_clean"
-		                                               : "gr_shale",
-		                  "used only with gr");
-	vsp = proto_enum_of(c, a, "vs_predict", vs_pred_names, VSP_NONE);
-	rhop = proto_enum_of(c, a, "rho_predict", rho_pred_names, 0);
-	if (vsp < 0 || rhop < 0)
-		return -1;
-	if (replace_bad && rhop == 0)
-		return proto_fail(c, PROTO_INVALID_PARAMS, "rho_replace_bad",
-		                  "replacing doubtful density needs "
-		                  "rho_predict \"gardner\"");
-	if (rhop == 0 &&
-	    (proto_item_of(a, "gardner_a") || proto_item_of(a, "gardner_b")))
-		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  proto_item_of(a, "gardner_a") ? "gardner_a"
-		                                                : "gardner_b",
-		                  "used only with rho_predict \"gardner\"");
-	if (!(ga > 0) || !(gb > 0))
-		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  ga > 0 ? "gardner_b" : "gardner_a",
-		                  "must be > 0");
-	if (!(drho_lim > 0))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "drho_limit",
-		                  "must be > 0");
-	if (!(wash_lim > 0))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "washout_limit",
-		                  "must be > 0");
-	if (proto__lith_parse(c, proto_item_of(a, "lithology"), "lithology",
-	                      lith))
-		return -1;
-	have_vsh = vshv->present || gr->present;
-	rock_sum = lith[RW_EMP_SANDSTONE] + lith[RW_EMP_LIMESTONE] +
-	           lith[RW_EMP_DOLOMITE];
-	if (vsp == VSP_GC && have_vsh && !(rock_sum > 0))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "lithology",
-		                  "with vsh or gr the shale fraction comes "
-		                  "from the log; lithology must name at "
-		                  "least one of sandstone, limestone, "
-		                  "dolomite for the rest");
-	proto_qc_ranges_default(&ranges);
-	if (proto_qc_ranges_parse(c, proto_item_of(a, "qc"), "qc.", &ranges))
-		return -1;
-	if (proto_item_of(a, "fluid_in_place") &&
-	    !(f_old = proto__fluid_desc_parse(
-	          c, proto_item_of(a, "fluid_in_place"), "fluid_in_place.")))
-		return -1;
-	if (proto_item_of(a, "fluid_new") &&
-	    !(f_new = proto__fluid_desc_parse(c, proto_item_of(a, "fluid_new"),
-	                                      "fluid_new.")))
-		return -1;
-	subst = f_new != NULL;
-	if (!f_old != !f_new)
-		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  f_old ? "fluid_new" : "fluid_in_place",
-		                  "fluid substitution needs both "
-		                  "fluid_in_place and fluid_new");
-	if (!subst && (unused(c, "mineral") || unused(c, "porosity")))
-		return -1;
-	if (subst) {
-		if (!phi->present)
-			return proto_fail(c, PROTO_INVALID_PARAMS, "porosity",
-			                  "fluid substitution needs the "
-			                  "porosity log");
-		if (!proto_item_of(a, "mineral"))
-			return proto_fail(c, PROTO_INVALID_PARAMS, "mineral",
-			                  "fluid substitution needs the "
-			                  "mineral: a table name, {k, rho} "
-			                  "or a mix");
-		mineral = proto__mineral_desc_parse(
-		    c, proto_item_of(a, "mineral"), "mineral");
-		if (!mineral)
-			return -1;
-		dn = proto__fluid_desc_len(f_old, &is_arr, &from);
-		if (desc_len_check(c, dn, is_arr, from, n, arr))
-			return -1;
-		dn = proto__fluid_desc_len(f_new, &is_arr, &from);
-		if (desc_len_check(c, dn, is_arr, from, n, arr))
-			return -1;
-		dn = proto__mineral_desc_len(mineral, &is_arr, &from);
-		if (desc_len_check(c, dn, is_arr, from, n, arr))
-			return -1;
-		need_pt = proto__fluid_desc_needs_pt(f_old) ||
-		          proto__fluid_desc_needs_pt(f_new);
-		if (need_pt && pt_check(c, &pts))
-			return -1;
+	(void)ws;
+	if (a->drho.present) {
+		double d = proto_at(&a->drho, i);
+		if (isnan(d))
+			fl |= QC_LOG_MISSING;
+		else if (fabs(d) > a->drho_limit.v[0])
+			fl |= QC_DRHO_HIGH, bad_rho = 1;
 	}
-	if (!need_pt)
-		for (size_t k = 0; k < sizeof pt_names / sizeof pt_names[0];
-		     k++)
-			if (unused(c, pt_names[k]))
-				return -1;
-	if (proto_check_size(c, n, n))
-		return -1;
-	o = proto_alloc(c, n * sizeof *o);
-	flags = proto_alloc(c, n * sizeof *flags);
-	if (!o || !flags)
-		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-		                  "out of memory for %zu samples", n);
-
-	for (size_t i = 0; i < n; i++) {
-		log_out *r = &o[i];
-		uint32_t fl = 0;
-		unsigned why = 0, warn = 0;
-		double v_p = vel(vp, dtp, i), v_s = vel(vs, dts, i);
-		double rho = rhob->present ? proto_at(rhob, i) : NAN;
-		double vsh = NAN;
-		int bad_rho = 0, vsp_block = 0;
-		rw_elastic e;
-
-		for (size_t k = 0; k < sizeof out_cols / sizeof out_cols[0];
-		     k++) {
-			const double nan = NAN;
-			memcpy((unsigned char *)r + out_cols[k].off, &nan,
-			       sizeof nan);
-		}
-		if (drho->present) {
-			double d = proto_at(drho, i);
-			if (isnan(d))
-				fl |= QC_LOG_MISSING;
-			else if (fabs(d) > drho_lim)
-				fl |= QC_DRHO_HIGH, bad_rho = 1;
-		}
-		if (cal->present) {
-			double cl = proto_at(cal, i), b = proto_at(bs, i);
-			if (isnan(cl) || isnan(b))
-				fl |= QC_LOG_MISSING;
-			else if (cl - b > wash_lim)
-				fl |= QC_WASHOUT, bad_rho = 1;
-		}
-		if (vshv->present) {
-			vsh = proto_at(vshv, i);
-			if (isnan(vsh))
-				fl |= QC_LOG_MISSING;
-			else if (vsh < 0 || vsh > 1)
-				fl |= QC_INPUT_INVALID, vsh = NAN;
-		} else if (gr->present) {
-			/* Linear gamma-ray index, clipped to [0, 1] (common
-			 * practice; a normalisation, not a rock relation). */
-			double g = proto_at(gr, i);
-			if (isnan(g))
-				fl |= QC_LOG_MISSING;
-			else
-				vsh = fmin(1, fmax(0, (g - gr0) / (gr1 - gr0)));
-		}
-		r->vsh = vsh;
-		if (isnan(v_p))
+	if (a->bit_size.present) {
+		double b = proto_at(&a->bit_size, i);
+		if (!isnan(b) && (b < BIT_SIZE_MIN_M || b > BIT_SIZE_MAX_M))
+			fl |= QC_BIT_SIZE_RANGE;
+	}
+	if (a->washout) {
+		double cl = proto_at(&a->caliper, i),
+		       b = proto_at(&a->bit_size, i);
+		if (isnan(cl) || isnan(b))
 			fl |= QC_LOG_MISSING;
-		if (isnan(v_s) && (vs->present || dts->present))
+		else if (cl - b > a->washout_limit.v[0])
+			fl |= QC_WASHOUT, bad_rho = 1;
+	}
+	if (a->vsh.present) {
+		vsh = proto_at(&a->vsh, i);
+		if (isnan(vsh))
 			fl |= QC_LOG_MISSING;
-		if (isnan(rho) && rhob->present)
+		else if (vsh < 0 || vsh > 1)
+			fl |= QC_INPUT_INVALID, vsh = NAN;
+	} else if (a->gr.present) {
+		/* Linear gamma-ray index, clipped to [0, 1] (common practice;
+		 * a normalisation, not a rock relation). */
+		double g = proto_at(&a->gr, i);
+		double g0 = proto_at(&a->gr_clean, i);
+		double g1 = proto_at(&a->gr_shale, i);
+		if (isnan(g))
 			fl |= QC_LOG_MISSING;
-		/* A velocity, slowness or density <= 0 has no meaning: the
-		 * sample is impossible and nothing is predicted over it. */
-		if (!isnan(v_p) && !(v_p > 0))
-			fl |= QC_INPUT_INVALID, v_p = NAN, vsp_block = 1;
-		if (!isnan(v_s) && !(v_s > 0))
-			fl |= QC_INPUT_INVALID, v_s = NAN, vsp_block = 1;
-		if (!isnan(rho) && !(rho > 0))
-			fl |= QC_RHO_NONPOSITIVE, rho = NAN, vsp_block = 1;
-		if (vsp_block) {
-			/* no predictions for an impossible sample */
-		} else if (isnan(rho) || (bad_rho && replace_bad)) {
-			if (rhop == 1 && !isnan(v_p)) {
-				if (rw_emp_gardner_density(v_p, ga, gb, &rho,
-				                           &warn) == RW_OK)
-					fl |= QC_RHO_PREDICTED |
-					      proto__emp_qc(warn);
-			}
-		}
-		if (!vsp_block && isnan(v_s) && vsp != VSP_NONE &&
-		    !isnan(v_p)) {
-			int st;
-			warn = 0;
-			if (vsp == VSP_MUDROCK) {
-				st = rw_emp_mudrock_vs(v_p, &v_s, &warn);
-			} else {
-				double fr[RW_EMP_NLITH];
-				memcpy(fr, lith, sizeof fr);
-				if (have_vsh && !isnan(vsh)) {
-					for (int j = 0; j < RW_EMP_SHALE; j++)
-						fr[j] = lith[j] / rock_sum *
-						        (1 - vsh);
-					fr[RW_EMP_SHALE] = vsh;
-				}
-				st = have_vsh && isnan(vsh)
-				         ? RW_EDOM
-				         : rw_emp_gc_vs_mixed(v_p, fr, &v_s,
-				                              &warn);
-			}
-			if (st == RW_OK)
-				fl |= QC_VS_PREDICTED | proto__emp_qc(warn);
-			else
-				v_s = NAN;
-		}
-		r->vp = v_p, r->vs = v_s, r->rho = rho;
-		if (rw_elastic_from_velocities(v_p, v_s, rho, &e, &why) ==
-		    RW_OK) {
-			fl |= proto_qc_plausible(&ranges, &e);
-			r->k = e.k, r->mu = e.mu, r->lambda = e.lambda;
-			r->e = e.e, r->nu = e.nu, r->ai = e.ai, r->si = e.si;
-			r->vpvs = e.vpvs;
+		else
+			vsh = fmin(1, fmax(0, (g - g0) / (g1 - g0)));
+	}
+	r->vsh = vsh;
+	if (isnan(v_p))
+		fl |= QC_LOG_MISSING;
+	if (isnan(v_s) && (a->vs.present || a->dts.present))
+		fl |= QC_LOG_MISSING;
+	if (isnan(rho) && a->rhob.present)
+		fl |= QC_LOG_MISSING;
+	/* A velocity, slowness or density <= 0 has no meaning: the sample is
+	 * impossible and nothing is predicted over it. */
+	if (!isnan(v_p) && !(v_p > 0))
+		fl |= QC_INPUT_INVALID, v_p = NAN, vsp_block = 1;
+	if (!isnan(v_s) && !(v_s > 0))
+		fl |= QC_INPUT_INVALID, v_s = NAN, vsp_block = 1;
+	if (!isnan(rho) && !(rho > 0))
+		fl |= QC_RHO_NONPOSITIVE, rho = NAN, vsp_block = 1;
+	if (!vsp_block && (isnan(rho) || (bad_rho && a->rho_replace_bad)) &&
+	    a->rho_predict == 1 && !isnan(v_p) &&
+	    rw_emp_gardner_density(v_p, proto_at(&a->gardner_a, i),
+	                           proto_at(&a->gardner_b, i), &rho,
+	                           &warn) == RW_OK)
+		fl |= QC_RHO_PREDICTED | proto__emp_qc(warn);
+	if (a->need_pt)
+		pt_at(a, i, &p, &t);
+	if (!vsp_block && isnan(v_s) && a->vs_predict != VSP_NONE &&
+	    !isnan(v_p)) {
+		int st;
+		double fr[RW_EMP_NLITH];
+		warn = 0;
+		if (a->vs_predict == VSP_MUDROCK) {
+			st = rw_emp_mudrock_vs(v_p, &v_s, &warn);
+		} else if (a->have_vsh && isnan(vsh)) {
+			st = RW_EDOM;
 		} else {
-			fl |= proto_qc_impossible(why) | QC_INPUT_INVALID;
-			if (!vsp_block &&
-			    (isnan(v_s) || isnan(v_p) || isnan(rho)))
-				fl |= QC_LOG_MISSING;
-		}
-		if (subst) {
-			rw_rock_subst sb;
-			double p = NAN, t = NAN, ph = proto_at(phi, i);
-			double k_min = NAN, rho_min, kfo, rfo, kfn, rfn;
-			uint32_t q1 = 0, q2 = 0;
-			unsigned gw = 0;
-			int st;
-			if (need_pt)
-				pt_at(&pts, i, &p, &t);
-			proto__fluid_desc_eval(f_old, i, p, t, &kfo, &rfo, &q1);
-			proto__fluid_desc_eval(f_new, i, p, t, &kfn, &rfn, &q2);
-			fl |= q1 | q2;
-			r->k_fl_in_place = kfo, r->rho_fl_in_place = rfo;
-			r->k_fl_new = kfn, r->rho_fl_new = rfn;
-			if (isnan(ph))
-				fl |= QC_LOG_MISSING;
-			st = proto__mineral_desc_eval(mineral, i, &k_min,
-			                              &rho_min);
-			if (st == RW_OK)
-				st = rw_rock_fluid_subst(v_p, v_s, rho, ph,
-				                         k_min, kfo, rfo, kfn,
-				                         rfn, &sb, &gw);
-			if (gw &
-			    (RW_ROCK_WARN_KDRY_NEG | RW_ROCK_WARN_KDRY_GT_KMIN))
-				fl |= QC_GASSMANN_KDRY;
-			if (gw & RW_ROCK_WARN_PHI_LOW)
-				fl |= QC_GASSMANN_PHI_LOW;
-			/* A dry frame softer than nothing or stiffer than its
-			 * mineral means the inputs contradict Gassmann: no
-			 * substituted values (as rock.substitute). */
-			if (st == RW_OK &&
-			    !(gw & (RW_ROCK_WARN_KDRY_NEG |
-			            RW_ROCK_WARN_KDRY_GT_KMIN)) &&
-			    rw_elastic_from_velocities(sb.vp_ms, sb.vs_ms,
-			                               sb.rho_kgm3, &e,
-			                               &why) == RW_OK) {
-				r->vp_sub = sb.vp_ms, r->vs_sub = sb.vs_ms;
-				r->rho_sub = sb.rho_kgm3,
-				r->k_sub = sb.k_sat_pa;
-				r->ai_sub = e.ai, r->si_sub = e.si;
-				r->vpvs_sub = e.vpvs, r->nu_sub = e.nu;
-				if (gw || q1 || q2)
-					fl |= QC_SUBST_CAUTION;
+			lith_at(a, i, vsh, fr);
+			if (a->vs_predict == VSP_GC) {
+				st = rw_emp_gc_vs_mixed(v_p, fr, &v_s, &warn);
 			} else {
-				fl |= QC_SUBST_FAILED;
+				double kfl, rfl, kb, rb, kmin, rmin;
+				uint64_t q1, q2;
+				proto__fluid_kr(&a->fluid_in_place, i, p, t,
+				                &kfl, &rfl, &q1);
+				proto__fluid_kr(&a->brine, i, p, t, &kb, &rb,
+				                &q2);
+				fl |= q1 | q2;
+				st = proto__mineral_eval(&a->mineral, i, &kmin,
+				                         &rmin);
+				if (st == RW_OK)
+					st = rw_emp_gc_vs_insitu(
+					    v_p, rho, proto_at(&a->porosity, i),
+					    kmin, kfl, rfl, kb, rb, fr, &v_s,
+					    NULL, &warn);
 			}
 		}
-		flags[i] = fl;
+		if (st == RW_OK)
+			fl |= QC_VS_PREDICTED | proto__emp_qc(warn);
+		else
+			v_s = NAN;
 	}
-
-	proto_w_obj_begin(c, NULL);
-	proto_w_int(c, "n", (long long)n);
-	if (depth->present) {
-		double *z = proto_alloc_doubles(c, n);
-		if (!z)
-			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-			                  "out of memory for %zu samples", n);
-		for (size_t i = 0; i < n; i++)
-			z[i] = proto_at(depth, i);
-		proto_w_vec(c, "depth", PK_LENGTH, z, n, 1, arr);
+	r->vp = v_p, r->vs = v_s, r->rho = rho;
+	if (rw_elastic_from_velocities(v_p, v_s, rho, &e, &why) == RW_OK) {
+		fl |= proto_qc_plausible(&a->qc, &e);
+		r->k = e.k, r->mu = e.mu, r->lambda = e.lambda;
+		r->e = e.e, r->nu = e.nu, r->ai = e.ai, r->si = e.si;
+		r->vpvs = e.vpvs;
+	} else if (isnan(v_s) || isnan(v_p) || isnan(rho)) {
+		/* a missing curve (not an impossible rock), or a value that
+		 * was impossible and dropped above */
+		fl |= vsp_block ? QC_INPUT_INVALID : QC_LOG_MISSING;
+	} else {
+		fl |= proto_qc_impossible(why);
 	}
-	for (size_t k = 0; k < sizeof out_cols / sizeof out_cols[0]; k++) {
-		if (k == COL_VSH && !have_vsh)
-			continue;
-		if (k >= COL_SUB && !subst)
-			break;
-		proto_w_rows(c, out_cols[k].name, out_cols[k].kind, o,
-		             sizeof *o, out_cols[k].off, n, arr);
+	if (a->subst) {
+		rw_rock_subst sb;
+		double ph = proto_at(&a->porosity, i);
+		double k_min = NAN, rho_min, kfo, rfo, kfn, rfn;
+		uint64_t q1 = 0, q2 = 0;
+		unsigned gw = 0;
+		int st;
+		proto__fluid_kr(&a->fluid_in_place, i, p, t, &kfo, &rfo, &q1);
+		proto__fluid_kr(&a->fluid_new, i, p, t, &kfn, &rfn, &q2);
+		fl |= q1 | q2;
+		r->k_fl_in_place = kfo, r->rho_fl_in_place = rfo;
+		r->k_fl_new = kfn, r->rho_fl_new = rfn;
+		if (isnan(ph))
+			fl |= QC_LOG_MISSING;
+		st = proto__mineral_eval(&a->mineral, i, &k_min, &rho_min);
+		if (st == RW_OK)
+			st = rw_rock_fluid_subst(v_p, v_s, rho, ph, k_min, kfo,
+			                         rfo, kfn, rfn, &sb, &gw);
+		if (gw & (RW_ROCK_WARN_KDRY_NEG | RW_ROCK_WARN_KDRY_GT_KMIN))
+			fl |= QC_GASSMANN_KDRY;
+		if (gw & RW_ROCK_WARN_PHI_LOW)
+			fl |= QC_GASSMANN_PHI_LOW;
+		/* A dry frame softer than nothing or stiffer than its mineral
+		 * means the inputs contradict Gassmann: no substituted values
+		 * (as rock.substitute). */
+		if (st == RW_OK &&
+		    !(gw &
+		      (RW_ROCK_WARN_KDRY_NEG | RW_ROCK_WARN_KDRY_GT_KMIN)) &&
+		    rw_elastic_from_velocities(sb.vp_ms, sb.vs_ms, sb.rho_kgm3,
+		                               &e, &why) == RW_OK) {
+			r->vp_sub = sb.vp_ms, r->vs_sub = sb.vs_ms;
+			r->rho_sub = sb.rho_kgm3, r->k_sub = sb.k_sat_pa;
+			r->ai_sub = e.ai, r->si_sub = e.si;
+			r->vpvs_sub = e.vpvs, r->nu_sub = e.nu;
+			if (gw || q1 || q2)
+				fl |= QC_SUBST_CAUTION;
+		} else {
+			fl |= QC_SUBST_FAILED;
+		}
 	}
-	proto_w_flags(c, "qc", flags, n, arr);
-	if (vsp == VSP_NONE)
-		proto_w_null(c, "vs_predicted_by");
-	else
-		proto_w_str(c, "vs_predicted_by", vs_pred_names[vsp]);
-	if (rhop == 0)
-		proto_w_null(c, "rho_predicted_by");
-	else
-		proto_w_str(c, "rho_predicted_by", rho_pred_names[rhop]);
-	if (subst)
-		proto_w_str(c, "substitution", "gassmann");
-	else
-		proto_w_null(c, "substitution");
-	proto_w_units(c);
-	proto_w_obj_end(c);
+	*qc = fl;
 	return 0;
 }
 
-const proto_method proto_log_methods[] = {
-    {"log.process", process, process_params,
-     "Elastic set and QC flags from well-log samples, with optional "
-     "predicted shear or density and Gassmann-substituted curves."},
-    {NULL, NULL, NULL, NULL},
+static int has_depth(const void *a)
+{
+	return ((const log_args *)a)->depth.present;
+}
+static int has_vsh(const void *a)
+{
+	return ((const log_args *)a)->have_vsh;
+}
+static int has_subst(const void *a)
+{
+	return ((const log_args *)a)->subst;
+}
+
+static void write_vs_by(proto_call *c, const char *key, const void *args)
+{
+	const log_args *a = args;
+	if (a->vs_predict == VSP_NONE)
+		proto_w_null(c, key);
+	else
+		proto_w_str(c, key, vs_pred_names[a->vs_predict]);
+}
+static void write_rho_by(proto_call *c, const char *key, const void *args)
+{
+	const log_args *a = args;
+	if (a->rho_predict == 0)
+		proto_w_null(c, key);
+	else
+		proto_w_str(c, key, rho_pred_names[a->rho_predict]);
+}
+static void write_subst(proto_call *c, const char *key, const void *args)
+{
+	if (((const log_args *)args)->subst)
+		proto_w_str(c, key, "gassmann");
+	else
+		proto_w_null(c, key);
+}
+
+#define O(nm, m, k_, w, text)                                                  \
+	{                                                                      \
+		.name = nm, .type = PO_NUM, .kind = k_,                        \
+		.offset = offsetof(log_row, m), .when = w, .desc = text        \
+	}
+#define NULLSTR "{\"type\": [\"string\", \"null\"]}"
+static const proto_output log_outputs[] = {
+    {.name = "n", .type = PO_COUNT, .dim = D_REQ, .desc = "samples"},
+    {.name = "depth",
+     .type = PO_VEC,
+     .kind = PK_LENGTH,
+     .dim = D_REQ,
+     .offset = offsetof(log_args, depth),
+     .when = has_depth,
+     .desc = "depth (echoed)"},
+    O("vp", vp, PK_VELOCITY, NULL, "P velocity (measured or from dtp)"),
+    O("vs", vs, PK_VELOCITY, NULL, "S velocity (measured or predicted)"),
+    O("rho", rho, PK_DENSITY, NULL, "density (measured or predicted)"),
+    O("k", k, PK_MODULUS, NULL, "bulk modulus"),
+    O("mu", mu, PK_MODULUS, NULL, "shear modulus"),
+    O("lambda", lambda, PK_MODULUS, NULL, "Lame's first parameter"),
+    O("e", e, PK_MODULUS, NULL, "Young's modulus (dynamic)"),
+    O("nu", nu, PK_NONE, NULL, "Poisson's ratio (dynamic)"),
+    O("ai", ai, PK_IMPEDANCE, NULL, "acoustic impedance"),
+    O("si", si, PK_IMPEDANCE, NULL, "shear impedance"),
+    O("vpvs", vpvs, PK_NONE, NULL, "vp/vs"),
+    O("vsh", vsh, PK_NONE, has_vsh, "shale volume fraction"),
+    O("vp_sub", vp_sub, PK_VELOCITY, has_subst, "substituted vp"),
+    O("vs_sub", vs_sub, PK_VELOCITY, has_subst, "substituted vs"),
+    O("rho_sub", rho_sub, PK_DENSITY, has_subst, "substituted density"),
+    O("k_sub", k_sub, PK_MODULUS, has_subst, "substituted bulk modulus"),
+    O("ai_sub", ai_sub, PK_IMPEDANCE, has_subst, "substituted AI"),
+    O("si_sub", si_sub, PK_IMPEDANCE, has_subst, "substituted SI"),
+    O("vpvs_sub", vpvs_sub, PK_NONE, has_subst, "substituted vp/vs"),
+    O("nu_sub", nu_sub, PK_NONE, has_subst, "substituted Poisson's ratio"),
+    O("fluid_in_place_k", k_fl_in_place, PK_MODULUS, has_subst,
+      "bulk modulus of the fluid in place"),
+    O("fluid_in_place_rho", rho_fl_in_place, PK_DENSITY, has_subst,
+      "density of the fluid in place"),
+    O("fluid_new_k", k_fl_new, PK_MODULUS, has_subst,
+      "bulk modulus of the new fluid"),
+    O("fluid_new_rho", rho_fl_new, PK_DENSITY, has_subst,
+      "density of the new fluid"),
+    {.name = "qc",
+     .type = PO_FLAGS,
+     .offset = offsetof(log_row, qc),
+     .desc = "QC flags per sample"},
+    {.name = "vs_predicted_by",
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
+     .write = write_vs_by,
+     .schema = NULLSTR,
+     .desc = "the relation that predicted missing shear, or null"},
+    {.name = "rho_predicted_by",
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
+     .write = write_rho_by,
+     .schema = NULLSTR,
+     .desc = "the relation that predicted missing density, or null"},
+    {.name = "substitution",
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
+     .write = write_subst,
+     .schema = NULLSTR,
+     .desc = "\"gassmann\" when substituted curves are given, or null"},
+    {0},
 };
+#undef O
+
+static const proto_method m_process = {
+    .name = "log.process",
+    .summary = "Elastic set and QC flags from well-log samples, with "
+               "optional predicted shear or density and Gassmann-"
+               "substituted curves.",
+    .description =
+        "One block of samples (arrays, one per curve) or one real-time "
+        "sample (scalars). Slowness or velocity, density, and the QC "
+        "curves (drho, caliper with bit size, gr or vsh); missing shear or "
+        "density may be predicted (flagged predicted); with fluid_in_place "
+        "and fluid_new the Gassmann-substituted curves are added. Screening "
+        "estimates only: never the sole basis for drilling or well-control "
+        "decisions. See logs.md.",
+    .params = &log_decl,
+    .outputs = log_outputs,
+    .kernel = log_kernel,
+    .row_size = sizeof(log_row),
+    .qc_offset = offsetof(log_row, qc),
+    .cost = 3,
+};
+
+const proto_method *const proto_log_methods[] = {&m_process, NULL};

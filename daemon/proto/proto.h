@@ -51,6 +51,9 @@ typedef struct proto_limits {
 	double idle_timeout_s;  /* 0 = off */
 	double stall_timeout_s; /* slow-reader rule window */
 	double drain_timeout_s; /* on SIGTERM: give up after this */
+	size_t max_session_bytes; /* session defaults over all sessions */
+	int threads;              /* worker threads for one large request
+	                             (0 = one per online CPU, 1 = none) */
 } proto_limits;
 
 /* Sets the defaults documented in protocol-docs/limits.md. */
@@ -81,6 +84,10 @@ void proto_ctx_free(proto_ctx *ctx);
 /* The server's counters inside ctx, for the server to update. */
 proto_server_stats *proto_ctx_server_stats(proto_ctx *ctx);
 const proto_limits *proto_ctx_limits(const proto_ctx *ctx);
+
+/* Bytes held by session defaults over all sessions of ctx (they count
+ * against the server's buffer budget too). */
+size_t proto_ctx_session_bytes(const proto_ctx *ctx);
 
 /* A per-connection session (units and other defaults). Returns NULL when
  * out of memory; free with proto_session_free (NULL is a no-op). */

@@ -3,6 +3,17 @@
  * per-sample integer; 0 means clean. */
 #include "proto/internal.h"
 
+int proto_qc_index(uint64_t mask)
+{
+	int i = 0;
+	assert(mask && !(mask & (mask - 1)));
+	while (mask > 1) {
+		mask >>= 1;
+		i++;
+	}
+	return i;
+}
+
 const proto_qc_info proto_qc_legend[] = {
     {QC_INPUT_INVALID, "input_invalid", QC_IMPOSSIBLE,
      "an input of the sample is missing, not finite, or has no meaning "
@@ -32,9 +43,13 @@ const proto_qc_info proto_qc_legend[] = {
      "rho <= 0, vs < 0, 3 vp^2 <= 4 vs^2, or a VTI medium the Thomsen "
      "checks refuse); its reflectivity outputs are null"},
     {QC_REFL_POSTCRITICAL, "postcritical", QC_RANGE,
-     "incidence at or past the P critical angle (and so past any S "
-     "one): the exact coefficients are complex (their _im and _phase "
-     "members), the linearised forms are not valid there and are null"},
+     "incidence at or past the P critical angle of the interface: the "
+     "exact coefficients are complex (their _im and _phase members), the "
+     "linearised forms are not valid there and are null. It says nothing "
+     "of the S critical angle, which may lie above (see postcritical_s)"},
+    {QC_REFL_POSTCRIT_S, "postcritical_s", QC_RANGE,
+     "incidence at or past the S critical angle (vs of the lower medium "
+     "above vp of the upper): converted waves are evanescent there"},
     {QC_REFL_UNDEFINED, "approximation_undefined", QC_RANGE,
      "a requested formula has no value for this sample although the "
      "media are possible (90 deg incidence, gray_lmr with a mean lambda "
@@ -58,6 +73,10 @@ const proto_qc_info proto_qc_legend[] = {
      "caliper exceeds bit size by more than washout_limit (default "
      "1 in = 0.0254 m, common practice): pad and sonic readings are "
      "doubtful"},
+    {QC_BIT_SIZE_RANGE, "bit_size_implausible", QC_INPUT,
+     "bit size outside 3-30 in (76-762 mm, common practice for drilled "
+     "holes): probably given in another unit; the washout check uses it "
+     "as given"},
     {QC_VS_PREDICTED, "vs_predicted", QC_PREDICTED,
      "vs was predicted from vp (vs_predicted_by in the result names the "
      "relation), not measured"},
@@ -87,6 +106,14 @@ const proto_qc_info proto_qc_legend[] = {
      "the oil's GOR exceeds the gas it can dissolve at this pressure "
      "and temperature (Batzle & Wang 1992 eq. 21): free gas would be "
      "present, so a single live-oil phase is not the real state"},
+    {QC_FLUID_GOR_RANGE, "gor_beyond_correlation", QC_IMPOSSIBLE,
+     "the oil's GOR is beyond what the Batzle & Wang 1992 live-oil "
+     "correlation supports (its pseudo-density, eq. 22, falls below the "
+     "limit in fluids.md); the oil's outputs are null"},
+    {QC_SALINITY_LOW, "salinity_suspicious", QC_INPUT,
+     "a brine salinity below 100 ppm given in the default unit (ppm): "
+     "fresh water is possible, but a value meant in g/kg or percent "
+     "would look the same; give units.salinity to say which"},
     {QC_FLUID_BOILING, "water_boiling", QC_IMPLAUSIBLE,
      "pressure below the boiling pressure of pure water at this "
      "temperature (IAPWS-IF97 eq. 30): the brine would be vapour; the "

@@ -11,61 +11,129 @@
 
 #include "proto/desc.h"
 #include "proto/internal.h"
+#include "proto/table.h"
 #include "rockwire/elastic.h"
 #include "rockwire/rock.h"
 #include "rockwire/status.h"
 
-#define NUMS(name, kind, fl)                                                   \
-	{                                                                      \
-		name, PT_NUMS, kind, (fl) | PP_NULLS, 0                        \
-	}
+typedef struct subst_args {
+	proto_hdr hdr;
+	proto_vec vp, vs, rho, k_dry, mu_dry, porosity;
+	proto_mineral mineral;
+	proto_fluid fluid_in_place, fluid_new;
+	proto_vec pressure, temperature;
+	proto_qc_ranges qc;
+	int mode;     /* derived: MODE_LOGS or MODE_FRAME */
+	int needs_pt; /* derived: a fluid is described by phases */
+} subst_args;
 
-static const proto_param substitute_params[] = {
-    NUMS("vp", PK_VELOCITY, 0),
-    NUMS("vs", PK_VELOCITY, 0),
-    NUMS("rho", PK_DENSITY, 0),
-    NUMS("k_dry", PK_MODULUS, 0),
-    NUMS("mu_dry", PK_MODULUS, 0),
-    NUMS("porosity", PK_NONE, PP_REQUIRED),
-    {"mineral", PT_ANY, PK_NONE, PP_REQUIRED, 0},
-    {"fluid_in_place", PT_OBJ, PK_NONE, 0, 0},
-    {"fluid_new", PT_OBJ, PK_NONE, PP_REQUIRED, 0},
-    NUMS("pressure", PK_PRESSURE, 0),
-    NUMS("temperature", PK_TEMPERATURE, 0),
-    {"qc", PT_OBJ, PK_NONE, 0, 0},
-    {NULL, PT_ANY, PK_NONE, 0, 0},
-};
+enum { MODE_LOGS = 0, MODE_FRAME = 1 };
+static const char *const mode_names[] = {"logs", "frame", NULL};
 
 /* Per-sample result. */
-typedef struct subst_sample {
+typedef struct subst_row {
 	rw_rock_subst r;
 	double k_fl, rho_fl, k_new, rho_new, k_min, rho_min;
 	double pct[5]; /* vp, vs, rho, ai, vpvs */
-} subst_sample;
+	uint64_t qc;
+} subst_row;
 
-/* Broadcast length of the request across its parts. */
-typedef struct dim {
-	size_t n;
-	int arr;
-	char from[160];
-} dim;
-
-static int dim_join(proto_call *c, dim *d, size_t n, int arr, const char *path)
-{
-	if (!arr)
-		return 0;
-	if (d->arr && n != d->n)
-		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-		                  "array length %zu does not match length %zu "
-		                  "of '%s'",
-		                  n, d->n, d->from);
-	if (!d->arr) {
-		d->arr = 1;
-		d->n = n;
-		snprintf(d->from, sizeof d->from, "%s", path);
+#define NUMS(m, k_, fl, text)                                                  \
+	{                                                                      \
+		PROTO_NUMS(subst_args, m, k_, (fl) | PF_NULLS, text)           \
 	}
+static const proto_field subst_fields[] = {
+    NUMS(vp, PK_VELOCITY, 0, "measured P velocity (logs mode)"),
+    NUMS(vs, PK_VELOCITY, 0, "measured S velocity (logs mode)"),
+    NUMS(rho, PK_DENSITY, 0, "measured bulk density (logs mode)"),
+    NUMS(k_dry, PK_MODULUS, 0, "dry-frame bulk modulus (frame mode)"),
+    NUMS(mu_dry, PK_MODULUS, 0, "dry-frame shear modulus (frame mode)"),
+    NUMS(porosity, PK_NONE, PF_REQ | PF_FRACTION,
+         "porosity (fraction); Gassmann needs 0 < porosity < 1"),
+    {PROTO_FIELD(subst_args, mineral, PT_OBJ, PF_REQ, "the mineral"),
+     .sub = &proto_mineral_decl},
+    {PROTO_FIELD(subst_args, fluid_in_place, PT_OBJ, 0,
+                 "logs mode: the fluid in place"),
+     .sub = &proto_fluid_decl},
+    {PROTO_FIELD(subst_args, fluid_new, PT_OBJ, PF_REQ,
+                 "the new fluid (frame mode: the saturating fluid)"),
+     .sub = &proto_fluid_decl},
+    NUMS(pressure, PK_PRESSURE, 0,
+         "pore pressure: required when a fluid is described by phases"),
+    NUMS(temperature, PK_TEMPERATURE, 0,
+         "temperature: required when a fluid is described by phases"),
+    {PROTO_FIELD(subst_args, qc, PT_OBJ, 0,
+                 "plausibility ranges for the substituted rock"),
+     .sub = &proto_qc_ranges_decl},
+    {0},
+};
+#undef NUMS
+
+static const char *const logs3[] = {"vp", "vs", "rho", NULL};
+static const char *const frame2[] = {"k_dry", "mu_dry", NULL};
+static const char *const either_mode[] = {"vp", "k_dry", NULL};
+static const char *const fip[] = {"fluid_in_place", NULL};
+static const proto_rule subst_rules[] = {
+    {PR_FORBIDS, "vp", 0, frame2,
+     "give vp, vs and rho (a measured rock) or k_dry and mu_dry (a dry "
+     "frame), not both"},
+    {PR_FORBIDS, "vs", 0, frame2,
+     "give vp, vs and rho (a measured rock) or k_dry and mu_dry (a dry "
+     "frame), not both"},
+    {PR_FORBIDS, "rho", 0, frame2,
+     "give vp, vs and rho (a measured rock) or k_dry and mu_dry (a dry "
+     "frame), not both"},
+    {PR_AT_LEAST, NULL, 1, either_mode,
+     "required: give vp, vs and rho (a measured rock) or k_dry and mu_dry "
+     "(a dry frame)"},
+    {PR_ALL_OR_NONE, NULL, 0, logs3,
+     "required: a measured rock needs vp, vs and rho"},
+    {PR_ALL_OR_NONE, NULL, 0, frame2,
+     "required: a dry frame needs k_dry and mu_dry"},
+    {PR_REQUIRES, "vp", 0, fip,
+     "required: the fluid in place when vp, vs and rho were measured"},
+    {PR_FORBIDS, "k_dry", 0, fip,
+     "a dry frame holds no fluid: give the saturating fluid as fluid_new"},
+    {PR_END},
+};
+
+static int subst_check(proto_call *c, void *dst)
+{
+	subst_args *a = dst;
+
+	a->mode = a->vp.present ? MODE_LOGS : MODE_FRAME;
+	if (a->mode == MODE_FRAME && !proto__mineral_has_rho(&a->mineral))
+		return proto_fail(c, PROTO_INVALID_PARAMS, "mineral.rho",
+		                  "required for a dry frame: the rock density "
+		                  "is (1 - phi) rho_min + phi rho_fluid");
+	a->needs_pt = !a->fluid_new.explicit_kr ||
+	              (a->mode == MODE_LOGS && !a->fluid_in_place.explicit_kr);
+	for (int q = 0; q < 2; q++) {
+		const char *name = q ? "temperature" : "pressure";
+		const proto_vec *v = q ? &a->temperature : &a->pressure;
+		if (a->needs_pt && !v->present)
+			return proto_fail(c, PROTO_INVALID_PARAMS, name,
+			                  "required: a fluid is described by "
+			                  "phases, whose properties (Batzle & "
+			                  "Wang 1992) depend on pore pressure "
+			                  "and temperature");
+		if (!a->needs_pt && v->present && !v->inherited)
+			return proto_fail(c, PROTO_INVALID_PARAMS, name,
+			                  "not used: every fluid is given as "
+			                  "explicit k and rho");
+	}
+	if (!a->qc.hdr.present)
+		proto_qc_ranges_default(&a->qc);
 	return 0;
 }
+
+static const proto_decl subst_decl = {
+    .name = "",
+    .fields = subst_fields,
+    .rules = subst_rules,
+    .size = sizeof(subst_args),
+    .check = subst_check,
+};
 
 static void subst_nan(rw_rock_subst *r, int keep_kdry)
 {
@@ -77,9 +145,9 @@ static void subst_nan(rw_rock_subst *r, int keep_kdry)
 }
 
 /* QC bits of the Gassmann warnings; *impossible set when the frame is. */
-static uint32_t warn_qc(unsigned w, int *impossible)
+static uint64_t warn_qc(unsigned w, int *impossible)
 {
-	uint32_t f = 0;
+	uint64_t f = 0;
 	if (w & RW_ROCK_WARN_PHI_LOW)
 		f |= QC_GASSMANN_PHI_LOW;
 	if (w & (RW_ROCK_WARN_KDRY_NEG | RW_ROCK_WARN_KDRY_GT_KMIN)) {
@@ -95,12 +163,12 @@ static double pct(double new_v, double old_v)
 }
 
 /* One sample from logs: vp, vs, rho measured with the fluid in place. */
-static uint32_t from_logs(double vp, double vs, double rho, double phi,
-                          subst_sample *s)
+static uint64_t from_logs(double vp, double vs, double rho, double phi,
+                          subst_row *s)
 {
 	unsigned w = 0;
 	int st, bad = 0;
-	uint32_t f;
+	uint64_t f;
 
 	st = rw_rock_fluid_subst(vp, vs, rho, phi, s->k_min, s->k_fl, s->rho_fl,
 	                         s->k_new, s->rho_new, &s->r, &w);
@@ -141,12 +209,12 @@ static uint32_t from_logs(double vp, double vs, double rho, double phi,
 }
 
 /* One sample from a dry frame. */
-static uint32_t from_frame(double k_dry, double mu_dry, double phi,
-                           subst_sample *s)
+static uint64_t from_frame(double k_dry, double mu_dry, double phi,
+                           subst_row *s)
 {
 	unsigned w = 0;
 	int st, bad = 0;
-	uint32_t f;
+	uint64_t f;
 
 	if (k_dry < 0.0) {
 		subst_nan(&s->r, 0);
@@ -171,226 +239,163 @@ static uint32_t from_frame(double k_dry, double mu_dry, double phi,
 	return f;
 }
 
-/* Fails unless exactly the members of one mode are given. */
-static int check_mode(proto_call *c, const proto_args *a, int *logs)
+static int subst_kernel(const void *args, size_t i, void *row, uint64_t *qc,
+                        void *ws)
 {
-	static const char *const lm[] = {"vp", "vs", "rho"};
-	static const char *const fm[] = {"k_dry", "mu_dry"};
-	int nl = 0, nf = 0;
+	const subst_args *a = args;
+	subst_row *x = row;
+	double pi = a->needs_pt ? proto_at(&a->pressure, i) : NAN;
+	double ti = a->needs_pt ? proto_at(&a->temperature, i) : NAN;
+	double f = proto_at(&a->porosity, i);
+	int logs = a->mode == MODE_LOGS;
+	uint64_t q1 = 0, q2 = 0;
+	rw_elastic e;
 
-	for (int i = 0; i < 3; i++)
-		nl += proto_vec_of(a, lm[i])->present;
-	for (int i = 0; i < 2; i++)
-		nf += proto_vec_of(a, fm[i])->present;
-	if (nl && nf)
-		return proto_fail(c, PROTO_INVALID_PARAMS,
-		                  proto_vec_of(a, "k_dry")->present ? "k_dry"
-		                                                    : "mu_dry",
-		                  "give vp, vs and rho (a measured rock) or "
-		                  "k_dry and mu_dry (a dry frame), not both");
-	if (!nl && !nf)
-		return proto_fail(c, PROTO_INVALID_PARAMS, "vp",
-		                  "required: give vp, vs and rho (a measured "
-		                  "rock) or k_dry and mu_dry (a dry frame)");
-	*logs = nl > 0;
-	for (int i = 0; nl && i < 3; i++)
-		if (!proto_vec_of(a, lm[i])->present)
-			return proto_fail(c, PROTO_INVALID_PARAMS, lm[i],
-			                  "required with %s: a measured rock "
-			                  "needs vp, vs and rho",
-			                  nl == 1 ? "the other log"
-			                          : "the "
-			                            "others");
-	for (int i = 0; nf && i < 2; i++)
-		if (!proto_vec_of(a, fm[i])->present)
-			return proto_fail(c, PROTO_INVALID_PARAMS, fm[i],
-			                  "required: a dry frame needs k_dry "
-			                  "and mu_dry");
-	if (*logs && !proto_item_of(a, "fluid_in_place"))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "fluid_in_place",
-		                  "required: the fluid in place when vp, vs "
-		                  "and rho were measured");
-	if (!*logs && proto_item_of(a, "fluid_in_place"))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "fluid_in_place",
-		                  "a dry frame holds no fluid: give the "
-		                  "saturating fluid as fluid_new");
+	(void)ws;
+	x->r.vp_ms = x->r.vs_ms = x->r.rho_kgm3 = NAN;
+	x->r.k_sat_pa = x->r.mu_pa = x->r.k_dry_pa = NAN;
+	if (logs)
+		proto__fluid_kr(&a->fluid_in_place, i, pi, ti, &x->k_fl,
+		                &x->rho_fl, &q1);
+	proto__fluid_kr(&a->fluid_new, i, pi, ti, &x->k_new, &x->rho_new, &q2);
+	*qc = q1 | q2;
+	if (proto__mineral_eval(&a->mineral, i, &x->k_min, &x->rho_min) !=
+	    RW_OK)
+		*qc |= QC_INPUT_INVALID;
+	if (isnan(f) ||
+	    (logs ? isnan(proto_at(&a->vp, i)) || isnan(proto_at(&a->vs, i)) ||
+	                isnan(proto_at(&a->rho, i))
+	          : isnan(proto_at(&a->k_dry, i)) ||
+	                isnan(proto_at(&a->mu_dry, i)))) {
+		*qc |= QC_LOG_MISSING;
+		return 0;
+	}
+	if (!(f > 0.0 && f < 1.0) || (logs && !isfinite(x->k_fl)) ||
+	    !isfinite(x->k_new) || !isfinite(x->k_min)) {
+		/* porosity of 0 or 1, or a fluid that could not be computed
+		 * (its flags say why) */
+		if (!(f > 0.0 && f < 1.0))
+			*qc |= QC_INPUT_INVALID;
+		return 0;
+	}
+	if (logs)
+		*qc |= from_logs(proto_at(&a->vp, i), proto_at(&a->vs, i),
+		                 proto_at(&a->rho, i), f, x);
+	else
+		*qc |= from_frame(proto_at(&a->k_dry, i),
+		                  proto_at(&a->mu_dry, i), f, x);
+	/* The substituted rock gets the same plausibility checks as any
+	 * elastic sample (elastic.convert's ranges, `qc`). */
+	if (isfinite(x->r.vp_ms) &&
+	    rw_elastic_from_velocities(x->r.vp_ms, x->r.vs_ms, x->r.rho_kgm3,
+	                               &e, NULL) == RW_OK)
+		*qc |= proto_qc_plausible(&a->qc, &e);
 	return 0;
 }
 
-static int substitute(proto_call *c)
+static int is_logs(const void *a)
 {
-	static const char *const ph[3] = {"brine", "gas", "oil"};
-	static const char *const satkeys[3] = {
-	    "fluid_new_sat_brine", "fluid_new_sat_gas", "fluid_new_sat_oil"};
-	static const char *const pctkeys[5] = {"dvp_pct", "dvs_pct", "drho_pct",
-	                                       "dai_pct", "dvpvs_pct"};
-	const proto_args *a = &c->args;
-	struct proto_fluid_desc *fo = NULL, *fn;
-	struct proto_mineral_desc *md;
-	const proto_vec *vp = proto_vec_of(a, "vp");
-	const proto_vec *vs = proto_vec_of(a, "vs");
-	const proto_vec *rho = proto_vec_of(a, "rho");
-	const proto_vec *kd = proto_vec_of(a, "k_dry");
-	const proto_vec *mud = proto_vec_of(a, "mu_dry");
-	const proto_vec *phi = proto_vec_of(a, "porosity");
-	const proto_vec *p = proto_vec_of(a, "pressure");
-	const proto_vec *t = proto_vec_of(a, "temperature");
-	size_t n, ln;
-	subst_sample *s;
-	uint32_t *qc;
-	proto_qc_ranges ranges;
-	const char *from;
-	int logs = 0, arr, needs_pt;
-	dim d = {1, 0, ""};
-
-	if (check_mode(c, a, &logs))
-		return -1;
-	md = proto__mineral_desc_parse(c, proto_item_of(a, "mineral"),
-	                               "mineral");
-	if (!md)
-		return -1;
-	if (!logs && !proto__mineral_desc_has_rho(md))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "mineral.rho",
-		                  "required for a dry frame: the rock density "
-		                  "is (1 - phi) rho_min + phi rho_fluid");
-	if (logs) {
-		fo = proto__fluid_desc_parse(
-		    c, proto_item_of(a, "fluid_in_place"), "fluid_in_place.");
-		if (!fo)
-			return -1;
-	}
-	fn = proto__fluid_desc_parse(c, proto_item_of(a, "fluid_new"),
-	                             "fluid_new.");
-	if (!fn)
-		return -1;
-	needs_pt = proto__fluid_desc_needs_pt(fn) ||
-	           (fo && proto__fluid_desc_needs_pt(fo));
-	for (int q = 0; q < 2; q++) {
-		const char *name = q ? "temperature" : "pressure";
-		int given = proto_vec_of(a, name)->present;
-		if (needs_pt && !given)
-			return proto_fail(c, PROTO_INVALID_PARAMS, name,
-			                  "required: a fluid is described by "
-			                  "phases, whose properties (Batzle & "
-			                  "Wang 1992) depend on pore pressure "
-			                  "and temperature");
-		if (!needs_pt && given)
-			return proto_fail(c, PROTO_INVALID_PARAMS, name,
-			                  "not used: every fluid is given as "
-			                  "explicit k and rho");
-	}
-	/* One sample dimension across params, fluids and the mineral. */
-	for (size_t i = 0; i < a->count; i++)
-		if (dim_join(c, &d, a->vec[i].n, a->vec[i].is_array,
-		             a->spec[i].name))
-			return -1;
-	ln = proto__mineral_desc_len(md, &arr, &from);
-	if (dim_join(c, &d, ln, arr, from))
-		return -1;
-	if (fo) {
-		ln = proto__fluid_desc_len(fo, &arr, &from);
-		if (dim_join(c, &d, ln, arr, from))
-			return -1;
-	}
-	ln = proto__fluid_desc_len(fn, &arr, &from);
-	if (dim_join(c, &d, ln, arr, from))
-		return -1;
-	n = d.n;
-	arr = d.arr;
-	if (proto_check_size(c, n, n))
-		return -1;
-	s = proto_alloc(c, n * sizeof *s);
-	qc = proto_alloc(c, n * sizeof *qc);
-	if (!s || !qc)
-		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-		                  "out of memory for %zu samples", n);
-	proto_qc_ranges_default(&ranges);
-	if (proto_qc_ranges_parse(c, proto_item_of(a, "qc"), "qc.", &ranges))
-		return -1;
-	for (size_t i = 0; i < n; i++) {
-		double pi = needs_pt ? proto_at(p, i) : NAN;
-		double ti = needs_pt ? proto_at(t, i) : NAN;
-		double f = proto_at(phi, i);
-		uint32_t q1 = 0, q2 = 0;
-		subst_sample *x = &s[i];
-
-		for (size_t k = 0; k < 5; k++)
-			x->pct[k] = NAN;
-		x->k_fl = x->rho_fl = NAN;
-		if (fo)
-			proto__fluid_desc_eval(fo, i, pi, ti, &x->k_fl,
-			                       &x->rho_fl, &q1);
-		proto__fluid_desc_eval(fn, i, pi, ti, &x->k_new, &x->rho_new,
-		                       &q2);
-		qc[i] = q1 | q2;
-		if (proto__mineral_desc_eval(md, i, &x->k_min, &x->rho_min) !=
-		    RW_OK)
-			qc[i] |= QC_INPUT_INVALID;
-		if (!(f > 0.0 && f < 1.0) || (fo && !isfinite(x->k_fl)) ||
-		    !isfinite(x->k_new) || !isfinite(x->k_min)) {
-			/* porosity outside (0, 1) or null, or a fluid that
-			 * could not be computed (its flags say why). */
-			if (!(f > 0.0 && f < 1.0))
-				qc[i] |= QC_INPUT_INVALID;
-			x->r.k_dry_pa = NAN;
-			subst_nan(&x->r, 0);
-			continue;
-		}
-		if (logs)
-			qc[i] |= from_logs(proto_at(vp, i), proto_at(vs, i),
-			                   proto_at(rho, i), f, x);
-		else
-			qc[i] |=
-			    from_frame(proto_at(kd, i), proto_at(mud, i), f, x);
-		/* The substituted rock gets the same plausibility checks as
-		 * any elastic sample (elastic.convert's ranges, `qc`). */
-		rw_elastic e;
-		if (isfinite(x->r.vp_ms) &&
-		    rw_elastic_from_velocities(x->r.vp_ms, x->r.vs_ms,
-		                               x->r.rho_kgm3, &e,
-		                               NULL) == RW_OK)
-			qc[i] |= proto_qc_plausible(&ranges, &e);
-	}
-	proto_w_obj_begin(c, NULL);
-	proto_w_int(c, "n", (long long)n);
-	proto_w_str(c, "mode", logs ? "logs" : "frame");
-#define W(key, kind, member)                                                   \
-	PROTO_W_MEMBER(c, key, kind, s, subst_sample, member, n, arr)
-	W("vp", PK_VELOCITY, r.vp_ms);
-	W("vs", PK_VELOCITY, r.vs_ms);
-	W("rho", PK_DENSITY, r.rho_kgm3);
-	W("k_sat", PK_MODULUS, r.k_sat_pa);
-	W("mu", PK_MODULUS, r.mu_pa);
-	W("k_dry", PK_MODULUS, r.k_dry_pa);
-	if (logs) {
-		W("fluid_in_place_k", PK_MODULUS, k_fl);
-		W("fluid_in_place_rho", PK_DENSITY, rho_fl);
-	}
-	W("fluid_new_k", PK_MODULUS, k_new);
-	W("fluid_new_rho", PK_DENSITY, rho_new);
-	W("mineral_k", PK_MODULUS, k_min);
-	W("mineral_rho", PK_DENSITY, rho_min);
-#undef W
-	for (int k = 0; k < 3; k++) {
-		size_t sn;
-		int sa;
-		const double *sv = proto__fluid_desc_sat(fn, ph[k], &sn, &sa);
-		if (sv)
-			proto_w_vec(c, satkeys[k], PK_NONE, sv, n,
-			            sn == 1 ? 0 : 1, arr);
-	}
-	for (int k = 0; logs && k < 5; k++)
-		proto_w_rows(c, pctkeys[k], PK_NONE, s, sizeof *s,
-		             offsetof(subst_sample, pct) + k * sizeof s->pct[0],
-		             n, arr);
-	proto_w_flags(c, "qc", qc, n, arr);
-	proto_w_units(c);
-	proto_w_obj_end(c);
-	return 0;
+	return ((const subst_args *)a)->mode == MODE_LOGS;
+}
+static int new_brine(const void *a)
+{
+	const proto_fluid *f = &((const subst_args *)a)->fluid_new;
+	return !f->explicit_kr && f->has[PROTO_BRINE];
+}
+static int new_gas(const void *a)
+{
+	const proto_fluid *f = &((const subst_args *)a)->fluid_new;
+	return !f->explicit_kr && f->has[PROTO_GAS];
+}
+static int new_oil(const void *a)
+{
+	const proto_fluid *f = &((const subst_args *)a)->fluid_new;
+	return !f->explicit_kr && f->has[PROTO_OIL];
 }
 
-const proto_method proto_rock_methods[] = {
-    {"rock.substitute", substitute, substitute_params,
-     "Gassmann 1951 fluid substitution from logs or a dry frame."},
-    {NULL, NULL, NULL, NULL},
+#define O(nm, m, k_, w, text)                                                  \
+	{                                                                      \
+		.name = nm, .type = PO_NUM, .kind = k_,                        \
+		.offset = offsetof(subst_row, m), .when = w, .desc = text      \
+	}
+#define PCT(nm, k, text)                                                       \
+	{                                                                      \
+		.name = nm, .type = PO_NUM,                                    \
+		.offset = offsetof(subst_row, pct) + (k) * sizeof(double),     \
+		.when = is_logs, .desc = text                                  \
+	}
+static const proto_output subst_outputs[] = {
+    {.name = "n", .type = PO_COUNT, .dim = D_REQ, .desc = "samples"},
+    {.name = "mode",
+     .type = PO_ENUM,
+     .dim = D_REQ,
+     .offset = offsetof(subst_args, mode),
+     .choices = mode_names,
+     .desc = "logs (a measured rock) or frame (a dry frame)"},
+    O("vp", r.vp_ms, PK_VELOCITY, NULL, "substituted P velocity"),
+    O("vs", r.vs_ms, PK_VELOCITY, NULL, "substituted S velocity"),
+    O("rho", r.rho_kgm3, PK_DENSITY, NULL, "substituted density"),
+    O("k_sat", r.k_sat_pa, PK_MODULUS, NULL,
+      "saturated bulk modulus (Gassmann)"),
+    O("mu", r.mu_pa, PK_MODULUS, NULL, "shear modulus (unchanged)"),
+    O("k_dry", r.k_dry_pa, PK_MODULUS, NULL, "dry-frame bulk modulus"),
+    O("fluid_in_place_k", k_fl, PK_MODULUS, is_logs,
+      "bulk modulus of the fluid in place"),
+    O("fluid_in_place_rho", rho_fl, PK_DENSITY, is_logs,
+      "density of the fluid in place"),
+    O("fluid_new_k", k_new, PK_MODULUS, NULL, "bulk modulus of the new fluid"),
+    O("fluid_new_rho", rho_new, PK_DENSITY, NULL, "density of the new fluid"),
+    O("mineral_k", k_min, PK_MODULUS, NULL, "mineral bulk modulus"),
+    O("mineral_rho", rho_min, PK_DENSITY, NULL, "mineral density"),
+    {.name = "fluid_new_sat_brine",
+     .type = PO_VEC,
+     .dim = D_REQ,
+     .offset = offsetof(subst_args, fluid_new.sat[PROTO_BRINE]),
+     .when = new_brine,
+     .desc = "brine saturation of the new fluid"},
+    {.name = "fluid_new_sat_gas",
+     .type = PO_VEC,
+     .dim = D_REQ,
+     .offset = offsetof(subst_args, fluid_new.sat[PROTO_GAS]),
+     .when = new_gas,
+     .desc = "gas saturation of the new fluid"},
+    {.name = "fluid_new_sat_oil",
+     .type = PO_VEC,
+     .dim = D_REQ,
+     .offset = offsetof(subst_args, fluid_new.sat[PROTO_OIL]),
+     .when = new_oil,
+     .desc = "oil saturation of the new fluid"},
+    PCT("dvp_pct", 0, "change of vp, percent"),
+    PCT("dvs_pct", 1, "change of vs, percent"),
+    PCT("drho_pct", 2, "change of density, percent"),
+    PCT("dai_pct", 3, "change of acoustic impedance, percent"),
+    PCT("dvpvs_pct", 4, "change of vp/vs, percent"),
+    {.name = "qc",
+     .type = PO_FLAGS,
+     .offset = offsetof(subst_row, qc),
+     .desc = "QC flags"},
+    {0},
 };
+#undef O
+#undef PCT
+
+static const proto_method m_substitute = {
+    .name = "rock.substitute",
+    .summary = "Gassmann 1951 fluid substitution from logs or a dry frame.",
+    .description =
+        "logs mode: vp, vs, rho measured with fluid_in_place, porosity, "
+        "mineral and fluid_new; mu = rho vs^2 stays, K_dry from the "
+        "measured K and the old fluid, K_sat from K_dry and the new fluid. "
+        "frame mode: k_dry, mu_dry, porosity, mineral (with rho) and "
+        "fluid_new. Every array (logs, porosity, fluid and mineral "
+        "members) shares one sample dimension, so a fluid_new.saturation "
+        "array is a saturation sweep. See fluids.md.",
+    .params = &subst_decl,
+    .outputs = subst_outputs,
+    .kernel = subst_kernel,
+    .row_size = sizeof(subst_row),
+    .qc_offset = offsetof(subst_row, qc),
+    .cost = 4,
+};
+
+const proto_method *const proto_rock_methods[] = {&m_substitute, NULL};

@@ -3,40 +3,134 @@
  * al. 1974 density (and its inverse), the Castagna et al. 1985 mudrock
  * line, Greenberg & Castagna 1992 shear velocity by lithology, the Han et
  * al. 1986 sandstone fits, the Wyllie et al. 1956 time average and the
- * Raymer, Hunt & Gardner 1980 transform. Also the lithology parser shared
- * with log.process. */
+ * Raymer, Hunt & Gardner 1980 transform. Also the lithology description
+ * shared with log.process (proto_lith_decl). */
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
 
+#include "proto/desc.h"
 #include "proto/internal.h"
-#include "proto/lith.h"
+#include "proto/table.h"
 #include "rockwire/empirical.h"
 
-#define Q(name, kind)                                                          \
-	{                                                                      \
-		name, PT_NUMS, kind, PP_NULLS, 0                               \
-	}
+/* ---- lithology ---------------------------------------------------------- */
 
-static const proto_param emp_params[] = {
-    {"relation", PT_STR, PK_NONE, PP_REQUIRED, 0},
-    Q("vp", PK_VELOCITY),
-    Q("vs", PK_VELOCITY),
-    Q("rho", PK_DENSITY),
-    Q("dtp", PK_SLOWNESS),
-    Q("porosity", PK_NONE),
-    Q("clay", PK_NONE),
-    Q("v_matrix", PK_VELOCITY),
-    Q("v_fluid", PK_VELOCITY),
-    {"gardner_a", PT_NUM, PK_NONE, 0, 0},
-    {"gardner_b", PT_NUM, PK_NONE, 0, 0},
-    {"lithology", PT_ANY, PK_NONE, 0, 0},
-    {"effective_pressure", PT_NUM, PK_PRESSURE, 0, 0},
-    {NULL, PT_ANY, PK_NONE, 0, 0},
+static const char *const lith_names[RW_EMP_NLITH + 1] = {
+    [RW_EMP_SANDSTONE] = "sandstone",
+    [RW_EMP_LIMESTONE] = "limestone",
+    [RW_EMP_DOLOMITE] = "dolomite",
+    [RW_EMP_SHALE] = "shale",
+    [RW_EMP_NLITH] = NULL,
 };
 
-/* The relations, their inputs (space-separated, in the order the handler
- * reads them) and their outputs. */
+#define L(id, nm)                                                              \
+	{                                                                      \
+		.name = nm, .type = PT_NUMS, .flags = PF_FRACTION,             \
+		.offset =                                                      \
+		    offsetof(proto_lith, frac) + (id) * sizeof(proto_vec),     \
+		.desc = "volume fraction of " nm                               \
+	}
+static const proto_field lith_fields[] = {
+    L(RW_EMP_SANDSTONE, "sandstone"),
+    L(RW_EMP_LIMESTONE, "limestone"),
+    L(RW_EMP_DOLOMITE, "dolomite"),
+    L(RW_EMP_SHALE, "shale"),
+    {0},
+};
+#undef L
+
+static int lith_from_string(proto_call *c, const char *s, const char *path,
+                            void *dst)
+{
+	static const double one = 1.0;
+	proto_lith *l = dst;
+	const char *near;
+
+	for (int i = 0; i < RW_EMP_NLITH; i++)
+		if (strcmp(s, lith_names[i]) == 0) {
+			l->frac[i].v = &one;
+			l->frac[i].n = 1;
+			l->frac[i].present = 1;
+			return 0;
+		}
+	near = proto__suggest(s, lith_names, RW_EMP_NLITH);
+	return proto_fail(c, PROTO_INVALID_PARAMS, path,
+	                  "unknown lithology '%s'%s%s%s; accepted: sandstone, "
+	                  "limestone, dolomite, shale, or an object of their "
+	                  "volume fractions",
+	                  s, near ? "; did you mean '" : "", near ? near : "",
+	                  near ? "'?" : "");
+}
+
+static int lith_check(proto_call *c, void *dst)
+{
+	proto_lith *l = dst;
+	size_t n = 1;
+	int any = 0;
+
+	for (int k = 0; k < RW_EMP_NLITH; k++) {
+		any |= l->frac[k].present;
+		if (l->frac[k].n > n)
+			n = l->frac[k].n;
+	}
+	if (!any) {
+		char *p = proto_strdup(c, l->hdr.path);
+		size_t len = p ? strlen(p) : 0;
+		if (len && p[len - 1] == '.')
+			p[len - 1] = '\0';
+		return proto_fail(c, PROTO_INVALID_PARAMS, p ? p : "lithology",
+		                  "must be a lithology name or a non-empty "
+		                  "object of volume fractions, e.g. "
+		                  "{\"sandstone\": 0.7, \"shale\": 0.3}");
+	}
+	for (size_t i = 0; i < n; i++) {
+		double sum = 0;
+		for (int k = 0; k < RW_EMP_NLITH; k++)
+			if (l->frac[k].present)
+				sum += proto_at(&l->frac[k], i);
+		if (fabs(sum - 1) > 1e-6) {
+			char *p = proto_strdup(c, l->hdr.path);
+			size_t len = p ? strlen(p) : 0;
+			if (len && p[len - 1] == '.')
+				p[len - 1] = '\0';
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, p ? p : "lithology",
+			    "fractions sum to %.9g at sample %zu, "
+			    "not 1 (tolerance 1e-6)",
+			    sum, i);
+		}
+	}
+	return 0;
+}
+
+const proto_decl proto_lith_decl = {
+    .name = "lithology",
+    .fields = lith_fields,
+    .size = sizeof(proto_lith),
+    .from_string = lith_from_string,
+    .string_desc = "sandstone, limestone, dolomite or shale",
+    .check = lith_check,
+    .desc = "Greenberg & Castagna 1992 lithology: a name, or an object of "
+            "volume fractions of sandstone, limestone, dolomite and shale "
+            "summing to 1 (default sandstone)",
+};
+
+void proto__lith_fractions(const proto_lith *l, double frac[RW_EMP_NLITH])
+{
+	(void)l;
+	for (int k = 0; k < RW_EMP_NLITH; k++)
+		frac[k] = 0;
+	frac[RW_EMP_SANDSTONE] = 1; /* nothing given: pure sandstone */
+}
+
+uint64_t proto__emp_qc(unsigned warn)
+{
+	return warn ? QC_EMP_RANGE : 0;
+}
+
+/* ---- rock.empirical ----------------------------------------------------- */
+
 enum {
 	R_GARDNER,
 	R_GARDNER_INV,
@@ -63,300 +157,334 @@ static const char *const rel_names[] = {"gardner",
                                         "raymer_porosity",
                                         NULL};
 
-/* Inputs each relation takes; "vp|dtp" means one of the two. Options
- * (gardner_a/b, lithology, effective_pressure) are listed too so that an
- * option given to a relation that ignores it is refused, not dropped. */
-static const char *const rel_inputs[R_COUNT][6] = {
-    [R_GARDNER] = {"vp|dtp", "gardner_a?", "gardner_b?"},
-    [R_GARDNER_INV] = {"rho", "gardner_a?", "gardner_b?"},
-    [R_MUDROCK_VS] = {"vp|dtp"},
-    [R_MUDROCK_VP] = {"vs"},
-    [R_GC] = {"vp|dtp", "lithology?"},
-    [R_HAN] = {"porosity", "clay", "effective_pressure?"},
-    [R_WYLLIE] = {"porosity", "v_matrix", "v_fluid"},
-    [R_WYLLIE_PHI] = {"vp|dtp", "v_matrix", "v_fluid"},
-    [R_RHG] = {"porosity", "v_matrix", "v_fluid"},
-    [R_RHG_PHI] = {"vp|dtp", "v_matrix", "v_fluid"},
+typedef struct emp_args {
+	proto_hdr hdr;
+	int relation;
+	proto_vec vp, vs, rho, dtp, porosity, clay, v_matrix, v_fluid;
+	proto_vec gardner_a, gardner_b;
+	proto_lith lithology;
+	proto_vec effective_pressure;
+} emp_args;
+
+#define Q(m, k_, fl, text)                                                     \
+	{                                                                      \
+		PROTO_NUMS(emp_args, m, k_, PF_NULLS | (fl), text)             \
+	}
+static const proto_field emp_fields[] = {
+    {.name = "relation",
+     .type = PT_ENUM,
+     .flags = PF_REQ,
+     .offset = offsetof(emp_args, relation),
+     .choices = rel_names,
+     .desc = "the relation (protocol-docs/logs.md lists each one's inputs "
+             "and fitted range)"},
+    Q(vp, PK_VELOCITY, 0, "P velocity"),
+    Q(vs, PK_VELOCITY, 0, "S velocity"),
+    Q(rho, PK_DENSITY, 0, "bulk density"),
+    Q(dtp, PK_SLOWNESS, 0, "compressional slowness (instead of vp)"),
+    Q(porosity, PK_NONE, PF_FRACTION, "porosity (fraction)"),
+    Q(clay, PK_NONE, PF_FRACTION, "clay volume fraction (han)"),
+    Q(v_matrix, PK_VELOCITY, 0, "matrix velocity (wyllie, raymer)"),
+    Q(v_fluid, PK_VELOCITY, 0, "pore-fluid velocity (wyllie, raymer)"),
+    {PROTO_NUMS(emp_args, gardner_a, PK_NONE, PF_DFLT | PF_LO | PF_LO_OPEN,
+                "Gardner a, for rho in g/cm3 and vp in m/s (default 0.31)"),
+     .dflt = RW_EMP_GARDNER_A, .lo = 0},
+    {PROTO_NUMS(emp_args, gardner_b, PK_NONE, PF_DFLT | PF_LO | PF_LO_OPEN,
+                "Gardner b (default 0.25)"),
+     .dflt = RW_EMP_GARDNER_B, .lo = 0},
+    {PROTO_FIELD(emp_args, lithology, PT_OBJ, 0,
+                 "lithology for greenberg_castagna (default sandstone)"),
+     .sub = &proto_lith_decl},
+    {PROTO_NUMS(emp_args, effective_pressure, PK_PRESSURE, PF_DFLT | PF_NULLS,
+                "Han et al. 1986 fit: one of the published 5, 10, 20, 30, "
+                "40 MPa sets (default 40)"),
+     .dflt = 40},
+    {0},
 };
+#undef Q
 
-static const char *const lith_names[RW_EMP_NLITH] = {
-    [RW_EMP_SANDSTONE] = "sandstone",
-    [RW_EMP_LIMESTONE] = "limestone",
-    [RW_EMP_DOLOMITE] = "dolomite",
-    [RW_EMP_SHALE] = "shale",
+static const char *const vp_dtp[] = {"vp", "dtp", NULL};
+static const char *const gardner_in[] = {"vp", "dtp", "gardner_a", "gardner_b",
+                                         NULL};
+static const char *const rho_in[] = {"rho", "gardner_a", "gardner_b", NULL};
+static const char *const rho_only[] = {"rho", NULL};
+static const char *const vs_only[] = {"vs", NULL};
+static const char *const gc_in[] = {"vp", "dtp", "lithology", NULL};
+static const char *const han_need[] = {"porosity", "clay", NULL};
+static const char *const han_in[] = {"porosity", "clay", "effective_pressure",
+                                     NULL};
+static const char *const tav_need[] = {"porosity", "v_matrix", "v_fluid", NULL};
+static const char *const tav_phi_need[] = {"v_matrix", "v_fluid", NULL};
+static const char *const tav_phi_in[] = {"vp", "dtp", "v_matrix", "v_fluid",
+                                         NULL};
+
+#define ONLY(rel, names)                                                       \
+	{                                                                      \
+		PR_ONLY, "relation=" rel, 0, names,                            \
+		    "relation '" rel "' does not use this parameter"           \
+	}
+#define NEEDS(rel, names)                                                      \
+	{                                                                      \
+		PR_REQUIRES, "relation=" rel, 0, names,                        \
+		    "relation '" rel "' needs this parameter"                  \
+	}
+#define ONE_VP(rel)                                                            \
+	{                                                                      \
+		PR_EXACTLY, "relation=" rel, 1, vp_dtp,                        \
+		    "relation '" rel "' needs vp or dtp, not both"             \
+	}
+static const proto_rule emp_rules[] = {
+    ONE_VP("gardner"),
+    NEEDS("gardner_inverse", rho_only),
+    ONE_VP("mudrock_vs"),
+    NEEDS("mudrock_vp", vs_only),
+    ONE_VP("greenberg_castagna"),
+    NEEDS("han", han_need),
+    NEEDS("wyllie", tav_need),
+    ONE_VP("wyllie_porosity"),
+    NEEDS("wyllie_porosity", tav_phi_need),
+    NEEDS("raymer", tav_need),
+    ONE_VP("raymer_porosity"),
+    NEEDS("raymer_porosity", tav_phi_need),
+    ONLY("gardner", gardner_in),
+    ONLY("gardner_inverse", rho_in),
+    ONLY("mudrock_vs", vp_dtp),
+    ONLY("mudrock_vp", vs_only),
+    ONLY("greenberg_castagna", gc_in),
+    ONLY("han", han_in),
+    ONLY("wyllie", tav_need),
+    ONLY("wyllie_porosity", tav_phi_in),
+    ONLY("raymer", tav_need),
+    ONLY("raymer_porosity", tav_phi_in),
+    {PR_END},
 };
+#undef ONLY
+#undef NEEDS
+#undef ONE_VP
 
-int proto__lith_parse(proto_call *c, const cJSON *v, const char *path,
-                      double frac[RW_EMP_NLITH])
-{
-	const cJSON *m;
-	double sum = 0;
-	char full[160];
-	int i;
-
-	for (i = 0; i < RW_EMP_NLITH; i++)
-		frac[i] = 0;
-	if (!v) {
-		frac[RW_EMP_SANDSTONE] = 1;
-		return 0;
-	}
-	if (cJSON_IsString(v)) {
-		for (i = 0; i < RW_EMP_NLITH; i++)
-			if (strcmp(v->valuestring, lith_names[i]) == 0) {
-				frac[i] = 1;
-				return 0;
-			}
-		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-		                  "unknown lithology '%s'; accepted: "
-		                  "sandstone, limestone, dolomite, shale, or "
-		                  "an object of their volume fractions",
-		                  v->valuestring);
-	}
-	if (!cJSON_IsObject(v) || !v->child)
-		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-		                  "must be a lithology name or a non-empty "
-		                  "object of volume fractions, e.g. "
-		                  "{\"sandstone\": 0.7, \"shale\": 0.3}");
-	cJSON_ArrayForEach(m, v)
-	{
-		snprintf(full, sizeof full, "%s.%s", path, m->string);
-		for (i = 0; i < RW_EMP_NLITH; i++)
-			if (strcmp(m->string, lith_names[i]) == 0)
-				break;
-		if (i == RW_EMP_NLITH)
-			return proto_fail(c, PROTO_INVALID_PARAMS, full,
-			                  "unknown lithology; accepted: "
-			                  "sandstone, limestone, dolomite, "
-			                  "shale");
-		if (!cJSON_IsNumber(m) || !isfinite(m->valuedouble) ||
-		    m->valuedouble < 0 || m->valuedouble > 1)
-			return proto_fail(
-			    c, PROTO_INVALID_PARAMS, full,
-			    "must be a volume fraction in [0, 1]");
-		frac[i] = m->valuedouble;
-		sum += frac[i];
-	}
-	if (fabs(sum - 1) > 1e-6)
-		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-		                  "fractions sum to %.9g, not 1 (tolerance "
-		                  "1e-6)",
-		                  sum);
-	return 0;
-}
-
-uint32_t proto__emp_qc(unsigned warn)
-{
-	return warn ? QC_EMP_RANGE : 0;
-}
-
-/* Checks that the relation gets what it needs and nothing it ignores.
- * Sets *vel to the velocity input (vp, or 1/dtp) need. */
-static int check_inputs(proto_call *c, int rel)
-{
-	const proto_args *a = &c->args;
-	char used[16][24];
-	size_t nused = 0;
-
-	for (int j = 0; j < 6 && rel_inputs[rel][j]; j++) {
-		const char *s = rel_inputs[rel][j];
-		size_t len = strlen(s);
-		int optional = s[len - 1] == '?';
-		if (optional)
-			len--;
-		if (len == 6 && memcmp(s, "vp|dtp", 6) == 0) {
-			int vp = proto_item_of(a, "vp") != NULL;
-			int dtp = proto_item_of(a, "dtp") != NULL;
-			if (vp && dtp)
-				return proto_fail(c, PROTO_INVALID_PARAMS,
-				                  "dtp",
-				                  "give vp or dtp, not both");
-			if (!vp && !dtp)
-				return proto_fail(c, PROTO_INVALID_PARAMS, "vp",
-				                  "relation '%s' needs vp or "
-				                  "dtp",
-				                  rel_names[rel]);
-			memcpy(used[nused++], "vp", 3);
-			memcpy(used[nused++], "dtp", 4);
-			continue;
-		}
-		memcpy(used[nused], s, len);
-		used[nused][len] = '\0';
-		if (!optional && !proto_item_of(a, used[nused]))
-			return proto_fail(c, PROTO_INVALID_PARAMS, used[nused],
-			                  "relation '%s' needs this parameter",
-			                  rel_names[rel]);
-		nused++;
-	}
-	for (size_t i = 0; i < a->count; i++) {
-		const char *name = a->spec[i].name;
-		size_t j;
-		if (!a->item[i] || strcmp(name, "relation") == 0)
-			continue;
-		for (j = 0; j < nused; j++)
-			if (strcmp(used[j], name) == 0)
-				break;
-		if (j == nused)
-			return proto_fail(c, PROTO_INVALID_PARAMS, name,
-			                  "relation '%s' does not use this "
-			                  "parameter",
-			                  rel_names[rel]);
-	}
-	return 0;
-}
-
-/* The velocity input of sample i: vp, or 1/dtp (NaN when missing or not
- * positive, which the core then refuses). */
-static double vel_at(const proto_vec *vp, const proto_vec *dtp, size_t i)
-{
-	if (vp->present)
-		return proto_at(vp, i);
-	double dt = proto_at(dtp, i);
-	return dt > 0 ? 1.0 / dt : NAN;
-}
-
-static int han_set(proto_call *c, int *pset)
+/* The Han et al. 1986 set of a pressure (MPa), or -1. */
+static int han_set(double p)
 {
 	static const double mpa[RW_EMP_HAN_NSETS] = {[RW_EMP_HAN_40MPA] = 40,
 	                                             [RW_EMP_HAN_30MPA] = 30,
 	                                             [RW_EMP_HAN_20MPA] = 20,
 	                                             [RW_EMP_HAN_10MPA] = 10,
 	                                             [RW_EMP_HAN_5MPA] = 5};
-	double p = proto_num_or(&c->args, "effective_pressure", 40);
-
 	for (int i = 0; i < RW_EMP_HAN_NSETS; i++)
-		if (fabs(p - mpa[i]) < 1e-6) {
-			*pset = i;
-			return 0;
-		}
-	return proto_fail(c, PROTO_INVALID_PARAMS, "effective_pressure",
-	                  "Han et al. 1986 published fits at 5, 10, 20, 30 "
-	                  "and 40 MPa only (%g MPa given)",
-	                  p);
+		if (fabs(p - mpa[i]) < 1e-6)
+			return i;
+	return -1;
 }
 
-static int empirical(proto_call *c)
+static int emp_check(proto_call *c, void *dst)
 {
-	const proto_args *a = &c->args;
-	const proto_vec *vp = proto_vec_of(a, "vp"),
-	                *dtp = proto_vec_of(a, "dtp");
-	const proto_vec *vs = proto_vec_of(a, "vs"),
-	                *rho = proto_vec_of(a, "rho");
-	const proto_vec *phi = proto_vec_of(a, "porosity");
-	const proto_vec *clay = proto_vec_of(a, "clay");
-	const proto_vec *vma = proto_vec_of(a, "v_matrix");
-	const proto_vec *vfl = proto_vec_of(a, "v_fluid");
-	double ga = proto_num_or(a, "gardner_a", RW_EMP_GARDNER_A);
-	double gb = proto_num_or(a, "gardner_b", RW_EMP_GARDNER_B);
-	double frac[RW_EMP_NLITH];
-	size_t n = a->n[0];
-	int arr = a->any_array[0], pset = RW_EMP_HAN_40MPA;
-	double *o1, *o2;
-	uint32_t *flags;
-	int rel = proto_enum_of(c, a, "relation", rel_names, -1);
+	emp_args *a = dst;
+	const proto_vec *p = &a->effective_pressure;
 
-	if (rel < 0)
-		return -1;
-	if (check_inputs(c, rel))
-		return -1;
-	if (!(ga > 0))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "gardner_a",
-		                  "must be > 0");
-	if (!(gb > 0))
-		return proto_fail(c, PROTO_INVALID_PARAMS, "gardner_b",
-		                  "must be > 0");
-	if (rel == R_GC && proto__lith_parse(c, proto_item_of(a, "lithology"),
-	                                     "lithology", frac))
-		return -1;
-	if (rel == R_HAN && han_set(c, &pset))
-		return -1;
-	if (proto_check_size(c, n, n))
-		return -1;
-	o1 = proto_alloc_doubles(c, n);
-	o2 = proto_alloc_doubles(c, n);
-	flags = proto_alloc(c, n * sizeof *flags);
-	if (!o1 || !o2 || !flags)
-		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
-		                  "out of memory for %zu samples", n);
-	for (size_t i = 0; i < n; i++) {
-		unsigned warn = 0;
-		int st = RW_OK;
-		o2[i] = NAN;
-		switch (rel) {
-		case R_GARDNER:
-			st = rw_emp_gardner_density(vel_at(vp, dtp, i), ga, gb,
-			                            &o1[i], &warn);
-			break;
-		case R_GARDNER_INV:
-			st = rw_emp_gardner_vp(proto_at(rho, i), ga, gb, &o1[i],
-			                       &warn);
-			break;
-		case R_MUDROCK_VS:
-			st = rw_emp_mudrock_vs(vel_at(vp, dtp, i), &o1[i],
-			                       &warn);
-			break;
-		case R_MUDROCK_VP:
-			st = rw_emp_mudrock_vp(proto_at(vs, i), &o1[i], &warn);
-			break;
-		case R_GC:
-			st = rw_emp_gc_vs_mixed(vel_at(vp, dtp, i), frac,
-			                        &o1[i], &warn);
-			break;
-		case R_HAN:
-			st = rw_emp_han_velocities(proto_at(phi, i),
-			                           proto_at(clay, i), pset,
-			                           &o1[i], &o2[i], &warn);
-			break;
-		case R_WYLLIE:
-			st = rw_emp_wyllie_velocity(
-			    proto_at(phi, i), proto_at(vma, i),
-			    proto_at(vfl, i), &o1[i], &warn);
-			break;
-		case R_WYLLIE_PHI:
-			st = rw_emp_wyllie_porosity(
-			    vel_at(vp, dtp, i), proto_at(vma, i),
-			    proto_at(vfl, i), &o1[i], &warn);
-			break;
-		case R_RHG:
-			st = rw_emp_rhg_velocity(
-			    proto_at(phi, i), proto_at(vma, i),
-			    proto_at(vfl, i), &o1[i], &warn);
-			break;
-		default:
-			st = rw_emp_rhg_porosity(
-			    vel_at(vp, dtp, i), proto_at(vma, i),
-			    proto_at(vfl, i), &o1[i], &warn);
-			break;
-		}
-		flags[i] = st == RW_OK ? proto__emp_qc(warn) : QC_INPUT_INVALID;
-		if (st != RW_OK)
-			o1[i] = o2[i] = NAN;
-	}
-	proto_w_obj_begin(c, NULL);
-	proto_w_int(c, "n", (long long)n);
-	proto_w_str(c, "relation", rel_names[rel]);
-	switch (rel) {
-	case R_GARDNER: proto_w_vec(c, "rho", PK_DENSITY, o1, n, 1, arr); break;
-	case R_GARDNER_INV:
-	case R_MUDROCK_VP:
-	case R_WYLLIE:
-	case R_RHG: proto_w_vec(c, "vp", PK_VELOCITY, o1, n, 1, arr); break;
-	case R_MUDROCK_VS:
-	case R_GC: proto_w_vec(c, "vs", PK_VELOCITY, o1, n, 1, arr); break;
-	case R_HAN:
-		proto_w_vec(c, "vp", PK_VELOCITY, o1, n, 1, arr);
-		proto_w_vec(c, "vs", PK_VELOCITY, o2, n, 1, arr);
-		break;
-	default: proto_w_vec(c, "porosity", PK_NONE, o1, n, 1, arr); break;
-	}
-	proto_w_flags(c, "qc", flags, n, arr);
-	proto_w_units(c);
-	proto_w_obj_end(c);
+	if (a->relation != R_HAN)
+		return 0;
+	for (size_t i = 0; i < p->n; i++)
+		if (!isnan(p->v[i]) && han_set(p->v[i]) < 0)
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, "effective_pressure",
+			    "Han et al. 1986 published fits at 5, "
+			    "10, 20, 30 and 40 MPa only (%g MPa "
+			    "given%s%zu)",
+			    p->v[i], p->is_array ? " at element " : "",
+			    p->is_array ? i : 0);
 	return 0;
 }
 
-const proto_method proto_rock_empirical_methods[] = {
-    {"rock.empirical", empirical, emp_params,
-     "Empirical velocity, density and porosity relations (Gardner, "
-     "mudrock line, Greenberg-Castagna, Han, Wyllie, Raymer-Hunt-Gardner)."},
-    {NULL, NULL, NULL, NULL},
+static const proto_decl emp_decl = {
+    .name = "",
+    .fields = emp_fields,
+    .rules = emp_rules,
+    .size = sizeof(emp_args),
+    .check = emp_check,
 };
+
+typedef struct emp_row {
+	double vp, vs, rho, porosity;
+	uint64_t qc;
+} emp_row;
+
+/* The velocity input of sample i: vp, or 1/dtp (NaN when missing; a
+ * non-positive slowness gives a negative velocity the core refuses). */
+static double vel_at(const emp_args *a, size_t i)
+{
+	double dt;
+	if (a->vp.present)
+		return proto_at(&a->vp, i);
+	dt = proto_at(&a->dtp, i);
+	return dt > 0 ? 1.0 / dt : isnan(dt) ? NAN : -1.0;
+}
+
+static int emp_kernel(const void *args, size_t i, void *row, uint64_t *qc,
+                      void *ws)
+{
+	const emp_args *a = args;
+	emp_row *r = row;
+	unsigned warn = 0;
+	int st = RW_OK;
+	double ga = proto_at(&a->gardner_a, i), gb = proto_at(&a->gardner_b, i);
+	double frac[RW_EMP_NLITH], in = NAN;
+
+	(void)ws;
+	switch (a->relation) {
+	case R_GARDNER:
+		in = vel_at(a, i);
+		st = rw_emp_gardner_density(in, ga, gb, &r->rho, &warn);
+		break;
+	case R_GARDNER_INV:
+		in = proto_at(&a->rho, i);
+		st = rw_emp_gardner_vp(in, ga, gb, &r->vp, &warn);
+		break;
+	case R_MUDROCK_VS:
+		in = vel_at(a, i);
+		st = rw_emp_mudrock_vs(in, &r->vs, &warn);
+		break;
+	case R_MUDROCK_VP:
+		in = proto_at(&a->vs, i);
+		st = rw_emp_mudrock_vp(in, &r->vp, &warn);
+		break;
+	case R_GC:
+		in = vel_at(a, i);
+		if (a->lithology.hdr.present)
+			for (int k = 0; k < RW_EMP_NLITH; k++)
+				frac[k] =
+				    a->lithology.frac[k].present
+				        ? proto_at(&a->lithology.frac[k], i)
+				        : 0;
+		else
+			proto__lith_fractions(NULL, frac);
+		st = rw_emp_gc_vs_mixed(in, frac, &r->vs, &warn);
+		break;
+	case R_HAN:
+		in = proto_at(&a->porosity, i) + proto_at(&a->clay, i) +
+		     proto_at(&a->effective_pressure, i);
+		if (!isnan(in))
+			st = rw_emp_han_velocities(
+			    proto_at(&a->porosity, i), proto_at(&a->clay, i),
+			    han_set(proto_at(&a->effective_pressure, i)),
+			    &r->vp, &r->vs, &warn);
+		break;
+	case R_WYLLIE:
+	case R_RHG:
+		in = proto_at(&a->porosity, i);
+		if (a->relation == R_WYLLIE)
+			st = rw_emp_wyllie_velocity(
+			    in, proto_at(&a->v_matrix, i),
+			    proto_at(&a->v_fluid, i), &r->vp, &warn);
+		else
+			st = rw_emp_rhg_velocity(in, proto_at(&a->v_matrix, i),
+			                         proto_at(&a->v_fluid, i),
+			                         &r->vp, &warn);
+		in += proto_at(&a->v_matrix, i) + proto_at(&a->v_fluid, i);
+		break;
+	default:
+		in = vel_at(a, i);
+		if (a->relation == R_WYLLIE_PHI)
+			st = rw_emp_wyllie_porosity(
+			    in, proto_at(&a->v_matrix, i),
+			    proto_at(&a->v_fluid, i), &r->porosity, &warn);
+		else
+			st = rw_emp_rhg_porosity(in, proto_at(&a->v_matrix, i),
+			                         proto_at(&a->v_fluid, i),
+			                         &r->porosity, &warn);
+		in += proto_at(&a->v_matrix, i) + proto_at(&a->v_fluid, i);
+		break;
+	}
+	if (isnan(in)) {
+		*qc = QC_LOG_MISSING;
+		r->vp = r->vs = r->rho = r->porosity = NAN;
+	} else if (st != RW_OK) {
+		*qc = QC_INPUT_INVALID;
+		r->vp = r->vs = r->rho = r->porosity = NAN;
+	} else {
+		*qc = proto__emp_qc(warn);
+	}
+	return 0;
+}
+
+static int out_rho(const void *a)
+{
+	return ((const emp_args *)a)->relation == R_GARDNER;
+}
+static int out_vp(const void *a)
+{
+	int r = ((const emp_args *)a)->relation;
+	return r == R_GARDNER_INV || r == R_MUDROCK_VP || r == R_WYLLIE ||
+	       r == R_RHG || r == R_HAN;
+}
+static int out_vs(const void *a)
+{
+	int r = ((const emp_args *)a)->relation;
+	return r == R_MUDROCK_VS || r == R_GC || r == R_HAN;
+}
+static int out_phi(const void *a)
+{
+	int r = ((const emp_args *)a)->relation;
+	return r == R_WYLLIE_PHI || r == R_RHG_PHI;
+}
+
+static const proto_output emp_outputs[] = {
+    {.name = "n", .type = PO_COUNT, .dim = D_REQ, .desc = "samples"},
+    {.name = "relation",
+     .type = PO_ENUM,
+     .dim = D_REQ,
+     .offset = offsetof(emp_args, relation),
+     .choices = rel_names,
+     .desc = "the relation used"},
+    {.name = "rho",
+     .type = PO_NUM,
+     .kind = PK_DENSITY,
+     .offset = offsetof(emp_row, rho),
+     .when = out_rho,
+     .desc = "density (gardner)"},
+    {.name = "vp",
+     .type = PO_NUM,
+     .kind = PK_VELOCITY,
+     .offset = offsetof(emp_row, vp),
+     .when = out_vp,
+     .desc = "P velocity"},
+    {.name = "vs",
+     .type = PO_NUM,
+     .kind = PK_VELOCITY,
+     .offset = offsetof(emp_row, vs),
+     .when = out_vs,
+     .desc = "S velocity"},
+    {.name = "porosity",
+     .type = PO_NUM,
+     .offset = offsetof(emp_row, porosity),
+     .when = out_phi,
+     .desc = "porosity (fraction)"},
+    {.name = "qc",
+     .type = PO_FLAGS,
+     .offset = offsetof(emp_row, qc),
+     .desc = "QC flags"},
+    {0},
+};
+
+static const proto_method m_empirical = {
+    .name = "rock.empirical",
+    .summary = "Empirical velocity, density and porosity relations "
+               "(Gardner, mudrock line, Greenberg-Castagna, Han, Wyllie, "
+               "Raymer-Hunt-Gardner).",
+    .description =
+        "One relation per request, per sample with broadcasting. Each "
+        "relation takes only its own inputs (others are refused): gardner "
+        "vp|dtp [gardner_a, gardner_b] -> rho; gardner_inverse rho -> vp; "
+        "mudrock_vs vp|dtp -> vs; mudrock_vp vs -> vp; greenberg_castagna "
+        "vp|dtp [lithology] -> vs; han porosity, clay [effective_pressure] "
+        "-> vp, vs; wyllie and raymer porosity, v_matrix, v_fluid -> vp; "
+        "wyllie_porosity and raymer_porosity vp|dtp, v_matrix, v_fluid -> "
+        "porosity. Outside the fitted range: computed and flagged "
+        "empirical_extrapolated. See protocol-docs/logs.md.",
+    .params = &emp_decl,
+    .outputs = emp_outputs,
+    .kernel = emp_kernel,
+    .row_size = sizeof(emp_row),
+    .qc_offset = offsetof(emp_row, qc),
+};
+
+const proto_method *const proto_rock_empirical_methods[] = {&m_empirical, NULL};

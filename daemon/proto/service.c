@@ -1,16 +1,18 @@
-/* The service family: rpc.discover (the OpenRPC document embedded at build
- * time from protocol-docs/openrpc.json) and service.info (version, limits,
- * units, QC legend, counters and the caution). */
+/* The service family: rpc.discover (the OpenRPC document generated from
+ * the method declarations, schema.c) and service.info (version, limits,
+ * units with their factors, the QC legend, methods, counters and the
+ * caution). */
+#include <pthread.h>
+#include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "proto/internal.h"
+#include "proto/table.h"
 
 #ifndef RW_VERSION
 #define RW_VERSION "0.0.0"
 #endif
-
-extern const char rw_openrpc_doc[];
-extern const size_t rw_openrpc_doc_len;
 
 const char proto_caution[] =
     "rockwire gives screening estimates from published rock-physics "
@@ -18,27 +20,26 @@ const char proto_caution[] =
     "regulations and licensed practice, and must never be the sole basis "
     "for well-control or other drilling and completion decisions.";
 
-static int discover(proto_call *c)
-{
-	/* The document is checked to be one JSON object by the tests; it is
-	 * written as it is, byte for byte. Trailing whitespace is trimmed so
-	 * that the response stays one line. */
-	size_t n = rw_openrpc_doc_len;
-	const char *d = rw_openrpc_doc;
-	size_t i, run = 0;
+/* The document never changes while the daemon runs: built once. */
+static pthread_once_t doc_once = PTHREAD_ONCE_INIT;
+static char *doc_text;
 
-	while (n && (d[n - 1] == '\n' || d[n - 1] == ' ' || d[n - 1] == '\r'))
-		n--;
-	proto_w_raw(c, NULL, "", 0);
-	/* Newlines inside the pretty-printed document become spaces. */
-	for (i = 0; i < n; i++) {
-		if (d[i] == '\n' || d[i] == '\r') {
-			proto_buf_append(c->out, d + run, i - run);
-			proto_buf_append(c->out, " ", 1);
-			run = i + 1;
-		}
-	}
-	proto_buf_append(c->out, d + run, n - run);
+static void doc_build(void)
+{
+	cJSON *doc = proto__openrpc();
+	if (doc)
+		doc_text = cJSON_PrintUnformatted(doc);
+	cJSON_Delete(doc);
+}
+
+static int discover(proto_call *c, void *args)
+{
+	(void)args;
+	pthread_once(&doc_once, doc_build);
+	if (!doc_text)
+		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
+		                  "out of memory building the document");
+	proto_w_raw(c, NULL, doc_text, strlen(doc_text));
 	return 0;
 }
 
@@ -57,16 +58,85 @@ static void write_limits(proto_call *c)
 	proto_w_int(c, "output_hard_limit_bytes", (long long)l->out_hard_limit);
 	proto_w_int(c, "global_buffer_budget_bytes",
 	            (long long)l->global_budget);
+	proto_w_int(c, "max_session_bytes", (long long)l->max_session_bytes);
+	proto_w_int(c, "threads", l->threads);
 	proto_w_num(c, "idle_timeout_s", PK_NONE, l->idle_timeout_s);
 	proto_w_num(c, "stall_timeout_s", PK_NONE, l->stall_timeout_s);
 	proto_w_num(c, "drain_timeout_s", PK_NONE, l->drain_timeout_s);
 	proto_w_obj_end(c);
 }
 
-static int info(proto_call *c)
+/* Every kind's default and accepted units, with the factor of each to
+ * the default (value in the default unit = value * scale + offset), so
+ * that clients convert with the daemon's factors. */
+static void write_units(proto_call *c)
+{
+	proto_w_obj_begin(c, "units");
+	for (int k = 1; k < PK_COUNT; k++) {
+		size_t n = proto_units_count((proto_kind)k);
+		double s0, o0;
+		proto_units_factor_at((proto_kind)k, 0, &s0, &o0);
+		proto_w_obj_begin(c, proto_kind_name((proto_kind)k));
+		proto_w_str(c, "default",
+		            proto_units_name_at((proto_kind)k, 0));
+		proto_w_arr_begin(c, "accepted");
+		for (size_t i = 0; i < n; i++)
+			proto_w_str(c, NULL,
+			            proto_units_name_at((proto_kind)k, i));
+		proto_w_arr_end(c);
+		proto_w_obj_begin(c, "to_default");
+		for (size_t i = 0; i < n; i++) {
+			double s, o;
+			proto_units_factor_at((proto_kind)k, i, &s, &o);
+			proto_w_obj_begin(
+			    c, proto_units_name_at((proto_kind)k, i));
+			proto_w_num(c, "scale", PK_NONE, s / s0);
+			proto_w_num(c, "offset", PK_NONE, (o - o0) / s0);
+			proto_w_obj_end(c);
+		}
+		proto_w_obj_end(c);
+		proto_w_obj_end(c);
+	}
+	proto_w_obj_end(c);
+}
+
+static void write_counters(proto_call *c)
+{
+	const proto_server_stats *s = proto_ctx_server_stats(c->ctx);
+	proto_counters k;
+	char code[16];
+
+	proto__counters(c->ctx, &k);
+	proto_w_obj_begin(c, "counters");
+	proto_w_int(c, "requests", (long long)k.requests);
+	proto_w_int(c, "notifications", (long long)k.notifications);
+	proto_w_obj_begin(c, "errors");
+	for (size_t i = 0; i < k.n_codes; i++) {
+		snprintf(code, sizeof code, "%d", k.code[i]);
+		proto_w_int(c, code, (long long)k.errors[i]);
+	}
+	proto_w_obj_end(c);
+	proto_w_int(c, "connections_total", (long long)s->connections_total);
+	proto_w_int(c, "connections_open", (long long)s->connections_open);
+	proto_w_int(c, "connections_refused",
+	            (long long)s->connections_refused);
+	proto_w_int(c, "connections_closed_slow",
+	            (long long)s->connections_closed_slow);
+	proto_w_int(c, "connections_closed_idle",
+	            (long long)s->connections_closed_idle);
+	proto_w_int(c, "lines_oversized", (long long)s->lines_oversized);
+	proto_w_int(c, "bytes_in", (long long)s->bytes_in);
+	proto_w_int(c, "bytes_out", (long long)s->bytes_out);
+	proto_w_int(c, "buffered_bytes", (long long)s->buffered_bytes);
+	proto_w_int(c, "reads_paused", (long long)s->reads_paused);
+	proto_w_obj_end(c);
+}
+
+static int info(proto_call *c, void *args)
 {
 	const proto_method *m;
 
+	(void)args;
 	proto_w_obj_begin(c, NULL);
 	proto_w_str(c, "name", "rockwire");
 	proto_w_str(c, "version", RW_VERSION);
@@ -74,11 +144,12 @@ static int info(proto_call *c)
 	proto_w_str(c, "transport", proto_ctx_server_stats(c->ctx)->transport);
 	proto_w_str(c, "caution", proto_caution);
 	write_limits(c);
-	proto_units_describe(c);
+	write_units(c);
 	proto_w_arr_begin(c, "qc_flags");
 	for (const proto_qc_info *q = proto_qc_legend; q->name; q++) {
 		proto_w_obj_begin(c, NULL);
-		proto_w_int(c, "bit", (long long)q->bit);
+		proto_w_int(c, "index", proto_qc_index(q->bit));
+		proto_w_flags1(c, "mask", q->bit);
 		proto_w_str(c, "name", q->name);
 		proto_w_str(c, "class", proto_qc_class_name(q->cls));
 		proto_w_str(c, "meaning", q->meaning);
@@ -89,17 +160,35 @@ static int info(proto_call *c)
 	for (size_t i = 0; (m = proto_method_at(i)); i++)
 		proto_w_str(c, NULL, m->name);
 	proto_w_arr_end(c);
-	proto__write_counters(c);
+	write_counters(c);
 	proto_w_obj_end(c);
 	return 0;
 }
 
-static const proto_param no_params[] = {{NULL, PT_ANY, PK_NONE, 0, 0}};
+static const proto_field no_fields[] = {{0}};
+static const proto_decl no_params = {"",   no_fields, NULL, sizeof(proto_hdr),
+                                     NULL, NULL,      NULL, NULL};
 
-const proto_method proto_service_methods[] = {
-    {"rpc.discover", discover, no_params,
-     "The OpenRPC document describing every method."},
-    {"service.info", info, no_params,
-     "Version, limits, units, QC legend, counters and the caution."},
-    {NULL, NULL, NULL, NULL},
+static const proto_method m_discover = {
+    .name = "rpc.discover",
+    .summary = "The OpenRPC document describing every method.",
+    .params = &no_params,
+    .body = discover,
+    .flags = PM_SESSION | PM_NO_FIELDS | PM_NO_UNCERTAINTY,
+    .openrpc_result = "{\"name\": \"document\", \"schema\": {\"type\": "
+                      "\"object\", \"required\": [\"openrpc\", "
+                      "\"info\", \"methods\"]}}",
 };
+static const proto_method m_info = {
+    .name = "service.info",
+    .summary = "Version, limits, units, QC legend, counters and the "
+               "caution.",
+    .params = &no_params,
+    .body = info,
+    .flags = PM_SESSION | PM_NO_FIELDS | PM_NO_UNCERTAINTY,
+    .openrpc_result = "{\"name\": \"info\", \"schema\": {\"$ref\": "
+                      "\"#/components/schemas/serviceInfo\"}}",
+};
+
+const proto_method *const proto_service_methods[] = {&m_discover, &m_info,
+                                                     NULL};

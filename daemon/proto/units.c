@@ -6,6 +6,7 @@
 #include <string.h>
 
 #include "proto/internal.h"
+#include "rockwire/fluid.h"
 
 typedef struct unit_def {
 	const char *name;
@@ -23,8 +24,8 @@ typedef struct kind_def {
 #define PSI_MPA                                                                \
 	0.006894757293168361 /* 1 psi = 6894.757... Pa (exact def.             \
 	                        via lbf and inch) */
-/* 1 scf/bbl in L/L: 0.028316846592 m^3 / 0.158987294928 m^3. */
-#define SCF_PER_BBL 0.1781076067
+/* 1 scf/bbl in L/L: the exact factor of the core (fluid.h). */
+#define SCF_PER_BBL RW_FLUID_SCF_PER_BBL_IN_LL
 
 static const unit_def u_velocity[] = {
     {"m/s", NULL, 1, 0}, {"km/s", NULL, 1000, 0}, {"ft/s", NULL, FT, 0}};
@@ -195,30 +196,21 @@ int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
 	return 0;
 }
 
-void proto_units_describe(proto_call *c)
+size_t proto_units_count(proto_kind k)
 {
-	proto_w_obj_begin(c, "units");
-	for (int k = 1; k < PK_COUNT; k++) {
-		proto_w_obj_begin(c, kinds[k].name);
-		proto_w_str(c, "default", kinds[k].units[0].name);
-		proto_w_arr_begin(c, "accepted");
-		for (size_t i = 0; i < kinds[k].count; i++)
-			proto_w_str(c, NULL, kinds[k].units[i].name);
-		proto_w_arr_end(c);
-		/* value in the default unit = value * scale + offset, so a
-		 * client converts with the daemon's factors, not its own. */
-		proto_w_obj_begin(c, "to_default");
-		for (size_t i = 0; i < kinds[k].count; i++) {
-			const unit_def *d = &kinds[k].units[i];
-			const unit_def *d0 = &kinds[k].units[0];
-			proto_w_obj_begin(c, d->name);
-			proto_w_num(c, "scale", PK_NONE, d->scale / d0->scale);
-			proto_w_num(c, "offset", PK_NONE,
-			            (d->offset - d0->offset) / d0->scale);
-			proto_w_obj_end(c);
-		}
-		proto_w_obj_end(c);
-		proto_w_obj_end(c);
-	}
-	proto_w_obj_end(c);
+	return (int)k > 0 && k < PK_COUNT ? kinds[k].count : 0;
+}
+
+const char *proto_units_name_at(proto_kind k, size_t i)
+{
+	assert(i < proto_units_count(k));
+	return kinds[k].units[i].name;
+}
+
+void proto_units_factor_at(proto_kind k, size_t i, double *scale,
+                           double *offset)
+{
+	assert(i < proto_units_count(k));
+	*scale = kinds[k].units[i].scale;
+	*offset = kinds[k].units[i].offset;
 }

@@ -106,9 +106,10 @@ static inline double num(const cJSON *res, const char *key)
 	return num_at(res, key, 0);
 }
 
-static inline unsigned qc_at(const cJSON *res, int i)
+/* QC flags are a 64-bit set (bits 0..52: exact JSON numbers). */
+static inline unsigned long long qc_at(const cJSON *res, int i)
 {
-	return (unsigned)num_at(res, "qc", i);
+	return (unsigned long long)num_at(res, "qc", i);
 }
 
 static inline const char *unit_of(const cJSON *res, const char *key)

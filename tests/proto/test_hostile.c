@@ -154,10 +154,12 @@ static const hcase corpus[] = {
      "{\"jsonrpc\":\"2.0\",\"id\":[1],\"method\":"
      "\"service.info\"}",
      0, -32600, "id", 0, 0},
+    /* a number beyond a double is still an id: it is echoed as its text
+     * (test_ids_exact) */
     {"id 1e400",
      "{\"jsonrpc\":\"2.0\",\"id\":1e400,\"method\":"
      "\"service.info\"}",
-     0, -32600, "id", 0, 0},
+     0, 0, NULL, 0, 0},
     {"notification", "{\"jsonrpc\":\"2.0\",\"method\":\"service.info\"}", 0,
      NO_ANSWER, NULL, 0, 0},
     {"notification with bad params",
@@ -448,6 +450,101 @@ static void test_ids_echoed(void **state)
 	}
 }
 
+/* JSON-RPC 2.0 asks for the id back as given: numbers that a double
+ * cannot hold, or that round to another id, come back as their text. */
+static void test_ids_exact(void **state)
+{
+	fixture *f = *state;
+	static const char *const ids[] = {"9007199254740993",
+	                                  "1.0000000000000002", "1e400", "-0",
+	                                  "12345678901234567890"};
+
+	for (size_t i = 0; i < sizeof ids / sizeof ids[0]; i++) {
+		char line[200], want[64];
+		const char *at;
+		snprintf(line, sizeof line,
+		         "[{\"jsonrpc\":\"2.0\",\"id\":%s,\"method\":\"nope\"},"
+		         "{\"jsonrpc\":\"2.0\",\"id\":%s ,\"method\":"
+		         "\"service.info\"}]",
+		         ids[i], ids[i]);
+		f->out.len = 0;
+		rw_proto_handle(f->s, line, strlen(line), &f->out);
+		snprintf(want, sizeof want, "\"id\":%s,", ids[i]);
+		at = strstr(f->out.data, want);
+		if (!at || !strstr(at + 1, want))
+			fail_msg("id %s not echoed as given in both answers: "
+			         "%.200s",
+			         ids[i], f->out.data);
+	}
+}
+
+/* The duplicate-key check is linear: an object of 80,000 distinct keys
+ * is answered (unknown parameters), one of them twice is refused. */
+static void test_many_keys(void **state)
+{
+	fixture *f = *state;
+	size_t n = 80000, cap = n * 16 + 200, len = 0;
+	char *line = malloc(cap);
+	cJSON *r;
+
+	assert_non_null(line);
+	len += (size_t)snprintf(line + len, cap - len,
+	                        "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	                        "\"elastic.convert\",\"params\":{");
+	for (size_t i = 0; i < n; i++)
+		len += (size_t)snprintf(line + len, cap - len, "%s\"k%zu\":1",
+		                        i ? "," : "", i);
+	snprintf(line + len, cap - len, "}}");
+	r = run(f, line, strlen(line), "1");
+	assert_int_equal(code_of(r), -32602);
+	cJSON_Delete(r);
+	/* the same with one key repeated at the end */
+	snprintf(line + len, cap - len, ",\"k17\":2}}");
+	r = run(f, line, strlen(line), NULL);
+	assert_int_equal(code_of(r), -32600);
+	cJSON_Delete(r);
+	free(line);
+}
+
+/* Error texts are cut at character boundaries: a parameter name of 200
+ * two-byte characters gives an error line that is valid UTF-8. */
+static void test_utf8_errors(void **state)
+{
+	fixture *f = *state;
+	char line[2048];
+	size_t len = 0;
+	cJSON *r;
+
+	len += (size_t)snprintf(line, sizeof line,
+	                        "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	                        "\"elastic.convert\",\"params\":{\"");
+	for (int i = 0; i < 200; i++)
+		len +=
+		    (size_t)snprintf(line + len, sizeof line - len, "\xc3\xa9");
+	snprintf(line + len, sizeof line - len, "\":1}}");
+	f->out.len = 0;
+	rw_proto_handle(f->s, line, strlen(line), &f->out);
+	/* well-formed UTF-8: every lead byte has its continuation bytes */
+	for (size_t i = 0; i < f->out.len; i++) {
+		unsigned char ch = (unsigned char)f->out.data[i];
+		size_t need = ch >= 0xf0   ? 3
+		              : ch >= 0xe0 ? 2
+		              : ch >= 0xc0 ? 1
+		                           : 0;
+		if (ch >= 0x80 && ch < 0xc0)
+			fail_msg("stray continuation byte at %zu", i);
+		for (size_t k = 1; k <= need; k++)
+			if (i + k >= f->out.len ||
+			    ((unsigned char)f->out.data[i + k] & 0xc0) != 0x80)
+				fail_msg("cut sequence at %zu", i);
+		i += need;
+	}
+	r = cJSON_ParseWithLength(f->out.data, f->out.len);
+	assert_non_null(r);
+	assert_int_equal(code_of(r), -32602);
+	cJSON_Delete(r);
+}
+
 /* The framer: a line past the limit is reported once and skipped to its
  * newline; the lines around it come out whole; a NUL is just a byte. */
 static void test_framer_oversize(void **state)
@@ -523,6 +620,9 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 	    cmocka_unit_test(test_corpus),
 	    cmocka_unit_test(test_ids_echoed),
+	    cmocka_unit_test(test_ids_exact),
+	    cmocka_unit_test(test_many_keys),
+	    cmocka_unit_test(test_utf8_errors),
 	    cmocka_unit_test(test_framer_oversize),
 	    cmocka_unit_test(test_framer_shrinks),
 	};

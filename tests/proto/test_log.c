@@ -14,6 +14,8 @@
 #include <gsl/gsl_errno.h>
 
 #include "proto/harness.h"
+#include "rockwire/empirical.h"
+#include "rockwire/rock.h"
 
 #define REQ(params)                                                            \
 	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"log.process\","            \
@@ -109,8 +111,8 @@ static void test_qc_flags(void **state)
 	assert_int_equal(qc(r, 4), 0);
 	assert_int_equal(qc(r, 5), B_NU_NEG);
 	assert_true(h_num(r, "nu", 5) < 0);
-	assert_true(qc(r, 6) & B_MISSING);
-	assert_true(qc(r, 6) & B_INVALID);
+	/* a null curve: missing only, not also invalid */
+	assert_int_equal(qc(r, 6), B_MISSING);
 	assert_true(isnan(h_num(r, "k", 6)));
 	assert_true(isnan(h_num(r, "vp", 6)));
 	assert_true(qc(r, 7) & (1u << 3)); /* modulus_negative */
@@ -219,6 +221,49 @@ static void gassmann_hand(double vp, double vs, double rho, double phi,
 	*vs2 = sqrt(mu / *rho2);
 }
 
+/* Greenberg & Castagna's procedure in a hydrocarbon zone through the
+ * protocol: a gas sand made by Gassmann (the core's) from a brine sand
+ * that obeys the brine-case relation gives back its own shear velocity;
+ * the brine-case relation applied directly would not. */
+static void test_predicted_insitu(void **state)
+{
+	const double frac[RW_EMP_NLITH] = {[RW_EMP_SANDSTONE] = 1.0};
+	double vs_b, vs_direct;
+	rw_rock_subst g;
+	char line[1024];
+	cJSON *r;
+
+	(void)state;
+	assert_int_equal(rw_emp_gc_vs_mixed(3200, frac, &vs_b, NULL), RW_OK);
+	assert_int_equal(rw_rock_fluid_subst(3200, vs_b, 2280, 0.25, 36.6e9,
+	                                     2.8e9, 1030, 0.06e9, 180, &g,
+	                                     NULL),
+	                 RW_OK);
+	snprintf(line, sizeof line,
+	         REQ("{\"vp\":%.17g,\"vs\":null,\"rhob\":%.17g,"
+	             "\"vs_predict\":\"greenberg_castagna_insitu\","
+	             "\"porosity\":0.25,\"mineral\":\"quartz\","
+	             "\"fluid_in_place\":{\"k\":0.06,\"rho\":0.18},"
+	             "\"brine\":{\"k\":2.8,\"rho\":1.03}}"),
+	         g.vp_ms, g.rho_kgm3 / 1000);
+	r = h_call(&H, line);
+	assert_int_equal(h_code(r), 0);
+	h_close_to(h_num(r, "vs", 0), g.vs_ms, 1e-7);
+	assert_true(qc(r, 0) & B_VS_PRED);
+	assert_string_equal(h_result(r, "vs_predicted_by")->valuestring,
+	                    "greenberg_castagna_insitu");
+	cJSON_Delete(r);
+	assert_int_equal(rw_emp_gc_vs_mixed(g.vp_ms, frac, &vs_direct, NULL),
+	                 RW_OK);
+	assert_true(fabs(vs_direct - g.vs_ms) > 0.02 * g.vs_ms);
+	/* without the fluid in place the procedure cannot run */
+	h_expect_invalid(&H,
+	                 REQ("{\"vp\":3000,\"rhob\":2.2,\"vs_predict\":"
+	                     "\"greenberg_castagna_insitu\",\"porosity\":"
+	                     "0.25,\"mineral\":\"quartz\"}"),
+	                 "fluid_in_place");
+}
+
 static void test_substitution(void **state)
 {
 	(void)state;
@@ -262,10 +307,10 @@ static void test_substitution(void **state)
 	                   "\"pressure_gradient\":0.0105,"
 	                   "\"temperature_gradient\":30,"
 	                   "\"surface_temperature\":15}"));
-	double kf1 = h_num(r, "k_fl_in_place", 0) * 1e9;
-	double rf1 = h_num(r, "rho_fl_in_place", 0) * 1e3;
-	double kf2 = h_num(r, "k_fl_new", 0) * 1e9;
-	double rf2 = h_num(r, "rho_fl_new", 0) * 1e3;
+	double kf1 = h_num(r, "fluid_in_place_k", 0) * 1e9;
+	double rf1 = h_num(r, "fluid_in_place_rho", 0) * 1e3;
+	double kf2 = h_num(r, "fluid_new_k", 0) * 1e9;
+	double rf2 = h_num(r, "fluid_new_rho", 0) * 1e3;
 	/* Brine at ~21 MPa, 75 degC: about 2.5-3.2 GPa and 1.0-1.06 g/cm3
 	 * (Batzle & Wang 1992 fig. 12-13 range, from memory). */
 	assert_true(kf1 > 2.3e9 && kf1 < 3.3e9);
@@ -317,10 +362,19 @@ static void test_errors(void **state)
 	                 REQ("{\"dtp\":[100,90],\"dts\":[180,170,160],"
 	                     "\"rhob\":2.3}"),
 	                 "dts");
-	h_expect_invalid(&H,
-	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
-	                     "\"caliper\":0.3}"),
-	                 "bit_size");
+	/* A caliper without bit size: the washout check cannot run; the
+	 * samples are answered with a warning that says so. */
+	{
+		cJSON *w = h_call(&H, REQ("{\"dtp\":100,\"dts\":180,"
+		                          "\"rhob\":2.3,\"caliper\":0.3}"));
+		const cJSON *wl = h_result(w, "warnings");
+		assert_int_equal(h_code(w), 0);
+		assert_true(cJSON_IsArray(wl) && cJSON_GetArraySize(wl) == 1);
+		assert_non_null(strstr(cJSON_GetArrayItem(wl, 0)->valuestring,
+		                       "washout check"));
+		assert_int_equal(qc(w, 0), 0);
+		cJSON_Delete(w);
+	}
 	h_expect_invalid(
 	    &H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,\"gr\":50}"),
 	    "gr_clean");
@@ -368,7 +422,7 @@ static void test_errors(void **state)
 	h_expect_invalid(&H,
 	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                     "\"qc\":{\"vp_min\":5000,\"vp_max\":4000}}"),
-	                 "qc.");
+	                 "qc");
 	h_expect_invalid(&H,
 	                 REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                     "\"qc\":{\"k_max\":1}}"),
@@ -449,6 +503,7 @@ int main(void)
 	    cmocka_unit_test(test_elastic_set),
 	    cmocka_unit_test(test_qc_flags),
 	    cmocka_unit_test(test_predicted),
+	    cmocka_unit_test(test_predicted_insitu),
 	    cmocka_unit_test(test_substitution),
 	    cmocka_unit_test(test_session),
 	    cmocka_unit_test(test_errors),

@@ -36,7 +36,9 @@
 #define B_UNDEFINED     (1u << 18)
 #define B_NO_CRIT_P     (1u << 19)
 #define B_NO_CRIT_S     (1u << 20)
+#define B_POSTCRIT_S    (1u << 21)
 #define B_UNSTABLE      (1u << 22)
+#define B_MISSING       (1u << 28)
 
 static const double DEG = 3.14159265358979323846 / 180.0;
 
@@ -347,7 +349,9 @@ static void test_interface_qc(void **state)
 	assert_true(is_null(r, "rpp_shuey3", 0, 1));
 	assert_true(is_null(r, "intercept", 0, -1));
 	assert_true(is_null(r, "class", 0, -1));
-	assert_true(flags(r, "qc_interface", 1, -1) & B_INPUT_INVALID);
+	/* a null sample is missing, not invalid */
+	assert_true(flags(r, "qc_interface", 1, -1) & B_MISSING);
+	assert_false(flags(r, "qc_interface", 1, -1) & B_INPUT_INVALID);
 	assert_true(is_null(r, "rpp_re", 1, 1));
 	assert_true(flags(r, "qc", 2, 1) & B_RHO_NONPOS);
 	assert_true(flags(r, "qc_interface", 3, -1) & B_NU_NEGATIVE);
@@ -408,8 +412,11 @@ static void test_interface_postcritical(void **state)
 	            num(r, "critical_s", -1, -1));
 	assert_int_equal(flags(r, "qc", 0, -1), 0);
 	assert_false(is_null(r, "rpp_aki_richards", 0, -1));
+	/* 30 deg lies past the P and below the S critical angle; 60 deg
+	 * past both */
+	assert_int_equal(flags(r, "qc", 1, -1), B_POSTCRIT);
+	assert_int_equal(flags(r, "qc", 2, -1), B_POSTCRIT | B_POSTCRIT_S);
 	for (int j = 1; j < 3; j++) {
-		assert_int_equal(flags(r, "qc", j, -1), B_POSTCRIT);
 		assert_true(is_null(r, "rpp_aki_richards", j, -1));
 		assert_false(is_null(r, "rpp_re", j, -1));
 	}
@@ -699,7 +706,7 @@ static void test_series(void **state)
 	assert_string_equal(unit(r, "depth"), "m");
 	/* the null sample nulls the interfaces on both sides of it only */
 	assert_true(is_null(r, "rpp_re", 1, 2));
-	assert_true(flags(r, "qc", 1, 2) & B_INPUT_INVALID);
+	assert_true(flags(r, "qc", 1, 2) & B_MISSING);
 	assert_true(flags(r, "qc_interface", 2, -1) & B_MEDIUM);
 	assert_false(is_null(r, "rpp_re", 1, 1));
 	/* same numbers as reflect.interface for the same pair */

@@ -285,7 +285,7 @@ static void test_qc(void **state)
 	cJSON *r =
 	    call(SUB("{\"vp\":[5000,3000,3000,1500,1200],\"vs\":[3000,"
 	             "1600,1600,200,1100],\"rho\":[2.6,2.25,2.25,2.0,"
-	             "2.0],\"porosity\":[0.03,1.2,null,0.1,0.2],"
+	             "2.0],\"porosity\":[0.03,1,null,0.1,0.2],"
 	             "\"mineral\":\"quartz\",\"fluid_in_place\":{\"k\":2.8,"
 	             "\"rho\":1.05},\"fluid_new\":{\"k\":0.05,\"rho\":"
 	             "0.2}}"));
@@ -296,7 +296,9 @@ static void test_qc(void **state)
 	assert_true(isfinite(num_at(res, "vp", 0)));
 	assert_true(qc_at(res, 1) & QC_INPUT_INVALID);
 	assert_true(isnan(num_at(res, "vp", 1)));
-	assert_true(qc_at(res, 2) & QC_INPUT_INVALID);
+	/* a null porosity is missing, not invalid */
+	assert_true(qc_at(res, 2) & QC_LOG_MISSING);
+	assert_false(qc_at(res, 2) & QC_INPUT_INVALID);
 	assert_true(isnan(num_at(res, "k_sat", 2)));
 	assert_true(qc_at(res, 3) & QC_GASSMANN_KDRY);
 	assert_true(num_at(res, "k_dry", 3) < 0);

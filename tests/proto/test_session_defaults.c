@@ -100,8 +100,9 @@ static void test_fluid_brie_default(void **state)
 	h_free(&h);
 }
 
-/* Inherited values keep the units they were set in: only a change that
- * would reinterpret one of them is refused. */
+/* Defaults are quantities: a number is kept in internal units, so a later
+ * change of units (in the session or a request) changes how it is shown,
+ * never what it means: 2.5 g/cm3 is 2500 kg/m3. */
 static void test_units_and_defaults(void **state)
 {
 	harness h;
@@ -116,37 +117,91 @@ static void test_units_and_defaults(void **state)
 	                               "\"shale\"}"),
 	            param, sizeof param),
 	    0);
-	/* velocity in km/s does not touch a density or a string default */
 	r = h_call(&h, REQ("elastic.convert",
 	                   "{\"vp\":3,\"vs\":1.5,\"units\":{\"velocity\":"
 	                   "\"km/s\"}}"));
 	assert_int_equal(h_code(r), 0);
 	assert_true(fabs(h_result(r, "rho")->valuedouble - 2.5) < 1e-12);
 	cJSON_Delete(r);
-	/* density in kg/m3 would read 2.5 as 2.5 kg/m3: refused */
-	assert_int_equal(
-	    code_of(&h,
-	            REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500,\"units\":"
-	                                   "{\"density\":\"kg/m3\"}}"),
-	            param, sizeof param),
-	    -32602);
-	assert_string_equal(param, "units");
-	/* the same change in the session: refused, unless rho is set again
-	 * in the same call */
+	/* the request's units show the same density in kg/m3 */
+	r = h_call(&h, REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500,"
+	                                      "\"units\":{\"density\":"
+	                                      "\"kg/m3\"}}"));
+	assert_int_equal(h_code(r), 0);
+	assert_true(fabs(h_result(r, "rho")->valuedouble - 2500) < 1e-9);
+	cJSON_Delete(r);
+	/* so does a change of the session's units */
 	assert_int_equal(
 	    code_of(&h,
 	            REQ("session.set", "{\"units\":{\"density\":\"kg/m3\"}}"),
 	            param, sizeof param),
-	    -32602);
-	assert_string_equal(param, "units");
-	assert_int_equal(
-	    code_of(&h,
-	            REQ("session.set", "{\"units\":{\"density\":\"kg/m3\"},"
-	                               "\"rho\":2500}"),
-	            param, sizeof param),
 	    0);
 	r = h_call(&h, REQ("elastic.convert", "{\"vp\":3000,\"vs\":1500}"));
 	assert_true(fabs(h_result(r, "rho")->valuedouble - 2500) < 1e-9);
+	cJSON_Delete(r);
+	h_free(&h);
+}
+
+/* A name that means different things in different methods cannot be a
+ * plain session default: `k` is a bulk modulus in elastic.convert and the
+ * dimensionless (vs/vp)^2 of reflect.impedance. Set for one method, it
+ * never reaches the other. */
+static void test_defaults_by_meaning(void **state)
+{
+	harness h;
+	char param[64];
+	cJSON *r;
+	(void)state;
+
+	h_init(&h);
+	r = h_call(&h, REQ("session.set", "{\"k\":0.3}"));
+	assert_int_equal(h_code(r), -32602);
+	assert_string_equal(h_param(r), "k");
+	assert_non_null(strstr(
+	    cJSON_GetObjectItem(
+	        cJSON_GetObjectItem(cJSON_GetObjectItem(r, "error"), "data"),
+	        "reason")
+	        ->valuestring,
+	    "reflect.impedance"));
+	cJSON_Delete(r);
+	assert_int_equal(
+	    code_of(&h,
+	            REQ("session.set", "{\"reflect.impedance\":{\"k\":0.3}}"),
+	            param, sizeof param),
+	    0);
+	/* elastic.convert with one quantity: k is not inherited */
+	assert_int_equal(
+	    code_of(&h, REQ("elastic.convert", "{\"rho\":2.3,\"vp\":3000}"),
+	            param, sizeof param),
+	    -32602);
+	r = h_call(&h, REQ("reflect.impedance",
+	                   "{\"vp\":[3000,3200],\"vs\":[1500,1600],\"rho\":"
+	                   "2.3,\"angle\":20}"));
+	assert_int_equal(h_code(r), 0);
+	assert_true(fabs(h_result(r, "k")->valuedouble - 0.3) < 1e-15);
+	cJSON_Delete(r);
+	/* a value no method takes, and a string only impedance takes */
+	assert_int_equal(
+	    code_of(&h, REQ("session.set", "{\"kk\":1}"), param, sizeof param),
+	    -32602);
+	assert_int_equal(code_of(&h, REQ("session.set", "{\"k\":\"sample\"}"),
+	                         param, sizeof param),
+	                 0);
+	r = h_call(&h, REQ("reflect.impedance",
+	                   "{\"vp\":[3000,3200],\"vs\":[1500,1600],\"rho\":"
+	                   "2.3,\"angle\":20}"));
+	/* the per-method default wins over the plain one */
+	assert_true(fabs(h_result(r, "k")->valuedouble - 0.3) < 1e-15);
+	cJSON_Delete(r);
+	assert_int_equal(
+	    code_of(&h, REQ("session.reset", "{}"), param, sizeof param), 0);
+	assert_int_equal(code_of(&h, REQ("session.set", "{\"k\":\"sample\"}"),
+	                         param, sizeof param),
+	                 0);
+	r = h_call(&h, REQ("reflect.impedance",
+	                   "{\"vp\":[3000,3200],\"vs\":[1500,1600],\"rho\":"
+	                   "2.3,\"angle\":20}"));
+	assert_string_equal(h_result(r, "k")->valuestring, "sample");
 	cJSON_Delete(r);
 	h_free(&h);
 }
@@ -157,6 +212,7 @@ int main(void)
 	    cmocka_unit_test(test_log_unused_defaults),
 	    cmocka_unit_test(test_fluid_brie_default),
 	    cmocka_unit_test(test_units_and_defaults),
+	    cmocka_unit_test(test_defaults_by_meaning),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

@@ -1,0 +1,478 @@
+/* The generic driver: runs a declared method. It parses the params into
+ * the method's arguments struct (args.c), applies `fields`, lets the
+ * method's prepare hook derive its state and shape, checks the limits,
+ * runs the per-sample kernel and the cell kernels over every sample (split
+ * across the context's worker threads when the request is large; each
+ * sample is independent, so the answer does not depend on the number of
+ * threads), and writes the declared outputs in order. Methods that are not
+ * per sample run their body instead. Request-wide features live here once
+ * for every method: output selection, warnings, and uncertainty
+ * (uncertainty.c). */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "proto/internal.h"
+
+/* Work (evaluations x cost) above which a request is split across the
+ * worker threads. Below it the thread hand-off costs more than it saves. */
+#define PARALLEL_WORK 16384.0
+
+/* ---- fields ------------------------------------------------------------- */
+
+static int selectable(const proto_output *o)
+{
+	return o->dim != D_REQ && o->type != PO_FLAGS;
+}
+
+/* Parses `fields`: the outputs to write. Request-level members, counts
+ * and QC flags are always written. */
+static int parse_fields(proto_call *c)
+{
+	const proto_method *m = c->method;
+	const cJSON *f = cJSON_GetObjectItemCaseSensitive(c->params, "fields");
+	const cJSON *e;
+	const char **list, *names[128];
+	size_t n = 0, nsel = 0, i = 0;
+
+	if (!f)
+		return 0;
+	if (m->flags & PM_NO_FIELDS || !m->outputs)
+		return proto_fail(c, PROTO_INVALID_PARAMS, "fields",
+		                  "%s has no outputs to select", m->name);
+	if (!cJSON_IsArray(f) || cJSON_GetArraySize(f) == 0)
+		return proto_fail(c, PROTO_INVALID_PARAMS, "fields",
+		                  "must be a non-empty array of output names");
+	for (const proto_output *o = m->outputs; o->name; o++)
+		if (nsel < 128 && selectable(o))
+			names[nsel++] = o->name;
+	list = proto_alloc(c, ((size_t)cJSON_GetArraySize(f) + 128) *
+	                          sizeof *list);
+	if (!list)
+		return proto_fail(c, PROTO_INTERNAL_ERROR, "fields",
+		                  "out of memory");
+	cJSON_ArrayForEach(e, f)
+	{
+		size_t k;
+		if (!cJSON_IsString(e))
+			return proto_fail(c, PROTO_INVALID_PARAMS, "fields",
+			                  "element %zu must be an output name",
+			                  i);
+		for (k = 0; k < nsel; k++)
+			if (strcmp(names[k], e->valuestring) == 0)
+				break;
+		if (k == nsel) {
+			char all[1024];
+			size_t used = 0;
+			const char *near =
+			    proto__suggest(e->valuestring, names, nsel);
+			all[0] = '\0';
+			for (k = 0; k < nsel && used < sizeof all; k++) {
+				int w =
+				    snprintf(all + used, sizeof all - used,
+				             "%s%s", k ? ", " : "", names[k]);
+				if (w < 0)
+					break;
+				used += (size_t)w;
+			}
+			if (near)
+				return proto_fail(
+				    c, PROTO_INVALID_PARAMS, "fields",
+				    "element %zu: no output '%s'; did you "
+				    "mean '%s'? outputs: %s",
+				    i, e->valuestring, near, all);
+			return proto_fail(c, PROTO_INVALID_PARAMS, "fields",
+			                  "element %zu: no output '%s'; "
+			                  "outputs: %s",
+			                  i, e->valuestring, all);
+		}
+		list[n++] = e->valuestring;
+		i++;
+	}
+	for (const proto_output *o = m->outputs; o->name; o++)
+		if (!selectable(o))
+			list[n++] = o->name;
+	list[n++] = "units";
+	list[n++] = "warnings";
+	c->fields = list;
+	c->n_fields = n;
+	return 0;
+}
+
+/* ---- running the kernels ------------------------------------------------ */
+
+typedef struct run {
+	proto_call *c;
+	const proto_method *m;
+	const void *args;
+	const proto_shape *shape;
+	unsigned char *rows, *cells[2];
+	size_t chunk; /* samples per chunk */
+	int failed;   /* a scratch allocation failed */
+} run;
+
+/* Sets the declared numeric outputs of a row to NaN and strings to NULL,
+ * so a kernel that stops early leaves nulls, not zeros. */
+static void row_clear(const proto_method *m, int dim, unsigned char *row)
+{
+	const double nan = NAN;
+	const char *none = NULL;
+
+	for (const proto_output *o = m->outputs; o && o->name; o++) {
+		if (o->dim != dim)
+			continue;
+		if (o->type == PO_NUM)
+			memcpy(row + o->offset, &nan, sizeof nan);
+		else if (o->type == PO_STR)
+			memcpy(row + o->offset, &none, sizeof none);
+	}
+}
+
+static void run_chunk(void *arg, size_t chunk)
+{
+	run *r = arg;
+	const proto_method *m = r->m;
+	size_t lo = chunk * r->chunk, hi = lo + r->chunk;
+	void *ws = NULL;
+
+	if (hi > r->shape->n)
+		hi = r->shape->n;
+	if (m->ws_size) {
+		ws = calloc(1, m->ws_size);
+		if (!ws || (m->ws_init && m->ws_init(r->args, ws))) {
+			free(ws);
+			r->failed = 1;
+			return;
+		}
+	}
+	for (size_t i = lo; i < hi; i++) {
+		unsigned char *row = r->rows + i * m->row_size;
+		uint64_t *qc = (uint64_t *)(row + m->qc_offset);
+		row_clear(m, D_SAMPLE, row);
+		*qc = 0;
+		m->kernel(r->args, i, row, qc, ws);
+		for (int k = 0; k < 2; k++) {
+			const proto_cells *cs = &m->cells[k];
+			size_t mm = r->shape->m[k];
+			if (!cs->kernel)
+				continue;
+			for (size_t j = 0; j < mm; j++) {
+				unsigned char *crow =
+				    r->cells[k] + (i * mm + j) * cs->row_size;
+				uint64_t *cq =
+				    (uint64_t *)(crow + cs->qc_offset);
+				row_clear(m, D_CELL + k, crow);
+				*cq = 0;
+				cs->kernel(r->args, i, j, row, crow, cq, ws);
+			}
+		}
+	}
+	if (ws) {
+		if (m->ws_free)
+			m->ws_free(ws);
+		free(ws);
+	}
+}
+
+/* Runs every sample, on the worker threads when the work is large. */
+static int run_samples(run *r)
+{
+	const proto_method *m = r->m;
+	const proto_shape *sh = r->shape;
+	double work = (double)sh->n * (m->cost > 0 ? m->cost : 1.0) *
+	              (1.0 + (double)sh->m[0] + (double)sh->m[1]);
+	size_t nchunks = 1;
+
+	r->chunk = sh->n ? sh->n : 1;
+	if (work > PARALLEL_WORK && sh->n > 1) {
+		/* Small chunks balance the threads; 64 per request is
+		 * plenty for a few cores and keeps scheduling cheap. */
+		nchunks = sh->n < 64 ? sh->n : 64;
+		r->chunk = (sh->n + nchunks - 1) / nchunks;
+		nchunks = (sh->n + r->chunk - 1) / r->chunk;
+	}
+	if (nchunks == 1)
+		run_chunk(r, 0);
+	else
+		proto__parallel(r->c->ctx, nchunks, run_chunk, r);
+	if (r->failed)
+		return proto_fail(r->c, PROTO_INTERNAL_ERROR, NULL,
+		                  "out of memory for the kernels' scratch");
+	return 0;
+}
+
+/* ---- writing ------------------------------------------------------------ */
+
+/* Writes member `o` of the cells of set k: a grid [sample][cell] or
+ * [cell][sample], each dimension an array only when its input was one. */
+static void write_grid(proto_call *c, const proto_method *m, const run *r,
+                       const proto_output *o, int k)
+{
+	const proto_cells *cs = &m->cells[k];
+	const proto_shape *sh = r->shape;
+	size_t n = sh->n, mm = sh->m[k], sz = cs->row_size;
+	int sarr = sh->arr, carr = sh->m_arr[k];
+	const unsigned char *base = r->cells[k];
+	int flags = o->type == PO_FLAGS;
+	size_t outer = cs->cell_major ? mm : n;
+	size_t inner = cs->cell_major ? n : mm;
+	int outer_arr = cs->cell_major ? carr : sarr;
+	int inner_arr = cs->cell_major ? sarr : carr;
+	/* [sample][cell] storage: steps in bytes along each dimension */
+	size_t s_step = mm * sz, c_step = sz;
+	size_t o_step = cs->cell_major ? c_step : s_step;
+	size_t i_step = cs->cell_major ? s_step : c_step;
+
+	if (outer_arr && inner_arr) {
+		proto_w_arr_begin(c, o->name);
+		for (size_t a = 0; a < outer; a++) {
+			const unsigned char *p = base + a * o_step;
+			if (flags)
+				proto_w_flag_rows(c, NULL, p, i_step, o->offset,
+				                  inner, 1);
+			else
+				proto_w_rows(c, NULL, o->kind, p, i_step,
+				             o->offset, inner, 1);
+		}
+		proto_w_arr_end(c);
+		return;
+	}
+	/* One dimension has one element: a plain vector along the other. */
+	if (outer_arr || !inner_arr) {
+		if (flags)
+			proto_w_flag_rows(c, o->name, base, o_step, o->offset,
+			                  outer, outer_arr);
+		else
+			proto_w_rows(c, o->name, o->kind, base, o_step,
+			             o->offset, outer, outer_arr);
+	} else {
+		if (flags)
+			proto_w_flag_rows(c, o->name, base, i_step, o->offset,
+			                  inner, 1);
+		else
+			proto_w_rows(c, o->name, o->kind, base, i_step,
+			             o->offset, inner, 1);
+	}
+}
+
+static void write_strings(proto_call *c, const char *key,
+                          const unsigned char *rows, size_t row_size,
+                          size_t offset, size_t n, int arr)
+{
+	const char *s;
+
+	if (!arr) {
+		memcpy(&s, rows + offset, sizeof s);
+		if (s)
+			proto_w_str(c, key, s);
+		else
+			proto_w_null(c, key);
+		return;
+	}
+	proto_w_arr_begin(c, key);
+	for (size_t i = 0; i < n; i++) {
+		memcpy(&s, rows + i * row_size + offset, sizeof s);
+		if (s)
+			proto_w_str(c, NULL, s);
+		else
+			proto_w_null(c, NULL);
+	}
+	proto_w_arr_end(c);
+}
+
+static void write_req(proto_call *c, const proto_output *o, const void *args,
+                      const proto_shape *sh)
+{
+	const unsigned char *at = (const unsigned char *)args + o->offset;
+
+	switch (o->type) {
+	case PO_NUM: {
+		double v;
+		memcpy(&v, at, sizeof v);
+		proto_w_num(c, o->name, o->kind, v);
+		break;
+	}
+	case PO_INT: {
+		long long v;
+		memcpy(&v, at, sizeof v);
+		proto_w_int(c, o->name, v);
+		break;
+	}
+	case PO_BOOL: {
+		int v;
+		memcpy(&v, at, sizeof v);
+		proto_w_bool(c, o->name, v);
+		break;
+	}
+	case PO_STR: {
+		const char *s;
+		memcpy(&s, at, sizeof s);
+		if (s)
+			proto_w_str(c, o->name, s);
+		else
+			proto_w_null(c, o->name);
+		break;
+	}
+	case PO_ENUM: {
+		int k;
+		memcpy(&k, at, sizeof k);
+		if (k >= 0)
+			proto_w_str(c, o->name, o->choices[k]);
+		else
+			proto_w_null(c, o->name);
+		break;
+	}
+	case PO_VEC: {
+		/* broadcast along the samples, or along a cell set */
+		const proto_vec *v = (const proto_vec *)at;
+		size_t n = o->dim == D_CELL    ? sh->m[0]
+		           : o->dim == D_CELL2 ? sh->m[1]
+		                               : sh->n;
+		int arr = o->dim == D_CELL    ? sh->m_arr[0]
+		          : o->dim == D_CELL2 ? sh->m_arr[1]
+		                              : sh->arr;
+		proto_w_vec(c, o->name, o->kind, v->v, n, v->n == 1 ? 0 : 1,
+		            arr);
+		break;
+	}
+	case PO_CUSTOM: o->write(c, o->name, args); break;
+	case PO_COUNT:
+		proto_w_int(c, o->name,
+		            (long long)(o->offset == 0   ? sh->n
+		                        : o->offset == 1 ? sh->m[0]
+		                                         : sh->m[1]));
+		break;
+	case PO_FLAGS: {
+		uint64_t f;
+		memcpy(&f, at, sizeof f);
+		proto_w_flags1(c, o->name, f);
+		break;
+	}
+	}
+}
+
+static void write_outputs(proto_call *c, const proto_method *m, const run *r)
+{
+	const proto_shape *sh = r->shape;
+
+	proto_w_obj_begin(c, NULL);
+	for (const proto_output *o = m->outputs; o->name; o++) {
+		if (o->when && !o->when(r->args))
+			continue;
+		if (o->type == PO_VEC) {
+			write_req(c, o, r->args, sh);
+			continue;
+		}
+		switch (o->dim) {
+		case D_SAMPLE:
+			if (o->type == PO_FLAGS)
+				proto_w_flag_rows(c, o->name, r->rows,
+				                  m->row_size, o->offset, sh->n,
+				                  sh->arr);
+			else if (o->type == PO_STR)
+				write_strings(c, o->name, r->rows, m->row_size,
+				              o->offset, sh->n, sh->arr);
+			else
+				proto_w_rows(c, o->name, o->kind, r->rows,
+				             m->row_size, o->offset, sh->n,
+				             sh->arr);
+			break;
+		case D_CELL:
+		case D_CELL2: write_grid(c, m, r, o, o->dim - D_CELL); break;
+		default: write_req(c, o, r->args, sh);
+		}
+	}
+}
+
+void proto__write_tail(proto_call *c)
+{
+	if (c->n_warnings) {
+		proto_w_arr_begin(c, "warnings");
+		for (size_t i = 0; i < c->n_warnings; i++)
+			proto_w_str(c, NULL, c->warnings[i]);
+		proto_w_arr_end(c);
+	}
+	proto_w_units(c);
+	proto_w_obj_end(c);
+}
+
+/* ---- the method --------------------------------------------------------- */
+
+int proto__run_method(proto_call *c)
+{
+	const proto_method *m = c->method;
+	proto_shape sh;
+	run r;
+	void *args;
+
+	for (int g = 0; g < PROTO_MAX_GROUPS; g++) {
+		c->group[g].n = 1;
+		c->group[g].any_array = 0;
+		c->group[g].from = "";
+	}
+	if (parse_fields(c))
+		return -1;
+	args = proto_alloc(c, m->params->size);
+	if (!args)
+		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
+		                  "out of memory");
+	c->args = args;
+	if (m->flags & PM_RAW_PARAMS) {
+		assert(m->body);
+		return m->body(c, args);
+	}
+	if (proto_decl_parse(c, m->params, c->params, "", args))
+		return -1;
+	if (m->body)
+		return m->body(c, args);
+	assert(m->kernel && m->outputs);
+	memset(&sh, 0, sizeof sh);
+	sh.n = c->group[0].n;
+	sh.arr = c->group[0].any_array;
+	for (int k = 0; k < 2; k++) {
+		if (!m->cells[k].kernel)
+			continue;
+		sh.m[k] = c->group[m->cells[k].group].n;
+		sh.m_arr[k] = c->group[m->cells[k].group].any_array;
+	}
+	if (m->prepare && m->prepare(c, args, &sh))
+		return -1;
+	{
+		size_t cells = sh.m[0] + sh.m[1];
+		size_t per = cells ? cells : 1;
+		if (sh.n && per > SIZE_MAX / sh.n)
+			return proto_fail(c, PROTO_LIMIT_EXCEEDED, NULL,
+			                  "the request's size overflows");
+		if (proto_check_size(c, sh.n, sh.n * per))
+			return -1;
+	}
+	memset(&r, 0, sizeof r);
+	r.c = c;
+	r.m = m;
+	r.args = args;
+	r.shape = &sh;
+	r.rows = sh.n <= SIZE_MAX / (m->row_size ? m->row_size : 1)
+	             ? proto_alloc(c, sh.n * m->row_size)
+	             : NULL;
+	if (!r.rows)
+		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
+		                  "out of memory for %zu samples", sh.n);
+	for (int k = 0; k < 2; k++) {
+		size_t cells = sh.n * sh.m[k];
+		if (!m->cells[k].kernel)
+			continue;
+		r.cells[k] = cells <= SIZE_MAX / m->cells[k].row_size
+		                 ? proto_alloc(c, (cells ? cells : 1) *
+		                                      m->cells[k].row_size)
+		                 : NULL;
+		if (!r.cells[k])
+			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
+			                  "out of memory for %zu cells", cells);
+	}
+	if (run_samples(&r))
+		return -1;
+	write_outputs(c, m, &r);
+	proto__write_tail(c);
+	return 0;
+}

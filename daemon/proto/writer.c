@@ -1,0 +1,383 @@
+/* The result writer: a method writes one JSON value (normally its result
+ * object) through these calls, straight into the output buffer. Numeric
+ * arrays are formatted one number at a time, never as cJSON nodes; values
+ * are converted from internal units to the call's units, non-finite
+ * numbers become null, and every member with a dimension is noted for the
+ * closing "units" map. Members of the result object that the request's
+ * `fields` leaves out are skipped here, for every method at once. */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "proto/internal.h"
+
+size_t proto_fmt_double(char *buf, double v)
+{
+	int n;
+
+	if (!isfinite(v)) {
+		memcpy(buf, "null", 5);
+		return 4;
+	}
+	if (v == 0) {
+		memcpy(buf, "0", 2);
+		return 1;
+	}
+	/* Integers that a double holds exactly print without exponent. */
+	if (fabs(v) < 9007199254740992.0 && v == (double)(long long)v) {
+		n = snprintf(buf, 32, "%lld", (long long)v);
+		return (size_t)n;
+	}
+	/* 15 significant digits: beyond any measured quantity, and free of
+	 * the binary noise that 17 digits show after unit conversions
+	 * (100 us/ft in, 100.00000000000001 out). */
+	n = snprintf(buf, 32, "%.15g", v);
+	return (size_t)n;
+}
+
+/* ---- result writer ------------------------------------------------------ */
+
+int proto_w_selected(const proto_call *c, const char *key)
+{
+	if (!c->fields || !key)
+		return 1;
+	for (size_t i = 0; i < c->n_fields; i++)
+		if (strcmp(c->fields[i], key) == 0)
+			return 1;
+	return 0;
+}
+
+/* 1 when a value written now with `key` must be dropped: inside a member
+ * being skipped, or a result member `fields` leaves out. */
+static int w_skip(proto_call *c, const char *key)
+{
+	if (c->skip_depth)
+		return 1;
+	if (c->depth == 1 && !c->key_pending)
+		return !proto_w_selected(c, key);
+	return 0;
+}
+
+static void w_sep(proto_call *c, const char *key)
+{
+	int d = c->depth;
+	if (c->key_pending) {
+		/* proto_w_key wrote the separator and the key already. */
+		c->key_pending = 0;
+		return;
+	}
+	assert(d >= 0 && d < PROTO_W_DEPTH);
+	if (d > 0 && d < PROTO_W_DEPTH) {
+		if (c->need_comma[d])
+			proto_buf_append(c->out, ",", 1);
+		c->need_comma[d] = 1;
+	}
+	if (key) {
+		proto__buf_json_string(c->out, key);
+		proto_buf_append(c->out, ":", 1);
+	}
+}
+
+static void w_open(proto_call *c, const char *key, char ch)
+{
+	int d = c->depth + 1;
+	const char *pending = c->key_pending ? c->pending_key : NULL;
+
+	if (c->skip_depth || w_skip(c, key)) {
+		/* Count the levels of the skipped member so that its ends
+		 * are skipped too. */
+		c->skip_depth++;
+		return;
+	}
+	w_sep(c, key);
+	proto_buf_append(c->out, &ch, 1);
+	assert(d < PROTO_W_DEPTH);
+	if (d < PROTO_W_DEPTH) {
+		c->need_comma[d] = 0;
+		/* The path of an array element is its array's path. */
+		c->keys[d] = key ? key : pending ? pending : c->keys[d - 1];
+	}
+	c->depth = d;
+}
+
+static void w_close(proto_call *c, char ch)
+{
+	if (c->skip_depth) {
+		c->skip_depth--;
+		return;
+	}
+	assert(c->depth > 0);
+	c->depth--;
+	proto_buf_append(c->out, &ch, 1);
+}
+
+/* Records that the value at key (inside the open objects) has kind k, for
+ * the "units" member. Paths are dotted: "fluid_new.k". */
+static void note_unit(proto_call *c, const char *key, proto_kind k)
+{
+	char path[160];
+	size_t used = 0;
+	int top = c->depth < PROTO_W_DEPTH ? c->depth : PROTO_W_DEPTH - 1;
+
+	if (k == PK_NONE)
+		return;
+	if (!key)
+		key = c->keys[top];
+	path[0] = '\0';
+	/* keys[1] is the result object itself (no name). */
+	for (int d = 2; d <= top; d++) {
+		const char *seg = c->keys[d];
+		if (!seg || (d > 2 && c->keys[d - 1] == seg))
+			continue;
+		used += (size_t)snprintf(path + used, sizeof path - used, "%s.",
+		                         seg);
+		if (used >= sizeof path)
+			return;
+	}
+	if (key && !(top >= 2 && c->keys[top] == key))
+		snprintf(path + used, sizeof path - used, "%s", key);
+	else if (used)
+		path[used - 1] = '\0';
+	if (!path[0])
+		return;
+	for (size_t i = 0; i < c->n_unit_notes; i++)
+		if (strcmp(c->unit_notes[i].path, path) == 0)
+			return;
+	if (c->n_unit_notes == c->cap_unit_notes) {
+		size_t cap = c->cap_unit_notes ? 2 * c->cap_unit_notes : 32;
+		proto_unit_note *n = proto_alloc(c, cap * sizeof *n);
+		if (!n) {
+			c->out->oom = 1;
+			return;
+		}
+		if (c->n_unit_notes)
+			memcpy(n, c->unit_notes, c->n_unit_notes * sizeof *n);
+		c->unit_notes = n;
+		c->cap_unit_notes = cap;
+	}
+	char *copy = proto_strdup(c, path);
+	if (!copy) {
+		c->out->oom = 1;
+		return;
+	}
+	c->unit_notes[c->n_unit_notes].path = copy;
+	c->unit_notes[c->n_unit_notes].kind = k;
+	c->n_unit_notes++;
+}
+
+void proto_w_obj_begin(proto_call *c, const char *key)
+{
+	w_open(c, key, '{');
+}
+
+void proto_w_arr_begin(proto_call *c, const char *key)
+{
+	w_open(c, key, '[');
+}
+
+void proto_w_obj_end(proto_call *c)
+{
+	w_close(c, '}');
+}
+
+void proto_w_arr_end(proto_call *c)
+{
+	w_close(c, ']');
+}
+
+void proto_w_key(proto_call *c, const char *key)
+{
+	assert(!c->key_pending);
+	if (w_skip(c, key)) {
+		/* The value that follows is dropped with its key. */
+		c->skip_depth++;
+		c->key_pending = 2;
+		return;
+	}
+	w_sep(c, key);
+	c->key_pending = 1;
+	c->pending_key = key;
+}
+
+/* For a skipped proto_w_key, the value ends the skip. Returns 1 when the
+ * value must be dropped. */
+static int w_value_skip(proto_call *c, const char *key)
+{
+	if (c->key_pending == 2) {
+		c->key_pending = 0;
+		c->skip_depth--;
+		return 1;
+	}
+	return w_skip(c, key);
+}
+
+static void w_number(proto_call *c, proto_kind k, double v)
+{
+	char tmp[40];
+	size_t n;
+
+	if (k != PK_NONE)
+		v = proto_from_internal(&c->units, k, v);
+	n = proto_fmt_double(tmp, v);
+	proto_buf_append(c->out, tmp, n);
+}
+
+void proto_w_num(proto_call *c, const char *key, proto_kind k, double v)
+{
+	const char *pk = c->key_pending ? c->pending_key : NULL;
+	if (w_value_skip(c, key))
+		return;
+	note_unit(c, key ? key : pk, k);
+	w_sep(c, key);
+	w_number(c, k, v);
+}
+
+void proto_w_int(proto_call *c, const char *key, long long v)
+{
+	char tmp[32];
+	int n;
+	if (w_value_skip(c, key))
+		return;
+	n = snprintf(tmp, sizeof tmp, "%lld", v);
+	w_sep(c, key);
+	proto_buf_append(c->out, tmp, (size_t)n);
+}
+
+void proto_w_flags1(proto_call *c, const char *key, uint64_t v)
+{
+	char tmp[32];
+	int n;
+	if (w_value_skip(c, key))
+		return;
+	n = snprintf(tmp, sizeof tmp, "%llu", (unsigned long long)v);
+	w_sep(c, key);
+	proto_buf_append(c->out, tmp, (size_t)n);
+}
+
+void proto_w_str(proto_call *c, const char *key, const char *s)
+{
+	if (w_value_skip(c, key))
+		return;
+	w_sep(c, key);
+	proto__buf_json_string(c->out, s);
+}
+
+void proto_w_bool(proto_call *c, const char *key, int v)
+{
+	if (w_value_skip(c, key))
+		return;
+	w_sep(c, key);
+	proto_buf_append(c->out, v ? "true" : "false", v ? 4 : 5);
+}
+
+void proto_w_null(proto_call *c, const char *key)
+{
+	if (w_value_skip(c, key))
+		return;
+	w_sep(c, key);
+	proto_buf_append(c->out, "null", 4);
+}
+
+void proto_w_raw(proto_call *c, const char *key, const char *json, size_t n)
+{
+	if (w_value_skip(c, key))
+		return;
+	w_sep(c, key);
+	proto_buf_append(c->out, json, n);
+}
+
+void proto_w_json(proto_call *c, const char *key, const cJSON *v)
+{
+	char *s = cJSON_PrintUnformatted(v);
+	if (!s) {
+		c->out->oom = 1;
+		return;
+	}
+	proto_w_raw(c, key, s, strlen(s));
+	cJSON_free(s);
+}
+
+void proto_w_rows(proto_call *c, const char *key, proto_kind k,
+                  const void *rows, size_t row_size, size_t offset, size_t n,
+                  int as_array)
+{
+	const unsigned char *base = (const unsigned char *)rows + offset;
+	char tmp[40];
+	double v;
+
+	if (!as_array) {
+		v = NAN;
+		if (n)
+			memcpy(&v, base, sizeof v);
+		proto_w_num(c, key, k, v);
+		return;
+	}
+	if (w_value_skip(c, key))
+		return;
+	note_unit(c, key ? key : c->key_pending ? c->pending_key : NULL, k);
+	w_sep(c, key);
+	/* Reserve roughly: 25 bytes per number is the worst case. */
+	if (n < SIZE_MAX / 26)
+		proto_buf_reserve(c->out, n * 25 + 2);
+	proto_buf_append(c->out, "[", 1);
+	for (size_t i = 0; i < n; i++) {
+		size_t len;
+		memcpy(&v, base + i * row_size, sizeof v);
+		if (k != PK_NONE)
+			v = proto_from_internal(&c->units, k, v);
+		len = proto_fmt_double(tmp + 1, v);
+		if (i) {
+			tmp[0] = ',';
+			proto_buf_append(c->out, tmp, len + 1);
+		} else {
+			proto_buf_append(c->out, tmp + 1, len);
+		}
+	}
+	proto_buf_append(c->out, "]", 1);
+}
+
+void proto_w_vec(proto_call *c, const char *key, proto_kind k,
+                 const double *values, size_t n, size_t stride, int as_array)
+{
+	proto_w_rows(c, key, k, values, stride * sizeof *values, 0, n,
+	             as_array);
+}
+
+void proto_w_flag_rows(proto_call *c, const char *key, const void *rows,
+                       size_t row_size, size_t offset, size_t n, int as_array)
+{
+	const unsigned char *base = (const unsigned char *)rows + offset;
+	char tmp[32];
+	uint64_t f = 0;
+
+	if (!as_array) {
+		if (n)
+			memcpy(&f, base, sizeof f);
+		proto_w_flags1(c, key, f);
+		return;
+	}
+	if (w_value_skip(c, key))
+		return;
+	w_sep(c, key);
+	if (n < SIZE_MAX / 12)
+		proto_buf_reserve(c->out, n * 11 + 2);
+	proto_buf_append(c->out, "[", 1);
+	for (size_t i = 0; i < n; i++) {
+		int len;
+		memcpy(&f, base + i * row_size, sizeof f);
+		len = snprintf(tmp, sizeof tmp, i ? ",%llu" : "%llu",
+		               (unsigned long long)f);
+		proto_buf_append(c->out, tmp, (size_t)len);
+	}
+	proto_buf_append(c->out, "]", 1);
+}
+
+void proto_w_units(proto_call *c)
+{
+	proto_w_obj_begin(c, "units");
+	for (size_t i = 0; i < c->n_unit_notes; i++)
+		proto_w_str(c, c->unit_notes[i].path,
+		            proto_unit_name(&c->units, c->unit_notes[i].kind));
+	proto_w_obj_end(c);
+}

@@ -1,0 +1,359 @@
+/* Pressures and stresses while drilling, for the rockwire compute core:
+ * overburden (vertical stress) from bulk density, hydrostatic pressure,
+ * the normal compaction trend of sonic slowness, pore pressure after
+ * Eaton 1975 and Bowers 1995, the minimum horizontal stress (fracture
+ * gradient) after Eaton 1969, Matthews & Kelly 1967 and the poroelastic
+ * uniaxial-strain model, and equivalent-mud-weight conversions.
+ *
+ * SCREENING ESTIMATES ONLY. Results may feed drilling decisions but are
+ * never the sole basis for mud-weight, casing or well-control decisions:
+ * those belong to qualified people under the operator's procedures, local
+ * regulations and licensed practice. Every extrapolation is flagged per
+ * sample (RW_PRES_WARN_*); protocol-docs/pressure.md says what each method
+ * cannot see.
+ *
+ * Conventions at this API:
+ * - SI units: Pa, kg/m^3, m, s/m, m/s. Pressures and stresses are gauge
+ *   (relative to the atmosphere), the drilling convention; the Batzle &
+ *   Wang brine is evaluated at gauge + RW_PRES_P_ATM.
+ * - Depth z is true vertical depth (TVD) in metres below the depth datum,
+ *   the drill floor (rotary table / kelly bushing). The air gap is the
+ *   datum's height above sea level (offshore) or above ground level (on
+ *   land); the water depth is sea level to mudline (0 on land). Below the
+ *   mudline, z_bml = z - air_gap - water_depth. Gradients and equivalent
+ *   mud weights are referred to the datum: value / (g z).
+ * - Functions return RW_OK or an RW_E* status (rockwire/status.h), write
+ *   NaN outputs on failure, and write a bit set of RW_PRES_WARN_* to *warn
+ *   (NULL allowed; the set is overwritten, not OR-ed). A warning never
+ *   changes a result: values are reported, not clipped.
+ * - Per-sample functions allocate nothing. The trend fit and the brine
+ *   hydrostatic integration take a workspace the caller creates once with
+ *   its _new and releases with its _free. Every function is reentrant; a
+ *   workspace or a state must not be shared between threads. */
+#ifndef ROCKWIRE_PRESSURE_H
+#define ROCKWIRE_PRESSURE_H
+
+#include <stddef.h>
+
+#include "rockwire/status.h"
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* ---- constants and conversion factors --------------------------------- */
+
+/* Standard acceleration of gravity, m/s^2 (3rd CGPM 1901; exact by
+ * definition). */
+#define RW_PRES_G0 9.80665
+/* International foot and inch, m, and avoirdupois pound, kg (1959
+ * international yard and pound agreement; exact by definition). */
+#define RW_PRES_FT_M  0.3048
+#define RW_PRES_IN_M  0.0254
+#define RW_PRES_LB_KG 0.45359237
+/* Pound-force per square inch, Pa: 1 lbf = 0.45359237 kg x 9.80665 m/s^2
+ * on 0.0254^2 m^2 (exact; 6894.757293168...). */
+#define RW_PRES_PSI_PA                                                         \
+	(RW_PRES_LB_KG * RW_PRES_G0 / (RW_PRES_IN_M * RW_PRES_IN_M))
+/* US liquid gallon, m^3: 231 in^3 exactly (3.785411784 L). */
+#define RW_PRES_GAL_M3 (231.0 * RW_PRES_IN_M * RW_PRES_IN_M * RW_PRES_IN_M)
+/* 1 lb/gal (ppg) in kg/m^3: 0.45359237 / 3.785411784e-3 = 119.826427...;
+ * so 1 g/cm^3 = 8.3454 lb/gal (8.345 is the common-practice figure). */
+#define RW_PRES_PPG_KGM3 (RW_PRES_LB_KG / RW_PRES_GAL_M3)
+/* 1 psi/ft in Pa/m (22620.59...); fresh water at 1000 kg/m^3 and g0 is
+ * 0.43352 psi/ft (0.433 psi/ft is the common-practice figure). */
+#define RW_PRES_PSIFT_PAM (RW_PRES_PSI_PA / RW_PRES_FT_M)
+/* Standard atmosphere, Pa (exact by definition). */
+#define RW_PRES_P_ATM 101325.0
+/* Fresh water, kg/m^3 (common practice; IAPWS-95 gives 999.97 at 4 degC
+ * and 998.2 at 20 degC, 0.1 MPa). */
+#define RW_PRES_RHO_FRESH 1000.0
+/* Sea water, kg/m^3 (common practice; IAPWS-08 seawater of 35.165 g/kg is
+ * 1027.0 at 10 degC, 0.1 MPa, and about 1024-1028 over 0-25 degC). */
+#define RW_PRES_RHO_SEA 1025.0
+
+/* Default shallow-density power law below the mudline (see
+ * rw_pres_column): rho = rho_ml + A (z_bml / s0)^p with rho_ml 16.3 lb/gal,
+ * A 1 lb/gal, s0 3125 ft, p 0.6. A form common in practice for young
+ * clastic shelf sediments; the coefficients are from memory and are not
+ * calibrated to any basin. In deep water, mudline densities are often much
+ * lower (about 1.4-1.7 g/cm^3, from memory) and this default then
+ * overstates the shallow overburden: calibrate it. No cap by default. */
+#define RW_PRES_SHALLOW_RHO_ML (16.3 * RW_PRES_PPG_KGM3)
+#define RW_PRES_SHALLOW_A      (1.0 * RW_PRES_PPG_KGM3)
+#define RW_PRES_SHALLOW_S0     (3125.0 * RW_PRES_FT_M)
+#define RW_PRES_SHALLOW_P      0.6
+
+/* Slowness below which a compaction trend is faster than any common rock
+ * matrix (dolomite is about 43.5 us/ft = 7000 m/s; common practice): the
+ * trend is then not a shale compaction trend. s/m. */
+#define RW_PRES_DT_FASTEST (1.0 / 7000.0)
+
+/* ---- warning bits (a set; 0 = nothing to report) ---------------------- */
+
+#define RW_PRES_WARN_ABOVE_MUDLINE                                             \
+	0x00001u /* sample at or above the mudline: the value is the air or    \
+	          * water column, not formation */
+#define RW_PRES_WARN_OBG_TREND                                                 \
+	0x00002u /* overburden over this step from the shallow density trend   \
+	          * (no log density yet): extrapolated */
+#define RW_PRES_WARN_RHO_HELD                                                  \
+	0x00004u /* density missing here: the last valid density was held      \
+	          * over this step */
+#define RW_PRES_WARN_DEPTH_REPEAT                                              \
+	0x00008u /* depth equal to the previous sample: the previous value is  \
+	          * repeated and the state is unchanged */
+#define RW_PRES_WARN_RESUMED                                                   \
+	0x00010u /* the running integral was resumed from a given value,       \
+	          * which the core cannot check */
+#define RW_PRES_WARN_FLUID_RANGE                                               \
+	0x00020u /* the brine correlation (Batzle & Wang 1992) was used        \
+	          * outside its fitted range in this step */
+#define RW_PRES_WARN_TREND_EXTRAPOLATED                                        \
+	0x00040u /* depth outside the depth span the trend was fitted on */
+#define RW_PRES_WARN_TREND_NORANGE                                             \
+	0x00080u /* the trend was given without a depth span: its validity     \
+	          * here is unknown */
+#define RW_PRES_WARN_TREND_FAST                                                \
+	0x00100u /* trend slowness below RW_PRES_DT_FASTEST: faster than any   \
+	          * common matrix, not a compaction trend */
+#define RW_PRES_WARN_PP_BELOW_HYDRO                                            \
+	0x00200u /* pore pressure below hydrostatic (reported, not clipped)    \
+	          */
+#define RW_PRES_WARN_PP_AT_SV                                                  \
+	0x00400u /* pore pressure at or above the overburden: no effective     \
+	          * stress left (reported, not clipped) */
+#define RW_PRES_WARN_UNLOADING                                                 \
+	0x00800u /* Bowers unloading branch used at this sample */
+#define RW_PRES_WARN_FG_BELOW_PP                                               \
+	0x01000u /* horizontal stress below pore pressure (reported, not       \
+	          * clipped) */
+#define RW_PRES_WARN_FG_ABOVE_SV                                               \
+	0x02000u /* minimum horizontal stress above the overburden: not a      \
+	          * normal-faulting state; a fracture would open horizontally  \
+	          * at about the overburden */
+#define RW_PRES_WARN_NU_NONPOSITIVE                                            \
+	0x04000u /* Poisson's ratio <= 0: possible for a solid, implausible    \
+	          * for sedimentary rock */
+#define RW_PRES_WARN_HORIZ_SWAPPED                                             \
+	0x08000u /* the "maximum" horizontal stress came out below the         \
+	          * minimum (strains given in the wrong order?) */
+
+/* ---- geometry of the column above the log ----------------------------- */
+
+/* The column above the first log sample, and the depth datum (see the
+ * header paragraph). All members finite.
+ * air_gap_m >= 0; water_depth_m >= 0; rho_sea_kgm3 in (0, 2000];
+ * g_ms2 in [9.7, 9.9] (Earth's surface gravity spans about 9.780-9.832
+ * m/s^2; common practice);
+ * shallow density below the mudline, rho(s) = min(rho_cap,
+ * rho_ml + A (s / s0)^p) at s metres below the mudline (a power law of
+ * depth below the mudline, common practice): rho_ml_kgm3 in (0, 3500],
+ * rho_a_kgm3 >= 0 (0 gives the constant rho_ml), trend_s0_m > 0,
+ * trend_p in (0, 3], rho_cap_kgm3 >= rho_ml_kgm3 (+INFINITY for no cap;
+ * the only non-finite value accepted). */
+typedef struct rw_pres_column {
+	double air_gap_m;
+	double water_depth_m;
+	double rho_sea_kgm3;
+	double g_ms2;
+	double rho_ml_kgm3;
+	double rho_a_kgm3;
+	double trend_s0_m;
+	double trend_p;
+	double rho_cap_kgm3;
+} rw_pres_column;
+
+/* Fills *col with the defaults: air gap 0, water depth 0 (land),
+ * RW_PRES_RHO_SEA, RW_PRES_G0, the RW_PRES_SHALLOW_* power law, no cap.
+ * No errors. */
+void rw_pres_column_init(rw_pres_column *col);
+
+/* Checks every member of *col against the ranges above. On failure *field
+ * (may be NULL) receives the member's name without its unit suffix
+ * ("air_gap", "water_depth", "rho_sea", "g", "rho_ml", "rho_a",
+ * "trend_s0", "trend_p", "rho_cap"), else NULL.
+ * errors: RW_EDOM for a member out of range or not finite. */
+int rw_pres_column_check(const rw_pres_column *col, const char **field);
+
+/* Depth of the mudline below the datum, air gap + water depth, m. */
+double rw_pres_column_mudline(const rw_pres_column *col);
+
+/* Shallow-trend density at s_bml_m >= 0 metres below the mudline and its
+ * integral from the mudline, int_0^s rho ds (kg/m^2), in closed form:
+ * rho_ml s + A s0 (s/s0)^(p+1) / (p+1) below the cap depth
+ * s_c = s0 ((rho_cap - rho_ml)/A)^(1/p), plus rho_cap (s - s_c) beyond it.
+ * Either output may be NULL. col must pass rw_pres_column_check.
+ * errors: RW_EDOM for s < 0 or non-finite (outputs NaN). */
+int rw_pres_shallow_density(const rw_pres_column *col, double s_bml_m,
+                            double *rho_kgm3, double *int_kgm2);
+
+/* ---- overburden -------------------------------------------------------- */
+
+/* Running state of the overburden integral. Treat as opaque: create it
+ * with rw_pres_obg_init or rw_pres_obg_resume. z_m is the depth of the
+ * last sample integrated (the mudline at start), sv_pa the vertical
+ * stress there, rho_kgm3 the density carried into the next step (NaN
+ * until the first valid log density), sv_assumed_pa the part of sv_pa
+ * that this state integrated from assumed densities (shallow trend, held
+ * density), resumed non-zero after rw_pres_obg_resume. */
+typedef struct rw_pres_obg_state {
+	double z_m;
+	double sv_pa;
+	double rho_kgm3;
+	double sv_assumed_pa;
+	int resumed;
+} rw_pres_obg_state;
+
+/* One answered sample of the overburden. grad_pam is sv / z (Pa/m,
+ * referred to the datum; NaN at z = 0); sv_assumed_pa as in the state. */
+typedef struct rw_pres_obg_out {
+	double sv_pa;
+	double grad_pam;
+	double sv_assumed_pa;
+} rw_pres_obg_out;
+
+/* Starts the integral at the mudline: z = air gap + water depth,
+ * sv = rho_sea g water_depth, no log density yet.
+ * errors: RW_EDOM when col fails rw_pres_column_check (state NaN). */
+int rw_pres_obg_init(const rw_pres_column *col, rw_pres_obg_state *st);
+
+/* Starts the integral from a known vertical stress sv_pa at depth z_m
+ * (a restart of the feed). z_m >= the mudline depth; sv_pa finite and at
+ * least the water column rho_sea g water_depth; rho_kgm3 the density at
+ * z_m (finite and > 0), or NaN when unknown: the following steps then use
+ * the shallow trend until the next valid log density, as at the start.
+ * Every later answer carries RW_PRES_WARN_RESUMED.
+ * errors: RW_EDOM for col out of range or an argument out of range
+ * (state NaN). */
+int rw_pres_obg_resume(const rw_pres_column *col, double z_m, double sv_pa,
+                       double rho_kgm3, rw_pres_obg_state *st);
+
+/* Integrates the overburden to the sample (z_m, rho_kgm3) and answers it:
+ * Sv(z) = rho_sea g h_w + g int_{mudline}^{z} rho(z') dz'
+ * (the vertical stress of a laterally uniform column; e.g. Zoback 2007,
+ * Reservoir Geomechanics, sec. 1.2, from memory). Rules, the same in a
+ * batch and in a live feed (this is the only integrator):
+ * - before the first valid density the step follows the shallow trend in
+ *   closed form (RW_PRES_WARN_OBG_TREND), and so does the step that ends
+ *   at the first valid density: the log takes over from there, with no
+ *   blending;
+ * - between two valid densities, the trapezoidal rule on the log's own
+ *   samples, g (z - z_prev) (rho_prev + rho) / 2 (exact for density
+ *   linear in depth);
+ * - a missing density (NaN, infinite or <= 0) holds the last valid one
+ *   over the step, g (z - z_prev) rho_prev (RW_PRES_WARN_RHO_HELD): causal,
+ *   so a live feed can answer at once;
+ * - 0 <= z <= mudline while the state is still at the mudline: the air or
+ *   water column, rho_sea g max(0, z - air gap), without touching the
+ *   state (RW_PRES_WARN_ABOVE_MUDLINE);
+ * - z equal to the state's depth: the state's value again
+ *   (RW_PRES_WARN_DEPTH_REPEAT), state unchanged.
+ * On success the state advances to z; on error it is unchanged.
+ * errors: RW_EDOM for z < 0 or non-finite; RW_EINVAL for z shallower than
+ * the state's depth (the log must go down) or col out of range. */
+int rw_pres_obg_step(const rw_pres_column *col, rw_pres_obg_state *st,
+                     double z_m, double rho_kgm3, rw_pres_obg_out *out,
+                     unsigned *warn);
+
+/* Batch form: rw_pres_obg_init, then rw_pres_obg_step on each of the n
+ * samples in order, so a batch and a feed of the same samples agree
+ * exactly. out[i] and warn[i] (warn may be NULL) per sample; a sample
+ * whose step fails has NaN outputs and the integral carries on from the
+ * last good sample. status[i] (may be NULL) receives each step's status.
+ * Returns RW_OK, or RW_EDOM when col fails its check (all outputs NaN) or
+ * RW_EINVAL for n > 0 with a NULL array. */
+int rw_pres_obg_batch(const rw_pres_column *col, size_t n, const double *z_m,
+                      const double *rho_kgm3, rw_pres_obg_out *out,
+                      unsigned *warn, int *status);
+
+/* ---- hydrostatic pressure ---------------------------------------------- */
+
+/* Hydrostatic (normal) pore pressure at z_m for a pore water of constant
+ * density rho_w_kgm3 (in (0, 2000]; RW_PRES_RHO_FRESH is the common
+ * default; a gradient G in Pa/m is rho_w = G / g): the sea-water column
+ * down to the mudline and pore water below it,
+ * p = rho_sea g h_w + rho_w g (z - mudline); in the water column
+ * rho_sea g (z - air gap); 0 in the air gap
+ * (RW_PRES_WARN_ABOVE_MUDLINE for both). On land (h_w = 0) this is
+ * rho_w g (z - air gap): the column starts at ground level (a water table
+ * at the surface).
+ * errors: RW_EDOM for z < 0, non-finite z or rho_w out of range, or col
+ * out of range. */
+int rw_pres_hydro_const(const rw_pres_column *col, double z_m,
+                        double rho_w_kgm3, double *p_pa, unsigned *warn);
+
+/* Workspace of the brine hydrostatic integration (a GSL ODE driver).
+ * rw_pres_hydro_ws_new returns NULL when out of memory; the caller frees
+ * it with rw_pres_hydro_ws_free (NULL is a no-op). */
+typedef struct rw_pres_hydro_ws rw_pres_hydro_ws;
+rw_pres_hydro_ws *rw_pres_hydro_ws_new(void);
+void rw_pres_hydro_ws_free(rw_pres_hydro_ws *ws);
+
+/* Running state of the brine hydrostatic integral: depth, gauge pressure,
+ * temperature and salinity at the last sample. */
+typedef struct rw_pres_hydro_state {
+	double z_m;
+	double p_pa;
+	double t_degc;
+	double sal_frac;
+	int resumed;
+} rw_pres_hydro_state;
+
+/* Starts the brine integral at the mudline with p = rho_sea g h_w and the
+ * mudline temperature t_ml_degc (in [-22, 350]) and NaCl weight fraction
+ * sal_frac (in [0, 0.35]).
+ * errors: RW_EDOM for an argument or col out of range (state NaN). */
+int rw_pres_hydro_brine_init(const rw_pres_column *col, double t_ml_degc,
+                             double sal_frac, rw_pres_hydro_state *st);
+
+/* Starts the brine integral from a known gauge pressure p_pa >= 0 at
+ * z_m >= mudline, with the temperature and salinity there. Later answers
+ * carry RW_PRES_WARN_RESUMED.
+ * errors: RW_EDOM for an argument or col out of range (state NaN). */
+int rw_pres_hydro_brine_resume(const rw_pres_column *col, double z_m,
+                               double p_pa, double t_degc, double sal_frac,
+                               rw_pres_hydro_state *st);
+
+/* Hydrostatic pressure of a NaCl brine whose density follows Batzle &
+ * Wang 1992 (eq. 27b, rockwire/fluid.h) at the local pressure,
+ * temperature and salinity: integrates dp/dz = rho(p + p_atm, T(z), S(z)) g
+ * from the state's depth to z_m with GSL's adaptive Runge-Kutta-Fehlberg
+ * (4,5) driver (absolute tolerance 1e-3 Pa, relative 1e-10), T and S
+ * linear in depth between the state and this sample. rho_kgm3 (may be
+ * NULL) is the brine density at z_m. RW_PRES_WARN_FLUID_RANGE when the
+ * brine correlation was used outside its fitted range in the step (above
+ * 100 degC or 100 MPa, or salinity above 0.30; rockwire/fluid.h). Samples
+ * at or above the mudline and repeated depths follow the same rules as
+ * rw_pres_obg_step. On success the state advances; on error it is
+ * unchanged.
+ * errors: RW_EDOM for z, t_degc (in [-22, 350]) or sal_frac (in
+ * [0, 0.35]) out of range or non-finite, or when the brine correlation has
+ * no value in the step; RW_EINVAL for z above the state's depth, a NULL
+ * workspace or col out of range; RW_EMAXITER when the ODE driver fails. */
+int rw_pres_hydro_brine_step(rw_pres_hydro_ws *ws, const rw_pres_column *col,
+                             rw_pres_hydro_state *st, double z_m, double t_degc,
+                             double sal_frac, double *p_pa, double *rho_kgm3,
+                             unsigned *warn);
+
+/* ---- equivalent mud weight --------------------------------------------- */
+
+/* Equivalent mud weight of a pressure or stress p_pa at depth z_m below
+ * the datum: rho = p / (g z) in kg/m^3 (divide by 1000 for g/cm^3 = SG,
+ * by RW_PRES_PPG_KGM3 for lb/gal); the gradient p / z in Pa/m (divide by
+ * RW_PRES_PSIFT_PAM for psi/ft). Either output may be NULL. g_ms2 in
+ * [9.7, 9.9].
+ * errors: RW_EDOM for z <= 0, g out of range or non-finite p. */
+int rw_pres_emw(double p_pa, double z_m, double g_ms2, double *rho_kgm3,
+                double *grad_pam);
+
+/* The pressure of a mud weight rho_kgm3 (> 0) at depth z_m (>= 0):
+ * p = rho g z, Pa.
+ * errors: RW_EDOM for an argument out of range or non-finite. */
+int rw_pres_from_emw(double rho_kgm3, double z_m, double g_ms2, double *p_pa);
+
+#ifdef __cplusplus
+}
+#endif
+
+#endif

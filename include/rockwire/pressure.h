@@ -352,6 +352,107 @@ int rw_pres_emw(double p_pa, double z_m, double g_ms2, double *rho_kgm3,
  * errors: RW_EDOM for an argument out of range or non-finite. */
 int rw_pres_from_emw(double rho_kgm3, double z_m, double g_ms2, double *p_pa);
 
+/* ---- normal compaction trend ------------------------------------------- */
+
+/* Forms of the trend of shale sonic slowness with depth s below the
+ * mudline:
+ * RW_PRES_TREND_EXP:    dt(s) = dt_ma + (dt_ml - dt_ma) exp(-c s), the
+ *   exponential porosity decline of Athy 1930 (phi = phi_0 exp(-c s);
+ *   AAPG Bull. 14, from memory) carried through the Wyllie et al. 1956
+ *   time average, which makes dt - dt_ma proportional to phi; dt_ma the
+ *   deep (matrix) limit, dt_ml the slowness at the mudline.
+ * RW_PRES_TREND_LOGLIN: dt(s) = dt_ml exp(-c s), a straight line of
+ *   log slowness against depth (common practice). It has no matrix limit
+ *   and runs below any matrix slowness at depth (RW_PRES_WARN_TREND_FAST).
+ */
+enum { RW_PRES_TREND_EXP = 0, RW_PRES_TREND_LOGLIN = 1 };
+
+/* A trend, fitted (rw_pres_trend_fit) or given (rw_pres_trend_given).
+ * Slownesses in s/m, c in 1/m, depths in m below the mudline.
+ * cov: covariance of (dt_ma, dt_ml, c) in SI units from the fit (for
+ *   LOGLIN row and column 0 are NaN); all NaN for a given trend.
+ * rms_sm: root-mean-square slowness residual of the fitted samples.
+ * s_min_m, s_max_m: depth span of the fitted samples (given: as set by
+ *   the caller, NaN when not known).
+ * n_used: samples in the fit (0 for a given trend). */
+typedef struct rw_pres_trend {
+	int form;
+	double dt_ma_sm;
+	double dt_ml_sm;
+	double c_per_m;
+	double cov[3][3];
+	double rms_sm;
+	double s_min_m;
+	double s_max_m;
+	size_t n_used;
+} rw_pres_trend;
+
+/* Builds a given trend. form RW_PRES_TREND_EXP needs
+ * 0 < dt_ma < dt_ml, c > 0; LOGLIN ignores dt_ma (stored NaN) and needs
+ * dt_ml > 0, c > 0. s_min_m <= s_max_m, both >= 0, or both NaN (span not
+ * known: every evaluation is flagged RW_PRES_WARN_TREND_NORANGE).
+ * errors: RW_EINVAL for an unknown form; RW_EDOM for an argument out of
+ * range (trend NaN). */
+int rw_pres_trend_given(int form, double dt_ma_sm, double dt_ml_sm,
+                        double c_per_m, double s_min_m, double s_max_m,
+                        rw_pres_trend *t);
+
+/* Marks the samples of a log to fit the trend on: use[i] = 1 when depth
+ * z_m[i] lies in one of the n_int closed intervals [top_m[k], base_m[k]]
+ * (TVD below the datum, top <= base; the user's normally pressured
+ * intervals; n_int = 0 means the whole log), dt_sm[i] is finite and
+ * > 0, exclude[i] is 0 (exclude may be NULL; e.g. washouts), and, when
+ * vsh is not NULL, vsh[i] is finite and >= vsh_min (the shale selector;
+ * vsh from GR as the caller computes it). *n_use (may be NULL) counts the
+ * marked samples.
+ * errors: RW_EINVAL for NULL arrays with n > 0 (or n_int > 0), RW_EDOM
+ * for an interval with top > base or non-finite bounds, or vsh_min
+ * outside [0, 1] when vsh is given (use[] all 0). */
+int rw_pres_trend_select(size_t n, const double *z_m, const double *dt_sm,
+                         const double *vsh, double vsh_min,
+                         const unsigned char *exclude, size_t n_int,
+                         const double *top_m, const double *base_m,
+                         unsigned char *use, size_t *n_use);
+
+/* Workspace of the trend fit for up to n_max samples (a GSL nonlinear
+ * least-squares workspace and scratch arrays). Returns NULL for n_max < 4
+ * or when out of memory; free with rw_pres_trend_ws_free (NULL is a
+ * no-op). */
+typedef struct rw_pres_trend_ws rw_pres_trend_ws;
+rw_pres_trend_ws *rw_pres_trend_ws_new(size_t n_max);
+void rw_pres_trend_ws_free(rw_pres_trend_ws *ws);
+
+/* Least-squares fit of a trend to the samples with use[i] != 0 (use may
+ * be NULL: all samples), s_bml_m[i] depth below the mudline (>= 0),
+ * dt_sm[i] slowness (> 0).
+ * EXP: minimises sum (dt_i - dt(s_i))^2 over (dt_ma, dt_ml, c): a scan of
+ *   c on a log grid (1e-6 to 1e-1 per m) with the linear sub-problem
+ *   solved exactly (gsl_fit_linear) picks the start, GSL's
+ *   Levenberg-Marquardt (gsl_multifit_nlinear) polishes it; covariance
+ *   s^2 (J^T J)^-1 with s^2 = RSS / (m - 3) at the optimum.
+ * LOGLIN: ordinary least squares of ln dt on s (gsl_fit_linear), the
+ *   covariance of (ln dt_ml, -c) carried to (dt_ml, c) to first order.
+ * Needs at least 4 (EXP) or 3 (LOGLIN) samples and a depth span > 0.
+ * errors: RW_EINVAL for an unknown form, NULL arguments, more samples than
+ * the workspace holds, too few samples or no depth span; RW_EDOM for a
+ * used sample with s < 0, dt <= 0 or non-finite values; RW_ERANGE when
+ * the optimum is not a compaction trend (dt_ml <= dt_ma, c outside
+ * [1e-6, 0.1] per m, dt_ma <= 0) or the covariance is singular;
+ * RW_EMAXITER when the solver does not converge. Trend NaN on error. */
+int rw_pres_trend_fit(rw_pres_trend_ws *ws, int form, size_t n,
+                      const double *s_bml_m, const double *dt_sm,
+                      const unsigned char *use, rw_pres_trend *t);
+
+/* Slowness of the trend at s_bml_m >= 0 below the mudline, and its
+ * standard error sigma_sm (may be NULL) from the fit's covariance to
+ * first order, sqrt(J C J^T) (NaN for a given trend). Warnings:
+ * TREND_EXTRAPOLATED (s outside [s_min, s_max]), TREND_NORANGE, and
+ * TREND_FAST.
+ * errors: RW_EDOM for s < 0 or non-finite; RW_EINVAL for a trend with an
+ * unknown form or non-finite parameters. */
+int rw_pres_trend_eval(const rw_pres_trend *t, double s_bml_m, double *dt_sm,
+                       double *sigma_sm, unsigned *warn);
+
 #ifdef __cplusplus
 }
 #endif

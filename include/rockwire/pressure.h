@@ -453,6 +453,81 @@ int rw_pres_trend_fit(rw_pres_trend_ws *ws, int form, size_t n,
 int rw_pres_trend_eval(const rw_pres_trend *t, double s_bml_m, double *dt_sm,
                        double *sigma_sm, unsigned *warn);
 
+/* ---- pore pressure ------------------------------------------------------ */
+
+/* Eaton 1975 sonic method (SPE 5544, from memory):
+ * pp = sv - (sv - ph) (dt_n / dt)^n, with the effective stress
+ * sigma_pa = (sv - ph) (dt_n / dt)^n (may be NULL). sv_pa >= ph_pa >= 0
+ * finite (overburden and hydrostatic at the sample); dt_sm > 0 the shale
+ * slowness, dt_n_sm > 0 the normal-trend slowness there; exponent in
+ * (0, 10] (3 is the usual sonic value, from memory). Slowness on the trend
+ * gives pp = ph exactly. Warnings: PP_BELOW_HYDRO (dt < dt_n), PP_AT_SV
+ * (no effective stress: sv = ph).
+ * The method assumes a shale whose slowness departs from its trend only
+ * through undercompaction; it cannot see unloading, lateral transfer or
+ * non-shale rock (protocol-docs/pressure.md).
+ * errors: RW_EDOM for an argument out of range or non-finite (outputs
+ * NaN). */
+int rw_pres_pore_eaton(double sv_pa, double ph_pa, double dt_sm, double dt_n_sm,
+                       double exponent, double *pp_pa, double *sigma_pa,
+                       unsigned *warn);
+
+/* Bowers 1995 velocity-effective-stress relation (SPE Drilling &
+ * Completion 10(2), from memory), with sigma in MPa in the formulas:
+ * virgin (loading) curve v = v0 + A sigma^B;
+ * unloading curve v = v0 + A (sigma_max (sigma / sigma_max)^(1/U))^B for
+ * sigma <= sigma_max, joining the virgin curve at sigma_max.
+ * v0_ms > 0 (about 1524 m/s = 5000 ft/s is usual, from memory), a_ms > 0
+ * (A in m/s per MPa^B; rw_pres_bowers_a_from_field converts from
+ * ft/s per psi^B), b in (0, 2], u >= 1 (1: no hysteresis), sigma_max_pa
+ * > 0 for the unloading branch or NaN for the virgin curve only. */
+typedef struct rw_pres_bowers {
+	double v0_ms;
+	double a_ms;
+	double b;
+	double u;
+	double sigma_max_pa;
+} rw_pres_bowers;
+
+/* A in m/s per MPa^B from A in ft/s per psi^B:
+ * A_SI = 0.3048 A_field (1e6 / RW_PRES_PSI_PA)^B. NaN for non-finite
+ * input. */
+double rw_pres_bowers_a_from_field(double a_ftps_psib, double b);
+
+/* sigma_max from the velocity v_max_ms at the onset of unloading, on the
+ * virgin curve: sigma_max = ((v_max - v0) / A)^(1/B) MPa (Bowers 1995).
+ * The v0, a_ms and b of *bw are used.
+ * errors: RW_EDOM for parameters out of range or v_max <= v0. */
+int rw_pres_bowers_sigma_max(const rw_pres_bowers *bw, double v_max_ms,
+                             double *sigma_max_pa);
+
+/* Velocity at effective stress sigma_pa >= 0 on the curve chosen by
+ * unloading (0: virgin; non-zero: the unloading curve below sigma_max,
+ * the virgin curve above it).
+ * errors: RW_EDOM for parameters or sigma out of range (an unloading
+ * request with sigma_max NaN is out of range). */
+int rw_pres_bowers_velocity(const rw_pres_bowers *bw, int unloading,
+                            double sigma_pa, double *v_ms);
+
+/* Effective stress from velocity, the inverse of rw_pres_bowers_velocity:
+ * virgin sigma = ((v - v0)/A)^(1/B); unloading (when asked and v below
+ * the virgin velocity at sigma_max) sigma = sigma_max^(1-U)
+ * ((v - v0)/A)^(U/B) (RW_PRES_WARN_UNLOADING).
+ * errors: RW_EDOM for parameters out of range or non-finite v;
+ * RW_ERANGE for v <= v0 (no positive effective stress on the curve). */
+int rw_pres_bowers_sigma(const rw_pres_bowers *bw, int unloading, double v_ms,
+                         double *sigma_pa, unsigned *warn);
+
+/* Bowers pore pressure pp = sv - sigma(v). sv_pa >= 0; ph_pa the
+ * hydrostatic pressure (>= 0) for the PP_BELOW_HYDRO check, or NaN to
+ * skip it; sigma_pa may be NULL. Warnings: UNLOADING, PP_BELOW_HYDRO,
+ * PP_AT_SV (never for v > v0: sigma > 0).
+ * errors: as rw_pres_bowers_sigma, plus RW_EDOM for sv or ph out of
+ * range. */
+int rw_pres_pore_bowers(const rw_pres_bowers *bw, int unloading, double sv_pa,
+                        double ph_pa, double v_ms, double *pp_pa,
+                        double *sigma_pa, unsigned *warn);
+
 #ifdef __cplusplus
 }
 #endif

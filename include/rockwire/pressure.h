@@ -528,6 +528,46 @@ int rw_pres_pore_bowers(const rw_pres_bowers *bw, int unloading, double sv_pa,
                         double ph_pa, double v_ms, double *pp_pa,
                         double *sigma_pa, unsigned *warn);
 
+/* ---- minimum horizontal stress / fracture gradient ---------------------- */
+
+/* Eaton 1969 (J. Pet. Tech. 21(10), from memory):
+ * shmin = nu / (1 - nu) (sv - pp) + pp. sv_pa >= pp_pa >= 0 finite;
+ * nu in (-1, 0.5) (dynamic from logs, or static:
+ * rw_strength_linear in rockwire/strength.h). For 0 < nu < 0.5 the
+ * result lies strictly between pp and sv (sv > pp). Warnings:
+ * NU_NONPOSITIVE, FG_BELOW_PP (nu < 0).
+ * errors: RW_EDOM for an argument out of range or non-finite. */
+int rw_pres_frac_eaton(double sv_pa, double pp_pa, double nu, double *shmin_pa,
+                       unsigned *warn);
+
+/* Matthews & Kelly 1967 (Oil & Gas J. 65, from memory):
+ * shmin = pp + ki (sv - pp), with the matrix-stress coefficient ki in
+ * [0, 1] (read from their depth chart for the basin, or calibrated on
+ * leak-off tests). sv_pa >= pp_pa >= 0 finite.
+ * errors: RW_EDOM for an argument out of range or non-finite. */
+int rw_pres_frac_mk(double sv_pa, double pp_pa, double ki, double *shmin_pa);
+
+/* Poroelastic horizontal stresses with tectonic strains (the
+ * uniaxial-strain model plus horizontal strains, as in Thiercelin & Plumb
+ * 1994, SPE Form. Eval. 9(4), from memory; Fjaer et al. 2008, Petroleum
+ * Related Rock Mechanics, ch. 6, from memory):
+ * shmin = nu/(1-nu) (sv - alpha pp) + alpha pp
+ *         + E/(1-nu^2) (eps_h + nu eps_H),
+ * shmax = the same with eps_h and eps_H swapped
+ * (compression positive; eps_h, eps_H the total horizontal strains in the
+ * directions of the minimum and maximum stress, 0 for both gives the
+ * uniaxial-strain state). sv_pa >= pp_pa >= 0; nu in (-1, 0.5); alpha
+ * (Biot) in [0, 1]; e_static_pa > 0 (static Young's modulus; ignored and
+ * may be NaN when both strains are 0); |eps| <= 0.01. shmax_pa may be
+ * NULL. With alpha = 1 and no strain this is Eaton 1969. Warnings:
+ * NU_NONPOSITIVE, FG_BELOW_PP, FG_ABOVE_SV, HORIZ_SWAPPED (shmax <
+ * shmin). Thermal stress is not included.
+ * errors: RW_EDOM for an argument out of range or non-finite. */
+int rw_pres_frac_poroelastic(double sv_pa, double pp_pa, double nu,
+                             double alpha, double e_static_pa, double eps_h,
+                             double eps_hmax, double *shmin_pa,
+                             double *shmax_pa, unsigned *warn);
+
 #ifdef __cplusplus
 }
 #endif

@@ -77,9 +77,7 @@ int rw_pres_column_check(const rw_pres_column *col, const char **field)
 	else if (!isfinite(col->trend_p) || !(col->trend_p > 0.0) ||
 	         col->trend_p > TREND_P_MAX)
 		bad = "trend_p";
-	else if (isnan(col->rho_cap_kgm3) ||
-	         col->rho_cap_kgm3 < col->rho_ml_kgm3 ||
-	         (isinf(col->rho_cap_kgm3) && col->rho_cap_kgm3 < 0.0))
+	else if (!(col->rho_cap_kgm3 >= col->rho_ml_kgm3)) /* NaN too */
 		bad = "rho_cap";
 	if (field)
 		*field = bad;
@@ -122,8 +120,6 @@ int rw_pres_shallow_density(const rw_pres_column *col, double s_bml_m,
 	/* depth at which the power law reaches the cap */
 	if (isfinite(cap) && a > 0.0)
 		sc = s0 * pow((cap - r0) / a, 1.0 / p);
-	else if (isfinite(cap) && cap <= r0)
-		sc = 0.0;
 	if (s <= sc) {
 		rho = r0 + a * pow(s / s0, p);
 		in = r0 * s + a * s0 * pow(s / s0, p + 1.0) / (p + 1.0);

@@ -64,6 +64,24 @@ int rw_pres_pore_eaton(double sv_pa, double ph_pa, double dt_sm, double dt_n_sm,
 	return RW_OK;
 }
 
+int rw_pres_pore_eaton_sigma(double sv_pa, double ph_pa, double dt_sm,
+                             double dt_n_sm, double exponent,
+                             double sigma_dt_n_sm, double *sigma_pp_pa)
+{
+	double r;
+
+	if (!nonneg(sv_pa) || !nonneg(ph_pa) || sv_pa < ph_pa || !pos(dt_sm) ||
+	    !pos(dt_n_sm) || !pos(exponent) || exponent > EATON_N_MAX ||
+	    !nonneg(sigma_dt_n_sm)) {
+		*sigma_pp_pa = NAN;
+		return RW_EDOM;
+	}
+	r = dt_n_sm / dt_sm;
+	*sigma_pp_pa = (sv_pa - ph_pa) * exponent * pow(r, exponent - 1.0) *
+	               sigma_dt_n_sm / dt_sm;
+	return RW_OK;
+}
+
 /* 1 when the virgin-curve parameters of *bw are in range. */
 static int bowers_ok(const rw_pres_bowers *bw)
 {

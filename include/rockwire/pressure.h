@@ -472,6 +472,16 @@ int rw_pres_pore_eaton(double sv_pa, double ph_pa, double dt_sm, double dt_n_sm,
                        double exponent, double *pp_pa, double *sigma_pa,
                        unsigned *warn);
 
+/* Standard error of the Eaton pore pressure due to the trend's standard
+ * error sigma_dt_n_sm (>= 0, from rw_pres_trend_eval), to first order:
+ * |d pp / d dt_n| sigma = (sv - ph) n (dt_n/dt)^(n-1) sigma / dt. Only
+ * the trend's part of the uncertainty: the overburden's, the exponent's
+ * and the log's are not in it. Arguments as rw_pres_pore_eaton.
+ * errors: RW_EDOM for an argument out of range or non-finite (NaN). */
+int rw_pres_pore_eaton_sigma(double sv_pa, double ph_pa, double dt_sm,
+                             double dt_n_sm, double exponent,
+                             double sigma_dt_n_sm, double *sigma_pp_pa);
+
 /* Bowers 1995 velocity-effective-stress relation (SPE Drilling &
  * Completion 10(2), from memory), with sigma in MPa in the formulas:
  * virgin (loading) curve v = v0 + A sigma^B;

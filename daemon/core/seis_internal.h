@@ -6,6 +6,8 @@
 
 #include <stddef.h>
 
+#include <gsl/gsl_interp.h>
+
 #include "rockwire/seismic.h"
 
 /* Smallest power of two >= n (n >= 1); 0 when it does not fit a size_t. */
@@ -61,6 +63,14 @@ static inline double rw__seis_ksum_value(const rw__seis_ksum *k)
 {
 	return k->s + k->c;
 }
+
+/* rw_seis_wavelet_stretch with the spline it already initialised on xs
+ * (sample index relative to time zero, n of them) and w. Returns RW_OK or
+ * RW_ERANGE (cap too small, or a GSL failure). */
+int rw__seis_stretch_eval(const gsl_interp *it, const double *xs,
+                          const double *w, size_t n, size_t i0, double factor,
+                          double *out, size_t cap, size_t *n_out,
+                          size_t *i0_out);
 
 /* Checks n finite, strictly increasing values. */
 int rw__seis_increasing(const double *x, size_t n);

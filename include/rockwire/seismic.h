@@ -104,6 +104,97 @@ size_t rw_seis_hilbert_workspace(size_t n);
 int rw_seis_hilbert(const double *x, size_t n, double *h, double *work,
                     size_t work_len);
 
+/* ---- wavelets ------------------------------------------------------------
+ * A wavelet is n samples at the trace's interval, with time zero at index
+ * i0. The generators below are zero phase, odd-length and centred: n =
+ * 2 floor(length / (2 dt)) + 1, i0 = (n - 1) / 2, sample k at time
+ * (k - i0) dt, normalised to a peak of 1 at time zero. */
+
+/* Samples of a centred wavelet of the given length: length_s finite > 0,
+ * dt_s finite > 0, and 3 <= n <= RW_SEIS_MAX_WAVELET.
+ * errors: RW_EDOM (bad arguments or n out of range); *n = 0. */
+int rw_seis_wavelet_size(double length_s, double dt_s, size_t *n);
+
+/* Ricker wavelet w(t) = (1 - 2 pi^2 f^2 t^2) exp(-pi^2 f^2 t^2), f the
+ * peak frequency of its amplitude spectrum (Ricker 1953; Sheriff &
+ * Geldart 1995, from memory). f in (0, Nyquist); *warn (may be NULL) gets
+ * RW_SEIS_WARN_NEAR_NYQUIST for f > Nyquist/3 (the spectrum at Nyquist is
+ * then above ~3e-3 of its peak) and RW_SEIS_WARN_TRUNCATED when an end
+ * sample exceeds 1% of the peak (both thresholds are this project's
+ * choice). w: cap doubles; *n receives the count (rw_seis_wavelet_size).
+ * errors: RW_EDOM (bad arguments), RW_ERANGE (cap too small); *n = 0. */
+int rw_seis_wavelet_ricker(double f_hz, double length_s, double dt_s, double *w,
+                           size_t cap, size_t *n, unsigned *warn);
+
+/* Ormsby wavelet: the inverse transform of a trapezoidal amplitude
+ * spectrum, zero below f1, rising linearly to 1 at f2, flat to f3,
+ * falling linearly to 0 at f4 (Ormsby 1961; in the sinc^2 form of common
+ * practice):
+ *   w(t) ~ [pi f4^2 sinc^2(pi f4 t) - pi f3^2 sinc^2(pi f3 t)] / (f4 - f3)
+ *        - [pi f2^2 sinc^2(pi f2 t) - pi f1^2 sinc^2(pi f1 t)] / (f2 - f1),
+ * sinc x = sin x / x, normalised to w(0) = 1. f_hz: 0 <= f1 < f2 <= f3 <
+ * f4 <= Nyquist. Warnings and other arguments as rw_seis_wavelet_ricker
+ * (NEAR_NYQUIST when f4 > 0.8 Nyquist). The spectrum of the cut wavelet
+ * ripples around the trapezoid by an amount that falls with length.
+ * errors: as rw_seis_wavelet_ricker. */
+int rw_seis_wavelet_ormsby(const double f_hz[4], double length_s, double dt_s,
+                           double *w, size_t cap, size_t *n, unsigned *warn);
+
+/* Band-pass wavelet with cosine-tapered corners: the zero-phase inverse
+ * transform of the amplitude spectrum 0 below f1, (1 - cos(pi (f - f1) /
+ * (f2 - f1))) / 2 up to f2, 1 to f3, (1 + cos(pi (f - f3) / (f4 - f3))) / 2
+ * down to 0 at f4 (a raised-cosine taper; common practice), evaluated in
+ * closed form:
+ *   w(t) = 2 * integral_0^inf A(f) cos(2 pi f t) df, normalised to w(0) = 1.
+ * The smooth corners make its side lobes decay as 1/t^3 instead of the
+ * Ormsby's 1/t^2. Arguments, warnings and errors as
+ * rw_seis_wavelet_ormsby. */
+int rw_seis_wavelet_bandpass(const double f_hz[4], double length_s, double dt_s,
+                             double *w, size_t cap, size_t *n, unsigned *warn);
+
+/* Constant-phase rotation in place: w <- w cos(phase) - H{w} sin(phase),
+ * H as rw_seis_hilbert. Every positive frequency is advanced by phase
+ * (with the transform W(f) = integral w(t) exp(-2 pi i f t) dt, W(f) is
+ * multiplied by exp(i phase sgn f)), so cos(2 pi f t) becomes cos(2 pi f t
+ * + phase); phase = pi gives -w. The rotation keeps the amplitude
+ * spectrum and the energy, apart from the cut Hilbert tails; the peak
+ * normalisation of the zero-phase wavelet is not redone. phase_rad finite.
+ * errors: as rw_seis_hilbert (w unchanged). */
+int rw_seis_wavelet_rotate(double *w, size_t n, double phase_rad, double *work,
+                           size_t work_len);
+
+/* Checks a caller's wavelet: 1 <= n <= RW_SEIS_MAX_WAVELET, i0 < n,
+ * finite samples, not all zero.
+ * errors: RW_EDOM. */
+int rw_seis_wavelet_check(const double *w, size_t n, size_t i0);
+
+/* Normalisations of rw_seis_wavelet_normalise. */
+typedef enum rw_seis_norm {
+	RW_SEIS_NORM_PEAK = 0,  /* largest |w| becomes 1, signs kept */
+	RW_SEIS_NORM_ENERGY = 1 /* sum of w^2 becomes 1 */
+} rw_seis_norm;
+
+/* Scales a wavelet in place by the chosen normalisation.
+ * errors: RW_EDOM (as rw_seis_wavelet_check with i0 = 0, or a bad kind);
+ * w unchanged. */
+int rw_seis_wavelet_normalise(double *w, size_t n, rw_seis_norm kind);
+
+/* NMO stretch of a wavelet: out(t) = w(t / factor), factor >= 1 (angle
+ * theta: factor = 1 / cos theta, the stretch normal-moveout correction
+ * puts on a reflection's wavelet; Dunkin & Levin 1973, from memory). The
+ * samples are interpolated with a natural cubic spline (gsl_interp_cspline,
+ * allocated once per call) and are zero beyond the stretched ends; the
+ * stretched wavelet spans ceil(i0 factor) samples before its time zero and
+ * ceil((n - 1 - i0) factor) after it, so *n_out <= ceil((n - 1) factor) + 2.
+ * The peak amplitude is kept (not the energy). n >= 3; factor finite in
+ * [1, 10]; work: n doubles (the spline's abscissae); out must not overlap
+ * w or work.
+ * errors: RW_EDOM (bad arguments), RW_ERANGE (cap or work too small, out
+ * of memory); *n_out = 0. */
+int rw_seis_wavelet_stretch(const double *w, size_t n, size_t i0, double factor,
+                            double *out, size_t cap, size_t *n_out,
+                            size_t *i0_out, double *work, size_t work_len);
+
 #ifdef __cplusplus
 }
 #endif

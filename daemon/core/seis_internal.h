@@ -72,6 +72,16 @@ int rw__seis_stretch_eval(const gsl_interp *it, const double *xs,
                           double *out, size_t cap, size_t *n_out,
                           size_t *i0_out);
 
+/* Nonzero when a time-depth relation is valid (drifts included). */
+int rw__seis_td_check(const rw_seis_td *td);
+
+/* Corrected two-way time at depth z inside a relation that passed
+ * rw__seis_td_check (no checks). */
+double rw__seis_td_at(const rw_seis_td *td, double z);
+
+/* Nonzero when a time axis is valid. */
+int rw__seis_axis_ok(const rw_seis_taxis *ax);
+
 /* Checks n finite, strictly increasing values. */
 int rw__seis_increasing(const double *x, size_t n);
 

@@ -57,6 +57,121 @@ extern "C" {
 /* Largest wavelet, in samples, any function accepts (16 s at 1 ms). */
 #define RW_SEIS_MAX_WAVELET 16385u
 
+/* ---- time-depth ----------------------------------------------------------
+ */
+
+/* How a sonic array is given. */
+typedef enum rw_seis_sonic_kind {
+	RW_SEIS_SONIC_VELOCITY = 0, /* velocity, m/s */
+	RW_SEIS_SONIC_SLOWNESS = 1  /* slowness, s/m */
+} rw_seis_sonic_kind;
+
+/* Where time starts: the datum depth (same depth reference as the log,
+ * at or above its first sample), the two-way time at the datum, and the
+ * replacement velocity used between the datum and the first valid sonic
+ * sample. */
+typedef struct rw_seis_datum {
+	double z_m;     /* datum depth, finite, <= first log depth */
+	double twt_s;   /* two-way time at the datum, finite */
+	double vrep_ms; /* replacement velocity, finite, > 0 */
+} rw_seis_datum;
+
+/* Two-way time of every log sample by integrating the sonic from the
+ * datum:
+ *   t(z_j) = t(z_i) + 2 * integral of slowness from z_i to z_j,
+ * with the slowness taken linear between consecutive valid samples (the
+ * trapezoid rule; exact for a constant or piecewise-linear slowness, so a
+ * constant velocity v gives t = t0 + 2 (z - z0) / v to rounding). Sums are
+ * compensated (Neumaier) so rounding does not grow with the log length.
+ * Samples above the first valid sonic sample take the replacement velocity
+ * from the datum (RW_SEIS_WARN_REPLACEMENT); null or non-positive sonic
+ * samples between valid ones are bridged with the slowness interpolated
+ * linearly in depth (RW_SEIS_WARN_SONIC_NULL); samples below the last
+ * valid one keep its slowness (RW_SEIS_WARN_EXTRAPOLATED). Common
+ * practice; the trapezoid rule is the usual sonic integration.
+ * z_m: n >= 1 finite, strictly increasing depths; sonic: n values of the
+ * given kind (NaN = null); twt_s: n outputs; warn: n bit sets or NULL.
+ * errors: RW_EDOM (n = 0, a depth not finite or not increasing, a bad
+ * datum or kind), RW_EINVAL (no valid sonic sample); outputs NaN. */
+int rw_seis_td_sonic(const double *z_m, const double *sonic, size_t n,
+                     rw_seis_sonic_kind kind, const rw_seis_datum *datum,
+                     double *twt_s, unsigned *warn);
+
+/* A time-depth relation: the sonic times of the log samples (from
+ * rw_seis_td_sonic) and, optionally, a drift curve through checkshots.
+ * The arrays belong to the caller and must outlive every use. */
+typedef struct rw_seis_td {
+	const double *z_m;        /* n log depths, strictly increasing */
+	const double *twt_s;      /* n sonic two-way times, strictly rising */
+	size_t n;                 /* >= 1 */
+	double datum_z_m;         /* datum depth, <= z_m[0] */
+	double datum_twt_s;       /* time at the datum */
+	const double *cs_z_m;     /* n_cs checkshot depths, increasing */
+	const double *cs_drift_s; /* n_cs drifts, from rw_seis_td_drift */
+	size_t n_cs;              /* 0: no drift correction */
+} rw_seis_td;
+
+/* Drift of each checkshot: its two-way time minus the sonic time at its
+ * depth, d_k = t_cs(z_k) - t_sonic(z_k). The sonic time between samples is
+ * interpolated linearly in depth through the nodes (datum, z_0, ...,
+ * z_{n-1}). The corrected relation (rw_seis_td_eval) adds the drift
+ * interpolated linearly between checkshots and held at the end values
+ * outside their span: the piecewise-linear drift curve of common practice.
+ * A checkshot at the datum pins the drift to zero there. The corrected
+ * times must still increase with depth (a positive interval velocity):
+ * this is checked at every node of both curves.
+ * td: a relation whose cs_z_m and n_cs are set (cs_drift_s is ignored);
+ * checkshot depths strictly increasing within [datum, z_{n-1}], times
+ * cs_twt_s strictly increasing; cs_drift_s: n_cs outputs.
+ * errors: RW_EDOM (a bad table, a checkshot outside the log's depth range,
+ * depths or times not increasing), RW_EINVAL (the corrected times would
+ * not increase with depth: the checkshots contradict the sonic); outputs
+ * NaN. */
+int rw_seis_td_drift(const rw_seis_td *td, const double *cs_twt_s,
+                     double *cs_drift_s);
+
+/* Corrected two-way time at depths zq (nq of them, any order): the sonic
+ * time interpolated linearly through the nodes plus the drift curve (zero
+ * when td->n_cs = 0). At a checkshot depth the result is the checkshot
+ * time to rounding. drift_s (may be NULL) receives the drift applied;
+ * warn (may be NULL) gets RW_SEIS_WARN_DRIFT_HELD outside the checkshot
+ * span. Depths outside [datum, z_{n-1}] give NaN and
+ * RW_SEIS_WARN_OUTSIDE.
+ * errors: RW_EDOM (a bad table); outputs NaN. */
+int rw_seis_td_eval(const rw_seis_td *td, const double *zq, size_t nq,
+                    double *twt_s, double *drift_s, unsigned *warn);
+
+/* A regular time axis: t_k = t0_s + k dt_s, k = 0 .. n-1. */
+typedef struct rw_seis_taxis {
+	double t0_s; /* finite */
+	double dt_s; /* finite, > 0 */
+	size_t n;    /* >= 1 */
+} rw_seis_taxis;
+
+/* Interpolation for resampling (GSL interpolation types). */
+typedef enum rw_seis_interp {
+	RW_SEIS_INTERP_LINEAR = 0, /* gsl_interp_linear */
+	RW_SEIS_INTERP_STEFFEN = 1 /* gsl_interp_steffen: monotone cubic of
+	                              Steffen 1990, no overshoot */
+} rw_seis_interp;
+
+/* Resamples a curve y sampled at times t_s (n, strictly increasing; e.g.
+ * the corrected times of the log samples) to the regular axis ax. Nulls
+ * are never bridged: the curve is split into runs of consecutive valid
+ * samples, each run is interpolated on its own (a run of two samples is
+ * linear whatever the kind), and an output time whose bracketing samples
+ * are not both valid is null (RW_SEIS_WARN_NULL_INPUT). Output times
+ * outside [t_0, t_{n-1}] are null (RW_SEIS_WARN_OUTSIDE). Point
+ * interpolation does not low-pass: resampling a fine log to a coarse axis
+ * aliases its thin beds (build reflectivity with rw_seis_reflectivity,
+ * which keeps every interface, rather than from a resampled log).
+ * Allocates one GSL interpolation object per run.
+ * errors: RW_EDOM (bad times, axis or kind), RW_ERANGE (out of memory);
+ * outputs NaN. */
+int rw_seis_resample(const double *t_s, const double *y, size_t n,
+                     const rw_seis_taxis *ax, rw_seis_interp kind, double *out,
+                     unsigned *warn);
+
 /* ---- convolution ---------------------------------------------------------
  */
 

@@ -172,6 +172,103 @@ int rw_seis_resample(const double *t_s, const double *y, size_t n,
                      const rw_seis_taxis *ax, rw_seis_interp kind, double *out,
                      unsigned *warn);
 
+/* ---- upscaling -----------------------------------------------------------
+ */
+
+/* The Backus average of a stack of isotropic layers: the VTI stiffnesses
+ * of the long-wavelength equivalent medium, its density and its Thomsen
+ * parameters. */
+typedef struct rw_seis_backus {
+	rw_aniso_vti c;      /* C11, C13, C33, C44, C66, Pa */
+	double rho_kgm3;     /* thickness-weighted mean density */
+	rw_aniso_thomsen th; /* NaN when C44 = 0 (a fluid layer) */
+} rw_seis_backus;
+
+/* Backus 1962 average of n isotropic layers with thickness weights h_m
+ * (only their ratios matter), in the form of Mavko, Mukerji & Dvorkin
+ * 2009, sec. 4.13 (equation numbers from memory), with M = rho vp^2,
+ * mu = rho vs^2, lambda = M - 2 mu and <.> the thickness average:
+ *   C33 = <1/M>^-1, C44 = <1/mu>^-1, C66 = <mu>,
+ *   C13 = <lambda/M> C33,
+ *   C11 = <4 mu (lambda + mu) / M> + <lambda/M>^2 C33, rho = <rho>.
+ * A layer with vs = 0 makes C44 = 0: the stiffness is returned, the
+ * Thomsen parameters are NaN and *warn gets RW_SEIS_WARN_FLUID_LAYER. For
+ * isotropic layers gamma = (<mu><1/mu> - 1)/2 >= 0 (arithmetic over
+ * harmonic mean). Thomsen parameters by rw_aniso_thomsen_from_stiff.
+ * Layers: h > 0, and valid media as rw_reflect_medium_check. warn may be
+ * NULL.
+ * errors: RW_EDOM (n = 0, a thickness not finite or <= 0, an invalid
+ * medium); outputs NaN. */
+int rw_seis_backus_layers(const double *h_m, const double *vp_ms,
+                          const double *vs_ms, const double *rho_kgm3, size_t n,
+                          rw_seis_backus *out, unsigned *warn);
+
+/* Backus average over a moving window of length window_m centred on each
+ * log sample. Each sample stands for its cell, from the midpoint to the
+ * previous sample to the midpoint to the next (the end cells extend half a
+ * step beyond the end samples), and is weighted by the length of its cell
+ * inside the window. Near the ends the window is cut to the log
+ * (RW_SEIS_WARN_WINDOW_CUT). Invalid samples (a null or an invalid medium)
+ * are left out and the rest reweighted (RW_SEIS_WARN_NULL_IN_WIN); when
+ * the valid length is below min_valid times the window's length in the
+ * log, the output is null (RW_SEIS_WARN_TOO_FEW_VALID).
+ * z_m: n >= 2 strictly increasing depths; window_m finite > 0; min_valid
+ * in (0, 1]; out, warn: n each (warn may be NULL).
+ * errors: RW_EDOM (bad depths or arguments); outputs NaN. */
+int rw_seis_backus_log(const double *z_m, const double *vp_ms,
+                       const double *vs_ms, const double *rho_kgm3, size_t n,
+                       double window_m, double min_valid, rw_seis_backus *out,
+                       unsigned *warn);
+
+/* Averaging length from a fraction of the shortest wavelength:
+ * L = b * v_min / f, with v_min the smallest valid positive shear velocity
+ * of the log (the shear wavelength is the shortest), or the smallest
+ * valid P velocity when the log has no shear. b is the Backus number of
+ * Liner & Fei 2006 (from memory: the Backus average keeps both the
+ * transmitted and the scattered wavefield for b <= 1/3); f the dominant
+ * frequency. Mavko, Mukerji & Dvorkin 2009, sec. 4.13, give the same
+ * long-wavelength condition in words.
+ * errors: RW_EDOM (b or f not finite or <= 0), RW_EINVAL (no valid
+ * velocity); *window_m NaN. */
+int rw_seis_backus_window(const double *vp_ms, const double *vs_ms, size_t n,
+                          double b, double f_hz, double *window_m);
+
+/* How a block's value is formed from its samples. */
+typedef enum rw_seis_mean {
+	RW_SEIS_MEAN_ARITHMETIC = 0, /* <y>: density, porosity */
+	RW_SEIS_MEAN_HARMONIC = 1    /* 1/<1/y>: velocity (keeps the time) */
+} rw_seis_mean;
+
+/* Block boundaries where a curve departs from the running mean of the
+ * current block by more than threshold (absolute, in the curve's units):
+ * walking down the valid samples, sample j starts a new block, with a
+ * boundary at the midpoint between j and the sample above, when
+ * |y_j - mean| > threshold and the current block is at least min_thick_m
+ * thick at that boundary. Null samples are skipped. The first boundary is
+ * the top of the first cell and the last the bottom of the last cell (cells
+ * as rw_seis_backus_log). bounds: cap doubles; *nb receives the count.
+ * errors: RW_EDOM (bad depths, n < 2, threshold not finite or <= 0,
+ * min_thick_m not finite or < 0), RW_EINVAL (no valid sample), RW_ERANGE
+ * (cap too small; n + 1 always suffices); *nb = 0. */
+int rw_seis_block_detect(const double *z_m, const double *y, size_t n,
+                         double threshold, double min_thick_m, double *bounds,
+                         size_t cap, size_t *nb);
+
+/* Block values between boundaries bounds[0] < ... < bounds[nb-1]: each
+ * block's mean of the valid samples, weighted by their cell length inside
+ * the block (a boundary inside a cell splits its weight), of the given
+ * kind. block: nb - 1 values (null when the block has no valid sample,
+ * RW_SEIS_WARN_TOO_FEW_VALID in the warn of the samples inside); out
+ * (may be NULL): n values, the blocked curve at the samples (block k holds
+ * [bounds[k], bounds[k+1]); samples outside the blocks are null with
+ * RW_SEIS_WARN_OUTSIDE); warn: n or NULL. For the harmonic mean a value
+ * <= 0 counts as invalid.
+ * errors: RW_EDOM (bad depths, nb < 2, bounds not increasing, bad kind);
+ * outputs NaN. */
+int rw_seis_block_means(const double *z_m, const double *y, size_t n,
+                        const double *bounds, size_t nb, rw_seis_mean kind,
+                        double *block, double *out, unsigned *warn);
+
 /* ---- convolution ---------------------------------------------------------
  */
 

@@ -407,6 +407,113 @@ int rw_seis_wavelet_stretch(const double *w, size_t n, size_t i0, double factor,
                             double *out, size_t cap, size_t *n_out,
                             size_t *i0_out, double *work, size_t work_len);
 
+/* ---- reflectivity and synthetic traces -----------------------------------
+ */
+
+/* A well log in depth: n samples of depth, vp, vs and density (NaN =
+ * null). */
+typedef struct rw_seis_log {
+	const double *z_m;
+	const double *vp_ms;
+	const double *vs_ms;
+	const double *rho_kgm3;
+	size_t n;
+} rw_seis_log;
+
+/* PP reflection coefficient used for the traces: the exact Zoeppritz
+ * solution or one of the project's linearisations (include/rockwire/
+ * reflect.h), in the order and with the names of the reflect family. */
+typedef enum rw_seis_rmethod {
+	RW_SEIS_R_ZOEPPRITZ = 0,
+	RW_SEIS_R_AKI_RICHARDS,
+	RW_SEIS_R_SHUEY2,
+	RW_SEIS_R_SHUEY3,
+	RW_SEIS_R_HILTERMAN,
+	RW_SEIS_R_FATTI,
+	RW_SEIS_R_GRAY_LMR,
+	RW_SEIS_R_GRAY_KMR,
+	RW_SEIS_R_SMITH_GIDLOW,
+	RW_SEIS_R_COUNT
+} rw_seis_rmethod;
+
+/* Reflectivity of the log on the regular time axis ax, for one incidence
+ * angle theta_rad in [0, pi/2) taken at every interface (a constant-angle
+ * gather, common practice). Interfaces lie midway in depth between
+ * consecutive samples (each sample stands for its cell); each one's time
+ * is rw_seis_td_eval at that depth and its coefficient is method's, upper
+ * medium the shallower sample. Sub-sample placement: a coefficient at time
+ * tau with t_k <= tau < t_k+1 is split linearly, (1 - a) R to sample k and
+ * a R to k + 1, a = (tau - t_k) / dt (common practice); this keeps the sum
+ * and the centroid and acts as a triangle filter whose amplitude response
+ * is sinc^2(f dt) (about 1% down at f = 0.05 / dt). Interfaces outside the
+ * axis are dropped. Complex (post-critical) Zoeppritz coefficients put
+ * their imaginary part in r_im (zero otherwise); with the exp(-i w t)
+ * convention of Aki & Richards, the trace is r_re * w + r_im * H{w}.
+ * An interface with a null needed input (vp, rho, or vs, which is not
+ * needed at theta = 0 except by the Gray forms) or without a coefficient
+ * (Aki-Richards past critical) adds nothing and marks its samples
+ * RW_SEIS_WARN_NULL_NEAR; one past the P critical angle marks them
+ * RW_SEIS_WARN_POSTCRITICAL (linearisations are not valid there); samples
+ * outside the log's time span get RW_SEIS_WARN_OUTSIDE_LOG. Primaries
+ * only: no transmission loss, multiples or spreading.
+ * r_re: ax->n outputs; r_im, warn: ax->n or NULL.
+ * errors: RW_EDOM (bad log depths, table, axis, angle or method); outputs
+ * NaN. */
+int rw_seis_reflectivity(const rw_seis_log *log, const rw_seis_td *td,
+                         double theta_rad, rw_seis_rmethod method,
+                         const rw_seis_taxis *ax, double *r_re, double *r_im,
+                         unsigned *warn);
+
+/* A wavelet as used by rw_seis_synthetic. */
+typedef struct rw_seis_wavelet {
+	const double *w; /* n samples */
+	size_t n;        /* 1 .. RW_SEIS_MAX_WAVELET */
+	size_t i0;       /* index of time zero, < n */
+	double dt_s;     /* must equal the axis's dt (relative 1e-9) */
+} rw_seis_wavelet;
+
+/* Options of rw_seis_synthetic. */
+typedef struct rw_seis_synth_opts {
+	rw_seis_rmethod method; /* PP coefficient */
+	int stretch;       /* nonzero: each angle's wavelet NMO-stretched by
+	                      1 / cos theta (rw_seis_wavelet_stretch); zero: the
+	                      same wavelet at every angle */
+	int keep_partial;  /* nonzero: keep trace samples within the wavelet's
+	                      reach of a null interface (flagged); zero: make
+	                      them null */
+	rw_seis_conv conv; /* convolution algorithm */
+} rw_seis_synth_opts;
+
+/* Workspace, in doubles, of rw_seis_synthetic for an axis of nt samples, a
+ * wavelet of nw samples and the largest angle of the gather (it sets the
+ * stretched length when stretch is nonzero). 0 on bad arguments. */
+size_t rw_seis_synthetic_workspace(size_t nt, size_t nw, double max_theta_rad,
+                                   int stretch);
+
+/* Synthetic gather: for each angle, the reflectivity of
+ * rw_seis_reflectivity (built on the axis extended by the wavelet's reach
+ * so that interfaces just outside it still contribute) convolved with the
+ * wavelet (stretched or not), plus the imaginary part convolved with the
+ * wavelet's Hilbert transform where Zoeppritz coefficients are complex.
+ * The wavelet's spectrum is computed once per gather (once per angle with
+ * stretch). traces: n_angles x ax->n, angle-major; refl (may be NULL): the
+ * real reflectivity on the axis, same layout; warn (may be NULL): same
+ * layout, the reflectivity flags spread over the wavelet's reach (a
+ * sample is flagged when an interface it sees through the wavelet is;
+ * the reach is the span of the wavelet's samples at or above 1% of its
+ * peak, so a faint tail does not null a trace). With keep_partial zero,
+ * refl is null where a null interface lies.
+ * angles: in [0, pi/2), below 84 degrees with stretch (a stretch <= 10).
+ * errors: RW_EDOM (bad log, table, axis, wavelet, angles or options, dt
+ * mismatch), RW_ERANGE (work_len too small, or out of memory for the
+ * stretch interpolation); outputs NaN. */
+int rw_seis_synthetic(const rw_seis_log *log, const rw_seis_td *td,
+                      const double *theta_rad, size_t n_angles,
+                      const rw_seis_wavelet *wav, const rw_seis_taxis *ax,
+                      const rw_seis_synth_opts *opts, double *traces,
+                      double *refl, unsigned *warn, double *work,
+                      size_t work_len);
+
 #ifdef __cplusplus
 }
 #endif

@@ -514,6 +514,73 @@ int rw_seis_synthetic(const rw_seis_log *log, const rw_seis_td *td,
                       double *refl, unsigned *warn, double *work,
                       size_t work_len);
 
+/* ---- AVO fits ------------------------------------------------------------
+ */
+
+/* Models of the least-squares fit. */
+typedef enum rw_seis_avo_model {
+	RW_SEIS_AVO_TWO = 2,  /* R = A + B sin^2 (Shuey 1985, two-term) */
+	RW_SEIS_AVO_THREE = 3 /* R = A + B sin^2 + C (tan^2 - sin^2) (Shuey
+	                         1985, three-term) */
+} rw_seis_avo_model;
+
+/* One fit. */
+typedef struct rw_seis_avo_result {
+	double a, b, c;   /* intercept, gradient, curvature (NaN: two-term) */
+	double cov[3][3]; /* covariance of (A, B, C): sigma^2 (X^T X)^-1 */
+	double sigma;     /* residual standard error sqrt(RSS / (m - p)) */
+	double rms;       /* root-mean-square residual sqrt(RSS / m) */
+	double rcond;     /* reciprocal condition number of the design */
+	size_t m;         /* angles used */
+} rw_seis_avo_result;
+
+/* Least-squares state (a GSL multifit workspace); one per thread. */
+typedef struct rw_seis_avo_fitter rw_seis_avo_fitter;
+
+/* Allocates a fitter for up to max_angles angles (>= 2). Returns NULL on
+ * a bad size or out of memory; free with rw_seis_avo_fitter_free. */
+rw_seis_avo_fitter *rw_seis_avo_fitter_new(size_t max_angles);
+
+/* Frees a fitter; NULL is a no-op. */
+void rw_seis_avo_fitter_free(rw_seis_avo_fitter *f);
+
+/* Fits the model to the amplitudes amp[i * stride] at angles theta_rad[i]
+ * (i < n), using the angles in [theta_min, theta_max] whose amplitude is
+ * not null (RW_SEIS_WARN_AVO_PARTIAL when a null is left out), by
+ * ordinary least squares (gsl_multifit_linear_tsvd). The covariance is
+ * sigma^2 (X^T X)^-1, which assumes independent residuals of equal
+ * variance; with exactly p angles the fit is exact and sigma and the
+ * covariance are NaN (RW_SEIS_WARN_AVO_NO_DOF). RW_SEIS_WARN_AVO_ILL_COND
+ * when rcond < 1e-8, of the design after GSL's column balancing (so the
+ * small scale of tan^2 - sin^2 does not count, near-coinciding angles
+ * do); a narrow angle range is not flagged by itself: the covariance then
+ * says how poorly the gradient and curvature are fixed.
+ * Angles in [0, pi/2), theta_min <= theta_max, n <= the fitter's
+ * max_angles, stride >= 1; warn may be NULL.
+ * errors: RW_EDOM (bad arguments), RW_EINVAL (fewer usable angles than
+ * terms, or repeated angles that leave fewer distinct values than terms:
+ * a singular value of the balanced design at or below 1e-12 of the
+ * largest); outputs NaN. */
+int rw_seis_avo_fit(rw_seis_avo_fitter *f, const double *theta_rad,
+                    const double *amp, size_t n, size_t stride,
+                    rw_seis_avo_model model, double theta_min, double theta_max,
+                    rw_seis_avo_result *out, unsigned *warn);
+
+/* Linearised PS reflection coefficient for an incident P wave (Aki &
+ * Richards 1980, eq. 5.46 from memory; the first-order form of the exact
+ * rps of rw_reflect_zoeppritz, with its sign conventions):
+ *   Rps = -(p vp / (2 cos j)) [ (1 - 2 vs^2 p^2 + 2 vs^2 (cos i / vp)
+ *          (cos j / vs)) drho/rho - (4 vs^2 p^2 - 4 vs^2 (cos i / vp)
+ *          (cos j / vs)) dvs/vs ],
+ * p = sin(theta) / vp_upper, i and j the averages of the P angles and of
+ * the S angles (Snell) on the two sides, mean vp, vs, rho. Both media must
+ * be solids. theta_rad in [0, pi/2).
+ * errors: RW_EDOM (invalid medium, a fluid, a bad angle), RW_ERANGE (at or
+ * past the P critical angle); *r NaN. */
+int rw_seis_ps_aki_richards(const rw_reflect_medium *upper,
+                            const rw_reflect_medium *lower, double theta_rad,
+                            double *r);
+
 #ifdef __cplusplus
 }
 #endif

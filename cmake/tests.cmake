@@ -48,3 +48,13 @@ function(rw_py_tests dir)
 endfunction()
 rw_py_tests(reference)
 rw_py_tests(e2e)
+
+# Benchmarks: tests/bench/bench_*.c are built but never run by ctest; the
+# scripts beside them run them on demand and compare with numpy measured
+# in the same run.
+file(GLOB RW_BENCH CONFIGURE_DEPENDS ${PROJECT_SOURCE_DIR}/tests/bench/bench_*.c)
+foreach(src ${RW_BENCH})
+  get_filename_component(name ${src} NAME_WE)
+  add_executable(${name} ${src})
+  target_link_libraries(${name} PRIVATE rwcore)
+endforeach()

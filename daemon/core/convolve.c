@@ -64,9 +64,11 @@ size_t rw__seis_conv_work(size_t nr, size_t nw)
 
 /* Operation counts: the direct sum costs nr nw multiply-adds; a
  * transform of size N about N log2 N, and an application two of them
- * plus the product. The factor 6 is the crossover measured by
- * tests/bench/bench_seismic on the development machine (within a factor
- * of two the choice barely matters). */
+ * plus the product. tests/bench/bench_seismic.py measured the crossover
+ * at nr nw / (N log2 N) between 3 (short series) and 8 (16384 samples,
+ * where the radix-2 transforms leave the cache) on the development
+ * machine; 6 sits in that band, where the two paths differ by less than
+ * a factor of two. */
 int rw__seis_conv_use_fft(size_t nr, size_t nw)
 {
 	size_t n = fft_size(nr, nw), lg = 0, m;

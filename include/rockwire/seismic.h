@@ -292,7 +292,8 @@ size_t rw_seis_convolve_workspace(size_t nr, size_t nw);
  * linear, not circular, convolution); both paths agree to about 1e-15
  * relative to sum |r| max |w|. AUTO takes the FFT when nr nw exceeds
  * 6 N log2 N, N the padded size (the crossover measured by
- * tests/bench/bench_seismic). r and out must not overlap.
+ * tests/bench/bench_seismic.py lies between 3 and 8). r and out must not
+ * overlap.
  * errors: RW_EDOM (a zero length, i0 >= nw, a bad method, a non-finite
  * input), RW_ERANGE (work_len too small); out NaN. */
 int rw_seis_convolve(const double *r, size_t nr, const double *w, size_t nw,

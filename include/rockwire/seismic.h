@@ -446,7 +446,8 @@ typedef enum rw_seis_rmethod {
  * tau with t_k <= tau < t_k+1 is split linearly, (1 - a) R to sample k and
  * a R to k + 1, a = (tau - t_k) / dt (common practice); this keeps the sum
  * and the centroid and acts as a triangle filter whose amplitude response
- * is sinc^2(f dt) (about 1% down at f = 0.05 / dt). Interfaces outside the
+ * is [sin(pi f dt) / (pi f dt)]^2 (0.8% down at f = 0.05 / dt, 10 Hz at
+ * 5 ms; pick a finer axis for high frequencies). Interfaces outside the
  * axis are dropped. Complex (post-critical) Zoeppritz coefficients put
  * their imaginary part in r_im (zero otherwise); with the exp(-i w t)
  * convention of Aki & Richards, the trace is r_re * w + r_im * H{w}.

@@ -13,7 +13,7 @@
  *       NTR normal-incidence traces, each from its own log of NZ
  *       samples: seconds for the batch.
  * The logs are invented pseudo-random numbers (a fixed generator, so the
- * numpy side can rebuild them from the printed seed rules). */
+ * numpy side can rebuild them: log k starts the generator at k). */
 #include <math.h>
 #include <stdint.h>
 #include <stdio.h>
@@ -134,7 +134,7 @@ static int bench_conv(void)
 /* One synthetic from a log; returns seconds (best of reps) and the
  * trace sum (so the work cannot be optimised away). */
 static double run_gather(size_t nz, const double *ang, size_t na, size_t reps,
-                         uint64_t seed, double *checksum, size_t *nt_out)
+                         uint64_t start, double *checksum, size_t *nt_out)
 {
 	double *z = xalloc(nz * sizeof(double)), *vp = xalloc(nz * 8);
 	double *vs = xalloc(nz * 8), *rho = xalloc(nz * 8),
@@ -147,7 +147,7 @@ static double run_gather(size_t nz, const double *ang, size_t na, size_t reps,
 	rw_seis_taxis ax;
 	rw_seis_synth_opts o = {RW_SEIS_R_ZOEPPRITZ, 0, 0, RW_SEIS_CONV_AUTO};
 	size_t nw, wl, i, r;
-	uint64_t s = seed;
+	uint64_t s = start;
 
 	make_log(&s, nz, z, vp, vs, rho);
 	rw_seis_wavelet_ricker(30.0, 0.1, 0.002, w, 64, &nw, NULL);

@@ -37,16 +37,16 @@ M64 = (1 << 64) - 1
 class Lcg:
     """The generator of bench_seismic.c (urand)."""
 
-    def __init__(self, seed):
-        self.s = seed
+    def __init__(self, start):
+        self.s = start
 
     def urand(self, lo, hi):
         self.s = (self.s * 6364136223846793005 + 1442695040888963407) & M64
         return lo + (hi - lo) * (self.s >> 11) / 9007199254740992.0
 
 
-def make_log(seed, n):
-    g = Lcg(seed)
+def make_log(start, n):
+    g = Lcg(start)
     z = 1200.0 + 0.1524 * np.arange(n)
     vp = np.empty(n)
     vs = np.empty(n)

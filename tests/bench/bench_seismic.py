@@ -196,7 +196,6 @@ def main():
     print("batch 1000 traces x 1000 samples: core %.4f s, numpy %.4f s, "
           "ratio %.1f (sums %.6g / %.6g)" %
           (b["batch_s"], tb, tb / b["batch_s"], b["checksum"], sums[0]))
-    del tot
     return 0
 
 

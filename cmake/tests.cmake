@@ -3,7 +3,8 @@
 # tests/e2e/test_*.py and tests/reference/test_*.py run under Debian's
 # /usr/bin/python3 (they need its python3-iapws, -numpy, -jsonschema).
 # tests/reference/*_dump.c are small drivers that print core values for the
-# Python reference checks.
+# Python reference checks; they may use the client library too (segy_dump
+# writes SEG-Y with client/segy.c for the segyio check).
 set(RW_PY /usr/bin/python3)
 
 function(rw_c_tests dir)
@@ -31,6 +32,9 @@ foreach(src ${RW_DUMPS})
   get_filename_component(name ${src} NAME_WE)
   add_executable(${name} ${src})
   target_link_libraries(${name} PRIVATE rwcore PkgConfig::GSL)
+  if(TARGET rwcli)
+    target_link_libraries(${name} PRIVATE rwcli)
+  endif()
 endforeach()
 
 function(rw_py_tests dir)
@@ -45,3 +49,13 @@ endfunction()
 rw_py_tests(reference)
 rw_py_tests(proto)
 rw_py_tests(e2e)
+
+# Benchmarks: tests/bench/bench_*.c are built but never run by ctest; the
+# scripts beside them run them on demand and compare with numpy measured
+# in the same run.
+file(GLOB RW_BENCH CONFIGURE_DEPENDS ${PROJECT_SOURCE_DIR}/tests/bench/bench_*.c)
+foreach(src ${RW_BENCH})
+  get_filename_component(name ${src} NAME_WE)
+  add_executable(${name} ${src})
+  target_link_libraries(${name} PRIVATE rwcore PkgConfig::GSL)
+endforeach()

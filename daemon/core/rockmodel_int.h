@@ -1,0 +1,19 @@
+/* Internal to the core's rock models: the Hashin-Shtrikman bound the
+ * models are checked against. */
+#ifndef RW_CORE_ROCKMODEL_INT_H
+#define RW_CORE_ROCKMODEL_INT_H
+
+/* Hashin-Shtrikman 1963 upper bound of a solid (k, mu > 0) with a volume
+ * fraction phi of empty pores, in closed form:
+ *   K+ = (1 - phi) K a / (a + phi K), a = 4/3 mu,
+ *   mu+ = (1 - phi) mu z / (z + phi mu), z = (mu/6)(9K + 8mu)/(K + 2mu).
+ * (the lower bound is zero). Defined in granular.c. */
+void rw__rm_hs_vacuum(double k, double mu, double phi, double *k_up,
+                      double *mu_up);
+
+/* RW_RM_WARN_ABOVE_HS when (k_dry, mu_dry) exceed that bound by more than
+ * rounding, else 0. */
+unsigned rw__rm_hs_check(double k, double mu, double phi, double k_dry,
+                         double mu_dry);
+
+#endif

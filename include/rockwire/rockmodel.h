@@ -1,0 +1,241 @@
+/* Rock-physics models of the rockwire compute core: dry-frame moduli of
+ * granular packs and sands (Hertz-Mindlin, Walton, soft and stiff sand,
+ * contact and constant cement, critical porosity, Krief).
+ *
+ * Units: moduli Pa, density kg/m^3, pressure Pa (effective pressure, the
+ * confining minus the pore pressure), porosity and fractions as
+ * fractions (0..1). Per-sample functions are pure, reentrant and
+ * allocate nothing.
+ *
+ * Every model writes a bit set of RW_RM_WARN_* to *warn (NULL allowed;
+ * overwritten, not OR-ed) when an input lies outside the range where the
+ * model is meant to hold; the value is still computed and RW_OK returned.
+ * Inputs no rock can have are RW_EDOM with NaN outputs.
+ *
+ * Screening estimates: these models describe idealised rocks and are no
+ * substitute for calibration to local data and qualified review. */
+#ifndef ROCKWIRE_ROCKMODEL_H
+#define ROCKWIRE_ROCKMODEL_H
+
+#include <stddef.h>
+
+#ifdef __cplusplus
+extern "C" {
+#endif
+
+/* ---- warnings --------------------------------------------------------- */
+
+#define RW_RM_WARN_PHI_ABOVE_C                                                 \
+	0x0001u /* porosity above the model's critical                         \
+	         * (or cemented) porosity: the model is                        \
+	         * continued past its range */
+#define RW_RM_WARN_COORD_RANGE                                                 \
+	0x0002u /* coordination number outside                                 \
+	         * [RW_RM_COORD_MIN, RW_RM_COORD_MAX] */
+#define RW_RM_WARN_P_RANGE                                                     \
+	0x0004u /* effective pressure outside                                  \
+	         * [RW_RM_P_MIN_PA, RW_RM_P_MAX_PA] */
+#define RW_RM_WARN_ASPECT_RANGE                                                \
+	0x0008u /* penny-crack aspect ratio above                              \
+	         * RW_RM_PENNY_ASPECT_MAX: not thin */
+#define RW_RM_WARN_DILUTE                                                      \
+	0x0010u /* Kuster-Toksoz concentration beyond                          \
+	         * the dilute limit RW_RM_KT_DILUTE_MAX */
+#define RW_RM_WARN_NOT_CONVERGED                                               \
+	0x0020u /* self-consistent iteration or DEM                            \
+	         * integration did not converge */
+#define RW_RM_WARN_CEMENT_HIGH                                                 \
+	0x0040u /* contact cement above                                        \
+	         * RW_RM_CEMENT_MAX of the bulk volume */
+#define RW_RM_WARN_PERCOLATED                                                  \
+	0x0080u /* self-consistent: the solid no longer                        \
+	         * percolates; the frame has no rigidity */
+#define RW_RM_WARN_NO_SHEAR                                                    \
+	0x0100u /* saturated rock without shear                                \
+	         * rigidity: vs = 0, vp/vs infinite */
+#define RW_RM_WARN_PHI_LOW                                                     \
+	0x0200u /* porosity below RW_ROCK_PHI_LOW: the                         \
+	         * Gassmann step amplifies errors */
+#define RW_RM_WARN_FRAME_STIFF                                                 \
+	0x0400u /* dry-frame K above the mineral's                             \
+	         * (Gassmann's KDRY_GT_KMIN) */
+#define RW_RM_WARN_P_EXTRAP                                                    \
+	0x0800u /* pressure law used outside the                               \
+	         * pressure range of its fitted data */
+#define RW_RM_WARN_ABOVE_HS                                                    \
+	0x1000u /* dry frame above the Hashin-Shtrikman                        \
+	         * upper bound of mineral and empty                            \
+	         * pores: no real rock is that stiff */
+
+/* Validity ranges behind the warnings.
+ * Coordination number: 4 is about the loosest mechanically stable
+ * packing of frictional spheres, 12 the close packing of equal spheres
+ * (Mavko, Mukerji & Dvorkin 2009, sec. 5.4, from memory); random packs
+ * of sand near 36 % porosity have about 9 (Murphy 1982, from memory).
+ * Effective pressure: below about 0.1 MPa grain contacts are not
+ * Hertzian (cohesion, surface roughness), and above about 50 MPa quartz
+ * sands crush and pressure solution, not elastic contact, controls the
+ * frame (common practice, from memory).
+ * Penny cracks: the thin-crack forms of Berryman 1980 need aspect ratios
+ * well below 1; above 0.1 use RW_RM_SHAPE_SPHEROID (common practice).
+ * Kuster-Toksoz: the theory is first order in concentration and holds
+ * for sum(c_i / a_i) << 1, a_i the aspect ratio, 1 for spheres, needles
+ * and disks (Mavko, Mukerji & Dvorkin 2009, sec. 4.8, from memory);
+ * flagged above 0.5.
+ * Contact cement: the model puts all cement at grain contacts; beyond
+ * about 10 % cement of the bulk volume the cement fills pores and the
+ * model stops describing the rock (Dvorkin & Nur 1996, from memory). */
+#define RW_RM_COORD_MIN        4.0
+#define RW_RM_COORD_MAX        12.0
+#define RW_RM_P_MIN_PA         0.1e6
+#define RW_RM_P_MAX_PA         50e6
+#define RW_RM_PENNY_ASPECT_MAX 0.1
+#define RW_RM_KT_DILUTE_MAX    0.5
+#define RW_RM_CEMENT_MAX       0.10
+
+/* ---- granular packs and sands ----------------------------------------- */
+
+/* Hertz-Mindlin pack of identical elastic spheres under hydrostatic
+ * effective pressure (Mindlin 1949; as written in Mavko, Mukerji &
+ * Dvorkin 2009, sec. 5.4, with the shear-reduction factor of Duffaut et
+ * al. 2010, from memory):
+ *   K = [C^2 (1 - phi)^2 mu^2 P / (18 pi^2 (1 - nu)^2)]^(1/3)
+ *   mu_HM = (2 + 3f - nu (1 + 3f)) / (5 (2 - nu))
+ *           [3 C^2 (1 - phi)^2 mu^2 P / (2 pi^2 (1 - nu)^2)]^(1/3)
+ * with nu the grain Poisson's ratio. f = 1 is no slip at the contacts
+ * (Mindlin's result, equal to Walton's rough limit), f = 0 frictionless
+ * contacts (Walton's smooth limit, mu = 3/5 K).
+ * k_min_pa > 0, mu_min_pa > 0: grain moduli; phi in [0, 1): porosity of
+ * the pack (usually the critical porosity); coord > 0: coordination
+ * number; p_eff_pa >= 0: effective pressure; slip in [0, 1].
+ * Warnings: COORD_RANGE, P_RANGE.
+ * errors: RW_EDOM for an argument outside those ranges, a non-finite
+ * one, or grain moduli with nu outside (-1, 0.5). Outputs NaN on error. */
+int rw_rm_hertz_mindlin(double k_min_pa, double mu_min_pa, double phi,
+                        double coord, double p_eff_pa, double slip,
+                        double *k_dry_pa, double *mu_dry_pa, unsigned *warn);
+
+/* Walton 1987 random pack of identical spheres under hydrostatic
+ * pressure, in the A, B notation of Mavko, Mukerji & Dvorkin 2009,
+ * sec. 5.4 (from memory):
+ *   A = (1/(4 pi)) (1/mu - 1/(mu + lambda)),
+ *   B = (1/(4 pi)) (1/mu + 1/(mu + lambda)),
+ *   K = (1/6) [3 (1 - phi)^2 C^2 P / (pi^4 B^2)]^(1/3),
+ *   rough (infinite friction): mu = (3/5) K (5B + A) / (2B + A),
+ *   smooth (no friction):      mu = (3/5) K.
+ * rough: nonzero for the rough limit. Arguments, warnings and errors as
+ * rw_rm_hertz_mindlin. */
+int rw_rm_walton(double k_min_pa, double mu_min_pa, double phi, double coord,
+                 double p_eff_pa, int rough, double *k_dry_pa,
+                 double *mu_dry_pa, unsigned *warn);
+
+/* Coordination number of a random sphere pack from its porosity,
+ * C = 20 - 34 phi + 14 phi^2 (Murphy 1982, as quoted in Mavko, Mukerji
+ * & Dvorkin 2009, sec. 5.4, from memory). phi in [0, 1).
+ * errors: RW_EDOM for phi outside [0, 1) or non-finite (*coord NaN). */
+int rw_rm_coord_murphy(double phi, double *coord);
+
+/* Soft-sand (friable, unconsolidated) model, Dvorkin & Nur 1996: the
+ * modified Hashin-Shtrikman lower bound between the Hertz-Mindlin pack at
+ * the critical porosity phi_c (K_HM, mu_HM, from rw_rm_hertz_mindlin with
+ * phi = phi_c) and the mineral at zero porosity (their eqs. 2-3, from
+ * memory; Mavko, Mukerji & Dvorkin 2009, sec. 5.4):
+ *   K = [ (phi/phi_c) / (K_HM + 4/3 mu_HM)
+ *         + (1 - phi/phi_c) / (K + 4/3 mu_HM) ]^-1 - 4/3 mu_HM
+ *   mu = [ (phi/phi_c) / (mu_HM + z) + (1 - phi/phi_c) / (mu + z) ]^-1 - z,
+ *   z = (mu_HM / 6) (9 K_HM + 8 mu_HM) / (K_HM + 2 mu_HM).
+ * Above phi_c the same construction is continued between the pack at
+ * phi_c and an empty space at phi = 1 (replace phi/phi_c by
+ * (1 - phi)/(1 - phi_c) and the mineral by zero moduli): rockwire's
+ * continuation, not part of the published model, flagged PHI_ABOVE_C.
+ * phi in [0, 1), phi_c in (0, 1); the other arguments as
+ * rw_rm_hertz_mindlin. Warnings: PHI_ABOVE_C, COORD_RANGE, P_RANGE.
+ * errors: as rw_rm_hertz_mindlin, plus RW_EDOM for phi_c outside (0, 1).
+ * At phi = 0 the result is the mineral; at phi = phi_c the pack. */
+int rw_rm_soft_sand(double k_min_pa, double mu_min_pa, double phi, double phi_c,
+                    double coord, double p_eff_pa, double slip,
+                    double *k_dry_pa, double *mu_dry_pa, unsigned *warn);
+
+/* Stiff-sand model: the modified Hashin-Shtrikman upper bound between the
+ * same Hertz-Mindlin pack at phi_c and the mineral (Gal, Dvorkin & Nur
+ * 1998; Mavko, Mukerji & Dvorkin 2009, sec. 5.4, from memory): the
+ * soft-sand formulas with mu_HM replaced by the mineral's mu in the
+ * 4/3 mu term and z = (mu / 6) (9 K + 8 mu) / (K + 2 mu). Above phi_c
+ * the soft-sand continuation is used (flagged PHI_ABOVE_C). Arguments,
+ * warnings and errors as rw_rm_soft_sand. Never below the soft sand. */
+int rw_rm_stiff_sand(double k_min_pa, double mu_min_pa, double phi,
+                     double phi_c, double coord, double p_eff_pa, double slip,
+                     double *k_dry_pa, double *mu_dry_pa, unsigned *warn);
+
+/* Cement schemes of the contact-cement model. */
+enum {
+	RW_RM_CEMENT_CONTACT = 1, /* scheme 1: cement at the grain contacts */
+	RW_RM_CEMENT_COATING = 2  /* scheme 2: cement coats the grains */
+};
+
+/* Contact-cement model, Dvorkin & Nur 1996 (after Dvorkin, Nur & Yin
+ * 1994), as written in Mavko, Mukerji & Dvorkin 2009, sec. 5.4 (every
+ * coefficient from memory):
+ *   K = (1/6) C (1 - phi_c) M_c S_n,
+ *   mu = (3/5) K + (3/20) C (1 - phi_c) mu_c S_t,
+ *   M_c = K_c + 4/3 mu_c; S_n, S_t quadratic in the cement radius ratio
+ *   alpha with coefficients that are power laws of
+ *   Lambda_n = 2 mu_c (1 - nu)(1 - nu_c) / (pi mu (1 - 2 nu_c)) and
+ *   Lambda_t = mu_c / (pi mu) (see granular.c for the full set);
+ *   scheme 1: alpha = 2 [(phi_c - phi) / (3 C (1 - phi_c))]^(1/4),
+ *   scheme 2: alpha = [2 (phi_c - phi) / (3 (1 - phi_c))]^(1/2).
+ * All porosity lost below phi_c is cement: cement fraction phi_c - phi.
+ * k_cem_pa > 0, mu_cem_pa > 0: cement moduli (nu_c < 0.5); phi in
+ * [0, phi_c]; scheme RW_RM_CEMENT_CONTACT or RW_RM_CEMENT_COATING;
+ * others as rw_rm_hertz_mindlin. The model has no zero-porosity limit.
+ * Warnings: CEMENT_HIGH, COORD_RANGE.
+ * errors: RW_EDOM for phi above phi_c (negative cement) or any other
+ * argument outside its range; RW_EINVAL for an unknown scheme. */
+int rw_rm_contact_cement(double k_min_pa, double mu_min_pa, double k_cem_pa,
+                         double mu_cem_pa, double phi, double phi_c,
+                         double coord, int scheme, double *k_dry_pa,
+                         double *mu_dry_pa, unsigned *warn);
+
+/* Constant-cement model, Avseth, Dvorkin, Mavko & Rykkje 2000: sands of
+ * one cement content and worsening sorting. The contact-cement rock at
+ * phi_b (the porosity where cementing stopped, phi_b <= phi_c) is joined
+ * to the mineral by the modified Hashin-Shtrikman lower bound:
+ *   K = [ (phi/phi_b) / (K_b + 4/3 mu_b)
+ *         + (1 - phi/phi_b) / (K + 4/3 mu_b) ]^-1 - 4/3 mu_b,
+ *   mu likewise with z_b = (mu_b / 6) (9 K_b + 8 mu_b) / (K_b + 2 mu_b).
+ * phi in [0, phi_b], phi_b in (0, phi_c]; others as
+ * rw_rm_contact_cement. Warnings: CEMENT_HIGH (for phi_c - phi_b),
+ * COORD_RANGE. errors: RW_EDOM for phi above phi_b (the rock there is
+ * contact cement, not this model) and as rw_rm_contact_cement. */
+int rw_rm_constant_cement(double k_min_pa, double mu_min_pa, double k_cem_pa,
+                          double mu_cem_pa, double phi, double phi_b,
+                          double phi_c, double coord, int scheme,
+                          double *k_dry_pa, double *mu_dry_pa, unsigned *warn);
+
+/* Critical-porosity model, Nur, Mavko, Dvorkin & Galmudi 1998:
+ * K = K_min (1 - phi/phi_c), mu = mu_min (1 - phi/phi_c) for phi < phi_c
+ * and 0 (a suspension) above, flagged PHI_ABOVE_C. phi in [0, 1),
+ * phi_c in (0, 1); typical phi_c: 0.36-0.40 sandstones, about 0.6
+ * limestones (Nur et al. 1998, from memory). The lines fall more slowly
+ * than the Hashin-Shtrikman upper bounds of mineral and empty pores when
+ * 1/phi_c < 1 + 3K/(4 mu) or 1/phi_c < 1 + mu/z (the bounds' initial
+ * slopes; z as in the soft sand), i.e. phi_c above 0.357 for calcite
+ * (so also the limestone value 0.6) and above 0.476 for quartz: the
+ * low-porosity values then exceed the bound and are flagged ABOVE_HS.
+ * errors: RW_EDOM for an argument outside its range. */
+int rw_rm_critical_porosity(double k_min_pa, double mu_min_pa, double phi,
+                            double phi_c, double *k_dry_pa, double *mu_dry_pa,
+                            unsigned *warn);
+
+/* Krief, Garat, Stellingwerff & Ventre 1990: K = K_min (1 - phi)^m,
+ * mu = mu_min (1 - phi)^m, m = 3 / (1 - phi) (the exponent 3 from
+ * memory). phi in [0, 1). No warnings (*warn set to 0).
+ * errors: RW_EDOM for an argument outside its range. */
+int rw_rm_krief(double k_min_pa, double mu_min_pa, double phi, double *k_dry_pa,
+                double *mu_dry_pa, unsigned *warn);
+
+#ifdef __cplusplus
+}
+#endif
+
+#endif

@@ -1,7 +1,19 @@
-/* Internal to the core's rock models: the Hashin-Shtrikman bound the
- * models are checked against. */
+/* Internal to the core's rock models: the workspace behind rw_rm_ws
+ * (rockmodel.h) and the Hashin-Shtrikman bound the models are checked
+ * against. */
 #ifndef RW_CORE_ROCKMODEL_INT_H
 #define RW_CORE_ROCKMODEL_INT_H
+
+#include <stddef.h>
+
+#include <gsl/gsl_odeiv2.h>
+
+struct rw_rm_ws {
+	/* DEM: two unknowns, K/K_host and mu/mu_host */
+	gsl_odeiv2_step *step;
+	gsl_odeiv2_control *ctrl;
+	gsl_odeiv2_evolve *evo;
+};
 
 /* Hashin-Shtrikman 1963 upper bound of a solid (k, mu > 0) with a volume
  * fraction phi of empty pores, in closed form:

@@ -1,11 +1,14 @@
 /* Rock-physics models of the rockwire compute core: dry-frame moduli of
  * granular packs and sands (Hertz-Mindlin, Walton, soft and stiff sand,
- * contact and constant cement, critical porosity, Krief).
+ * contact and constant cement, critical porosity, Krief) and of solids
+ * with inclusions (Kuster-Toksoz, self-consistent, differential
+ * effective medium, Xu-White).
  *
  * Units: moduli Pa, density kg/m^3, pressure Pa (effective pressure, the
  * confining minus the pore pressure), porosity and fractions as
  * fractions (0..1). Per-sample functions are pure, reentrant and
- * allocate nothing.
+ * allocate nothing; the ones that run GSL's ODE solver (DEM, Xu-White)
+ * take a workspace the caller makes once per thread with rw_rm_ws_new.
  *
  * Every model writes a bit set of RW_RM_WARN_* to *warn (NULL allowed;
  * overwritten, not OR-ed) when an input lies outside the range where the
@@ -233,6 +236,130 @@ int rw_rm_critical_porosity(double k_min_pa, double mu_min_pa, double phi,
  * errors: RW_EDOM for an argument outside its range. */
 int rw_rm_krief(double k_min_pa, double mu_min_pa, double phi, double *k_dry_pa,
                 double *mu_dry_pa, unsigned *warn);
+
+/* ---- inclusion models ------------------------------------------------- */
+
+/* Inclusion shapes for Berryman's 1980 P and Q factors. */
+enum {
+	RW_RM_SHAPE_SPHERE = 0,
+	RW_RM_SHAPE_NEEDLE = 1, /* prolate, aspect ratio -> infinity */
+	RW_RM_SHAPE_DISK = 2,  /* oblate, aspect ratio -> 0, finite stiffness */
+	RW_RM_SHAPE_PENNY = 3, /* thin oblate crack of given aspect ratio */
+	RW_RM_SHAPE_SPHEROID = 4 /* spheroid of any aspect ratio */
+};
+
+/* One constituent of an inclusion model: moduli k_pa >= 0, mu_pa >= 0
+ * (0 for an empty or fluid-filled pore), volume fraction frac in [0, 1]
+ * of the composite, shape RW_RM_SHAPE_*, and aspect ratio aspect > 0
+ * (short over long axis for oblate, long over short for prolate
+ * spheroids: the polar over the equatorial semi-axis; used by PENNY and
+ * SPHEROID, ignored otherwise). */
+typedef struct rw_rm_incl {
+	double k_pa;
+	double mu_pa;
+	double frac;
+	double aspect;
+	int shape;
+} rw_rm_incl;
+
+/* Berryman's 1980 polarisation factors P (bulk) and Q (shear) of an
+ * inclusion (k_inc_pa, mu_inc_pa) in a background (k_bg_pa, mu_bg_pa),
+ * as tabulated in Mavko, Mukerji & Dvorkin 2009, sec. 4.8 (from memory):
+ * closed forms for spheres, needles, disks and penny cracks, and for a
+ * spheroid of any aspect ratio the Eshelby-Wu tensor in Berryman's
+ * F1..F9 form, P = T_iijj / 3, Q = (T_ijij - T_iijj / 3) / 5.
+ * k_bg_pa > 0, mu_bg_pa > 0 (nu in (-1, 0.5)), k_inc_pa >= 0,
+ * mu_inc_pa >= 0, aspect > 0 for PENNY and SPHEROID. Disks need a solid
+ * inclusion: an empty or fluid disk has infinite P or Q.
+ * errors: RW_EINVAL for an unknown shape; RW_EDOM for an argument
+ * outside its range or a non-finite result. Outputs NaN on error. */
+int rw_rm_incl_pq(int shape, double aspect, double k_bg_pa, double mu_bg_pa,
+                  double k_inc_pa, double mu_inc_pa, double *p, double *q);
+
+/* Kuster & Toksoz 1974 with Berryman's P and Q (Mavko, Mukerji & Dvorkin
+ * 2009, sec. 4.8):
+ *   (K - K_m)(K_m + 4/3 mu_m) / (K + 4/3 mu_m)
+ *       = sum_i c_i (K_i - K_m) P^mi,
+ *   (mu - mu_m)(mu_m + z_m) / (mu + z_m) = sum_i c_i (mu_i - mu_m) Q^mi,
+ *   z_m = (mu_m / 6)(9 K_m + 8 mu_m) / (K_m + 2 mu_m),
+ * solved explicitly for K and mu. Host (matrix) k_host_pa > 0,
+ * mu_host_pa > 0; n >= 0 inclusions with fractions summing to at most 1
+ * (the host takes the rest). For spheres the result is the
+ * Hashin-Shtrikman bound with the host as the stiff end member.
+ * Warnings: DILUTE, ASPECT_RANGE.
+ * errors: RW_EINVAL for n > 0 with incl NULL, or an unknown shape;
+ * RW_EDOM for an argument outside its range or fractions summing above 1
+ * (+1e-9); RW_ERANGE when the result is not a positive modulus (cracks
+ * far beyond the dilute limit). Outputs NaN on error. */
+int rw_rm_kuster_toksoz(double k_host_pa, double mu_host_pa, size_t n,
+                        const rw_rm_incl *incl, double *k_pa, double *mu_pa,
+                        unsigned *warn);
+
+/* Self-consistent approximation, Berryman 1980 (Mavko, Mukerji & Dvorkin
+ * 2009, sec. 4.8): K, mu solve sum_i c_i (K_i - K) P^*i = 0 and
+ * sum_i c_i (mu_i - mu) Q^*i = 0, with P, Q of each phase in the
+ * effective medium itself. Every constituent is a phase (include the
+ * mineral, usually as spheres); fractions sum to 1 within 1e-6; at least
+ * one phase has mu > 0. Solved by Berryman's fixed-point iteration
+ * K <- sum c_i K_i P_i / sum c_i P_i (and mu likewise), started at the
+ * Voigt average and stopped when the error estimated from the observed
+ * contraction rate is below tol (relative); at most 100000 iterations.
+ * When the solid no longer percolates (e.g. empty spherical pores above
+ * phi = 0.5) the moduli converge to 0: returned as 0 with PERCOLATED;
+ * with fluid-filled pores only the shear modulus vanishes (for brine
+ * spheres in quartz from phi = 0.6) and K is then the Reuss average.
+ * tol in [1e-14, 1e-2].
+ * Warnings: PERCOLATED, ASPECT_RANGE; NOT_CONVERGED with RW_EMAXITER.
+ * errors: RW_EINVAL for n == 0, phases NULL or an unknown shape; RW_EDOM
+ * for an argument outside its range; RW_EMAXITER when not converged.
+ * Outputs NaN on error. */
+int rw_rm_self_consistent(size_t n, const rw_rm_incl *phases, double tol,
+                          double *k_pa, double *mu_pa, unsigned *warn);
+
+/* Workspace of the GSL ODE stepper used by DEM and Xu-White. Make one
+ * per thread, outside per-sample loops. */
+typedef struct rw_rm_ws rw_rm_ws;
+
+/* Allocates a workspace. Returns NULL when out of memory; the caller
+ * frees it with rw_rm_ws_free. */
+rw_rm_ws *rw_rm_ws_new(void);
+
+/* Frees a workspace; NULL is a no-op. */
+void rw_rm_ws_free(rw_rm_ws *ws);
+
+/* Differential effective medium (Norris 1985; Mavko, Mukerji & Dvorkin
+ * 2009, sec. 4.11, from memory): inclusions are added to the host in
+ * small steps in fixed proportions c_i / c (c = sum c_i),
+ *   (1 - y) dK/dy = sum_i (c_i / c) (K_i - K) P^*i(y),
+ *   (1 - y) dmu/dy = sum_i (c_i / c) (mu_i - mu) Q^*i(y),
+ * from y = 0 (the host) to y = c, integrated with GSL's adaptive
+ * Runge-Kutta-Prince-Dormand 8(9) stepper (gsl_odeiv2_step_rk8pd) on
+ * K/K_host and mu/mu_host with absolute and relative tolerance tol in
+ * [1e-14, 1e-3]. c < 1. Warnings: ASPECT_RANGE; NOT_CONVERGED with
+ * RW_EMAXITER (more than 100000 steps).
+ * errors: RW_EINVAL for ws NULL, n > 0 with incl NULL or an unknown
+ * shape; RW_EDOM for an argument outside its range or fractions summing
+ * to 1 or more; RW_ERANGE when the moduli leave the positive range.
+ * Outputs NaN on error. */
+int rw_rm_dem(double k_host_pa, double mu_host_pa, size_t n,
+              const rw_rm_incl *incl, double tol, rw_rm_ws *ws, double *k_pa,
+              double *mu_pa, unsigned *warn);
+
+/* Xu & White 1995 dry frame of a shaly sand: the pore space is split
+ * into sand pores and clay pores in proportion to the sand and clay
+ * volumes of the solid (phi_clay = vclay phi, phi_sand = (1 - vclay)
+ * phi), both empty spheroids with their own aspect ratios (typical sand
+ * 0.1-0.15, clay 0.02-0.05; Xu & White 1995, from memory), added to the
+ * solid by DEM (Xu & White add them in small Kuster-Toksoz steps, of
+ * which the DEM equations are the continuous form). k_min_pa, mu_min_pa:
+ * moduli of the sand-clay solid (mix them first, e.g. with
+ * rw_mineral_mix); phi in [0, 1); vclay in [0, 1]: clay volume fraction
+ * of the solid; aspects > 0; tol, ws as rw_rm_dem.
+ * Warnings and errors as rw_rm_dem. */
+int rw_rm_xu_white(double k_min_pa, double mu_min_pa, double phi, double vclay,
+                   double aspect_sand, double aspect_clay, double tol,
+                   rw_rm_ws *ws, double *k_dry_pa, double *mu_dry_pa,
+                   unsigned *warn);
 
 #ifdef __cplusplus
 }

@@ -2,7 +2,8 @@
  * granular packs and sands (Hertz-Mindlin, Walton, soft and stiff sand,
  * contact and constant cement, critical porosity, Krief) and of solids
  * with inclusions (Kuster-Toksoz, self-consistent, differential
- * effective medium, Xu-White).
+ * effective medium, Xu-White), and the effective-pressure law fitted to
+ * core data.
  *
  * Units: moduli Pa, density kg/m^3, pressure Pa (effective pressure, the
  * confining minus the pore pressure), porosity and fractions as
@@ -360,6 +361,52 @@ int rw_rm_xu_white(double k_min_pa, double mu_min_pa, double phi, double vclay,
                    double aspect_sand, double aspect_clay, double tol,
                    rw_rm_ws *ws, double *k_dry_pa, double *mu_dry_pa,
                    unsigned *warn);
+
+/* ---- pressure --------------------------------------------------------- */
+
+/* Exponential pressure law of a dry-frame modulus (common practice; no
+ * single published source): M(P) = m_inf - (m_inf - m_0) exp(-P / p_c),
+ * fitted to data over [p_lo_pa, p_hi_pa]. */
+typedef struct rw_rm_plaw {
+	double m_inf_pa; /* high-pressure asymptote */
+	double m_0_pa;   /* value at zero effective pressure */
+	double p_c_pa;   /* characteristic pressure, > 0 */
+	double p_lo_pa;  /* pressure range of the fitted data */
+	double p_hi_pa;
+} rw_rm_plaw;
+
+/* Fit of the pressure law to n (pressure, modulus) pairs. */
+typedef struct rw_rm_pfit {
+	rw_rm_plaw law;
+	double cov[3][3]; /* covariance of (m_inf, m_0, p_c), Pa^2 */
+	double chi2;      /* sum of squared (weighted) residuals */
+	double rms_pa;    /* root-mean-square residual, Pa (unweighted) */
+	size_t dof;       /* n - 3 */
+	size_t n_iter;
+} rw_rm_pfit;
+
+/* Evaluates the law at p_eff_pa >= 0. Warnings: P_EXTRAP outside
+ * [p_lo_pa, p_hi_pa] of the law.
+ * errors: RW_EDOM for p < 0, a non-finite input or p_c <= 0 (*m NaN). */
+int rw_rm_plaw_eval(const rw_rm_plaw *law, double p_eff_pa, double *m_pa,
+                    unsigned *warn);
+
+/* Fits the law to n >= 3 points (p_pa[i] >= 0, m_pa[i] > 0, at least 3
+ * distinct pressures) by nonlinear least squares
+ * (gsl_multifit_nlinear, Levenberg-Marquardt trust region; p_c kept
+ * positive by fitting its logarithm). sigma_pa: standard deviations of
+ * the moduli (> 0), or NULL for equal weights. Covariance: (J^T W J)^-1
+ * at the solution in (m_inf, m_0, p_c); with sigma it is absolute, without
+ * it is scaled by chi2 / dof (NaN when dof = 0). This is a calibration
+ * call, not a per-sample one: it allocates a GSL workspace and frees it
+ * before returning. Warnings: P_EXTRAP when the fitted p_c lies above the
+ * highest measured pressure (the asymptote is then an extrapolation).
+ * errors: RW_EINVAL for NULL arrays, n < 3 or fewer than 3 distinct
+ * pressures; RW_EDOM for a point outside the ranges above or non-finite;
+ * RW_EMAXITER when the fit does not converge in 200 iterations. out's
+ * numbers NaN on error. */
+int rw_rm_plaw_fit(size_t n, const double *p_pa, const double *m_pa,
+                   const double *sigma_pa, rw_rm_pfit *out, unsigned *warn);
 
 #ifdef __cplusplus
 }

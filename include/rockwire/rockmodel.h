@@ -2,14 +2,17 @@
  * granular packs and sands (Hertz-Mindlin, Walton, soft and stiff sand,
  * contact and constant cement, critical porosity, Krief) and of solids
  * with inclusions (Kuster-Toksoz, self-consistent, differential
- * effective medium, Xu-White), and the effective-pressure law fitted to
- * core data.
+ * effective medium, Xu-White), the effective-pressure law fitted to core
+ * data, the saturated rock and its seismic attributes through the
+ * project's Gassmann, and templates over porosity and water saturation.
  *
  * Units: moduli Pa, density kg/m^3, pressure Pa (effective pressure, the
  * confining minus the pore pressure), porosity and fractions as
- * fractions (0..1). Per-sample functions are pure, reentrant and
- * allocate nothing; the ones that run GSL's ODE solver (DEM, Xu-White)
- * take a workspace the caller makes once per thread with rw_rm_ws_new.
+ * fractions (0..1), impedances kg/(m^2 s), lambda-rho and mu-rho
+ * Pa kg/m^3. Per-sample functions are pure, reentrant and allocate
+ * nothing; the ones that run GSL's ODE solver (DEM, Xu-White, and the
+ * evaluator and template with those models) take a workspace the caller
+ * makes once per thread with rw_rm_ws_new.
  *
  * Every model writes a bit set of RW_RM_WARN_* to *warn (NULL allowed;
  * overwritten, not OR-ed) when an input lies outside the range where the
@@ -407,6 +410,201 @@ int rw_rm_plaw_eval(const rw_rm_plaw *law, double p_eff_pa, double *m_pa,
  * numbers NaN on error. */
 int rw_rm_plaw_fit(size_t n, const double *p_pa, const double *m_pa,
                    const double *sigma_pa, rw_rm_pfit *out, unsigned *warn);
+
+/* ---- the saturated rock ----------------------------------------------- */
+
+/* Saturated rock and its seismic attributes. */
+typedef struct rw_rm_sat {
+	double k_dry_pa, mu_dry_pa; /* dry frame */
+	double k_sat_pa;            /* Gassmann saturated bulk modulus */
+	double rho_kgm3;            /* bulk density */
+	double vp_ms, vs_ms;
+	double ai;         /* acoustic impedance rho vp, kg/(m^2 s) */
+	double si;         /* shear impedance rho vs, kg/(m^2 s) */
+	double vpvs;       /* vp / vs (infinite when vs = 0) */
+	double nu;         /* Poisson's ratio */
+	double lambda_rho; /* lambda rho = AI^2 - 2 SI^2, Pa kg/m^3 */
+	double mu_rho;     /* mu rho = SI^2, Pa kg/m^3 */
+} rw_rm_sat;
+
+/* Saturated rock from a dry frame through Gassmann (rw_rock_gassmann_frame
+ * in rock.h; Gassmann 1951): k_dry_pa >= 0, mu_dry_pa >= 0, phi in
+ * [0, 1) (phi = 0: the mineral, no fluid), mineral k_min_pa > 0,
+ * rho_min_kgm3 > 0, pore fluid k_fl_pa > 0, rho_fl_kgm3 > 0. Attributes
+ * ai = rho vp, si = rho vs, vpvs, nu = (vp^2 - 2 vs^2) / (2 (vp^2 -
+ * vs^2)), lambda_rho = ai^2 - 2 si^2, mu_rho = si^2 (Goodway et al. 1997
+ * forms, from memory). Warnings: NO_SHEAR (mu_dry = 0), PHI_LOW,
+ * FRAME_STIFF.
+ * errors: RW_EDOM for an input outside those ranges; RW_ERANGE as
+ * rw_rock_gassmann_frame. Outputs NaN on error. */
+int rw_rm_saturate(double k_dry_pa, double mu_dry_pa, double phi,
+                   double k_min_pa, double rho_min_kgm3, double k_fl_pa,
+                   double rho_fl_kgm3, rw_rm_sat *out, unsigned *warn);
+
+/* Attributes of rw_rm_sat that templates plot and the inversion fits. */
+typedef enum rw_rm_attr {
+	RW_RM_ATTR_VP,
+	RW_RM_ATTR_VS,
+	RW_RM_ATTR_RHO,
+	RW_RM_ATTR_AI,
+	RW_RM_ATTR_SI,
+	RW_RM_ATTR_VPVS,
+	RW_RM_ATTR_NU,
+	RW_RM_ATTR_LAMBDA_RHO,
+	RW_RM_ATTR_MU_RHO,
+	RW_RM_ATTR_K_SAT,
+	RW_RM_ATTR_K_DRY,
+	RW_RM_ATTR_MU_DRY,
+	RW_RM_ATTR_COUNT
+} rw_rm_attr;
+
+/* Value of attribute a of s (NaN for an unknown a). */
+double rw_rm_attr_get(const rw_rm_sat *s, int a);
+
+/* Short lower-case name of an attribute ("ai", "vpvs", ...; the
+ * rw_rm_sat member names without units), NULL when out of range. */
+const char *rw_rm_attr_name(int a);
+
+/* ---- a model with its parameters: one call per sample ------------------ */
+
+/* Models of rw_rm_spec. */
+typedef enum rw_rm_model {
+	RW_RM_HERTZ_MINDLIN,
+	RW_RM_WALTON_SMOOTH,
+	RW_RM_WALTON_ROUGH,
+	RW_RM_SOFT_SAND,
+	RW_RM_STIFF_SAND,
+	RW_RM_CONTACT_CEMENT,
+	RW_RM_CONSTANT_CEMENT,
+	RW_RM_CRITICAL_POROSITY,
+	RW_RM_KRIEF,
+	RW_RM_KUSTER_TOKSOZ,
+	RW_RM_SELF_CONSISTENT,
+	RW_RM_DEM,
+	RW_RM_XU_WHITE,
+	RW_RM_MODEL_COUNT
+} rw_rm_model;
+
+/* Short lower-case name of a model ("soft_sand", ...), NULL when out of
+ * range. */
+const char *rw_rm_model_name(int model);
+
+/* Nonzero when the model's dry frame depends on effective pressure (the
+ * Hertz-Mindlin based ones: Hertz-Mindlin, Walton, soft and stiff sand). */
+int rw_rm_model_uses_pressure(int model);
+
+/* Pore-fluid mixing of brine and hydrocarbon by water saturation. */
+enum {
+	RW_RM_FLUID_WOOD = 0,  /* uniform saturation, Wood 1955 */
+	RW_RM_FLUID_BRIE = 1,  /* patchy, Brie et al. 1995, exponent brie_e */
+	RW_RM_FLUID_VOIGT = 2, /* patchy upper bound */
+};
+
+/* A model and all its parameters; per-sample inputs (porosity, water
+ * saturation, clay fraction, effective pressure) are arguments of
+ * rw_rm_eval. Fields a model does not use are ignored (see
+ * rw_rm_spec_check for which are used). */
+typedef struct rw_rm_spec {
+	int model; /* rw_rm_model */
+	/* Solid: host mineral and the clay mixed into it by clay fraction
+	 * with rule clay_mix (RW_MIX_* of mineral.h). */
+	double k_min_pa, mu_min_pa, rho_min_kgm3;
+	double k_clay_pa, mu_clay_pa, rho_clay_kgm3;
+	int clay_mix;
+	/* Granular and sand models. */
+	double phi_c; /* critical porosity */
+	double coord; /* coordination number; 0 = Murphy 1982 at phi_c */
+	double slip;  /* shear-reduction factor, 1 = no slip */
+	/* Cement models. */
+	double k_cem_pa, mu_cem_pa;
+	int cement_scheme; /* RW_RM_CEMENT_* */
+	double phi_b;      /* constant cement: porosity at end of cementing */
+	/* Inclusion models: pores are empty (dry frame) and of one shape and
+	 * aspect ratio; the solid is spherical in the self-consistent model;
+	 * Xu-White uses aspect for sand pores and aspect_clay for clay
+	 * pores. tol: DEM and self-consistent tolerance. */
+	int pore_shape; /* RW_RM_SHAPE_* */
+	double aspect, aspect_clay;
+	double tol;
+	/* Pore fluids: brine and one hydrocarbon phase (gas or oil), as
+	 * computed by fluid.h, mixed by water saturation. */
+	double k_brine_pa, rho_brine_kgm3;
+	double k_hc_pa, rho_hc_kgm3;
+	int fluid_mix; /* RW_RM_FLUID_* */
+	double brie_e; /* Brie exponent, >= 1 */
+} rw_rm_spec;
+
+/* Checks a spec once before a run. On failure *field (may be NULL) names
+ * the offending member ("phi_c", "k_cem_pa", ...) as a static string.
+ * errors: RW_EINVAL for an unknown model, shape, scheme, mix rule or
+ * fluid mix; RW_EDOM for a used member outside its range. */
+int rw_rm_spec_check(const rw_rm_spec *spec, const char **field);
+
+/* Highest porosity at which the model is defined without continuation:
+ * phi_c (sands, cement, critical porosity), phi_b (constant cement),
+ * 0.5 for the self-consistent model with spheres, just below 1 otherwise.
+ * NaN for an unknown model. */
+double rw_rm_spec_phi_max(const rw_rm_spec *spec);
+
+/* Dry frame and solid of a spec at porosity phi in [0, 1), clay fraction
+ * of the solid clay in [0, 1] and effective pressure p_eff_pa >= 0. The
+ * solid (k_s, mu_s, rho_s; any pointer may be NULL) is the host mineral
+ * mixed with clay by spec->clay_mix. ws: a workspace, needed by DEM and
+ * Xu-White (may be NULL for the others). Warnings: those of the model,
+ * and ABOVE_HS for any model whose frame exceeds the Hashin-Shtrikman
+ * upper bound of the solid with empty pores.
+ * errors: those of the model and of rw_rm_spec_check; RW_EINVAL for DEM
+ * or Xu-White without ws. Outputs NaN on error. */
+int rw_rm_dry(const rw_rm_spec *spec, double phi, double clay, double p_eff_pa,
+              rw_rm_ws *ws, double *k_dry_pa, double *mu_dry_pa, double *k_s_pa,
+              double *mu_s_pa, double *rho_s_kgm3, unsigned *warn);
+
+/* Saturated rock of a spec: rw_rm_dry, the pore fluid of water
+ * saturation sw in [0, 1] (brine and hydrocarbon mixed by
+ * spec->fluid_mix with fluid.h's mixers), then rw_rm_saturate.
+ * Warnings: those of rw_rm_dry and rw_rm_saturate.
+ * errors: those of rw_rm_dry, the mixers and rw_rm_saturate; RW_EDOM for
+ * sw outside [0, 1]. Outputs NaN on error. */
+int rw_rm_eval(const rw_rm_spec *spec, double phi, double sw, double clay,
+               double p_eff_pa, rw_rm_ws *ws, rw_rm_sat *out, unsigned *warn);
+
+/* ---- templates -------------------------------------------------------- */
+
+/* Third template axis. */
+enum {
+	RW_RM_AXIS_NONE = 0,
+	RW_RM_AXIS_CLAY = 1,    /* clay fraction of the solid */
+	RW_RM_AXIS_PRESSURE = 2 /* effective pressure, Pa */
+};
+
+/* A template: spec evaluated on the grid phi[i] x sw[j] x axis3[k]
+ * (n_phi, n_sw >= 2, strictly increasing, phi in [0, 1), sw in [0, 1];
+ * axis3_kind RW_RM_AXIS_NONE with n_3 = 1 and axis3 NULL, or CLAY /
+ * PRESSURE with n_3 >= 1 values). clay and p_eff_pa are used where they
+ * are not on the third axis. Node (i, j, k) is written to
+ * nodes[(k * n_sw + j) * n_phi + i], its status (RW_*) to status[] and its
+ * warnings to warn[] (same index; status and warn may be NULL); a failed
+ * node has NaN members, the grid is still filled. ws as rw_rm_dry.
+ * errors (the call itself): RW_EINVAL for NULL arrays, bad sizes, an
+ * unknown axis kind, axes not strictly increasing or a spec that fails
+ * rw_rm_spec_check; RW_EDOM for an axis value outside its range. */
+int rw_rm_template(const rw_rm_spec *spec, size_t n_phi, const double *phi,
+                   size_t n_sw, const double *sw, int axis3_kind, size_t n_3,
+                   const double *axis3, double clay, double p_eff_pa,
+                   rw_rm_ws *ws, rw_rm_sat *nodes, int *status, unsigned *warn);
+
+/* Iso-lines of slice k of a template in the crossplot of attributes
+ * attr_x and attr_y: the iso-porosity line of phi[i] is the points of
+ * increasing sw, written as (x, y) pairs to
+ * iso_phi[2 * (i * n_sw + j) + {0, 1}]; the iso-saturation line of sw[j]
+ * is the points of increasing phi, iso_sw[2 * (j * n_phi + i) + {0, 1}].
+ * Failed nodes appear as NaN pairs (a plotter breaks the line there).
+ * Either output may be NULL.
+ * errors: RW_EINVAL for NULL nodes, n_phi or n_sw of 0, k >= n_3 or an
+ * unknown attribute. */
+int rw_rm_template_lines(const rw_rm_sat *nodes, size_t n_phi, size_t n_sw,
+                         size_t n_3, size_t k, int attr_x, int attr_y,
+                         double *iso_phi, double *iso_sw);
 
 #ifdef __cplusplus
 }

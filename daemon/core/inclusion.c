@@ -363,23 +363,61 @@ void rw_rm_ws_free(rw_rm_ws *ws)
 		gsl_odeiv2_control_free(ws->ctrl);
 	if (ws->step)
 		gsl_odeiv2_step_free(ws->step);
+	if (ws->nl)
+		gsl_multifit_nlinear_free(ws->nl);
+	if (ws->nl_prof)
+		gsl_multifit_nlinear_free(ws->nl_prof);
+	gsl_vector_free(ws->u0);
+	gsl_vector_free(ws->u0_prof);
+	gsl_matrix_free(ws->jac);
+	gsl_matrix_free(ws->v);
+	gsl_vector_free(ws->sv);
+	gsl_vector_free(ws->sv_work);
 	free(ws);
 }
 
-rw_rm_ws *rw_rm_ws_new(void)
+rw_rm_ws *rw_rm_ws_new(size_t n_obs, size_t n_par)
 {
-	rw_rm_ws *ws = calloc(1, sizeof(*ws));
+	rw_rm_ws *ws;
 
+	if (n_obs > RW_RM_INV_MAX || n_par > n_obs || (n_obs > 0 && n_par == 0))
+		return NULL;
+	ws = calloc(1, sizeof(*ws));
 	if (ws == NULL)
 		return NULL;
 	ws->step = gsl_odeiv2_step_alloc(gsl_odeiv2_step_rk8pd, 2);
 	ws->ctrl = gsl_odeiv2_control_y_new(1e-8, 1e-8);
 	ws->evo = gsl_odeiv2_evolve_alloc(2);
-	if (!ws->step || !ws->ctrl || !ws->evo) {
-		rw_rm_ws_free(ws);
-		return NULL;
+	if (!ws->step || !ws->ctrl || !ws->evo)
+		goto fail;
+	ws->n_obs = n_obs;
+	ws->n_par = n_par;
+	if (n_obs > 0) {
+		gsl_multifit_nlinear_parameters prm =
+		    gsl_multifit_nlinear_default_parameters();
+
+		ws->nl = gsl_multifit_nlinear_alloc(gsl_multifit_nlinear_trust,
+		                                    &prm, n_obs, n_par);
+		ws->u0 = gsl_vector_alloc(n_par);
+		ws->jac = gsl_matrix_alloc(n_obs, n_par);
+		ws->v = gsl_matrix_alloc(n_par, n_par);
+		ws->sv = gsl_vector_alloc(n_par);
+		ws->sv_work = gsl_vector_alloc(n_par);
+		if (!ws->nl || !ws->u0 || !ws->jac || !ws->v || !ws->sv ||
+		    !ws->sv_work)
+			goto fail;
+		if (n_par > 1) {
+			ws->nl_prof = gsl_multifit_nlinear_alloc(
+			    gsl_multifit_nlinear_trust, &prm, n_obs, n_par - 1);
+			ws->u0_prof = gsl_vector_alloc(n_par - 1);
+			if (!ws->nl_prof || !ws->u0_prof)
+				goto fail;
+		}
 	}
 	return ws;
+fail:
+	rw_rm_ws_free(ws);
+	return NULL;
 }
 
 /* ---- differential effective medium ------------------------------------ */

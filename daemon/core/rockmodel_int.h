@@ -1,18 +1,31 @@
 /* Internal to the core's rock models: the workspace behind rw_rm_ws
- * (rockmodel.h) and the Hashin-Shtrikman bound the models are checked
- * against. */
+ * (rockmodel.h), shared by the inclusion models (ODE stepper) and the
+ * inversion (nonlinear least squares, SVD scratch), and the
+ * Hashin-Shtrikman bound the models are checked against. */
 #ifndef RW_CORE_ROCKMODEL_INT_H
 #define RW_CORE_ROCKMODEL_INT_H
 
 #include <stddef.h>
 
+#include <gsl/gsl_matrix.h>
+#include <gsl/gsl_multifit_nlinear.h>
 #include <gsl/gsl_odeiv2.h>
+#include <gsl/gsl_vector.h>
 
 struct rw_rm_ws {
 	/* DEM: two unknowns, K/K_host and mu/mu_host */
 	gsl_odeiv2_step *step;
 	gsl_odeiv2_control *ctrl;
 	gsl_odeiv2_evolve *evo;
+	/* inversion: sizes, the full fit and the profile fit (one fewer
+	 * parameter; NULL when n_par = 1) */
+	size_t n_obs, n_par;
+	gsl_multifit_nlinear_workspace *nl;
+	gsl_multifit_nlinear_workspace *nl_prof;
+	gsl_vector *u0, *u0_prof; /* start vectors */
+	gsl_matrix *jac;          /* n_obs x n_par physical Jacobian */
+	gsl_matrix *v;            /* n_par x n_par, SVD */
+	gsl_vector *sv, *sv_work; /* n_par, SVD */
 };
 
 /* Hashin-Shtrikman 1963 upper bound of a solid (k, mu > 0) with a volume

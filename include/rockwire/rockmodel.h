@@ -1,18 +1,19 @@
 /* Rock-physics models of the rockwire compute core: dry-frame moduli of
  * granular packs and sands (Hertz-Mindlin, Walton, soft and stiff sand,
- * contact and constant cement, critical porosity, Krief) and of solids
- * with inclusions (Kuster-Toksoz, self-consistent, differential
- * effective medium, Xu-White), the effective-pressure law fitted to core
- * data, the saturated rock and its seismic attributes through the
- * project's Gassmann, and templates over porosity and water saturation.
+ * contact and constant cement, critical porosity, Krief), of solids with
+ * inclusions (Kuster-Toksoz, self-consistent, differential effective
+ * medium, Xu-White), the effective-pressure law fitted to core data, the
+ * saturated rock and its seismic attributes through the project's
+ * Gassmann, templates over porosity and water saturation, and the
+ * inversion of two or three attributes for porosity and saturation.
  *
  * Units: moduli Pa, density kg/m^3, pressure Pa (effective pressure, the
- * confining minus the pore pressure), porosity and fractions as
- * fractions (0..1), impedances kg/(m^2 s), lambda-rho and mu-rho
+ * confining minus the pore pressure), porosity, saturation and fractions
+ * as fractions (0..1), impedances kg/(m^2 s), lambda-rho and mu-rho
  * Pa kg/m^3. Per-sample functions are pure, reentrant and allocate
- * nothing; the ones that run GSL's ODE solver (DEM, Xu-White, and the
- * evaluator and template with those models) take a workspace the caller
- * makes once per thread with rw_rm_ws_new.
+ * nothing; the ones that run GSL solvers (DEM, Xu-White, the template
+ * and inversion drivers) take a workspace the caller makes once per
+ * thread with rw_rm_ws_new.
  *
  * Every model writes a bit set of RW_RM_WARN_* to *warn (NULL allowed;
  * overwritten, not OR-ed) when an input lies outside the range where the
@@ -320,13 +321,17 @@ int rw_rm_kuster_toksoz(double k_host_pa, double mu_host_pa, size_t n,
 int rw_rm_self_consistent(size_t n, const rw_rm_incl *phases, double tol,
                           double *k_pa, double *mu_pa, unsigned *warn);
 
-/* Workspace of the GSL ODE stepper used by DEM and Xu-White. Make one
+/* Workspace of the GSL solvers (ODE stepper for DEM and Xu-White,
+ * nonlinear least squares and small matrices for the inversion). Make one
  * per thread, outside per-sample loops. */
 typedef struct rw_rm_ws rw_rm_ws;
 
-/* Allocates a workspace. Returns NULL when out of memory; the caller
- * frees it with rw_rm_ws_free. */
-rw_rm_ws *rw_rm_ws_new(void);
+/* Allocates a workspace. n_obs, n_par: sizes of the inversion problem it
+ * will serve (1 <= n_par <= n_obs <= RW_RM_INV_MAX); 0, 0 for a workspace
+ * without the inversion part (DEM, Xu-White, templates). Returns NULL on
+ * bad sizes or when out of memory; the caller frees it with
+ * rw_rm_ws_free. */
+rw_rm_ws *rw_rm_ws_new(size_t n_obs, size_t n_par);
 
 /* Frees a workspace; NULL is a no-op. */
 void rw_rm_ws_free(rw_rm_ws *ws);
@@ -605,6 +610,114 @@ int rw_rm_template(const rw_rm_spec *spec, size_t n_phi, const double *phi,
 int rw_rm_template_lines(const rw_rm_sat *nodes, size_t n_phi, size_t n_sw,
                          size_t n_3, size_t k, int attr_x, int attr_y,
                          double *iso_phi, double *iso_sw);
+
+/* ---- inversion -------------------------------------------------------- */
+
+/* Most observations and parameters of one inversion; most starts and
+ * profile nodes. */
+#define RW_RM_INV_MAX         3
+#define RW_RM_INV_MAX_STARTS  64
+#define RW_RM_INV_MAX_PROFILE 201
+
+/* Parameters estimated, in this order: porosity, water saturation and,
+ * with n_par = 3, clay fraction of the solid. */
+enum { RW_RM_PAR_PHI = 0, RW_RM_PAR_SW = 1, RW_RM_PAR_CLAY = 2 };
+
+/* Inversion flags (a set; 0 = a unique estimate inside the template). */
+#define RW_RM_INV_NONUNIQUE                                                    \
+	0x01u /* the data do not fix sw: its 68 %                              \
+	       * range is wider than sw_width_max */
+#define RW_RM_INV_MULTIPLE                                                     \
+	0x02u                      /* another, distinct estimate fits          \
+	                            * within the 68 % misfit level */
+#define RW_RM_INV_BOUND_PHI  0x04u /* porosity estimate on a bound */
+#define RW_RM_INV_BOUND_SW   0x08u /* saturation estimate on a bound */
+#define RW_RM_INV_BOUND_CLAY 0x10u /* clay estimate on a bound */
+#define RW_RM_INV_OUTSIDE                                                      \
+	0x20u /* observation outside the template:                             \
+	       * misfit above the 99 % level */
+#define RW_RM_INV_NOT_CONVERGED                                                \
+	0x40u /* no start converged; estimate is                               \
+	       * the best point reached */
+#define RW_RM_INV_MODEL_FAIL                                                   \
+	0x80u /* the model failed at trial points:                             \
+	       * the search was penalised there */
+
+/* What to invert and how. */
+typedef struct rw_rm_inv_cfg {
+	const rw_rm_spec *spec;
+	size_t n_obs;             /* observations, 2 or 3 */
+	int attr[RW_RM_INV_MAX];  /* their attributes, RW_RM_ATTR_*, distinct */
+	size_t n_par;             /* 2: phi and sw; 3: and clay */
+	double lo[RW_RM_INV_MAX]; /* lower bounds of phi, sw, clay */
+	double hi[RW_RM_INV_MAX]; /* upper bounds, hi > lo */
+	double clay;              /* clay fraction when not estimated */
+	double p_eff_pa;          /* effective pressure */
+	unsigned n_starts;        /* starts of sw over its range, 1..64 */
+	unsigned n_profile;       /* sw profile nodes: 0 (none) or 3..201 */
+	unsigned max_iter;        /* per start, >= 1 */
+	double sw_width_max;      /* NONUNIQUE threshold on the sw range */
+} rw_rm_inv_cfg;
+
+/* Result of one inversion. */
+typedef struct rw_rm_inv_result {
+	double x[RW_RM_INV_MAX]; /* estimate: phi, sw, clay (clay echoes
+	                          * cfg->clay when not estimated) */
+	double cov[RW_RM_INV_MAX]
+	          [RW_RM_INV_MAX];   /* linearised covariance;
+	                              * +inf variances along directions the
+	                              * data do not constrain */
+	double sd[RW_RM_INV_MAX];    /* square roots of the diagonal */
+	double chi2;                 /* weighted misfit sum ((f - d) / s)^2 */
+	double sw_lo, sw_hi;         /* 68 % range of sw (profile or linear) */
+	double alt_x[RW_RM_INV_MAX]; /* a distinct second estimate (MULTIPLE) */
+	double alt_chi2;             /* its misfit; NaN when none */
+	rw_rm_sat fit;               /* the model at the estimate */
+	unsigned flags;              /* RW_RM_INV_* */
+	unsigned model_warn; /* RW_RM_WARN_* of the model at the estimate */
+	unsigned n_eval;     /* model evaluations used */
+} rw_rm_inv_result;
+
+/* Checks an inversion setup once before a run: spec, sizes, attributes,
+ * bounds inside the model's domain (phi in [0, 1), sw and clay in
+ * [0, 1]), counts. *field (may be NULL) names the offending member.
+ * errors: RW_EINVAL or RW_EDOM as rw_rm_spec_check. */
+int rw_rm_inv_check(const rw_rm_inv_cfg *cfg, const char **field);
+
+/* Estimates porosity and water saturation (and clay with n_par = 3) from
+ * observations obs[0..n_obs-1] of the attributes cfg->attr with standard
+ * deviations sigma[] > 0, by weighted nonlinear least squares on the
+ * model (gsl_multifit_nlinear, Levenberg-Marquardt trust region). Bounds
+ * are kept by the transform x = lo + (hi - lo) (1 + sin u) / 2 (common
+ * practice for bounded least squares), so every trial point lies in the
+ * box; a trial point where the model fails gets a large residual.
+ * Multi-start from n_starts saturations spread over the sw range; the
+ * best misfit wins. Covariance: (J^T J)^-1 of the weighted residuals in
+ * the physical parameters at the estimate (finite differences; one-sided
+ * at a bound), by SVD; directions with singular values below 1e-8 of the
+ * largest get infinite variance and NONUNIQUE. With n_profile >= 3 the sw
+ * range is a profile scan: at n_profile saturations evenly spaced over
+ * the bounds the other parameters are refitted and sw_lo, sw_hi bracket
+ * the saturations whose misfit stays within chi2 + 1 (68 % for one
+ * parameter; Press et al. 2007, sec. 15.6, from memory), the crossing
+ * interpolated linearly in sqrt(misfit rise), and widened to sw +- sd up
+ * to one node spacing (the nodes cannot resolve a sharper minimum);
+ * without a profile sw +- sd clipped to the bounds (the whole
+ * range when sd is not finite). Flags: NONUNIQUE (sw_hi - sw_lo >
+ * sw_width_max, or a singular direction), MULTIPLE (another start
+ * converged within chi2 + 2.30, the 68 % level for two parameters, at a
+ * saturation more than max(0.05, 2 sd) away and outside [sw_lo, sw_hi],
+ * or a porosity more than max(0.01, 2 sd) away; with a profile also a
+ * second valley of the profile), BOUND_* (within 1e-6 of
+ * the range of a bound), OUTSIDE (chi2 above the 99 % point of chi-square
+ * with max(1, n_obs - n_par) degrees of freedom), NOT_CONVERGED,
+ * MODEL_FAIL (the model failed at some trial point). ws: from
+ * rw_rm_ws_new(cfg->n_obs, cfg->n_par). errors: RW_EINVAL for NULL pointers, a
+ * workspace of other sizes or a setup that fails rw_rm_inv_check; RW_EDOM for a
+ * non-finite observation or sigma <= 0. Per-sample trouble is in out->flags,
+ * not the status. out's numbers NaN on error. */
+int rw_rm_invert(const rw_rm_inv_cfg *cfg, const double *obs,
+                 const double *sigma, rw_rm_ws *ws, rw_rm_inv_result *out);
 
 #ifdef __cplusplus
 }

@@ -25,7 +25,7 @@ static rw_rm_ws *ws;
 static int setup(void **state)
 {
 	(void)state;
-	ws = rw_rm_ws_new();
+	ws = rw_rm_ws_new(0, 0);
 	return ws == NULL;
 }
 
@@ -548,6 +548,10 @@ static void test_errors(void **state)
 	                               ws, &k, &mu, NULL));
 	EXPECT(RW_EDOM, rw_rm_xu_white(QZ_K, QZ_MU, 0.2, 0.5, 0.1, 0.0, 1e-8,
 	                               ws, &k, &mu, NULL));
+	/* workspace sizes */
+	assert_null(rw_rm_ws_new(4, 2));
+	assert_null(rw_rm_ws_new(2, 3));
+	assert_null(rw_rm_ws_new(2, 0));
 	rw_rm_ws_free(NULL);
 }
 

@@ -28,7 +28,7 @@ static rw_rm_ws *ws;
 static int setup(void **state)
 {
 	(void)state;
-	ws = rw_rm_ws_new();
+	ws = rw_rm_ws_new(0, 0);
 	return ws == NULL;
 }
 

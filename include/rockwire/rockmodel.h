@@ -541,6 +541,20 @@ typedef struct rw_rm_spec {
 
 /* Checks a spec once before a run. On failure *field (may be NULL) names
  * the offending member ("phi_c", "k_cem_pa", ...) as a static string.
+ * Members checked for every model: the host and clay minerals (K, mu > 0
+ * with nu in (-1, 0.5), rho > 0), clay_mix, brine and hydrocarbon
+ * (k, rho > 0), fluid_mix, and brie_e >= 1 with RW_RM_FLUID_BRIE. Per
+ * model:
+ *   Hertz-Mindlin, Walton: coord >= 0 (0: Murphy 1982 at phi_c, which
+ *     is then needed), slip in [0, 1] (Hertz-Mindlin);
+ *   soft and stiff sand: phi_c in (0, 1), coord, slip;
+ *   contact cement: phi_c, coord, cement moduli, cement_scheme;
+ *   constant cement: those and phi_b in (0, phi_c];
+ *   critical porosity: phi_c; Krief: nothing more;
+ *   Kuster-Toksoz, self-consistent, DEM: pore_shape (not DISK: empty
+ *     disks have no stiffness), aspect > 0 for PENNY and SPHEROID, tol
+ *     in [1e-14, 1e-3] (not Kuster-Toksoz);
+ *   Xu-White: aspect, aspect_clay > 0, tol.
  * errors: RW_EINVAL for an unknown model, shape, scheme, mix rule or
  * fluid mix; RW_EDOM for a used member outside its range. */
 int rw_rm_spec_check(const rw_rm_spec *spec, const char **field);

@@ -20,6 +20,9 @@
  * model is meant to hold; the value is still computed and RW_OK returned.
  * Inputs no rock can have are RW_EDOM with NaN outputs.
  *
+ * Section numbers of Mavko, Mukerji & Dvorkin 2009 (The Rock Physics
+ * Handbook, 2nd ed.) below are from memory; check them before quoting.
+ *
  * Screening estimates: these models describe idealised rocks and are no
  * substitute for calibration to local data and qualified review. */
 #ifndef ROCKWIRE_ROCKMODEL_H
@@ -105,8 +108,10 @@ extern "C" {
 
 /* Hertz-Mindlin pack of identical elastic spheres under hydrostatic
  * effective pressure (Mindlin 1949; as written in Mavko, Mukerji &
- * Dvorkin 2009, sec. 5.4, with the shear-reduction factor of Duffaut et
- * al. 2010, from memory):
+ * Dvorkin 2009, sec. 5.4), with a shear-reduction (slip) factor f that
+ * scales the tangential contact stiffness linearly between frictionless
+ * and no-slip contacts (the form in common use, e.g. Duffaut, Landro &
+ * Sollie 2010, from memory):
  *   K = [C^2 (1 - phi)^2 mu^2 P / (18 pi^2 (1 - nu)^2)]^(1/3)
  *   mu_HM = (2 + 3f - nu (1 + 3f)) / (5 (2 - nu))
  *           [3 C^2 (1 - phi)^2 mu^2 P / (2 pi^2 (1 - nu)^2)]^(1/3)

@@ -299,8 +299,9 @@ int rw_rm_incl_pq(int shape, double aspect, double k_bg_pa, double mu_bg_pa,
  * Warnings: DILUTE, ASPECT_RANGE.
  * errors: RW_EINVAL for n > 0 with incl NULL, or an unknown shape;
  * RW_EDOM for an argument outside its range or fractions summing above 1
- * (+1e-9); RW_ERANGE when the result is not a positive modulus (cracks
- * far beyond the dilute limit). Outputs NaN on error. */
+ * (+1e-9); RW_ERANGE when the result is not a positive modulus (flat
+ * pores far beyond the dilute limit: empty spheroids of aspect 0.1 in
+ * quartz above a concentration of about 0.31). Outputs NaN on error. */
 int rw_rm_kuster_toksoz(double k_host_pa, double mu_host_pa, size_t n,
                         const rw_rm_incl *incl, double *k_pa, double *mu_pa,
                         unsigned *warn);

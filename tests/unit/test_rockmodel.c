@@ -295,6 +295,68 @@ static void test_fluid_effects(void **state)
 	                 RW_EDOM);
 }
 
+/* The limits the physics fixes, over every model through rw_rm_dry:
+ * at zero porosity each model defined there returns the solid (Hertz-
+ * Mindlin and Walton describe a pack, contact cement a rock near
+ * critical porosity: no zero-porosity limit); and every dry frame lies
+ * inside the Hashin-Shtrikman bounds of the solid and empty pores (the
+ * lower bound is zero; the upper one from the core's mixer, Berryman
+ * 1995 form), over porosities up to the model's phi_max (contact cement
+ * within its 10 % cement, Kuster-Toksoz until it fails past its dilute
+ * limit), on quartz and on a quartz-clay solid. */
+static void test_all_models_limits(void **state)
+{
+	rw_rm_spec s;
+	int m, i;
+	double clay;
+
+	(void)state;
+	for (m = 0; m < RW_RM_MODEL_COUNT; m++) {
+		for (clay = 0.0; clay <= 0.31; clay += 0.3) {
+			double kd, md, ks, ms, top;
+
+			sand_spec(&s, m);
+			rw_rm_dry(&s, 0.0, clay, 20e6, ws, &kd, &md, &ks, &ms,
+			          NULL, NULL);
+			if (m != RW_RM_HERTZ_MINDLIN &&
+			    m != RW_RM_WALTON_SMOOTH &&
+			    m != RW_RM_WALTON_ROUGH &&
+			    m != RW_RM_CONTACT_CEMENT) {
+				assert_rel(kd, ks, 1e-12);
+				assert_rel(md, ms, 1e-12);
+			}
+			top = fmin(rw_rm_spec_phi_max(&s), 0.6);
+			for (i = 0; i <= 30; i++) {
+				double phi = top * i / 30.0, ku, muu;
+
+				int st;
+
+				if (m == RW_RM_CONTACT_CEMENT && phi < 0.3)
+					continue;
+				st = rw_rm_dry(&s, phi, clay, 20e6, ws, &kd,
+				               &md, &ks, &ms, NULL, NULL);
+				/* Kuster-Toksoz is first order in
+				 * concentration: empty spheroids of aspect 0.1
+				 * drive K negative near phi = 0.31, long past
+				 * its dilute limit */
+				if (m == RW_RM_KUSTER_TOKSOZ &&
+				    st == RW_ERANGE &&
+				    phi > RW_RM_KT_DILUTE_MAX * s.aspect)
+					break;
+				assert_int_equal(st, RW_OK);
+				hs_upper_vacuum(ks, ms, phi, &ku, &muu);
+				if (!(kd >= 0.0 && md >= 0.0 &&
+				      kd <= ku * (1 + 1e-12) &&
+				      md <= muu * (1 + 1e-12)))
+					fail_msg("%s at phi %g clay %g: K %g "
+					         "(HS %g), mu %g (HS %g)",
+					         rw_rm_model_name(m), phi, clay,
+					         kd, ku, md, muu);
+			}
+		}
+	}
+}
+
 /* Every bad member is named. */
 static void test_spec_check(void **state)
 {
@@ -499,6 +561,7 @@ int main(void)
 	    cmocka_unit_test(test_saturate_edges),
 	    cmocka_unit_test(test_dry_dispatch),
 	    cmocka_unit_test(test_clay_and_bound),
+	    cmocka_unit_test(test_all_models_limits),
 	    cmocka_unit_test(test_fluid_effects),
 	    cmocka_unit_test(test_spec_check),
 	    cmocka_unit_test(test_names),

@@ -700,8 +700,12 @@ typedef struct rw_rm_inv_result {
 
 /* Checks an inversion setup once before a run: spec, sizes, attributes,
  * bounds inside the model's domain (phi in [0, 1), sw and clay in
- * [0, 1]), counts. *field (may be NULL) names the offending member.
- * errors: RW_EINVAL or RW_EDOM as rw_rm_spec_check. */
+ * [0, 1]), counts, and for DEM, Xu-White and self-consistent models a
+ * tolerance of at most 1e-9 (the Jacobian is a finite difference with a
+ * step of 1e-6: the model's own error must stay well below it). *field
+ * (may be NULL) names the offending member ("n_obs", "attr", "phi
+ * bounds", "tol", ...). errors: RW_EINVAL or RW_EDOM as
+ * rw_rm_spec_check. */
 int rw_rm_inv_check(const rw_rm_inv_cfg *cfg, const char **field);
 
 /* Estimates porosity and water saturation (and clay with n_par = 3) from
@@ -722,20 +726,22 @@ int rw_rm_inv_check(const rw_rm_inv_cfg *cfg, const char **field);
  * parameter; Press et al. 2007, sec. 15.6, from memory), the crossing
  * interpolated linearly in sqrt(misfit rise), and widened to sw +- sd up
  * to one node spacing (the nodes cannot resolve a sharper minimum);
- * without a profile sw +- sd clipped to the bounds (the whole
- * range when sd is not finite). Flags: NONUNIQUE (sw_hi - sw_lo >
- * sw_width_max, or a singular direction), MULTIPLE (another start
- * converged within chi2 + 2.30, the 68 % level for two parameters, at a
- * saturation more than max(0.05, 2 sd) away and outside [sw_lo, sw_hi],
- * or a porosity more than max(0.01, 2 sd) away; with a profile also a
- * second valley of the profile), BOUND_* (within 1e-6 of
- * the range of a bound), OUTSIDE (chi2 above the 99 % point of chi-square
- * with max(1, n_obs - n_par) degrees of freedom), NOT_CONVERGED,
- * MODEL_FAIL (the model failed at some trial point). ws: from
- * rw_rm_ws_new(cfg->n_obs, cfg->n_par). errors: RW_EINVAL for NULL pointers, a
- * workspace of other sizes or a setup that fails rw_rm_inv_check; RW_EDOM for a
- * non-finite observation or sigma <= 0. Per-sample trouble is in out->flags,
- * not the status. out's numbers NaN on error. */
+ * without a profile sw +- sd clipped to the bounds (the whole range
+ * when sd is not finite).
+ * Flags: NONUNIQUE (sw_hi - sw_lo > sw_width_max, or a singular
+ * direction); MULTIPLE (another start converged within chi2 + the 68 %
+ * level of chi-square for n_par parameters - 2.30 for two, 3.53 for
+ * three - at a saturation more than max(0.05, 2 sd) away and outside
+ * [sw_lo, sw_hi], or at a porosity more than max(0.01, 2 sd) away; with
+ * a profile also a second valley of the profile); BOUND_* (within 1e-6
+ * of the range of a bound); OUTSIDE (chi2 above the 99 % point of
+ * chi-square with max(1, n_obs - n_par) degrees of freedom: 6.63 for
+ * one); NOT_CONVERGED; MODEL_FAIL (the model failed at some trial
+ * point). ws: from rw_rm_ws_new(cfg->n_obs, cfg->n_par).
+ * errors: RW_EINVAL for NULL pointers, a workspace of other sizes or a
+ * setup that fails rw_rm_inv_check; RW_EDOM for a non-finite observation
+ * or sigma <= 0. Per-sample trouble is in out->flags, not the status.
+ * out's numbers NaN on error. */
 int rw_rm_invert(const rw_rm_inv_cfg *cfg, const double *obs,
                  const double *sigma, rw_rm_ws *ws, rw_rm_inv_result *out);
 

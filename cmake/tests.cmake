@@ -1,7 +1,8 @@
 # Test registration. Each tests/unit/test_<module>.c and
 # tests/proto/test_<topic>.c is one cmocka executable and one ctest test;
 # tests/e2e/test_*.py and tests/reference/test_*.py run under Debian's
-# /usr/bin/python3 (they need its python3-iapws, -numpy, -jsonschema).
+# /usr/bin/python3 (they need its python3-iapws, -numpy, -scipy,
+# -jsonschema).
 # tests/reference/*_dump.c are small drivers that print core values for the
 # Python reference checks; they may use the client library too (segy_dump
 # writes SEG-Y with client/segy.c for the segyio check).

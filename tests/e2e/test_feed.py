@@ -22,7 +22,7 @@ def record(items):
         "!!\r\n"
 
 
-# The invented stream: well "Whimbrel 2", depths in m, slowness us/ft,
+# The invented stream: well "Sollantre 2", depths in m, slowness us/ft,
 # density g/cm3 (codes as in rockwire feed's documented default map).
 parts, expect = [], []
 for i in range(200):

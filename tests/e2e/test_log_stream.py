@@ -28,7 +28,7 @@ HEADER = """~Version
  STOP.M  {stop} : STOP
  STEP.M  0.1 : STEP
  NULL.   -999.25 : NULL
- WELL.   GREYLAG 1 (INVENTED) : WELL
+ WELL.   ULVARETH 1 (INVENTED) : WELL
 ~Curve
  DEPT.M     : DEPTH
  DT  .US/F  : COMPRESSIONAL SLOWNESS
@@ -189,7 +189,7 @@ try:
     t.ok("no output written" in se, "says no output was written")
 
     # The demo well with a QC summary.
-    demo = os.path.join(rwtest.SRC, "demo-requests", "well-osprey-flats-3.las")
+    demo = os.path.join(rwtest.SRC, "demo-requests", "orrimund-3.las")
     outp = os.path.join(tmp, "demo_out.las")
     rc, so, se, _ = run_client([
         "--socket", d.path, "log", demo, "-o", outp, "--summary",

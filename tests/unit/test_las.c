@@ -194,10 +194,10 @@ static void test_samples(void **state)
 	FILE *fp;
 
 	(void)state;
-	fp = open_data("kestrel_ridge_7.las");
+	fp = open_data("palvorin_7.las");
 	u = read_file(fp, 4);
 	fclose(fp);
-	fp = open_data("kestrel_ridge_7_wrap.las");
+	fp = open_data("palvorin_7_wrap.las");
 	w = read_file(fp, 4);
 	fclose(fp);
 	if (u.rc != CLI_LAS_OK)
@@ -219,19 +219,19 @@ static void test_samples(void **state)
 	/* header items: fields split per LAS 2.0 line format */
 	l = cli_las_find(u.r, 'W', "well");
 	assert_non_null(l);
-	assert_string_equal(l->value, "KESTREL RIDGE 7");
+	assert_string_equal(l->value, "PALVORIN 7");
 	assert_string_equal(l->desc, "WELL");
 	l = cli_las_find(u.r, 'W', "FLD");
 	assert_non_null(l);
 	assert_string_equal(l->mnem, "FLD");
 	assert_string_equal(l->unit, "");
-	assert_string_equal(l->value, "ASHVALE");
+	assert_string_equal(l->value, "QUELLODIN");
 	l = cli_las_find(u.r, 'W', "LOC");
-	assert_string_equal(l->value, "12-34-056-07W9 (INV)");
+	assert_string_equal(l->value, "DEMO SITE B (INVENTED)");
 	l = cli_las_curve(u.r, 1);
 	assert_string_equal(l->mnem, "GR");
 	assert_string_equal(l->unit, "GAPI");
-	assert_string_equal(l->value, "45 310 01 00");
+	assert_string_equal(l->value, "01 101 01 01");
 	assert_string_equal(l->desc, "2  GAMMA RAY");
 	l = cli_las_curve(u.r, 0);
 	assert_string_equal(l->unit, "M");
@@ -246,8 +246,8 @@ static void test_samples(void **state)
 
 static void test_bytewise(void **state)
 {
-	static const char *const files[] = {"kestrel_ridge_7.las",
-	                                    "kestrel_ridge_7_wrap.las"};
+	static const char *const files[] = {"palvorin_7.las",
+	                                    "palvorin_7_wrap.las"};
 	size_t f, len, chunk;
 
 	(void)state;
@@ -320,7 +320,7 @@ static void test_roundtrip(void **state)
 	size_t i, j;
 
 	(void)state;
-	fp = open_data("kestrel_ridge_7_wrap.las");
+	fp = open_data("palvorin_7_wrap.las");
 	in = read_file(fp, 16);
 	fclose(fp);
 	assert_int_equal(in.rc, CLI_LAS_OK);
@@ -571,7 +571,7 @@ static void test_limits_and_warnings(void **state)
 static void test_garbage(void **state)
 {
 	size_t len, i, k;
-	char *text = slurp("kestrel_ridge_7_wrap.las", &len);
+	char *text = slurp("palvorin_7_wrap.las", &len);
 	char *mut = malloc(len);
 	unsigned long seed = 12345;
 	struct parsed p;

@@ -7,10 +7,10 @@
  STOP.M        1700.0000                    : STOP DEPTH
  STEP.M           0.5000                    : STEP
  NULL.         -999.25                      : NULL VALUE
- COMP.         HARROWGATE EXPLORATION (INVENTED) : COMPANY
- WELL.         OSPREY FLATS 3               : WELL
- FLD .         TARNWICK (INVENTED FIELD)    : FIELD
- LOC .         BLOCK 17/4 (INVENTED)        : LOCATION
+ COMP.         BREVANNIC EXPLORATION (INVENTED) : COMPANY
+ WELL.         ORRIMUND 3 (INVENTED)        : WELL
+ FLD .         VESSIMAR (INVENTED FIELD)    : FIELD
+ LOC .         DEMO SITE A (INVENTED)       : LOCATION
  SRVC.         DEMO DATA, NOT MEASURED      : SERVICE COMPANY
  DATE.         2024-05-01                   : LOG DATE
 ~CURVE INFORMATION

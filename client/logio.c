@@ -22,7 +22,8 @@ int cli__param_set(cJSON *params, const char *arg, const char *who)
 		fprintf(stderr, "%s: '%s' is not name=value\n", who, arg);
 		return -1;
 	}
-	val = cJSON_Parse(eq + 1);
+	/* The whole value must be JSON: "8.5in" is not the number 8.5. */
+	val = cJSON_ParseWithOpts(eq + 1, NULL, 1);
 	if (!val)
 		val = cJSON_CreateString(eq + 1);
 	if (!val)

@@ -703,17 +703,14 @@ static int check_order(cli_las_reader *r, double depth)
 
 	if (d == 0)
 		return fail(r, r->row_line,
-		            "depth %.10g repeats the previous depth "
-		            "(duplicate depths are refused)",
-		            depth);
+		            "depth %.10g repeats the previous depth", depth);
 	if (!r->dir)
 		r->dir = !r->csv && r->step != 0 && isfinite(r->step)
 		             ? (r->step > 0 ? 1 : -1)
 		             : (d > 0 ? 1 : -1);
 	if ((d > 0 ? 1 : -1) != r->dir)
 		return fail(r, r->row_line,
-		            "depth %.10g after %.10g: depths must keep %s "
-		            "(out of order)",
+		            "depth %.10g after %.10g: depths must keep %s",
 		            depth, r->last_depth,
 		            r->dir > 0 ? "increasing" : "decreasing");
 	return CLI_LAS_OK;

@@ -1814,7 +1814,9 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 	rc = CLI_EXIT_OK;
 	goto out;
 usage_fail:
-	cli_usage_log(stderr);
+	if (!L.path)
+		fprintf(stderr, "usage: rockwire log FILE [options]\n");
+	fprintf(stderr, "(rockwire log --help lists the options)\n");
 	rc = CLI_EXIT_USAGE;
 out:
 	if (rc != CLI_EXIT_OK && L.failed)

@@ -35,7 +35,7 @@ void cli__buf_free(cli_buf *b);
  * to on_line(ctx, line, len) (return non-zero to stop). want_read says
  * whether to wait for responses. Waits at most timeout_ms (-1 forever).
  * Returns 0, 1 when the daemon closed, -1 on error or when on_line
- * stopped. */
+ * stopped. With nothing to watch it sleeps timeout_ms (when > 0). */
 int cli__pipe_step(cli_conn *c, cli_buf *out, int want_read, int extra_fd,
                    int *extra_ready, int timeout_ms,
                    int (*on_line)(void *ctx, char *line, size_t len),

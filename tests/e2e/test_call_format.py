@@ -3,8 +3,9 @@
 from the daemon's schema (issue 9): --format table|csv|json, integers
 printed as integers, 2-D results labelled by their axes, exact all-zero
 imaginary members left out unless asked, QC flags by name from
-service.info's legend, `call METHOD --help` from rpc.discover, and "did
-you mean" for a misspelt command, option, method, parameter or value."""
+service.info's legend, `call METHOD --help` from rpc.discover, full
+`log|feed|send --help`, and "did you mean" for a misspelt command,
+option, method, parameter or value."""
 import csv
 import io
 import json
@@ -132,6 +133,15 @@ try:
     rc, out, err = run("call", "log.procss", "--help")
     t.ok(rc == 2 and "did you mean log.process?" in err,
          "--help on a misspelt method suggests (%r)" % err)
+
+    rc, out, err = run("log", "--help")
+    t.ok(rc == 0 and "--top" in out and "Exit codes" in out and
+         "--qc-summary" in out, "log --help is full help")
+    rc, out, err = run("feed", "--help")
+    t.ok(rc == 0 and "--map" in out and "--reconnect" in out and
+         "--absent" in out, "feed --help is full help")
+    rc, out, err = run("send", "--help")
+    t.ok(rc == 0 and "comment" in out, "send --help is full help")
 
     # Did you mean ...
     for args, want in [

@@ -238,13 +238,22 @@ try:
                          stdin=subprocess.PIPE, stdout=subprocess.PIPE,
                          stderr=subprocess.PIPE)
     ok = True
+    fd = p.stdout.fileno()
     for k in range(5):
         p.stdin.write(record([("0108", "%.1f" % (4000 + k)), ("0113", "100"),
                               ("0114", "180"), ("0115", "2.4")]).encode())
         p.stdin.flush()
-        r, _, _ = select.select([p.stdout], [], [], 10)
-        line = p.stdout.readline() if r else b""
-        ok = ok and line and json.loads(line)["depth"] == 4000 + k
+        line = b""
+        deadline = time.time() + 10
+        while not line.endswith(b"\n") and time.time() < deadline:
+            r, _, _ = select.select([fd], [], [], 1)
+            if r:
+                chunk = os.read(fd, 65536)
+                if not chunk:
+                    break
+                line += chunk
+        ok = ok and line.count(b"\n") == 1 and \
+            json.loads(line)["depth"] == 4000 + k
     p.stdin.close()
     p.wait(20)
     t.ok(ok and p.returncode == 0,
@@ -275,18 +284,25 @@ try:
                          ["--connect", "127.0.0.1:%d" % port, "--reconnect",
                           "--idle-timeout", "1"],
                          stdout=subprocess.PIPE, stderr=subprocess.PIPE)
-    got = []
+    got, pend = [], b""
     deadline = time.time() + 20
+    fd = p.stdout.fileno()  # raw reads: no buffer hides a second line
     while len(got) < 4 and time.time() < deadline:
-        r, _, _ = select.select([p.stdout], [], [], 1)
+        r, _, _ = select.select([fd], [], [], 1)
         if r:
-            line = p.stdout.readline()
-            if line:
+            chunk = os.read(fd, 65536)
+            if not chunk:
+                break
+            pend += chunk
+            while b"\n" in pend:
+                line, pend = pend.split(b"\n", 1)
                 got.append(json.loads(line)["depth"])
     time.sleep(2)
     p.send_signal(signal.SIGTERM)
     out, err = p.communicate(timeout=20)
     e = err.decode()
+    got += [json.loads(l)["depth"] for l in (pend + out).splitlines()
+            if l.strip()]
     t.ok(got == [5000, 5001, 5010, 5011],
          "--reconnect: records from both connections (%r)" % got)
     t.ok("closed the connection" in e and "connecting again" in e and

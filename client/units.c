@@ -197,6 +197,12 @@ static int factor_in(const cli_kind *k, const char *spelling, double *scale,
 		*offset = un->offset;
 		return 0;
 	}
+	if (strcmp(k->name, "gamma_ray") == 0) {
+		/* gamma ray is in API units whatever the label says */
+		*scale = 1;
+		*offset = 0;
+		return 0;
+	}
 	if (n >= sizeof up)
 		return -1;
 	for (size_t i = 0; i <= n; i++)

@@ -277,6 +277,16 @@ try:
     rc, out, err = run(alt2, "--format", "csv")
     t.ok(rc == 0 and abs(float(table(out)["k[GPa]"][0]) - k) < 1e-5 * k,
          "K/M3 density")
+    # Gamma ray is in API units whatever its label.
+    gr = os.path.join(tmp, "gr.las")
+    open(gr, "w").write(USUAL.replace(" CALI.IN ", " GR  .API-GR  : GR\n"
+                                      " CALI.IN ").replace(
+        " 8.6\n", " 80 8.6\n").replace(" 9.9\n", " 90 9.9\n").replace(
+        " 8.5\n", " 100 8.5\n"))
+    rc, out, err = run(gr, "--format", "csv", "--set", "gr_clean=20",
+                       "--set", "gr_shale=120")
+    t.ok(rc == 0 and table(out)["vsh"][0] == "0.6",
+         "GR labelled API-GR: vsh (80-20)/(120-20) = 0.6 (%r)" % err)
 
     # 13. The QC summary file.
     qs = os.path.join(tmp, "qc.txt")

@@ -1,7 +1,10 @@
-/* `rockwire call` and `rockwire send`: one request from the command line,
- * or a pipelined stream of NDJSON requests. */
+/* `rockwire call`: one request from the command line, its answer checked
+ * (a valid JSON-RPC response to this request, within --timeout) and
+ * printed as JSON, a table or CSV; errors with a "did you mean" from the
+ * daemon's own schema; `rockwire call METHOD --help` prints the method's
+ * parameters from rpc.discover. */
 #include <errno.h>
-#include <fcntl.h>
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -10,293 +13,494 @@
 #include <cjson/cJSON.h>
 
 #include "cli.h"
+#include "format.h"
 #include "logio.h"
+#include "rpc.h"
 
-static const char *unit_of(const cJSON *units, const char *name)
+#define WHO "rockwire call"
+
+void cli_usage_call(FILE *f)
 {
-	const cJSON *u = cJSON_GetObjectItemCaseSensitive(units, name);
-	return cJSON_IsString(u) ? u->valuestring : NULL;
+	fprintf(
+	    f,
+	    "usage: rockwire call METHOD [name=value ...] [--params JSON]\n"
+	    "       [--format json|table|csv] [--table] [--csv]\n"
+	    "       [--qc int|names] [--all-columns] [--digits N]\n"
+	    "       [--timeout SECONDS]\n"
+	    "       rockwire call METHOD --help\n"
+	    "\n"
+	    "Sends one METHOD request and prints its result on stdout (an "
+	    "error\n"
+	    "on stderr, exit 1). Each name=value sets a parameter: the value "
+	    "is\n"
+	    "JSON when it parses as JSON, else a string; dotted names nest\n"
+	    "(units.velocity=km/s); --params gives a JSON object to start "
+	    "from.\n"
+	    "\n"
+	    "  --format json     the result as JSON (default; indented on a\n"
+	    "                    terminal, one line otherwise)\n"
+	    "  --format table    scalars as '# name = value unit' lines, "
+	    "arrays\n"
+	    "                    as aligned columns with units (one table per\n"
+	    "                    length), 2-D results with rows and columns\n"
+	    "                    labelled by their axes (angle, depth, ...)\n"
+	    "  --format csv      the same as CSV: 'name[unit]' headers, 2-D\n"
+	    "                    results in long form (one row per element)\n"
+	    "  --table, --csv    short for --format table / csv\n"
+	    "  --qc names        QC flag sets by name (legend from "
+	    "service.info;\n"
+	    "                    JSON gets a 'qc_names' member beside 'qc')\n"
+	    "  --all-columns     keep imaginary and phase members that are\n"
+	    "                    exactly zero (left out of tables by default)\n"
+	    "  --digits N        significant digits in tables (default 7;\n"
+	    "                    integers always print whole)\n"
+	    "  --timeout S       give up after S seconds without an answer\n"
+	    "                    (default 60; exit 6)\n"
+	    "  METHOD --help     the method's summary and parameters (type,\n"
+	    "                    unit kind, default, range, description) from\n"
+	    "                    the daemon's rpc.discover\n"
+	    "\n"
+	    "A misspelt method, parameter or option value gets a 'did you\n"
+	    "mean' from the daemon's schema. Exit codes: 0 ok, 1 the daemon\n"
+	    "answered with an error, 2 usage, 3 no daemon reachable, 4 I/O\n"
+	    "failure or an invalid answer, 6 timeout.\n");
 }
 
-/* 1 for an array of numbers, strings and nulls (a table column), 2 for
- * an array of such arrays (a matrix), 0 otherwise. */
-static int array_rank(const cJSON *v)
+static const char *const call_opts[] = {
+    "--params",      "--format", "--table",   "--csv",  "--qc",
+    "--all-columns", "--digits", "--timeout", "--help",
+};
+
+/* ---- METHOD --help ---------------------------------------------------- */
+
+/* A short type description of a schema node. */
+static void type_text(const cJSON *doc, const cJSON *node, char *buf,
+                      size_t size, int depth)
 {
-	const cJSON *e;
-	int rank = 0;
+	const cJSON *t, *en, *one, *cst;
+	size_t used = 0;
 
-	if (!cJSON_IsArray(v) || !v->child)
-		return 0;
-	cJSON_ArrayForEach(e, v)
-	{
-		int r = cJSON_IsArray(e) ? 2
-		        : (cJSON_IsNumber(e) || cJSON_IsString(e) ||
-		           cJSON_IsNull(e))
-		            ? 1
-		            : 0;
-		if (r == 2 && array_rank(e) != 1)
-			return 0;
-		if (!r || (rank && r != rank))
-			return 0;
-		rank = r;
-	}
-	return rank;
-}
-
-static void print_cell(FILE *f, const cJSON *e, int w)
-{
-	if (cJSON_IsNumber(e))
-		fprintf(f, " %*.7g", w, e->valuedouble);
-	else if (cJSON_IsString(e))
-		fprintf(f, " %*s", w, e->valuestring);
-	else
-		fprintf(f, " %*s", w, "null");
-}
-
-static void column_head(const cJSON *units, const cJSON *col, char *buf,
-                        size_t size)
-{
-	const char *u = unit_of(units, col->string);
-	snprintf(buf, size, u ? "%s[%s]" : "%s", col->string, u);
-}
-
-/* Prints a result for people: scalars as "# name = value unit" lines,
- * one-dimensional arrays as aligned columns grouped by length (one table
- * per length, e.g. per-angle and per-interface members), two-dimensional
- * arrays as one matrix each (rows are the first index). Units are in the
- * headers. Returns 0, or -1 when nothing could be printed that way. */
-static int print_table(const cJSON *result, FILE *f)
-{
-	const cJSON *units = cJSON_GetObjectItemCaseSensitive(result, "units");
-	const cJSON *m, *cols[128];
-	int done[128] = {0};
-	size_t ncol = 0, printed = 0;
-	char head[160];
-
-	if (!cJSON_IsObject(result))
-		return -1;
-	cJSON_ArrayForEach(m, result)
-	{
-		if (cJSON_IsNumber(m) || cJSON_IsString(m) || cJSON_IsBool(m) ||
-		    cJSON_IsNull(m)) {
-			const char *u = unit_of(units, m->string);
-			char *s = cJSON_PrintUnformatted(m);
-			fprintf(f, "# %s = %s%s%s\n", m->string, s ? s : "?",
-			        u ? " " : "", u ? u : "");
-			cJSON_free(s);
-			printed++;
-		} else if (array_rank(m) && ncol < 128) {
-			cols[ncol++] = m;
-		}
-	}
-	/* One table per array length, in order of first appearance. */
-	for (size_t j = 0; j < ncol; j++) {
-		size_t group[128], ng = 0;
-		int width[128], n;
-		if (done[j] || array_rank(cols[j]) != 1)
-			continue;
-		n = cJSON_GetArraySize(cols[j]);
-		for (size_t k = j; k < ncol; k++)
-			if (!done[k] && array_rank(cols[k]) == 1 &&
-			    cJSON_GetArraySize(cols[k]) == n) {
-				done[k] = 1;
-				group[ng++] = k;
-			}
-		for (size_t g = 0; g < ng; g++) {
-			column_head(units, cols[group[g]], head, sizeof head);
-			width[g] =
-			    (int)strlen(head) > 13 ? (int)strlen(head) : 13;
-			fprintf(f, " %*s", width[g], head);
-		}
-		fputc('\n', f);
-		for (int i = 0; i < n; i++) {
-			for (size_t g = 0; g < ng; g++)
-				print_cell(
-				    f, cJSON_GetArrayItem(cols[group[g]], i),
-				    width[g]);
-			fputc('\n', f);
-		}
-		fputc('\n', f);
-		printed++;
-	}
-	for (size_t j = 0; j < ncol; j++) {
-		const cJSON *row;
-		int r = 0;
-		if (array_rank(cols[j]) != 2)
-			continue;
-		column_head(units, cols[j], head, sizeof head);
-		fprintf(f, "%s (rows: first index, columns: second)\n", head);
-		cJSON_ArrayForEach(row, cols[j])
+	buf[0] = '\0';
+	node = cli__schema_deref(doc, node);
+	if (!node || depth > 4)
+		return;
+	en = cJSON_GetObjectItemCaseSensitive(node, "enum");
+	one = cJSON_GetObjectItemCaseSensitive(node, "oneOf");
+	if (!one)
+		one = cJSON_GetObjectItemCaseSensitive(node, "anyOf");
+	cst = cJSON_GetObjectItemCaseSensitive(node, "const");
+	t = cJSON_GetObjectItemCaseSensitive(node, "type");
+	if (en) {
+		const cJSON *e;
+		used += (size_t)snprintf(buf, size, "one of ");
+		cJSON_ArrayForEach(e, en)
 		{
-			const cJSON *e;
-			fprintf(f, " %4d", r++);
-			cJSON_ArrayForEach(e, row) print_cell(f, e, 13);
-			fputc('\n', f);
-		}
-		fputc('\n', f);
-		printed++;
-	}
-	return printed ? 0 : -1;
-}
-
-/* Prints a response: the result to stdout, an error to stderr. Returns the
- * exit code. */
-static int print_response(const char *line, int table)
-{
-	cJSON *r = cJSON_Parse(line);
-	const cJSON *res, *err;
-	int rc = CLI_EXIT_OK;
-
-	if (!r) {
-		fprintf(stderr, "rockwire: unreadable response: %.200s\n",
-		        line);
-		return CLI_EXIT_IO;
-	}
-	res = cJSON_GetObjectItemCaseSensitive(r, "result");
-	err = cJSON_GetObjectItemCaseSensitive(r, "error");
-	if (err) {
-		const cJSON *code =
-		    cJSON_GetObjectItemCaseSensitive(err, "code");
-		const cJSON *msg =
-		    cJSON_GetObjectItemCaseSensitive(err, "message");
-		const cJSON *data =
-		    cJSON_GetObjectItemCaseSensitive(err, "data");
-		const cJSON *param =
-		    cJSON_GetObjectItemCaseSensitive(data, "param");
-		const cJSON *why =
-		    cJSON_GetObjectItemCaseSensitive(data, "reason");
-		fprintf(stderr, "rockwire: error %d: %s",
-		        code ? code->valueint : 0,
-		        cJSON_IsString(msg) ? msg->valuestring : "?");
-		if (cJSON_IsString(param))
-			fprintf(stderr, ": %s", param->valuestring);
-		if (cJSON_IsString(why))
-			fprintf(stderr, ": %s", why->valuestring);
-		fputc('\n', stderr);
-		rc = CLI_EXIT_RPC_ERROR;
-	} else if (table && print_table(res, stdout) == 0) {
-		/* printed */
-	} else {
-		char *s =
-		    isatty(1) ? cJSON_Print(res) : cJSON_PrintUnformatted(res);
-		if (s) {
-			fputs(s, stdout);
-			fputc('\n', stdout);
+			char *s = cJSON_PrintUnformatted(e);
+			if (used < size)
+				used += (size_t)snprintf(
+				    buf + used, size - used, "%s%s",
+				    e == en->child ? "" : "|", s ? s : "?");
 			cJSON_free(s);
 		}
+		return;
 	}
+	if (cst) {
+		char *s = cJSON_PrintUnformatted(cst);
+		snprintf(buf, size, "%s", s ? s : "?");
+		cJSON_free(s);
+		return;
+	}
+	if (one) {
+		const cJSON *e;
+		cJSON_ArrayForEach(e, one)
+		{
+			char sub[256];
+			type_text(doc, e, sub, sizeof sub, depth + 1);
+			if (used < size)
+				used += (size_t)snprintf(
+				    buf + used, size - used, "%s%s",
+				    e == one->child ? "" : " or ", sub);
+		}
+		return;
+	}
+	if (cJSON_IsArray(t)) {
+		const cJSON *e;
+		cJSON_ArrayForEach(e, t)
+		{
+			if (cJSON_IsString(e) && used < size)
+				used += (size_t)snprintf(
+				    buf + used, size - used, "%s%s",
+				    e == t->child ? "" : " or ",
+				    e->valuestring);
+		}
+		return;
+	}
+	if (cJSON_IsString(t) && strcmp(t->valuestring, "array") == 0) {
+		char sub[256];
+		type_text(doc, cJSON_GetObjectItemCaseSensitive(node, "items"),
+		          sub, sizeof sub, depth + 1);
+		snprintf(buf, size,
+		         strstr(sub, " or ") ? "array of (%s)" : "array of %s",
+		         *sub ? sub : "values");
+		return;
+	}
+	if (cJSON_IsString(t) && strcmp(t->valuestring, "object") == 0) {
+		const cJSON *e,
+		    *props =
+		        cJSON_GetObjectItemCaseSensitive(node, "properties");
+		used += (size_t)snprintf(buf, size, "object");
+		if (props && props->child && used < size) {
+			used += (size_t)snprintf(buf + used, size - used, " {");
+			cJSON_ArrayForEach(e, props)
+			{
+				if (used < size)
+					used += (size_t)snprintf(
+					    buf + used, size - used, "%s%s",
+					    e == props->child ? "" : ", ",
+					    e->string);
+			}
+			if (used < size)
+				snprintf(buf + used, size - used, "}");
+		}
+		return;
+	}
+	if (cJSON_IsString(t))
+		snprintf(buf, size, "%s", t->valuestring);
+	else
+		snprintf(buf, size, "any");
+}
+
+/* Wraps text at 76 columns with an indent. */
+static void wrap(FILE *f, const char *text, int indent)
+{
+	const char *p = text;
+	int col = indent;
+
+	fprintf(f, "%*s", indent, "");
+	while (*p) {
+		size_t w;
+		while (*p == ' ')
+			p++;
+		w = strcspn(p, " ");
+		if (!w)
+			break;
+		if (col > indent && col + 1 + (int)w > 76) {
+			fprintf(f, "\n%*s", indent, "");
+			col = indent;
+		} else if (col > indent) {
+			fputc(' ', f);
+			col++;
+		}
+		fprintf(f, "%.*s", (int)w, p);
+		col += (int)w;
+		p += w;
+	}
+	fputc('\n', f);
+}
+
+static const char *str_of(const cJSON *o, const char *k)
+{
+	const cJSON *v = cJSON_GetObjectItemCaseSensitive(o, k);
+	return cJSON_IsString(v) ? v->valuestring : NULL;
+}
+
+static void number_of(const cJSON *o, const char *k, const char *label,
+                      char *buf, size_t size, size_t *used)
+{
+	const cJSON *v = cJSON_GetObjectItemCaseSensitive(o, k);
+	if (cJSON_IsNumber(v) && *used < size) {
+		char num[48];
+		cli__fmt_cell(num, v->valuedouble, 0);
+		*used += (size_t)snprintf(buf + *used, size - *used, "%s%s %s",
+		                          *used ? ", " : "", label, num);
+	}
+}
+
+static void print_method_help(FILE *f, const cJSON *doc, const cJSON *m)
+{
+	const cJSON *p, *params = cJSON_GetObjectItemCaseSensitive(m, "params");
+	const char *s;
+
+	fprintf(f, "%s", str_of(m, "name"));
+	if ((s = str_of(m, "summary")))
+		fprintf(f, ": %s", s);
+	fputc('\n', f);
+	if ((s = str_of(m, "description"))) {
+		fputc('\n', f);
+		wrap(f, s, 2);
+	}
+	fprintf(f, "\nParameters%s:\n",
+	        params && params->child ? "" : " (none)");
+	cJSON_ArrayForEach(p, params)
+	{
+		const cJSON *sch =
+		    cJSON_GetObjectItemCaseSensitive(p, "schema");
+		const cJSON *node = cli__schema_deref(doc, sch);
+		const cJSON *req =
+		    cJSON_GetObjectItemCaseSensitive(p, "required");
+		const cJSON *dflt;
+		const char *kind = NULL, *keys[] = {"x-unit-kind", "x-kind",
+		                                    "x-quantity", "x-unit"};
+		char type[512], extra[512];
+		size_t used = 0;
+
+		type_text(doc, sch, type, sizeof type, 0);
+		for (size_t k = 0; k < 4 && !kind; k++) {
+			kind = str_of(p, keys[k]);
+			if (!kind)
+				kind = str_of(node, keys[k]);
+		}
+		fprintf(f, "\n  %s%s  %s\n", str_of(p, "name"),
+		        cJSON_IsTrue(req) ? " (required)" : "", type);
+		extra[0] = '\0';
+		if (kind)
+			used += (size_t)snprintf(extra, sizeof extra,
+			                         "unit kind %s", kind);
+		dflt = cJSON_GetObjectItemCaseSensitive(node, "default");
+		if (!dflt)
+			dflt = cJSON_GetObjectItemCaseSensitive(p, "default");
+		if (dflt && used < sizeof extra) {
+			char *d = cJSON_PrintUnformatted(dflt);
+			used += (size_t)snprintf(
+			    extra + used, sizeof extra - used, "%sdefault %s",
+			    used ? ", " : "", d ? d : "?");
+			cJSON_free(d);
+		}
+		number_of(node, "minimum", ">=", extra, sizeof extra, &used);
+		number_of(node, "exclusiveMinimum", ">", extra, sizeof extra,
+		          &used);
+		number_of(node, "maximum", "<=", extra, sizeof extra, &used);
+		number_of(node, "exclusiveMaximum", "<", extra, sizeof extra,
+		          &used);
+		if (*extra)
+			fprintf(f, "      (%s)\n", extra);
+		if ((s = str_of(p, "description")))
+			wrap(f, s, 6);
+	}
+	fprintf(f, "\nUnits: numbers are in each quantity kind's default "
+	           "unit unless a 'units'\nparameter says otherwise "
+	           "(service.info lists the kinds and units).\n");
+}
+
+/* ---- the call ---------------------------------------------------------- */
+
+static int fetch(cli_conn *c, const char *method, long id, long long deadline,
+                 cJSON **result)
+{
+	cJSON *r = NULL;
+	int rc = cli__roundtrip(c, WHO, method, NULL, id, deadline, &r);
+
+	*result = NULL;
+	if (rc)
+		return rc;
+	*result = cJSON_DetachItemFromObjectCaseSensitive(r, "result");
 	cJSON_Delete(r);
+	return *result ? 0 : CLI_EXIT_RPC_ERROR;
+}
+
+static int method_help(const cli_opts *o, const char *method, long timeout)
+{
+	cli_conn c;
+	cJSON *doc = NULL;
+	const cJSON *m;
+	int rc;
+
+	if (cli_connect(o, &c))
+		return CLI_EXIT_CONNECT;
+	rc = fetch(&c, "rpc.discover", 1,
+	           timeout < 0 ? -1 : cli__now_ms() + timeout, &doc);
+	cli_disconnect(&c);
+	if (rc)
+		return rc;
+	m = cli__method_doc(doc, method);
+	if (m) {
+		print_method_help(stdout, doc, m);
+	} else {
+		const char *s = cli__suggest_json(
+		    method, cJSON_GetObjectItemCaseSensitive(doc, "methods"));
+		fprintf(stderr, WHO ": the daemon has no method '%s'%s%s%s\n",
+		        method, s ? "; did you mean " : "", s ? s : "",
+		        s ? "?" : "");
+		rc = CLI_EXIT_USAGE;
+	}
+	cJSON_Delete(doc);
 	return rc;
 }
 
 int cli_cmd_call(const cli_opts *o, int argc, char **argv)
 {
-	cJSON *req = NULL, *params = NULL;
+	cJSON *params = NULL, *resp = NULL, *info = NULL, *doc = NULL;
 	const char *method = NULL, *pjson = NULL;
-	int table = 0, rc = CLI_EXIT_USAGE, got;
+	cli_fmt fmt;
+	int rc = CLI_EXIT_USAGE, help = 0;
+	long timeout =
+	    o->timeout_ms >= 0 ? o->timeout_ms : CLI_DEFAULT_CALL_TIMEOUT_MS;
+	long long deadline;
 	cli_conn c;
-	char *line, *text = NULL;
-	size_t len;
+	int connected = 0;
 
+	memset(&fmt, 0, sizeof fmt);
+	fmt.pretty = isatty(1);
+	params = cJSON_CreateObject();
+	if (!params)
+		return CLI_EXIT_IO;
 	for (int i = 0; i < argc; i++) {
-		if (strcmp(argv[i], "--table") == 0)
-			table = 1;
-		else if (strcmp(argv[i], "--params") == 0 && i + 1 < argc)
-			pjson = argv[++i];
-		else if (strncmp(argv[i], "--params=", 9) == 0)
-			pjson = argv[i] + 9;
-		else if (argv[i][0] == '-' && argv[i][1] == '-') {
-			fprintf(stderr, "rockwire call: unknown option %s\n",
-			        argv[i]);
-			return CLI_EXIT_USAGE;
-		} else if (!method)
-			method = argv[i];
+		const char *a = argv[i];
+		const char *v = i + 1 < argc ? argv[i + 1] : NULL;
+		if (strcmp(a, "--table") == 0)
+			fmt.format = CLI_FMT_TABLE;
+		else if (strcmp(a, "--csv") == 0)
+			fmt.format = CLI_FMT_CSV;
+		else if (strcmp(a, "--all-columns") == 0)
+			fmt.all_columns = 1;
+		else if (strcmp(a, "--help") == 0 || strcmp(a, "-h") == 0)
+			help = 1;
+		else if ((strcmp(a, "--params") == 0 ||
+		          strcmp(a, "--format") == 0 ||
+		          strcmp(a, "--qc") == 0 ||
+		          strcmp(a, "--digits") == 0 ||
+		          strcmp(a, "--timeout") == 0) &&
+		         !v) {
+			fprintf(stderr, WHO ": %s needs a value\n", a);
+			goto out;
+		} else if (strcmp(a, "--params") == 0) {
+			pjson = v, i++;
+		} else if (strcmp(a, "--format") == 0) {
+			static const char *const names[] = {"json", "table",
+			                                    "csv"};
+			int k;
+			for (k = 0; k < 3 && strcmp(v, names[k]); k++)
+				;
+			if (k == 3) {
+				const char *s = cli__suggest(v, names, 3);
+				fprintf(stderr,
+				        WHO ": --format is json, table or "
+				            "csv, not '%s'%s%s%s\n",
+				        v, s ? "; did you mean " : "",
+				        s ? s : "", s ? "?" : "");
+				goto out;
+			}
+			fmt.format = k;
+			i++;
+		} else if (strcmp(a, "--qc") == 0) {
+			if (strcmp(v, "names") == 0)
+				fmt.qc_names = 1;
+			else if (strcmp(v, "int") != 0) {
+				fprintf(stderr,
+				        WHO ": --qc is int or names, not "
+				            "'%s'\n",
+				        v);
+				goto out;
+			}
+			i++;
+		} else if (strcmp(a, "--digits") == 0) {
+			char *end;
+			long n = strtol(v, &end, 10);
+			if (*end || n < 1 || n > 17) {
+				fprintf(stderr, WHO ": --digits is 1..17\n");
+				goto out;
+			}
+			fmt.digits = (int)n;
+			i++;
+		} else if (strcmp(a, "--timeout") == 0) {
+			if (cli__parse_seconds(v, &timeout)) {
+				fprintf(stderr,
+				        WHO ": --timeout wants seconds, not "
+				            "'%s'\n",
+				        v);
+				goto out;
+			}
+			i++;
+		} else if (a[0] == '-' && a[1] == '-') {
+			cli__unknown_option(WHO, a, call_opts,
+			                    sizeof call_opts /
+			                        sizeof *call_opts);
+			goto out;
+		} else if (!method) {
+			method = a;
+		} else if (cli__param_set(params, a, WHO)) {
+			goto out;
+		}
 	}
 	if (!method) {
-		fprintf(stderr, "usage: rockwire call METHOD [name=value ...] "
-		                "[--params JSON] [--table]\n");
-		return CLI_EXIT_USAGE;
-	}
-	params = pjson ? cJSON_Parse(pjson) : cJSON_CreateObject();
-	if (!params || !cJSON_IsObject(params)) {
-		fprintf(stderr, "rockwire call: --params must be a JSON "
-		                "object\n");
+		cli_usage_call(stderr);
 		goto out;
 	}
-	int seen_method = 0;
-	for (int i = 0; i < argc; i++) {
-		if (strcmp(argv[i], "--params") == 0) {
-			i++;
-			continue;
-		}
-		if (argv[i][0] == '-' && argv[i][1] == '-')
-			continue;
-		if (!seen_method && strcmp(argv[i], method) == 0) {
-			seen_method = 1;
-			continue;
-		}
-		if (cli__param_set(params, argv[i], "rockwire call"))
+	if (help) {
+		rc = method_help(o, method, timeout);
+		goto out;
+	}
+	if (pjson) {
+		cJSON *p = cJSON_ParseWithLength(pjson, strlen(pjson)), *m;
+		if (!cJSON_IsObject(p)) {
+			fprintf(stderr,
+			        WHO ": --params must be a JSON object\n");
+			cJSON_Delete(p);
 			goto out;
+		}
+		/* name=value options win over --params */
+		while ((m = params->child)) {
+			cJSON_DetachItemViaPointer(params, m);
+			cJSON_DeleteItemFromObjectCaseSensitive(p, m->string);
+			cJSON_AddItemToObject(p, m->string, m);
+		}
+		cJSON_Delete(params);
+		params = p;
 	}
-	req = cJSON_CreateObject();
-	cJSON_AddStringToObject(req, "jsonrpc", "2.0");
-	cJSON_AddNumberToObject(req, "id", 1);
-	cJSON_AddStringToObject(req, "method", method);
-	cJSON_AddItemToObject(req, "params", params);
-	params = NULL;
-	text = cJSON_PrintUnformatted(req);
-	if (!text)
-		goto out;
 	if (cli_connect(o, &c)) {
 		rc = CLI_EXIT_CONNECT;
 		goto out;
 	}
-	if (cli_write_all(&c, text, strlen(text)) ||
-	    cli_write_all(&c, "\n", 1)) {
-		cli_disconnect(&c);
+	connected = 1;
+	deadline = timeout > 0 ? cli__now_ms() + timeout : -1;
+	if (cli__write_request(&c, method, params, 1) ||
+	    (fmt.qc_names && cli__write_request(&c, "service.info", NULL, 2))) {
 		rc = CLI_EXIT_IO;
 		goto out;
 	}
-	cli_close_write(&c);
-	got = cli_read_line(&c, &line, &len, -1);
-	if (got == 1)
-		rc = print_response(line, table);
-	else {
-		fprintf(stderr, "rockwire: no response from %s\n", c.desc);
-		rc = CLI_EXIT_IO;
+	rc = cli__await(&c, WHO, 1, deadline, &resp);
+	if (rc)
+		goto out;
+	if (fmt.qc_names) {
+		rc = cli__await(&c, WHO, 2, deadline, &info);
+		if (rc)
+			goto out;
+		cli__qc_legend(cJSON_GetObjectItemCaseSensitive(info, "result"),
+		               fmt.qc);
 	}
-	cli_disconnect(&c);
+	{
+		const cJSON *err =
+		    cJSON_GetObjectItemCaseSensitive(resp, "error");
+		const cJSON *res =
+		    cJSON_GetObjectItemCaseSensitive(resp, "result");
+		if (err) {
+			cli__print_error(stderr, "rockwire", err);
+			/* A near miss gets a suggestion from the schema. */
+			if (fetch(&c, "rpc.discover", 3, deadline, &doc) == 0)
+				cli__explain_error(stderr, "rockwire", doc,
+				                   method, params, err);
+			rc = CLI_EXIT_RPC_ERROR;
+			goto out;
+		}
+		if (fmt.format != CLI_FMT_JSON && cli__result_has_matrix(res) &&
+		    fetch(&c, "rpc.discover", 3, deadline, &doc) == 0) {
+			fmt.discover = doc;
+			fmt.method = method;
+		}
+		if (cli__print_result(stdout, res, &fmt) || fflush(stdout)) {
+			fprintf(stderr, WHO ": cannot write the output: %s\n",
+			        strerror(errno));
+			rc = CLI_EXIT_IO;
+			goto out;
+		}
+	}
+	rc = CLI_EXIT_OK;
 out:
-	cJSON_free(text);
-	cJSON_Delete(req);
+	if (connected)
+		cli_disconnect(&c);
+	cJSON_Delete(doc);
+	cJSON_Delete(info);
+	cJSON_Delete(resp);
 	cJSON_Delete(params);
-	return rc;
-}
-
-int cli_cmd_send(const cli_opts *o, int argc, char **argv)
-{
-	const char *file = argc > 0 ? argv[0] : "-";
-	cli_conn c;
-	int fd, rc;
-
-	if (argc > 1) {
-		fprintf(stderr, "usage: rockwire send [FILE|-]\n");
-		return CLI_EXIT_USAGE;
-	}
-	fd = strcmp(file, "-") == 0 ? 0 : open(file, O_RDONLY | O_CLOEXEC);
-	if (fd < 0) {
-		fprintf(stderr, "rockwire send: %s: %s\n", file,
-		        strerror(errno));
-		return CLI_EXIT_IO;
-	}
-	if (cli_connect(o, &c)) {
-		if (fd)
-			close(fd);
-		return CLI_EXIT_CONNECT;
-	}
-	rc = cli_pump(&c, fd, 1) ? CLI_EXIT_IO : CLI_EXIT_OK;
-	if (fd)
-		close(fd);
-	cli_disconnect(&c);
 	return rc;
 }

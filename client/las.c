@@ -1,12 +1,23 @@
-/* LAS 2.0 reader and writers for the client (Canadian Well Logging Society
- * LAS Version 2.0). The reader is a push parser: bytes go in, complete
- * lines are parsed one at a time, the header is kept line by line and data
- * rows land in a caller-owned block, so memory stays bounded by the header
- * cap, the line cap and one row of accumulation however long the file.
- * Choices: blank lines are kept in the header and skipped in ~A; '#'
- * lines are comments everywhere; a STEP, STRT or STOP that disagrees with
- * the depths is a warning (the data are kept as read); any other departure
- * from the standard is an error naming the line. */
+/* LAS reader and writers for the client (Canadian Well Logging Society
+ * LAS Version 2.0 and 3.0, open standards), and a CSV reader that presents
+ * a CSV file with a header line as if it were a LAS file. The reader is a
+ * push parser: bytes go in, complete lines are parsed one at a time, the
+ * header is kept line by line and data rows land in a caller-owned block,
+ * so memory stays bounded by the header cap, the line cap and one row of
+ * accumulation however long the file.
+ * Choices: blank lines are kept in the header and skipped in the data;
+ * '#' lines are comments everywhere; a STEP, STRT or STOP that disagrees
+ * with the depths is a warning (the data are kept as read); any other
+ * departure from the standard is an error naming the line. LAS 3.0: the
+ * ~Log_Parameter, ~Log_Definition and ~Log_Data sections (or their 2.0
+ * names) are read as ~P, ~C and ~A; the DLM delimiter (SPACE, COMMA, TAB)
+ * is honoured; other sections are kept as text, those after ~Log_Data
+ * too (written back after the data); format braces and associations stay
+ * in the description; text channels are refused. CSV: the first line
+ * names the columns ("NAME[UNIT]", "NAME (UNIT)" or "NAME", the first
+ * being the depth), optionally followed by a line of units; ',' ';' or
+ * tab separate fields; empty fields, NaN, null, NA and the NULL value
+ * (-999.25 unless set) are missing. */
 #include <ctype.h>
 #include <errno.h>
 #include <math.h>
@@ -14,6 +25,7 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 
 #include "las.h"
 
@@ -66,6 +78,22 @@ struct cli_las_reader {
 	char *chunk;
 	size_t chunk_len, chunk_off;
 	int eof;
+	unsigned long long bytes; /* input bytes consumed */
+	/* LAS 3.0 */
+	int version; /* 2 or 3 (0 before VERS) */
+	char dlm;    /* data delimiter: ' ', ',' or '\t' */
+	int in_trailer;
+	char **trailer;
+	size_t ntrailer, captrailer, trailer_bytes;
+	/* depth order */
+	int order_check, dir;
+	double first_depth, first_step;
+	int step_uniform;
+	/* CSV */
+	int csv, csv_state, csv_keep;
+	char csv_dlm;
+	char **csv_names, **csv_units;
+	size_t csv_ncols;
 };
 
 static const char empty[] = "";
@@ -122,6 +150,9 @@ cli_las_reader *cli_las_reader_new(void)
 	}
 	r->null_value = NAN;
 	r->strt = r->stop = r->step = NAN;
+	r->dlm = ' ';
+	r->step_uniform = 1;
+	r->first_depth = r->first_step = NAN;
 	return r;
 }
 
@@ -134,6 +165,15 @@ void cli_las_reader_free(cli_las_reader *r)
 	for (i = 0; i < r->nlines; i++)
 		free(r->lines[i].raw);
 	free(r->lines);
+	for (i = 0; i < r->ntrailer; i++)
+		free(r->trailer[i]);
+	free(r->trailer);
+	for (i = 0; i < r->csv_ncols; i++) {
+		free(r->csv_names[i]);
+		free(r->csv_units[i]);
+	}
+	free(r->csv_names);
+	free(r->csv_units);
 	free(r->line);
 	free(r->chunk);
 	free(r);
@@ -226,6 +266,67 @@ int cli_las_wrapped(const cli_las_reader *r)
 double cli_las_step(const cli_las_reader *r)
 {
 	return r->step;
+}
+
+int cli_las_version(const cli_las_reader *r)
+{
+	return r->csv ? 0 : r->version;
+}
+
+char cli_las_delimiter(const cli_las_reader *r)
+{
+	return r->dlm;
+}
+
+unsigned long long cli_las_bytes(const cli_las_reader *r)
+{
+	return r->bytes;
+}
+
+void cli_las_set_order_check(cli_las_reader *r, int on)
+{
+	r->order_check = on;
+}
+
+void cli_las_set_csv(cli_las_reader *r, double null_value)
+{
+	if (r->lineno || r->nlines)
+		return; /* only before any input */
+	r->csv = 1;
+	r->null_value = null_value;
+	r->have_null = 1;
+}
+
+int cli_las_is_csv(const cli_las_reader *r)
+{
+	return r->csv;
+}
+
+double cli_las_first_depth(const cli_las_reader *r)
+{
+	return r->first_depth;
+}
+
+double cli_las_last_depth(const cli_las_reader *r)
+{
+	return r->nrows ? r->last_depth : NAN;
+}
+
+double cli_las_data_step(const cli_las_reader *r)
+{
+	if (r->nrows < 2)
+		return NAN;
+	return r->step_uniform ? r->first_step : 0.0;
+}
+
+unsigned long cli_las_nrows(const cli_las_reader *r)
+{
+	return r->nrows;
+}
+
+size_t cli_las_ntrailer(const cli_las_reader *r)
+{
+	return r->ntrailer;
 }
 
 static int is_blank(int c)
@@ -353,16 +454,53 @@ static unsigned sec_bit(char c)
 	}
 }
 
+/* The section letter of a LAS 3.0 title word (case-insensitive): the
+ * log sections by their 3.0 or 2.0 names, 'X' for every other section
+ * (kept as text). */
+static char v3_letter(const char *w, size_t n)
+{
+	static const struct {
+		const char *name;
+		char c;
+	} names[] = {
+	    {"V", 'V'},
+	    {"VERSION", 'V'},
+	    {"W", 'W'},
+	    {"WELL", 'W'},
+	    {"C", 'C'},
+	    {"CURVE", 'C'},
+	    {"P", 'P'},
+	    {"PARAMETER", 'P'},
+	    {"O", 'O'},
+	    {"OTHER", 'O'},
+	    {"A", 'A'},
+	    {"ASCII", 'A'},
+	    {"LOG_DATA", 'A'},
+	    {"LOG_DEFINITION", 'C'},
+	    {"LOG_PARAMETER", 'P'},
+	};
+	for (size_t i = 0; i < sizeof names / sizeof *names; i++)
+		if (strlen(names[i].name) == n &&
+		    strncasecmp(names[i].name, w, n) == 0)
+			return names[i].c;
+	return 'X';
+}
+
 /* A "~X" line in the header. */
 static int section_line(cli_las_reader *r, const char *s, size_t n,
                         const char *p)
 {
 	char c = (char)toupper((unsigned char)p[1]);
-	unsigned bit = sec_bit(c);
+	unsigned bit;
 
 	if (p[1] == '\0' || is_blank((unsigned char)p[1]))
 		return fail(r, r->lineno, "'~' without a section letter");
-	if (!bit)
+	if (r->version == 3) {
+		size_t w = strcspn(p + 1, " \t|");
+		c = v3_letter(p + 1, w);
+	}
+	bit = sec_bit(c);
+	if (!bit && c != 'X')
 		return fail(r, r->lineno,
 		            "unknown section ~%c (LAS 2.0 has ~V ~W ~C ~P ~O "
 		            "~A)",
@@ -410,11 +548,29 @@ static int item_meaning(cli_las_reader *r, const cli_las_line *l)
 	double v;
 
 	if (r->sec == 'V' && eq_nocase(l->mnem, "VERS")) {
-		if (!parse_num(l->value, &v) || v != 2.0)
+		if (!parse_num(l->value, &v) || (v != 2.0 && v != 3.0))
 			return fail(r, r->lineno,
-			            "VERS is '%.40s', this reader handles 2.0",
+			            "VERS is '%.40s', this reader handles 2.0 "
+			            "and 3.0",
 			            l->value);
 		r->have_vers = 1;
+		r->version = v == 3.0 ? 3 : 2;
+		if (r->version == 3 && r->wrap)
+			return fail(r, r->lineno,
+			            "LAS 3.0 does not wrap (WRAP "
+			            "must be NO)");
+	} else if (r->sec == 'V' && eq_nocase(l->mnem, "DLM")) {
+		if (eq_nocase(l->value, "SPACE"))
+			r->dlm = ' ';
+		else if (eq_nocase(l->value, "COMMA"))
+			r->dlm = ',';
+		else if (eq_nocase(l->value, "TAB"))
+			r->dlm = '\t';
+		else
+			return fail(r, r->lineno,
+			            "DLM is '%.40s', expected SPACE, COMMA or "
+			            "TAB",
+			            l->value);
 	} else if (r->sec == 'V' && eq_nocase(l->mnem, "WRAP")) {
 		if (eq_nocase(l->value, "YES"))
 			r->wrap = 1;
@@ -424,6 +580,10 @@ static int item_meaning(cli_las_reader *r, const cli_las_line *l)
 			return fail(r, r->lineno,
 			            "WRAP is '%.40s', expected YES or NO",
 			            l->value);
+		if (r->version == 3 && r->wrap)
+			return fail(r, r->lineno,
+			            "LAS 3.0 does not wrap (WRAP "
+			            "must be NO)");
 		r->have_wrap = 1;
 	} else if (r->sec == 'W' && eq_nocase(l->mnem, "STRT")) {
 		return w_number(r, l, &r->strt, &r->have_strt);
@@ -456,7 +616,18 @@ static int item_line(cli_las_reader *r, const char *s, size_t n, const char *p)
 		            "mnemonic",
 		            r->sec == 'C' ? "curve" : "header");
 	colon = NULL;
-	for (q = end; q > dot + 1;)
+	q = end;
+	if (r->version == 3) {
+		/* "... : DESCRIPTION {FORMAT} | ASSOCIATION": the colon comes
+		 * before the braces and the bar. */
+		const char *b = memchr(dot, '{', (size_t)(end - dot));
+		const char *bar = memchr(dot, '|', (size_t)(end - dot));
+		if (bar && (!b || bar < b))
+			b = bar;
+		if (b)
+			q = b;
+	}
+	while (q > dot + 1)
 		if (*--q == ':') {
 			colon = q;
 			break;
@@ -507,7 +678,7 @@ static int header_line(cli_las_reader *r, const char *s, size_t n)
 	if (p < end && *p == '#')
 		return keep_line(r, CLI_LAS_LINE_COMMENT, s, n) ? CLI_LAS_OK
 		                                                : CLI_LAS_ERR;
-	if (p == end || r->sec == 'O')
+	if (p == end || r->sec == 'O' || r->sec == 'X')
 		return keep_line(r, CLI_LAS_LINE_TEXT, s, n) ? CLI_LAS_OK
 		                                             : CLI_LAS_ERR;
 	if (!r->sec)
@@ -524,6 +695,27 @@ static double depth_tol(const cli_las_reader *r, double ref)
 	return t > m ? t : m;
 }
 
+/* With the order check: the depth must move on in one direction, the
+ * one STEP gives (or, for STEP 0 and CSV files, the first two rows). */
+static int check_order(cli_las_reader *r, double depth)
+{
+	double d = depth - r->last_depth;
+
+	if (d == 0)
+		return fail(r, r->row_line,
+		            "depth %.10g repeats the previous depth", depth);
+	if (!r->dir)
+		r->dir = !r->csv && r->step != 0 && isfinite(r->step)
+		             ? (r->step > 0 ? 1 : -1)
+		             : (d > 0 ? 1 : -1);
+	if ((d > 0 ? 1 : -1) != r->dir)
+		return fail(r, r->row_line,
+		            "depth %.10g after %.10g: depths must keep %s",
+		            depth, r->last_depth,
+		            r->dir > 0 ? "increasing" : "decreasing");
+	return CLI_LAS_OK;
+}
+
 /* A row is complete in r->acc: checks the depth and stores it. */
 static int store_row(cli_las_reader *r)
 {
@@ -531,18 +723,28 @@ static int store_row(cli_las_reader *r)
 	double depth = r->acc[0];
 	size_t i;
 
-	if (depth == r->null_value)
+	if (depth == r->null_value || isnan(depth))
 		return fail(r, r->row_line, "depth is the NULL value");
+	if (r->nrows > 0 && r->order_check && check_order(r, depth))
+		return CLI_LAS_ERR;
 	if (r->nrows == 0) {
-		if (fabs(depth - r->strt) > depth_tol(r, r->strt))
+		if (!r->csv && fabs(depth - r->strt) > depth_tol(r, r->strt))
 			warn(r, r->row_line,
 			     "first depth %.10g differs from "
 			     "STRT %.10g",
 			     depth, r->strt);
-	} else if (r->step != 0.0) {
+		r->first_depth = depth;
+	} else {
 		double d = depth - r->last_depth;
 
-		if (fabs(d - r->step) > depth_tol(r, r->step))
+		if (r->nrows == 1)
+			r->first_step = d;
+		else if (fabs(d - r->first_step) >
+		         1e-6 * (fabs(r->first_step) + 1e-12) +
+		             1e-9 * (1 + fabs(depth)))
+			r->step_uniform = 0;
+		if (!r->csv && r->step != 0.0 &&
+		    fabs(d - r->step) > depth_tol(r, r->step))
 			warn(r, r->row_line,
 			     "depth step %.10g differs from "
 			     "STEP %.10g",
@@ -557,6 +759,109 @@ static int store_row(cli_las_reader *r)
 	return CLI_LAS_OK;
 }
 
+/* Keeps a line after the LAS 3.0 ~Log_Data section, for the writer. */
+static int trailer_line(cli_las_reader *r, const char *s, size_t n)
+{
+	char *t;
+
+	r->trailer_bytes += n + 1;
+	if (r->trailer_bytes > CLI_LAS_MAX_HEADER)
+		return fail(r, r->lineno,
+		            "sections after ~Log_Data exceed %u bytes",
+		            CLI_LAS_MAX_HEADER);
+	if (r->ntrailer == r->captrailer) {
+		size_t cap = r->captrailer ? 2 * r->captrailer : 32;
+		char **nt = realloc(r->trailer, cap * sizeof *nt);
+		if (!nt)
+			return fail(r, r->lineno, "out of memory");
+		r->trailer = nt;
+		r->captrailer = cap;
+	}
+	t = malloc(n + 1);
+	if (!t)
+		return fail(r, r->lineno, "out of memory");
+	memcpy(t, s, n);
+	t[n] = '\0';
+	r->trailer[r->ntrailer++] = t;
+	return CLI_LAS_OK;
+}
+
+/* A missing value in a CSV field or a delimited LAS 3.0 field. */
+static int missing_text(const char *t)
+{
+	return !*t || eq_nocase(t, "nan") || eq_nocase(t, "null") ||
+	       eq_nocase(t, "na") || eq_nocase(t, "n/a");
+}
+
+/* One data line of delimited values (LAS 3.0 COMMA or TAB, or CSV):
+ * fields split at dlm, blanks around them trimmed, quotes removed. */
+static int delimited_line(cli_las_reader *r, char *s, size_t n, char dlm)
+{
+	char *p = s, *end = s + n;
+	size_t ntok = 0;
+
+	for (;;) {
+		char *b = p, *e, *w;
+		int quoted = 0;
+		while (b < end && is_blank((unsigned char)*b) && *b != dlm)
+			b++;
+		if (b < end && *b == '"') {
+			/* "text" with "" for a quote */
+			quoted = 1;
+			w = e = ++b;
+			while (e < end) {
+				if (*e == '"' && e + 1 < end && e[1] == '"') {
+					*w++ = '"';
+					e += 2;
+				} else if (*e == '"') {
+					break;
+				} else
+					*w++ = *e++;
+			}
+			if (e == end)
+				return fail(r, r->lineno,
+				            "value %zu has an unclosed quote",
+				            ntok + 1);
+			p = e + 1;
+			*w = '\0';
+			while (p < end && *p != dlm)
+				p++;
+		} else {
+			e = b;
+			while (e < end && *e != dlm)
+				e++;
+			p = e;
+			while (e > b && is_blank((unsigned char)e[-1]))
+				e--;
+			*e = '\0';
+		}
+		if (ntok < r->ncurves) {
+			double *v = &r->acc[ntok];
+			if (missing_text(b) && (!quoted || !*b))
+				*v = NAN;
+			else if (!parse_num(b, v))
+				return fail(
+				    r, r->lineno,
+				    "value %zu ('%.32s') of curve %s is "
+				    "not a number%s",
+				    ntok + 1, b, cli_las_curve(r, ntok)->mnem,
+				    r->version == 3
+				        ? " (text channels are not read)"
+				        : "");
+		}
+		ntok++;
+		if (p >= end)
+			break;
+		p++; /* past the delimiter */
+	}
+	if (ntok != r->ncurves)
+		return fail(r, r->lineno,
+		            "data row has %zu values, expected %zu", ntok,
+		            r->ncurves);
+	r->nacc = ntok;
+	return store_row(r);
+}
+
 /* One complete line after ~A. The line buffer is ours to cut. */
 static int data_line(cli_las_reader *r, char *s, size_t n)
 {
@@ -566,8 +871,15 @@ static int data_line(cli_las_reader *r, char *s, size_t n)
 
 	while (p < end && is_blank((unsigned char)*p))
 		p++;
+	if (r->in_trailer)
+		return trailer_line(r, s, n);
 	if (p == end || *p == '#')
 		return CLI_LAS_OK;
+	if (*p == '~' && r->version == 3 && !r->csv) {
+		/* 3.0 allows sections after ~Log_Data: kept as text */
+		r->in_trailer = 1;
+		return trailer_line(r, s, n);
+	}
 	if (*p == '~')
 		return fail(r, r->lineno,
 		            "section line after ~A (~A must be "
@@ -576,6 +888,10 @@ static int data_line(cli_las_reader *r, char *s, size_t n)
 		return CLI_LAS_FULL;
 	if (r->nacc == 0)
 		r->row_line = r->lineno;
+	if (r->csv && r->csv_dlm != ' ')
+		return delimited_line(r, s, n, r->csv_dlm);
+	if (r->dlm != ' ')
+		return delimited_line(r, s, n, r->dlm);
 	wrapped_first = r->wrap && r->nacc == 0;
 	if (r->wrap && n > WRAP_LINE_MAX)
 		warn(r, r->lineno,
@@ -623,6 +939,236 @@ static int data_line(cli_las_reader *r, char *s, size_t n)
 	return CLI_LAS_OK;
 }
 
+/* ---- CSV ------------------------------------------------------------- */
+
+/* Splits a CSV line at dlm (blank runs for ' ') into at most max trimmed
+ * fields, quotes removed; the line buffer is cut in place. Returns the
+ * number of fields, or -1 for an unclosed quote or too many fields. */
+static int csv_split(char *s, char dlm, char **f, int max)
+{
+	int n = 0;
+	char *p = s;
+
+	for (;;) {
+		char *b = p, *e, *w;
+		while (*b && is_blank((unsigned char)*b) && *b != dlm)
+			b++;
+		if (n == max)
+			return -1;
+		if (dlm == ' ' && !*b)
+			break;
+		if (*b == '"') {
+			w = e = ++b;
+			while (*e && !(*e == '"' && e[1] != '"')) {
+				if (*e == '"')
+					e++;
+				*w++ = *e++;
+			}
+			if (!*e)
+				return -1;
+			*w = '\0';
+			p = e + 1;
+			while (*p && *p != dlm && !(dlm == ' ' && is_blank(*p)))
+				p++;
+		} else {
+			e = b;
+			while (*e && *e != dlm && !(dlm == ' ' && is_blank(*e)))
+				e++;
+			p = e;
+			while (e > b && is_blank((unsigned char)e[-1]))
+				e--;
+		}
+		f[n++] = b;
+		if (!*p) {
+			*e = '\0';
+			break;
+		}
+		*e = '\0';
+		p++;
+		if (dlm == ' ') {
+			while (is_blank((unsigned char)*p))
+				p++;
+			if (!*p)
+				break;
+		}
+	}
+	return n;
+}
+
+static char *dup_clean(const char *s, int unit)
+{
+	size_t n = strlen(s);
+	char *d = malloc(n + 1);
+
+	if (!d)
+		return NULL;
+	for (size_t i = 0; i <= n; i++) {
+		char c = s[i];
+		/* LAS item fields: no blanks, and no '.' or ':' in a
+		 * mnemonic, no ':' in a unit */
+		if (c && (is_blank((unsigned char)c) || c == ':' ||
+		          (!unit && c == '.') || (unsigned char)c < 32))
+			c = '_';
+		d[i] = c;
+	}
+	if (!unit && (d[0] == '#' || d[0] == '~'))
+		d[0] = '_';
+	return d;
+}
+
+/* The CSV header row: names and units of the columns. */
+static int csv_names(cli_las_reader *r, char *s)
+{
+	char *f[CLI_LAS_MAX_CURVES];
+	int n;
+
+	if (strchr(s, ','))
+		r->csv_dlm = ',';
+	else if (strchr(s, '\t'))
+		r->csv_dlm = '\t';
+	else if (strchr(s, ';'))
+		r->csv_dlm = ';';
+	else
+		r->csv_dlm = ' ';
+	n = csv_split(s, r->csv_dlm, f, CLI_LAS_MAX_CURVES);
+	if (n < 0)
+		return fail(r, r->lineno,
+		            "CSV header: an unclosed quote, or more than %u "
+		            "columns",
+		            CLI_LAS_MAX_CURVES);
+	r->csv_names = calloc((size_t)n, sizeof *r->csv_names);
+	r->csv_units = calloc((size_t)n, sizeof *r->csv_units);
+	if (!r->csv_names || !r->csv_units)
+		return fail(r, r->lineno, "out of memory");
+	for (int i = 0; i < n; i++) {
+		char *b = f[i], *u = NULL, *e;
+		size_t len = strlen(b);
+		/* NAME[UNIT] or NAME (UNIT) */
+		if (len && b[len - 1] == ']' && (u = strrchr(b, '['))) {
+			b[len - 1] = '\0';
+			*u++ = '\0';
+		} else if (len && b[len - 1] == ')' && (u = strrchr(b, '('))) {
+			b[len - 1] = '\0';
+			*u++ = '\0';
+		}
+		e = b + strlen(b);
+		while (e > b && is_blank((unsigned char)e[-1]))
+			*--e = '\0';
+		if (!*b)
+			return fail(r, r->lineno,
+			            "CSV header: column %d has no name", i + 1);
+		r->csv_names[i] = dup_clean(b, 0);
+		r->csv_units[i] = dup_clean(u ? u : "", 1);
+		r->csv_ncols++;
+		if (!r->csv_names[i] || !r->csv_units[i])
+			return fail(r, r->lineno, "out of memory");
+	}
+	if (n < 2)
+		return fail(r, r->lineno,
+		            "CSV header names %d column; a depth column and at "
+		            "least one curve are needed",
+		            n);
+	return CLI_LAS_OK;
+}
+
+/* Is s a row of units (no number in it) for a header that had none? */
+static int csv_units_row(cli_las_reader *r, const char *line)
+{
+	char buf[4096], *f[CLI_LAS_MAX_CURVES];
+	int n, text = 0;
+	double v;
+
+	for (size_t i = 0; i < r->csv_ncols; i++)
+		if (r->csv_units[i][0])
+			return 0;
+	if (strlen(line) >= sizeof buf)
+		return 0;
+	memcpy(buf, line, strlen(line) + 1);
+	n = csv_split(buf, r->csv_dlm, f, CLI_LAS_MAX_CURVES);
+	if (n != (int)r->csv_ncols)
+		return 0;
+	for (int i = 0; i < n; i++) {
+		if (parse_num(f[i], &v))
+			return 0;
+		text += f[i][0] != '\0' && !missing_text(f[i]);
+	}
+	if (!text)
+		return 0;
+	for (int i = 0; i < n; i++) {
+		char *u = dup_clean(f[i], 1);
+		if (!u)
+			return 0;
+		free(r->csv_units[i]);
+		r->csv_units[i] = u;
+	}
+	return 1;
+}
+
+/* Feeds one made-up header line through the LAS header parser. */
+static int synth(cli_las_reader *r, const char *fmt, ...)
+{
+	char line[1024];
+	va_list ap;
+	int n;
+
+	va_start(ap, fmt);
+	n = vsnprintf(line, sizeof line, fmt, ap);
+	va_end(ap);
+	if (n < 0 || (size_t)n >= sizeof line)
+		return fail(r, r->lineno, "CSV header field too long");
+	return header_line(r, line, (size_t)n);
+}
+
+/* The CSV file as a LAS 2.0 header (STRT, STOP and STEP are placeholders
+ * the writer replaces). */
+static int csv_header(cli_las_reader *r)
+{
+	const char *du = r->csv_units[0];
+	int rc = CLI_LAS_OK;
+
+	rc |= synth(r, "~Version information");
+	rc |= synth(r, " VERS.   2.0 : CWLS LOG ASCII STANDARD - VERSION 2.0");
+	rc |= synth(r, " WRAP.    NO : ONE LINE PER DEPTH STEP");
+	rc |= synth(r, "~Well information");
+	rc |= synth(r, " STRT.%s 0 : START DEPTH", du);
+	rc |= synth(r, " STOP.%s 0 : STOP DEPTH", du);
+	rc |= synth(r, " STEP.%s 0 : STEP", du);
+	rc |= synth(r, " NULL. %.15g : NULL VALUE", r->null_value);
+	rc |= synth(r, "~Curve information");
+	for (size_t i = 0; i < r->csv_ncols && !rc; i++)
+		rc |= synth(r, " %s.%s : column %zu of the CSV file",
+		            r->csv_names[i], r->csv_units[i], i + 1);
+	if (rc || r->dead)
+		return CLI_LAS_ERR;
+	return synth(r, "~A");
+}
+
+/* One line of a CSV file before its data. */
+static int csv_line(cli_las_reader *r, char *s, size_t n)
+{
+	const char *p = s;
+	int rc;
+
+	while (p < s + n && is_blank((unsigned char)*p))
+		p++;
+	if (p == s + n || *p == '#')
+		return CLI_LAS_OK;
+	if (r->csv_state == 0) {
+		r->csv_state = 1;
+		return csv_names(r, s);
+	}
+	if (r->csv_state == 1 && csv_units_row(r, s)) {
+		r->csv_state = 2;
+		return CLI_LAS_OK;
+	}
+	/* the first data row: the header is complete; the row stays
+	 * pending for the data parser */
+	rc = csv_header(r);
+	if (rc == CLI_LAS_HEADER)
+		r->csv_keep = 1;
+	return rc;
+}
+
 /* Processes the pending complete line. */
 static int process_line(cli_las_reader *r)
 {
@@ -631,12 +1177,18 @@ static int process_line(cli_las_reader *r)
 	if (r->linelen > 0 && r->line[r->linelen - 1] == '\r')
 		r->linelen--;
 	r->line[r->linelen] = '\0';
-	if (!r->header_done)
+	if (!r->header_done && r->csv)
+		rc = csv_line(r, r->line, r->linelen);
+	else if (!r->header_done)
 		rc = header_line(r, r->line, r->linelen);
 	else
 		rc = data_line(r, r->line, r->linelen);
 	if (rc == CLI_LAS_FULL)
 		return rc; /* keep the line pending */
+	if (rc == CLI_LAS_HEADER && r->csv_keep) {
+		r->csv_keep = 0;
+		return rc; /* the first CSV data row, still to be read */
+	}
 	r->pending = 0;
 	r->linelen = 0;
 	return rc;
@@ -658,6 +1210,7 @@ int cli_las_feed(cli_las_reader *r, const void *buf, size_t len, size_t *used)
 			rc = process_line(r);
 			if (rc != CLI_LAS_OK) {
 				*used = i;
+				r->bytes += i;
 				return rc;
 			}
 		}
@@ -679,6 +1232,7 @@ int cli_las_feed(cli_las_reader *r, const void *buf, size_t len, size_t *used)
 		i++;
 	}
 	*used = i;
+	r->bytes += i;
 	return CLI_LAS_OK;
 }
 
@@ -699,6 +1253,11 @@ int cli_las_finish(cli_las_reader *r)
 		if (rc == CLI_LAS_FULL || rc == CLI_LAS_ERR)
 			return rc;
 	}
+	if (!r->header_done && r->csv)
+		return fail(r, r->lineno ? r->lineno : 1,
+		            r->csv_state ? "CSV file has a header line but no "
+		                           "data rows"
+		                         : "CSV file has no header line");
 	if (!r->header_done) {
 		if (!(r->seen & SEC_V))
 			return fail(r, r->lineno ? r->lineno : 1,
@@ -721,7 +1280,7 @@ int cli_las_finish(cli_las_reader *r)
 		            "end of input inside the wrapped "
 		            "row starting at line %lu (%zu of %zu values)",
 		            r->row_line, r->nacc, r->ncurves);
-	if (r->nrows > 0 &&
+	if (r->nrows > 0 && !r->csv &&
 	    fabs(r->last_depth - r->stop) > depth_tol(r, r->stop))
 		warn(r, r->lineno, "last depth %.10g differs from STOP %.10g",
 		     r->last_depth, r->stop);
@@ -870,13 +1429,27 @@ static int write_note(FILE *fp, const char *note)
 	return 0;
 }
 
-int cli_las_write_header(FILE *fp, const cli_las_reader *r,
-                         const cli_las_newcurve *add, size_t nadd,
-                         const char *note, char *err, size_t errlen)
+/* Writes a ~W item with its value replaced, padded for a later patch,
+ * recording where the value starts. */
+static int write_override(FILE *fp, const cli_las_line *l, const char *value,
+                          int width, long *at)
+{
+	if (fprintf(fp, " %s.%s ", l->mnem, l->unit) < 0)
+		return -1;
+	*at = ftell(fp);
+	return fprintf(fp, "%-*s : %s\n", width, value, l->desc) < 0 ? -1 : 0;
+}
+
+int cli_las_write_header_opts(FILE *fp, const cli_las_reader *r,
+                              const cli_las_newcurve *add, size_t nadd,
+                              const char *note, cli_las_wopts *o, char *err,
+                              size_t errlen)
 {
 	char prev = 0;
 	size_t i;
 
+	if (o)
+		o->strt_at = o->stop_at = o->step_at = -1;
 	if (!r->header_done || r->dead)
 		return werr(err, errlen, "reader has no complete header", NULL);
 	if (check_additions(add, nadd, note, err, errlen))
@@ -898,17 +1471,46 @@ int cli_las_write_header(FILE *fp, const cli_las_reader *r,
 			}
 			prev = l->section;
 		}
-		if (l->kind == CLI_LAS_LINE_ITEM && l->section == 'V' &&
-		    eq_nocase(l->mnem, "WRAP") && r->wrap)
+		if (l->kind == CLI_LAS_LINE_ITEM && l->section == 'W' && o &&
+		    o->strt && eq_nocase(l->mnem, "STRT"))
+			rc |= write_override(fp, l, o->strt, o->width,
+			                     &o->strt_at);
+		else if (l->kind == CLI_LAS_LINE_ITEM && l->section == 'W' &&
+		         o && o->stop && eq_nocase(l->mnem, "STOP"))
+			rc |= write_override(fp, l, o->stop, o->width,
+			                     &o->stop_at);
+		else if (l->kind == CLI_LAS_LINE_ITEM && l->section == 'W' &&
+		         o && o->step && eq_nocase(l->mnem, "STEP"))
+			rc |= write_override(fp, l, o->step, o->width,
+			                     &o->step_at);
+		else if (l->kind == CLI_LAS_LINE_ITEM && l->section == 'V' &&
+		         eq_nocase(l->mnem, "WRAP") && r->wrap)
 			rc |= fprintf(fp, "WRAP.   NO  : One line per depth "
 			                  "step\n") < 0;
-		else if (l->kind == CLI_LAS_LINE_DATA && nadd > 0)
+		else if (l->kind == CLI_LAS_LINE_DATA && nadd > 0 &&
+		         r->version != 3)
 			rc |= fprintf(fp, "~A\n") < 0;
 		else
 			rc |= fprintf(fp, "%s\n", l->raw) < 0;
 		if (rc)
 			return werr(err, errlen, "write error", NULL);
 	}
+	return 0;
+}
+
+int cli_las_write_header(FILE *fp, const cli_las_reader *r,
+                         const cli_las_newcurve *add, size_t nadd,
+                         const char *note, char *err, size_t errlen)
+{
+	return cli_las_write_header_opts(fp, r, add, nadd, note, NULL, err,
+	                                 errlen);
+}
+
+int cli_las_write_trailer(FILE *fp, const cli_las_reader *r)
+{
+	for (size_t i = 0; i < r->ntrailer; i++)
+		if (fprintf(fp, "%s\n", r->trailer[i]) < 0)
+			return -1;
 	return 0;
 }
 

@@ -1,8 +1,10 @@
-/* LAS 2.0 well-log files (Canadian Well Logging Society, LAS Version 2.0):
- * a streaming push reader that keeps every header line so a writer can
- * reproduce it, delivers data rows in caller-sized blocks of doubles (NaN
- * for the NULL value), and writers for LAS 2.0 (WRAP NO) and CSV. Memory
- * is bounded whatever the input: the header is capped at CLI_LAS_MAX_HEADER
+/* LAS well-log files (Canadian Well Logging Society, LAS Version 2.0 and
+ * 3.0) and CSV files with a header line: a streaming push reader that
+ * keeps every header line so a writer can reproduce it, delivers data rows
+ * in caller-sized blocks of doubles (NaN for the NULL value), and writers
+ * for LAS (WRAP NO) and CSV. A CSV file is presented as a LAS 2.0 file
+ * whose header the reader makes up from the CSV header line. Memory is
+ * bounded whatever the input: the header is capped at CLI_LAS_MAX_HEADER
  * bytes, a line at CLI_LAS_MAX_LINE bytes and the curve count at
  * CLI_LAS_MAX_CURVES. Depends on libc and libm only. */
 #ifndef ROCKWIRE_CLIENT_LAS_H
@@ -65,6 +67,18 @@ typedef struct cli_las_reader cli_las_reader;
 /* Allocates a reader; free with cli_las_reader_free. NULL when out of
  * memory. */
 cli_las_reader *cli_las_reader_new(void);
+/* Makes r read CSV (call before any input): the first non-comment line
+ * names the columns, "NAME[UNIT]", "NAME (UNIT)" or "NAME", the first one
+ * the depth; a next line of units (no numbers) is taken when the names
+ * carry none; ',' (else tab, ';' or blanks, from the header line)
+ * separates fields; empty fields, NaN, null, NA, N/A and null_value are
+ * missing (NaN). */
+void cli_las_set_csv(cli_las_reader *r, double null_value);
+int cli_las_is_csv(const cli_las_reader *r);
+/* With on, a depth equal to the previous one, or one that goes back
+ * against the direction of STEP (or, for STEP 0 and CSV, of the first
+ * two rows), is an error naming the line. Off by default. */
+void cli_las_set_order_check(cli_las_reader *r, int on);
 /* Frees a reader and all header strings; NULL is a no-op. */
 void cli_las_reader_free(cli_las_reader *r);
 
@@ -120,6 +134,21 @@ const cli_las_line *cli_las_find(const cli_las_reader *r, char sec,
 double cli_las_null(const cli_las_reader *r);
 int cli_las_wrapped(const cli_las_reader *r);
 double cli_las_step(const cli_las_reader *r);
+/* 2 or 3 for LAS (after ~V), 0 for CSV. */
+int cli_las_version(const cli_las_reader *r);
+/* The data delimiter of a LAS 3.0 file (DLM): ' ', ',' or '\t'. */
+char cli_las_delimiter(const cli_las_reader *r);
+/* Input bytes consumed so far (complete lines processed or held). */
+unsigned long long cli_las_bytes(const cli_las_reader *r);
+/* Data rows read so far; the first and last depth (NaN before any); the
+ * step between rows (the first one when all agree within 1e-6, 0 when
+ * they vary, NaN with fewer than two rows). */
+unsigned long cli_las_nrows(const cli_las_reader *r);
+double cli_las_first_depth(const cli_las_reader *r);
+double cli_las_last_depth(const cli_las_reader *r);
+double cli_las_data_step(const cli_las_reader *r);
+/* Lines of LAS 3.0 sections after ~Log_Data (kept as text). */
+size_t cli_las_ntrailer(const cli_las_reader *r);
 
 /* Writes the header of r (complete) as LAS 2.0: every kept line as read,
  * except WRAP set to NO, the nadd curves of add appended at the end of ~C,
@@ -130,6 +159,24 @@ double cli_las_step(const cli_las_reader *r);
 int cli_las_write_header(FILE *fp, const cli_las_reader *r,
                          const cli_las_newcurve *add, size_t nadd,
                          const char *note, char *err, size_t errlen);
+/* Options of cli_las_write_header_opts: ~W STRT, STOP and STEP values to
+ * write instead of the kept ones (NULL keeps a line), left-aligned in
+ * width characters so that a value can be patched in place later; the
+ * file offsets where they start come back in *_at (-1 when not written
+ * or the stream cannot tell). */
+typedef struct cli_las_wopts {
+	const char *strt, *stop, *step;
+	int width;
+	long strt_at, stop_at, step_at;
+} cli_las_wopts;
+/* cli_las_write_header with options (o may be NULL). LAS 3.0 headers keep
+ * their data section line as read. */
+int cli_las_write_header_opts(FILE *fp, const cli_las_reader *r,
+                              const cli_las_newcurve *add, size_t nadd,
+                              const char *note, cli_las_wopts *o, char *err,
+                              size_t errlen);
+/* Writes the LAS 3.0 sections that followed ~Log_Data, as read. 0 or -1. */
+int cli_las_write_trailer(FILE *fp, const cli_las_reader *r);
 /* Writes nrows rows of ncols doubles (row-major) as ~A lines, one line
  * per depth, each value " %.*f" with decimals digits (0..15), NaN as
  * null_value in %.15g form (so it reads back as NULL); a non-zero value too

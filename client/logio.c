@@ -22,7 +22,8 @@ int cli__param_set(cJSON *params, const char *arg, const char *who)
 		fprintf(stderr, "%s: '%s' is not name=value\n", who, arg);
 		return -1;
 	}
-	val = cJSON_Parse(eq + 1);
+	/* The whole value must be JSON: "8.5in" is not the number 8.5. */
+	val = cJSON_ParseWithOpts(eq + 1, NULL, 1);
 	if (!val)
 		val = cJSON_CreateString(eq + 1);
 	if (!val)
@@ -147,8 +148,12 @@ int cli__pipe_step(cli_conn *c, cli_buf *out, int want_read, int extra_fd,
 		p[n] = (struct pollfd){extra_fd, POLLIN, 0};
 		ie = n++;
 	}
-	if (!n)
+	if (!n) {
+		/* nothing to watch: just wait (a reconnect pause) */
+		if (timeout_ms > 0)
+			poll(NULL, 0, timeout_ms);
 		return 0;
+	}
 	if (poll(p, (nfds_t)n, timeout_ms) < 0)
 		return errno == EINTR ? 0 : -1;
 	if (iw >= 0 && p[iw].revents) {

@@ -35,10 +35,28 @@ void cli__buf_free(cli_buf *b);
  * to on_line(ctx, line, len) (return non-zero to stop). want_read says
  * whether to wait for responses. Waits at most timeout_ms (-1 forever).
  * Returns 0, 1 when the daemon closed, -1 on error or when on_line
- * stopped. */
+ * stopped. With nothing to watch it sleeps timeout_ms (when > 0). */
 int cli__pipe_step(cli_conn *c, cli_buf *out, int want_read, int extra_fd,
                    int *extra_ready, int timeout_ms,
                    int (*on_line)(void *ctx, char *line, size_t len),
                    void *ctx);
+
+struct cli_units;
+/* Builds the parameters of log and feed: --params JSON (may be NULL),
+ * then each "NAME=VALUE" of sets; a value with a unit ("8.5in") is
+ * converted to the default unit of NAME's kind with the daemon's factors
+ * (a bare number is in the default unit already); units.* become output
+ * units in u and are not sent; top-level names and enum values are
+ * checked against log.process in disc (may be NULL). *out gets the
+ * parameters, *sources an object naming where each top-level one came
+ * from (free both with cJSON_Delete). 0, or -1 with a message. */
+int cli__build_params(const char *who, char *const *sets, size_t nsets,
+                      const char *pjson, struct cli_units *u, const cJSON *disc,
+                      cJSON **out, cJSON **sources);
+/* Asks for service.info and rpc.discover (ids 1 and 2) and waits for both
+ * until deadline_ms (< 0 forever). 0 with *info (the result) and
+ * *discover (the result, or NULL when refused), or a CLI_EXIT_* code. */
+int cli__fetch_info(cli_conn *c, const char *who, long long deadline_ms,
+                    cJSON **info, cJSON **discover);
 
 #endif

@@ -5,9 +5,12 @@
  * blank lines are ignored everywhere; an item whose value is not a plain
  * decimal number (no hex, inf or nan) is a text item — WITS defines
  * alphanumeric items, such as the well identifier 0101 (from memory) —
- * and is counted, not delivered, without spoiling its record; a line
- * that is not an item (no 4-digit code, or no value) spoils its whole
- * record. */
+ * and is counted and delivered marked as text (the caller decides
+ * whether it is garbage) without spoiling its record; a line that is not
+ * an item (no 4-digit code, or no value) spoils its whole record; an
+ * item code seen twice in one record means the record was cut and the
+ * next one's items follow: the part before is counted unterminated and
+ * a new record starts with the repeated item. */
 #include <ctype.h>
 #include <math.h>
 #include <stdlib.h>
@@ -52,14 +55,19 @@ static int parse_item(const char *s, cli_wits_item *it)
 		return 0;
 	for (q = v; *q; q++)
 		if (!isdigit((unsigned char)*q) && *q != '+' && *q != '-' &&
-		    *q != '.' && *q != 'e' && *q != 'E')
+		    *q != '.' && *q != 'e' && *q != 'E') {
+			it->code = (unsigned)((s[0] - '0') * 1000 +
+			                      (s[1] - '0') * 100 +
+			                      (s[2] - '0') * 10 + (s[3] - '0'));
 			return 2;
+		}
+	it->code = (unsigned)((s[0] - '0') * 1000 + (s[1] - '0') * 100 +
+	                      (s[2] - '0') * 10 + (s[3] - '0'));
 	x = strtod(v, &end);
 	if (end == v || *end != '\0' || !isfinite(x))
 		return 2;
-	it->code = (unsigned)((s[0] - '0') * 1000 + (s[1] - '0') * 100 +
-	                      (s[2] - '0') * 10 + (s[3] - '0'));
 	it->value = x;
+	it->text = 0;
 	return 1;
 }
 
@@ -70,6 +78,13 @@ static void drop(cli_wits_parser *p, unsigned long *counter)
 	p->in_record = 0;
 	p->record_bad = 0;
 	p->nitems = 0;
+	memset(p->seen, 0, sizeof p->seen);
+}
+
+static void begin(cli_wits_parser *p)
+{
+	p->in_record = 1;
+	p->stats.begun++;
 }
 
 /* Handles one complete line (without LF). */
@@ -100,7 +115,7 @@ static void line_done(cli_wits_parser *p)
 	if (strcmp(s, "&&") == 0) {
 		if (p->in_record)
 			drop(p, &p->stats.unterminated);
-		p->in_record = 1;
+		begin(p);
 		return;
 	}
 	if (!p->in_record) {
@@ -113,11 +128,15 @@ static void line_done(cli_wits_parser *p)
 		} else if (p->nitems == 0) {
 			drop(p, &p->stats.empty);
 		} else {
+			size_t num = 0;
+			for (size_t i = 0; i < p->nitems; i++)
+				num += !p->items[i].text;
 			p->stats.records++;
-			p->stats.items += p->nitems;
+			p->stats.items += num;
 			p->cb(p->ctx, p->items, p->nitems);
 			p->in_record = 0;
 			p->nitems = 0;
+			memset(p->seen, 0, sizeof p->seen);
 		}
 		return;
 	}
@@ -127,10 +146,34 @@ static void line_done(cli_wits_parser *p)
 		p->record_bad = 1;
 		return;
 	}
-	switch (strlen(s) < 4 ? 0 : parse_item(s, &p->items[p->nitems])) {
-	case 1: p->nitems++; return;
-	case 2: p->stats.text_items++; return;
-	default: p->stats.bad_lines++; p->record_bad = 1;
+	{
+		cli_wits_item *it = &p->items[p->nitems];
+		int kind = strlen(s) < 4 ? 0 : parse_item(s, it);
+		unsigned code = it->code;
+		if (!kind) {
+			p->stats.bad_lines++;
+			p->record_bad = 1;
+			return;
+		}
+		if (p->seen[code / 8] & (1u << (code % 8))) {
+			/* the same code twice: the record was cut and the
+			 * next one's items follow */
+			cli_wits_item keep = *it;
+			if (kind == 2)
+				keep.value = NAN, keep.text = 1;
+			drop(p, &p->stats.unterminated);
+			p->stats.run_together++;
+			begin(p);
+			p->items[0] = keep;
+			it = &p->items[0];
+		}
+		p->seen[code / 8] |= (unsigned char)(1u << (code % 8));
+		if (kind == 2) {
+			it->value = NAN;
+			it->text = 1;
+			p->stats.text_items++;
+		}
+		p->nitems++;
 	}
 }
 

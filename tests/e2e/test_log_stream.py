@@ -28,7 +28,7 @@ HEADER = """~Version
  STOP.M  {stop} : STOP
  STEP.M  0.1 : STEP
  NULL.   -999.25 : NULL
- WELL.   GREYLAG 1 (INVENTED) : WELL
+ WELL.   ULVARETH 1 (INVENTED) : WELL
 ~Curve
  DEPT.M     : DEPTH
  DT  .US/F  : COMPRESSIONAL SLOWNESS
@@ -149,17 +149,22 @@ try:
     gen(small, 5)
     rc, so, se, _ = run_client(["--socket", d.path, "log", small,
                                 "--format", "csv"])
-    lines = so.strip().split("\n")
+    lines = [l for l in so.strip().split("\n") if not l.startswith("#")]
     t.ok(rc == 0 and len(lines) == 6, "csv: header + 5 rows (%d)" % rc)
-    t.ok(lines[0].startswith("DEPT[M],DT[US/F],DTS[US/F],RHOB[G/C3],VP[M/S]"),
+    # Input columns as the file names them, computed ones as the protocol
+    # does (the style of `rockwire call --format csv` and `rockwire feed`).
+    t.ok(lines[0].startswith("DEPT[M],DT[US/F],DTS[US/F],RHOB[G/C3],vp[m/s]"),
          "csv header: " + lines[0][:80])
+    t.ok(so.startswith("# Screening estimates only"),
+         "csv output opens with the caution")
 
     # --curve overrides and unknown units.
     rc, so, se, _ = run_client(["--socket", d.path, "log", small,
                                 "--curve", "dts=none",
                                 "--set", "vs_predict=mudrock",
                                 "--format", "csv"])
-    row = so.strip().split("\n")[1].split(",")
+    row = [l for l in so.strip().split("\n")
+           if not l.startswith("#")][1].split(",")
     t.ok(rc == 0 and abs(float(row[5]) - (vp - 1360) / 1.16) < 1e-2,
          "--curve dts=none with the mudrock line")
     bad_unit = os.path.join(tmp, "unit.las")
@@ -168,7 +173,7 @@ try:
     outp = os.path.join(tmp, "unit_out.las")
     rc, so, se, _ = run_client(["--socket", d.path, "log", bad_unit,
                                 "-o", outp])
-    t.ok(rc != 0 and "FURLONG" in se and "dtp" in se,
+    t.ok(rc == 5 and "FURLONG" in se and "dtp" in se,
          "unknown unit names curve and unit: " + se.strip()[:200])
     t.ok(not os.path.exists(outp), "no output for an unknown unit")
 
@@ -181,15 +186,20 @@ try:
         f.write("\n".join(text))
     outp = os.path.join(tmp, "bad_out.las")
     rc, so, se, _ = run_client(["--socket", d.path, "log", bad, "-o", outp])
-    t.ok(rc != 0 and "line %d" % (len(text) - 2) in se,
+    t.ok(rc == 5 and "line %d" % (len(text) - 2) in se,
          "malformed line named: " + se.strip()[:200])
     t.ok(not os.path.exists(outp) and
          not [f for f in os.listdir(tmp) if ".part" in f],
          "no partial output for a malformed file")
     t.ok("no output written" in se, "says no output was written")
+    t.ok("INCOMPLETE" not in se, "nothing went to stdout: no INCOMPLETE")
+    # The same to stdout: the error comes before anything was written.
+    rc, so, se, _ = run_client(["--socket", d.path, "log", bad])
+    t.ok(rc == 5 and so == "" and "INCOMPLETE" not in se,
+         "stdout: INCOMPLETE only when something was written (%r)" % se)
 
     # The demo well with a QC summary.
-    demo = os.path.join(rwtest.SRC, "demo-requests", "well-osprey-flats-3.las")
+    demo = os.path.join(rwtest.SRC, "demo-requests", "orrimund-3.las")
     outp = os.path.join(tmp, "demo_out.las")
     rc, so, se, _ = run_client([
         "--socket", d.path, "log", demo, "-o", outp, "--summary",

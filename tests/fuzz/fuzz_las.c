@@ -1,6 +1,7 @@
-/* libFuzzer target for the LAS 2.0 reader: any bytes fed in uneven
- * chunks with a small row block, handling every return code as a caller
- * would, then finish. Build and run with tests/fuzz/run. */
+/* libFuzzer target for the LAS 2.0 / 3.0 and CSV reader: any bytes fed in
+ * uneven chunks with a small row block, handling every return code as a
+ * caller would, then finish. The first byte also chooses CSV mode and the
+ * depth order check. Build and run with tests/fuzz/run. */
 #include <stddef.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -18,6 +19,10 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 
 	if (!r)
 		return 0;
+	if (size && (data[0] & 0x40))
+		cli_las_set_csv(r, -999.25);
+	if (size && (data[0] & 0x80))
+		cli_las_set_order_check(r, 1);
 	while (pos < size && rc != CLI_LAS_ERR) {
 		size_t used = 0, n = size - pos < step ? size - pos : step;
 		rc = cli_las_feed(r, data + pos, n, &used);
@@ -45,6 +50,8 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	}
 	(void)cli_las_error(r);
 	(void)cli_las_warning(r);
+	if (cli_las_bytes(r) > size)
+		abort();
 	free(rows);
 	cli_las_reader_free(r);
 	return 0;

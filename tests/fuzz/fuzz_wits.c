@@ -1,6 +1,8 @@
 /* libFuzzer target for the WITS level 0 parser: any bytes in uneven
  * chunks; every delivered record must hold 1..CLI_WITS_MAX_ITEMS items
- * with codes of at most four digits. Build and run with tests/fuzz/run. */
+ * with codes of at most four digits, finite values or text marked
+ * as such, and every record begun counted once. Build and run with
+ * tests/fuzz/run. */
 #include <math.h>
 #include <stddef.h>
 #include <stdint.h>
@@ -16,7 +18,9 @@ static void on_record(void *ctx, const cli_wits_item *items, size_t n)
 	if (n < 1 || n > CLI_WITS_MAX_ITEMS)
 		abort();
 	for (size_t i = 0; i < n; i++)
-		if (items[i].code > 9999 || !isfinite(items[i].value))
+		if (items[i].code > 9999 ||
+		    (items[i].text ? !isnan(items[i].value)
+		                   : !isfinite(items[i].value)))
 			abort();
 }
 
@@ -32,5 +36,12 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 		pos += n;
 	}
 	cli_wits_finish(&p);
+	{
+		const cli_wits_stats *s = cli_wits_get_stats(&p);
+		if (s->begun != s->records + s->bad_records + s->unterminated +
+		                    s->empty ||
+		    s->run_together > s->unterminated)
+			abort();
+	}
 	return 0;
 }

@@ -1,8 +1,11 @@
-/* Unit tests of the LAS 2.0 reader and writers (client/las.c): wrapped and
- * unwrapped sample files (tests/unit/data, invented well and values) give
- * the same data, NULL samples come back as NaN, header and data survive a
- * write and re-read, every malformed case names its line, and feeding one
- * byte at a time equals feeding everything at once. */
+/* Unit tests of the LAS reader and writers (client/las.c): the wrapped and
+ * unwrapped LAS 2.0 sample files, the LAS 3.0 one and the CSV one
+ * (tests/unit/data, invented well and values) give the same data, NULL
+ * and missing samples come back as NaN, header and data survive a write
+ * and re-read, every malformed case names its line, the depth order check
+ * refuses repeats and reversals, and feeding one byte at a time equals
+ * feeding everything at once. Layouts follow the CWLS LAS 2.0 and 3.0
+ * standards (from memory of their text). */
 #include <math.h>
 #include <setjmp.h>
 #include <stdarg.h>
@@ -73,9 +76,10 @@ static void take(struct parsed *p, const double *blk)
 	p->nrows += n;
 }
 
-/* Feeds text in chunks of chunk bytes with a block of blk_rows rows. */
-static struct parsed feed_all(const char *text, size_t len, size_t chunk,
-                              size_t blk_rows)
+/* Feeds text in chunks of chunk bytes with a block of blk_rows rows; csv
+ * reads it as CSV, order turns on the depth order check. */
+static struct parsed feed_mode(const char *text, size_t len, size_t chunk,
+                               size_t blk_rows, int csv, int order)
 {
 	struct parsed p = {0};
 	double *blk = NULL;
@@ -84,6 +88,9 @@ static struct parsed feed_all(const char *text, size_t len, size_t chunk,
 
 	p.r = cli_las_reader_new();
 	assert_non_null(p.r);
+	if (csv)
+		cli_las_set_csv(p.r, -999.25);
+	cli_las_set_order_check(p.r, order);
 	while (off < len) {
 		size_t n = len - off < chunk ? len - off : chunk;
 
@@ -116,6 +123,12 @@ static struct parsed feed_all(const char *text, size_t len, size_t chunk,
 	p.rc = rc;
 	free(blk);
 	return p;
+}
+
+static struct parsed feed_all(const char *text, size_t len, size_t chunk,
+                              size_t blk_rows)
+{
+	return feed_mode(text, len, chunk, blk_rows, 0, 0);
 }
 
 static void parsed_free(struct parsed *p)
@@ -194,10 +207,10 @@ static void test_samples(void **state)
 	FILE *fp;
 
 	(void)state;
-	fp = open_data("kestrel_ridge_7.las");
+	fp = open_data("palvorin_7.las");
 	u = read_file(fp, 4);
 	fclose(fp);
-	fp = open_data("kestrel_ridge_7_wrap.las");
+	fp = open_data("palvorin_7_wrap.las");
 	w = read_file(fp, 4);
 	fclose(fp);
 	if (u.rc != CLI_LAS_OK)
@@ -219,19 +232,19 @@ static void test_samples(void **state)
 	/* header items: fields split per LAS 2.0 line format */
 	l = cli_las_find(u.r, 'W', "well");
 	assert_non_null(l);
-	assert_string_equal(l->value, "KESTREL RIDGE 7");
+	assert_string_equal(l->value, "PALVORIN 7");
 	assert_string_equal(l->desc, "WELL");
 	l = cli_las_find(u.r, 'W', "FLD");
 	assert_non_null(l);
 	assert_string_equal(l->mnem, "FLD");
 	assert_string_equal(l->unit, "");
-	assert_string_equal(l->value, "ASHVALE");
+	assert_string_equal(l->value, "QUELLODIN");
 	l = cli_las_find(u.r, 'W', "LOC");
-	assert_string_equal(l->value, "12-34-056-07W9 (INV)");
+	assert_string_equal(l->value, "DEMO SITE B (INVENTED)");
 	l = cli_las_curve(u.r, 1);
 	assert_string_equal(l->mnem, "GR");
 	assert_string_equal(l->unit, "GAPI");
-	assert_string_equal(l->value, "45 310 01 00");
+	assert_string_equal(l->value, "01 101 01 01");
 	assert_string_equal(l->desc, "2  GAMMA RAY");
 	l = cli_las_curve(u.r, 0);
 	assert_string_equal(l->unit, "M");
@@ -246,8 +259,8 @@ static void test_samples(void **state)
 
 static void test_bytewise(void **state)
 {
-	static const char *const files[] = {"kestrel_ridge_7.las",
-	                                    "kestrel_ridge_7_wrap.las"};
+	static const char *const files[] = {"palvorin_7.las",
+	                                    "palvorin_7_wrap.las"};
 	size_t f, len, chunk;
 
 	(void)state;
@@ -320,7 +333,7 @@ static void test_roundtrip(void **state)
 	size_t i, j;
 
 	(void)state;
-	fp = open_data("kestrel_ridge_7_wrap.las");
+	fp = open_data("palvorin_7_wrap.las");
 	in = read_file(fp, 16);
 	fclose(fp);
 	assert_int_equal(in.rc, CLI_LAS_OK);
@@ -447,7 +460,10 @@ static const struct {
 } bad[] = {
     {"~W\n STRT.M 1 : s\n", "line 1: first section is ~W, expected ~V"},
     {" VERS. 2.0 : v\n", "line 1: text before the ~V section"},
-    {"~V\n VERS. 3.0 : v\n", "line 2: VERS is '3.0'"},
+    {"~V\n VERS. 4.0 : v\n", "line 2: VERS is '4.0'"},
+    {"~V\n VERS. 3.0 : v\n WRAP. YES : w\n", "line 3: LAS 3.0 does not wrap"},
+    {"~V\n VERS. 3.0 : v\n WRAP. NO : w\n DLM. PIPE : d\n",
+     "line 4: DLM is 'PIPE'"},
     {"~V\n VERS. 2.0 : v\n" HW, "line 1: ~V section has no WRAP item"},
     {"~V\n WRAP. NO : w\n" HW, "line 1: ~V section has no VERS item"},
     {"~V\n VERS. 2.0 : v\n WRAP. MAYBE : w\n", "line 3: WRAP is 'MAYBE'"},
@@ -571,7 +587,7 @@ static void test_limits_and_warnings(void **state)
 static void test_garbage(void **state)
 {
 	size_t len, i, k;
-	char *text = slurp("kestrel_ridge_7_wrap.las", &len);
+	char *text = slurp("palvorin_7_wrap.las", &len);
 	char *mut = malloc(len);
 	unsigned long seed = 12345;
 	struct parsed p;
@@ -595,6 +611,264 @@ static void test_garbage(void **state)
 	free(text);
 }
 
+#define V3 "~V\n VERS. 3.0 : v\n WRAP. NO : w\n DLM. COMMA : d\n"
+
+/* LAS 3.0: the same data as the 2.0 sample, sections kept, and a
+ * round trip through the writer with the trailing sections. */
+static void test_las3(void **state)
+{
+	struct parsed v3, back;
+	const cli_las_line *l;
+	FILE *fp, *tmp;
+	char err[256];
+
+	(void)state;
+	fp = open_data("palvorin_7_v3.las");
+	v3 = read_file(fp, 4);
+	fclose(fp);
+	if (v3.rc != CLI_LAS_OK)
+		fail_msg("v3: %s", cli_las_error(v3.r));
+	assert_int_equal(cli_las_version(v3.r), 3);
+	assert_int_equal(cli_las_delimiter(v3.r), ',');
+	assert_int_equal(cli_las_ncurves(v3.r), NC);
+	assert_int_equal(v3.nrows, 6);
+	same_rows(v3.rows, &sample[0][0], 6 * NC);
+	assert_int_equal(cli_las_warnings(v3.r), 0);
+	l = cli_las_find(v3.r, 'P', "BS");
+	assert_non_null(l);
+	assert_string_equal(l->unit, "MM");
+	assert_string_equal(l->value, "215.9000");
+	l = cli_las_curve(v3.r, 7);
+	assert_string_equal(l->mnem, "RDEP");
+	assert_string_equal(l->unit, "OHMM");
+	assert_string_equal(l->desc, "DEEP RESISTIVITY {F} | RDEP_TOOL");
+	/* ~Tops_Definition before the data is kept in the header, the two
+	 * sections after it as trailing text */
+	assert_int_equal(cli_las_ntrailer(v3.r), 4);
+	tmp = tmpfile();
+	assert_non_null(tmp);
+	assert_int_equal(
+	    cli_las_write_header(tmp, v3.r, NULL, 0, NULL, err, sizeof err), 0);
+	for (size_t i = 0; i < v3.nrows; i++) {
+		for (size_t j = 0; j < NC; j++) {
+			double v = v3.rows[i * NC + j];
+			fprintf(tmp, "%s%.15g", j ? "," : "",
+			        isnan(v) ? -999.25 : v);
+		}
+		fputc('\n', tmp);
+	}
+	assert_int_equal(cli_las_write_trailer(tmp, v3.r), 0);
+	rewind(tmp);
+	back = read_file(tmp, 2);
+	fclose(tmp);
+	assert_int_equal(back.rc, CLI_LAS_OK);
+	assert_int_equal(back.nrows, 6);
+	same_rows(back.rows, v3.rows, 6 * NC);
+	assert_int_equal(cli_las_ntrailer(back.r), 4);
+	parsed_free(&back);
+	parsed_free(&v3);
+}
+
+/* LAS 3.0 cases: tab and space delimiters, empty fields, text values. */
+static void test_las3_cases(void **state)
+{
+	static const char tab[] = "~V\n VERS. 3.0 : v\n WRAP. NO : w\n"
+	                          " DLM. TAB : d\n" HW HC "~Log_Data\n"
+	                          "10.0\t1\n10.5\t\n11.0\t3\n";
+	static const char comma[] = V3 HW "~Log_Definition\n DEPT.M : d\n"
+	                                  " GR.GAPI : g {F}\n~Log_Data | "
+	                                  "Log_Definition\n10.0, 1\n10.5,2\n";
+	static const char text[] = V3 HW HC "~A\n10.0,SAND\n";
+	static const char core_first[] =
+	    V3 HW "~Core_Definition\n CORT.M : c\n"
+	          "~Core_Data\n 10.1, 3\n" HC "~Log_Data\n10.0,1\n";
+	struct parsed p;
+
+	(void)state;
+	p = feed_all(tab, strlen(tab), 7, 2);
+	assert_int_equal(p.rc, CLI_LAS_OK);
+	assert_int_equal(p.nrows, 3);
+	assert_true(isnan(p.rows[3]) && p.rows[5] == 3);
+	parsed_free(&p);
+	p = feed_all(comma, strlen(comma), 1, 1);
+	assert_int_equal(p.rc, CLI_LAS_OK);
+	assert_int_equal(p.nrows, 2);
+	assert_true(p.rows[3] == 2);
+	assert_string_equal(cli_las_curve(p.r, 1)->desc, "g {F}");
+	parsed_free(&p);
+	p = feed_all(text, strlen(text), 64, 2);
+	assert_int_equal(p.rc, CLI_LAS_ERR);
+	assert_non_null(strstr(cli_las_error(p.r),
+	                       "line 14: value 2 ('SAND') of curve GR is not a "
+	                       "number (text channels are not read)"));
+	parsed_free(&p);
+	p = feed_all(core_first, strlen(core_first), 64, 2);
+	if (p.rc != CLI_LAS_OK)
+		fail_msg("core sections: %s", cli_las_error(p.r));
+	assert_int_equal(p.nrows, 1);
+	parsed_free(&p);
+}
+
+/* CSV: the same data as the LAS sample, and its cases. */
+static void test_csv(void **state)
+{
+	static const struct {
+		const char *text;
+		int ok;
+		size_t rows;
+		const char *msg;
+	} cases[] = {
+	    {"DEPT;GR\nm;gAPI\n1;2\n2;NaN\n", 1, 2, NULL},
+	    {"DEPT (m),GR\n1,2\n", 1, 1, NULL},
+	    {"\"DEPT [m]\",\"G,R\"\n1,\"2\"\n", 1, 1, NULL},
+	    {"DEPT\tGR\n1\t2\n", 1, 1, NULL},
+	    {"DEPT GR\n1 2\n", 1, 1, NULL},
+	    {"# only a comment\n", 0, 0, "line 1: CSV file has no header"},
+	    {"DEPT[M],GR\n", 0, 0,
+	     "line 1: CSV file has a header line but "
+	     "no data rows"},
+	    {"DEPT[M]\n1\n", 0, 0, "line 1: CSV header names 1 column"},
+	    {"DEPT[M],GR\n1,2\n2,abc\n", 0, 0,
+	     "line 3: value 2 ('abc') of "
+	     "curve GR is not a number"},
+	    {"DEPT[M],GR\n1,2,3\n", 0, 0, "line 2: data row has 3 values"},
+	    {"DEPT[M],,GR\n", 0, 0,
+	     "line 1: CSV header: column 2 has no "
+	     "name"},
+	    {"DEPT[M],GR\n1,\"2\n", 0, 0,
+	     "line 2: value 2 has an unclosed "
+	     "quote"},
+	    {"DEPT[M],GR\n-999.25,1\n", 0, 0, "line 2: depth is the NULL"},
+	};
+	struct parsed p;
+	size_t len;
+	char *text;
+
+	(void)state;
+	text = slurp("palvorin_7.csv", &len);
+	p = feed_mode(text, len, len, 4, 1, 1);
+	if (p.rc != CLI_LAS_OK)
+		fail_msg("csv: %s", cli_las_error(p.r));
+	assert_int_equal(cli_las_version(p.r), 0);
+	assert_int_equal(cli_las_ncurves(p.r), NC);
+	assert_int_equal(p.nrows, 6);
+	same_rows(p.rows, &sample[0][0], 6 * NC);
+	assert_string_equal(cli_las_curve(p.r, 3)->mnem, "RHOB");
+	assert_string_equal(cli_las_curve(p.r, 3)->unit, "K/M3");
+	assert_true(cli_las_first_depth(p.r) == 1500.0);
+	assert_true(cli_las_last_depth(p.r) == 1502.5);
+	assert_true(cli_las_data_step(p.r) == 0.5);
+	assert_int_equal(cli_las_bytes(p.r), len);
+	parsed_free(&p);
+	p = feed_mode(text, len, 1, 1, 1, 1);
+	assert_int_equal(p.rc, CLI_LAS_OK);
+	same_rows(p.rows, &sample[0][0], 6 * NC);
+	parsed_free(&p);
+	free(text);
+	for (size_t i = 0; i < sizeof cases / sizeof *cases; i++) {
+		for (size_t chunk = 1; chunk < 100; chunk += 98) {
+			p = feed_mode(cases[i].text, strlen(cases[i].text),
+			              chunk, 2, 1, 0);
+			if (cases[i].ok && p.rc != CLI_LAS_OK)
+				fail_msg("csv case %zu: %s", i,
+				         cli_las_error(p.r));
+			if (!cases[i].ok &&
+			    (p.rc != CLI_LAS_ERR ||
+			     !strstr(cli_las_error(p.r), cases[i].msg)))
+				fail_msg("csv case %zu: got '%s', want '%s'", i,
+				         cli_las_error(p.r), cases[i].msg);
+			if (cases[i].ok)
+				assert_int_equal(p.nrows, cases[i].rows);
+			parsed_free(&p);
+		}
+	}
+	p = feed_mode(cases[0].text, strlen(cases[0].text), 99, 2, 1, 0);
+	assert_string_equal(cli_las_curve(p.r, 0)->unit, "m");
+	assert_string_equal(cli_las_curve(p.r, 1)->unit, "gAPI");
+	assert_true(isnan(p.rows[3]));
+	parsed_free(&p);
+	p = feed_mode(cases[1].text, strlen(cases[1].text), 99, 2, 1, 0);
+	assert_string_equal(cli_las_curve(p.r, 0)->unit, "m");
+	parsed_free(&p);
+	p = feed_mode(cases[2].text, strlen(cases[2].text), 99, 2, 1, 0);
+	/* no blank, '.' or ':' in a LAS mnemonic */
+	assert_string_equal(cli_las_curve(p.r, 0)->mnem, "DEPT");
+	assert_string_equal(cli_las_curve(p.r, 1)->mnem, "G,R");
+	parsed_free(&p);
+}
+
+/* The depth order check: repeats and reversals refused, naming the
+ * line; a file logged upwards (negative STEP) is in order. */
+static void test_order(void **state)
+{
+	static const char dup[] = HV HW HC "~A\n10.0 1\n10.5 2\n10.5 3\n";
+	static const char rev[] = HV HW HC "~A\n10.0 1\n10.5 2\n10.2 3\n";
+	static const char up[] = HV "~W\n STRT.M 11.0 : s\n STOP.M 10.0 : e\n"
+	                            " STEP.M -0.5 : d\n NULL. -999.25 : n\n" HC
+	                            "~A\n11.0 1\n10.5 2\n10.0 3\n";
+	static const char csv_rev[] = "DEPT,GR\n3,1\n2,1\n2.5,1\n";
+	struct parsed p;
+
+	(void)state;
+	p = feed_mode(dup, strlen(dup), 5, 2, 0, 1);
+	assert_int_equal(p.rc, CLI_LAS_ERR);
+	assert_non_null(strstr(cli_las_error(p.r),
+	                       "line 15: depth 10.5 repeats the previous"));
+	parsed_free(&p);
+	p = feed_mode(rev, strlen(rev), 5, 2, 0, 1);
+	assert_int_equal(p.rc, CLI_LAS_ERR);
+	assert_non_null(strstr(cli_las_error(p.r),
+	                       "line 15: depth 10.2 after 10.5: depths must "
+	                       "keep increasing"));
+	parsed_free(&p);
+	p = feed_mode(rev, strlen(rev), 5, 2, 0, 0);
+	assert_int_equal(p.rc, CLI_LAS_OK); /* the check is off */
+	assert_true(cli_las_data_step(p.r) == 0);
+	parsed_free(&p);
+	p = feed_mode(up, strlen(up), 5, 2, 0, 1);
+	assert_int_equal(p.rc, CLI_LAS_OK);
+	assert_int_equal(p.nrows, 3);
+	assert_true(cli_las_data_step(p.r) == -0.5);
+	parsed_free(&p);
+	p = feed_mode(csv_rev, strlen(csv_rev), 5, 2, 1, 1);
+	assert_int_equal(p.rc, CLI_LAS_ERR);
+	assert_non_null(strstr(cli_las_error(p.r), "line 4: depth 2.5 after 2: "
+	                                           "depths must keep "
+	                                           "decreasing"));
+	parsed_free(&p);
+}
+
+/* STRT, STOP and STEP replaced in fixed width, then patched in place. */
+static void test_header_patch(void **state)
+{
+	static const char text[] = HV HW HC "~A\n10.0 1\n10.5 2\n";
+	cli_las_wopts o = {"10.0", "0", "0.5", 20, 0, 0, 0};
+	struct parsed p, back;
+	FILE *tmp = tmpfile();
+	char err[128];
+
+	(void)state;
+	assert_non_null(tmp);
+	p = feed_all(text, strlen(text), 64, 4);
+	assert_int_equal(p.rc, CLI_LAS_OK);
+	assert_int_equal(cli_las_write_header_opts(tmp, p.r, NULL, 0, NULL, &o,
+	                                           err, sizeof err),
+	                 0);
+	assert_true(o.strt_at > 0 && o.stop_at > o.strt_at &&
+	            o.step_at > o.stop_at);
+	fprintf(tmp, "10.0 1\n10.5 2\n");
+	fseek(tmp, o.stop_at, SEEK_SET);
+	fprintf(tmp, "%-20s", "10.5");
+	rewind(tmp);
+	back = read_file(tmp, 4);
+	fclose(tmp);
+	assert_int_equal(back.rc, CLI_LAS_OK);
+	assert_string_equal(cli_las_find(back.r, 'W', "STOP")->value, "10.5");
+	assert_int_equal(cli_las_warnings(back.r), 0);
+	parsed_free(&back);
+	parsed_free(&p);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -604,6 +878,11 @@ int main(void)
 	    cmocka_unit_test(test_malformed),
 	    cmocka_unit_test(test_limits_and_warnings),
 	    cmocka_unit_test(test_garbage),
+	    cmocka_unit_test(test_las3),
+	    cmocka_unit_test(test_las3_cases),
+	    cmocka_unit_test(test_csv),
+	    cmocka_unit_test(test_order),
+	    cmocka_unit_test(test_header_patch),
 	};
 
 	gsl_set_error_handler_off();

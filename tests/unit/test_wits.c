@@ -1,7 +1,9 @@
 /* Unit tests of the WITS level 0 push parser (client/wits.c): an invented
  * recorded stream gives the same records however it is split, malformed
- * records are skipped and counted, and CR LF and LF line ends read the
- * same. */
+ * records are skipped and counted, every record begun is counted exactly
+ * once, text items are delivered marked as text, records that run
+ * together are told apart, and CR LF and LF line ends read the same. */
+#include <math.h>
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
@@ -81,35 +83,46 @@ static const struct {
 	size_t n;
 	cli_wits_item it[4];
 } want[] = {
-    {4, {{108, 1500.25}, {110, 1498.75}, {113, -23.5}, {121, 1200.0}}},
-    {2, {{108, 1501.0}, {110, 1499.5}}},
-    {1, {{1201, 0.5}}},
-    {2, {{201, 7.0}, {202, 8.0}}},
+    {4,
+     {{108, 1500.25, 0}, {110, 1498.75, 0}, {113, -23.5, 0}, {121, 1200.0, 0}}},
+    {1, {{108, NAN, 1}}}, /* abc */
+    {2, {{108, 1501.0, 0}, {110, 1499.5, 0}}},
+    {2, {{1201, 0.5, 0}, {1202, NAN, 1}}},
+    {2, {{201, 7.0, 0}, {202, 8.0, 0}}},
 };
+#define NWANT (sizeof want / sizeof want[0])
 
 static void check_stats(const cli_wits_stats *s)
 {
-	assert_int_equal(s->records, 4);
+	assert_int_equal(s->records, 5);
 	assert_int_equal(s->items, 9);
 	assert_int_equal(s->bad_records, 2); /* 01X8, long */
 	assert_int_equal(s->unterminated, 1);
-	assert_int_equal(s->empty, 2); /* blank, and abc's text-only record */
+	assert_int_equal(s->run_together, 0);
+	assert_int_equal(s->empty, 1);      /* the blank one */
 	assert_int_equal(s->bad_lines, 1);  /* 01X8 */
 	assert_int_equal(s->text_items, 2); /* abc, nan */
 	assert_int_equal(s->long_lines, 1);
 	assert_int_equal(s->garbage, 2); /* HELLO RIG, stray !! */
+	/* every record begun is counted once */
+	assert_int_equal(s->begun, s->records + s->bad_records +
+	                               s->unterminated + s->empty);
 }
 
 static void check_got(const struct got *g)
 {
 	size_t r, i;
 
-	assert_int_equal(g->nrec, 4);
-	for (r = 0; r < 4; r++) {
+	assert_int_equal(g->nrec, NWANT);
+	for (r = 0; r < NWANT; r++) {
 		assert_int_equal(g->len[r], want[r].n);
 		for (i = 0; i < want[r].n; i++) {
-			assert_int_equal(g->it[r][i].code, want[r].it[i].code);
-			assert_true(g->it[r][i].value == want[r].it[i].value);
+			const cli_wits_item *a = &g->it[r][i],
+			                    *b = &want[r].it[i];
+			assert_int_equal(a->code, b->code);
+			assert_int_equal(a->text, b->text);
+			assert_true(b->text ? isnan(a->value)
+			                    : a->value == b->value);
 		}
 	}
 }
@@ -121,8 +134,12 @@ static void same_got(const struct got *a, const struct got *b)
 	assert_int_equal(a->nrec, b->nrec);
 	for (r = 0; r < a->nrec; r++) {
 		assert_int_equal(a->len[r], b->len[r]);
-		assert_memory_equal(a->it[r], b->it[r],
-		                    a->len[r] * sizeof a->it[r][0]);
+		for (size_t i = 0; i < a->len[r]; i++) {
+			assert_int_equal(a->it[r][i].code, b->it[r][i].code);
+			assert_int_equal(a->it[r][i].text, b->it[r][i].text);
+			assert_true(a->it[r][i].text ||
+			            a->it[r][i].value == b->it[r][i].value);
+		}
 	}
 }
 
@@ -228,6 +245,33 @@ static void test_noise(void **state)
 	assert_true(g.it[0][0].value == 42.0);
 }
 
+/* Records that run together: a record cut after its depth and the next
+ * record's items following; a record cut by a new "&&". Each is counted
+ * once and no depth disappears uncounted. */
+static void test_run_together(void **state)
+{
+	static const char cut[] = "&&\n0108 1000\n0108 1000.5\n0113 95\n!!\n"
+	                          "&&\n0108 1001\n&&\n0108 1001.5\n!!\n"
+	                          "&&\n0108 1002\n0113 96\n0113 97\n!!\n";
+	static struct got g;
+	cli_wits_stats s;
+
+	(void)state;
+	run(cut, sizeof cut - 1, 7, &g, &s);
+	assert_int_equal(g.nrec, 3);
+	assert_true(g.it[0][0].value == 1000.5 && g.len[0] == 2);
+	assert_true(g.it[1][0].value == 1001.5 && g.len[1] == 1);
+	/* the last record: 0113 twice; the second part holds 0113 97 */
+	assert_true(g.len[2] == 1 && g.it[2][0].code == 113 &&
+	            g.it[2][0].value == 97);
+	assert_int_equal(s.begun, 6);
+	assert_int_equal(s.records, 3);
+	assert_int_equal(s.unterminated, 3);
+	assert_int_equal(s.run_together, 2);
+	assert_int_equal(s.begun,
+	                 s.records + s.bad_records + s.unterminated + s.empty);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -235,6 +279,7 @@ int main(void)
 	    cmocka_unit_test(test_bytewise),
 	    cmocka_unit_test(test_crlf),
 	    cmocka_unit_test(test_noise),
+	    cmocka_unit_test(test_run_together),
 	};
 
 	gsl_set_error_handler_off();

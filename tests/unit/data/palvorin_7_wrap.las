@@ -2,37 +2,40 @@
  VERS.                  2.0 : CWLS LOG ASCII STANDARD - VERSION 2.0
  WRAP.                  YES : MULTIPLE LINES PER DEPTH STEP
 ~WELL INFORMATION BLOCK
+# Every header value here is invented for the parser tests (well, field,
+# companies, API codes, parameters); none is from a real well or from the
+# LAS 2.0 standard's sample header.
 #MNEM.UNIT      DATA TYPE           INFORMATION
 #---------    -------------------   -------------------------------
  STRT.M                 1500.0000 : START DEPTH
  STOP.M                 1502.5000 : STOP DEPTH
  STEP.M                    0.5000 : STEP
  NULL.                  -999.2500 : NULL VALUE
- COMP.           HARROWGATE ENERGY : COMPANY
- WELL.             KESTREL RIDGE 7 : WELL
- FLD .                     ASHVALE : FIELD
- LOC .        12-34-056-07W9 (INV) : LOCATION
- PROV.                   NORTHMARK : PROVINCE
- SRVC.        FENWICK WIRELINE LTD : SERVICE COMPANY
+ COMP.  BREVANNIC ENERGY (INVENTED) : COMPANY
+ WELL.                  PALVORIN 7 : WELL
+ FLD .                   QUELLODIN : FIELD
+ LOC .      DEMO SITE B (INVENTED) : LOCATION
+ PROV.                    INVENTED : PROVINCE
+ SRVC.  TARRASENT WIRELINE (INV.) : SERVICE COMPANY
  DATE.                  13-MAR-2024 : LOG DATE
- UWI .            100123405607W900 : UNIQUE WELL ID
+ UWI .                    INV-0007 : UNIQUE WELL ID
 ~CURVE INFORMATION
 #MNEM.UNIT      API CODE            CURVE DESCRIPTION
 #---------    -------------------   -------------------------------
  DEPT.M                             : 1  DEPTH
- GR  .GAPI       45 310 01 00       : 2  GAMMA RAY
- DT  .US/M       60 520 32 00       : 3  SONIC TRANSIT TIME
- RHOB.K/M3       45 350 01 00       : 4  BULK DENSITY
- NPHI.V/V        42 890 00 00       : 5  NEUTRON POROSITY
- PEF .B/E        45 358 01 00       : 6  PHOTOELECTRIC FACTOR
- CALI.MM         45 280 01 00       : 7  CALIPER
- RDEP.OHMM       07 120 44 00       : 8  DEEP RESISTIVITY
+ GR  .GAPI       01 101 01 01       : 2  GAMMA RAY
+ DT  .US/M       02 202 02 02       : 3  SONIC TRANSIT TIME
+ RHOB.K/M3       03 303 03 03       : 4  BULK DENSITY
+ NPHI.V/V        04 404 04 04       : 5  NEUTRON POROSITY
+ PEF .B/E        05 505 05 05       : 6  PHOTOELECTRIC FACTOR
+ CALI.MM         06 606 06 06       : 7  CALIPER
+ RDEP.OHMM       07 707 07 07       : 8  DEEP RESISTIVITY
 ~PARAMETER INFORMATION
 #MNEM.UNIT        VALUE             DESCRIPTION
 #---------    -------------------   -------------------------------
  BHT .DEGC                 71.5000 : BOTTOM HOLE TEMPERATURE
  MDEN.K/M3               2650.0000 : MATRIX DENSITY
- RMF .OHMM                  0.2160 : MUD FILTRATE RESISTIVITY
+ RMF .OHMM                  0.3125 : MUD FILTRATE RESISTIVITY
 ~OTHER
  Invented demonstration data for parser tests.
  Values are not from any real well.

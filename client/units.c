@@ -390,6 +390,11 @@ const char *cli__param_kind(const cJSON *discover, const char *path)
 			    cJSON_GetObjectItemCaseSensitive(p, "name");
 			const cJSON *k =
 			    cJSON_GetObjectItemCaseSensitive(p, "x-unit-kind");
+			if (!k) /* the daemon puts it in the param's schema */
+				k = cJSON_GetObjectItemCaseSensitive(
+				    cJSON_GetObjectItemCaseSensitive(p,
+				                                     "schema"),
+				    "x-kind");
 			if (cJSON_IsString(nm) && cJSON_IsString(k) &&
 			    strcmp(nm->valuestring, path) == 0)
 				return k->valuestring;

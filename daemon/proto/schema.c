@@ -123,7 +123,12 @@ static cJSON *field_schema(const proto_field *f, cJSON *components)
 			    number_schema(f, f->flags & PF_NULLS));
 			cJSON_AddItemToArray(one, arr);
 		}
-		cJSON_AddStringToObject(s, "x-kind", proto_kind_name(f->kind));
+		/* fractions (porosity, saturations) are a kind of their own
+		 * for clients: they may arrive as percent in a log file */
+		cJSON_AddStringToObject(s, "x-kind",
+		                        f->flags & PF_FRACTION
+		                            ? "fraction"
+		                            : proto_kind_name(f->kind));
 		if (f->kind != PK_NONE)
 			cJSON_AddStringToObject(s, "x-unit",
 			                        proto_unit_name(&u, f->kind));

@@ -265,7 +265,7 @@ static int mode_chain(int argc, char **argv)
 		return 1;
 	}
 	memset(&s, 0, sizeof s);
-	s.well = "OSPREY FLATS 3";
+	s.well = "ORRIMUND 3";
 	s.notes = notes;
 	s.n_notes = sizeof notes / sizeof notes[0];
 	s.dt_s = ax.dt_s;

@@ -16,7 +16,7 @@ Checks and their references:
   - samples: equal to the written values rounded to IEEE single
     (numpy.float32), nulls as the null value;
   - a refused description writes no file;
-  - end to end from the demo LAS (demo-requests/well-osprey-flats-3.las):
+  - end to end from the demo LAS (demo-requests/orrimund-3.las):
     the chain in the core written by the client's writer, read by
     segyio, equals the numpy re-implementation of the chain in
     test_seismic_numpy.py run on the LAS parsed here independently of the
@@ -190,9 +190,9 @@ def read_las(path):
 
 
 def test_chain():
-    las = os.path.join(SRC, "demo-requests", "well-osprey-flats-3.las")
+    las = os.path.join(SRC, "demo-requests", "orrimund-3.las")
     tmp = tempfile.mkdtemp(prefix="rw_segy_")
-    path = os.path.join(tmp, "osprey_gather.sgy")
+    path = os.path.join(tmp, "orrimund_gather.sgy")
     rc, out, err = dump(["chain", las, path])
     check(rc == 0, "chain mode: " + err)
     if rc != 0:

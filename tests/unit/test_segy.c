@@ -27,7 +27,7 @@ static cli_segy_spec spec(void)
 	cli_segy_spec s;
 
 	memset(&s, 0, sizeof s);
-	s.well = "OSPREY FLATS 3";
+	s.well = "ORRIMUND 3";
 	s.notes = notes;
 	s.n_notes = 2;
 	s.dt_s = 0.002;
@@ -109,7 +109,7 @@ static void test_text_header(void **state)
 	}
 	line_of(t, 1, line);
 	assert_non_null(strstr(line, "NOT RECORDED DATA"));
-	assert_non_null(strstr(all, "WELL: OSPREY FLATS 3"));
+	assert_non_null(strstr(all, "WELL: ORRIMUND 3"));
 	assert_non_null(strstr(all, "SAMPLE INTERVAL 2 MS, 5 SAMPLES PER "
 	                            "TRACE, FIRST AT 1200 MS"));
 	assert_non_null(strstr(all, "INCIDENCE ANGLE IN DEGREES X 1"));

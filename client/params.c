@@ -87,6 +87,9 @@ static int set_with_unit(const char *who, cJSON *params, const char *arg,
 
 	if (!eq || (size_t)(eq - arg) >= sizeof name)
 		return 0;
+	/* units.KIND=UNIT names a unit ("1/ft"), it carries no value */
+	if (strncmp(arg, "units.", 6) == 0)
+		return 0;
 	probe = cJSON_ParseWithOpts(eq + 1, NULL, 1);
 	if (probe) {
 		cJSON_Delete(probe);

@@ -23,7 +23,9 @@
 /* ---- units -------------------------------------------------------------- */
 /* Quantity kinds. Internal (canonical) units are those the core expects:
  * m/s, s/m, kg/m^3, Pa, MPa (pressure), degC, m, kg/(m^2 s), weight
- * fraction (salinity), L/L (gas-oil ratio), radian. */
+ * fraction (salinity), L/L (gas-oil ratio), radian, kg/m^3 (an
+ * equivalent mud weight), s, Hz, 1/m, strain as a fraction, Pa kg/m^3
+ * (lambda-rho, mu-rho). */
 typedef enum proto_kind {
 	PK_NONE = 0, /* dimensionless: fractions, ratios, counts */
 	PK_VELOCITY,
@@ -39,6 +41,12 @@ typedef enum proto_kind {
 	PK_ANGLE,
 	PK_GRADIENT_P, /* pressure per length (MPa/m internally) */
 	PK_GRADIENT_T, /* temperature per length (degC/m internally) */
+	PK_MUD_WEIGHT, /* a pressure as the density of a mud column */
+	PK_TIME,
+	PK_FREQUENCY,
+	PK_INV_LENGTH,
+	PK_STRAIN,
+	PK_MODULUS_DENSITY, /* lambda-rho, mu-rho */
 	PK_COUNT
 } proto_kind;
 
@@ -63,6 +71,7 @@ void proto_units_list(proto_kind k, char *buf, size_t size);
  * and offset (internal = v * scale + offset) of unit i. */
 size_t proto_units_count(proto_kind k);
 const char *proto_units_name_at(proto_kind k, size_t i);
+const char *proto_units_alias_at(proto_kind k, size_t i);
 void proto_units_factor_at(proto_kind k, size_t i, double *scale,
                            double *offset);
 

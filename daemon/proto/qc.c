@@ -130,6 +130,65 @@ const proto_qc_info proto_qc_legend[] = {
      "porosity below 0.05: Gassmann's substitution is ill-conditioned "
      "(errors in the mineral modulus and logs are amplified roughly as "
      "1/porosity; common practice)"},
+    {QC_MODEL_RANGE, "model_outside_range", QC_RANGE,
+     "a rock-model input is outside the model's range of validity "
+     "(porosity above critical, aspect ratio, coordination number, "
+     "pressure, a dilute-limit concentration exceeded; rockmodels.md "
+     "lists each range and its source); the value is computed"},
+    {QC_MODEL_BOUND, "model_above_bound", QC_IMPLAUSIBLE,
+     "the model's dry frame is stiffer than the Hashin-Shtrikman upper "
+     "bound of mineral and empty pores: the model is used where it does "
+     "not hold; the value is kept so the break is visible"},
+    {QC_NOT_CONVERGED, "not_converged", QC_IMPOSSIBLE,
+     "an iteration (self-consistent, DEM, inversion) did not converge; "
+     "outputs are null"},
+    {QC_NO_SHEAR, "no_shear_rigidity", QC_INPUT,
+     "the frame has no shear rigidity (vs = 0, a suspension): vp/vs and "
+     "Poisson's ratio are null"},
+    {QC_INV_NONUNIQUE, "inversion_nonunique", QC_RANGE,
+     "the observations do not fix the answer: a range of saturations "
+     "(typically any gas saturation from a few percent up) fits as well "
+     "within the uncertainty; see the returned range"},
+    {QC_INV_BOUND, "inversion_on_bound", QC_RANGE,
+     "an estimate lies on a bound of its search range (porosity, "
+     "saturation or clay)"},
+    {QC_INV_OUTSIDE, "inversion_outside_model", QC_RANGE,
+     "the observation lies outside what the model produces over the "
+     "search ranges: the estimate is the closest the model comes"},
+    {QC_INV_MULTIPLE, "inversion_multiple", QC_RANGE,
+     "two separate solutions fit the observations; the second is "
+     "returned beside the first"},
+    {QC_SEIS_FILLED, "log_filled", QC_PREDICTED,
+     "a log value here was not measured: a null sonic bridged by "
+     "interpolation, the last value held below the log, or the "
+     "replacement velocity above it"},
+    {QC_SEIS_NULL_NEAR, "null_within_wavelet", QC_INPUT,
+     "a null interface lies within the wavelet's reach of this trace "
+     "sample: its amplitude misses that interface (null, or kept when "
+     "asked)"},
+    {QC_SEIS_OUTSIDE, "outside_log", QC_INPUT,
+     "the sample lies outside the log or the curve's range: null"},
+    {QC_SEIS_FIT, "fit_poor", QC_RANGE,
+     "the AVO fit has no degrees of freedom (no uncertainty) or is "
+     "nearly singular over the angles used"},
+    {QC_PRES_CAUTION, "pressure_screening_only", QC_INPUT,
+     "a pressure or stress estimate: a screening estimate only, never the "
+     "sole basis for mud-weight, casing or well-control decisions "
+     "(pressure.md says what each method cannot see)"},
+    {QC_PRES_EXTRAPOLATED, "pressure_extrapolated", QC_RANGE,
+     "the estimate leans on an extrapolation: a compaction trend beyond "
+     "the depths it was fitted on, the shallow-density law above the "
+     "first density sample, or a relation outside its data"},
+    {QC_PRES_NOT_SHALE, "not_shale", QC_RANGE,
+     "the sample is not in the shale the method needs (Eaton and Bowers "
+     "read shale compaction): the value is outside its basis"},
+    {QC_PRES_INCONSISTENT, "pressure_inconsistent", QC_IMPLAUSIBLE,
+     "the estimate contradicts its frame: pore pressure above the "
+     "overburden or below hydrostatic, or a fracture gradient outside "
+     "pore pressure and overburden; reported, not clipped"},
+    {QC_STRENGTH_RANGE, "strength_extrapolated", QC_RANGE,
+     "a strength correlation used outside its lithology or calibration "
+     "range (pressure.md names each one's source and range)"},
     {0, NULL, QC_INPUT, NULL},
 };
 

@@ -47,5 +47,25 @@
 #define QC_SUBST_CAUTION QC_BIT(31) /* Gassmann or fluid caution */
 /* Well logs, continued (32-35). */
 #define QC_BIT_SIZE_RANGE QC_BIT(32) /* bit size implausible */
+/* Rock models, templates and inversion (36-43). */
+#define QC_MODEL_RANGE   QC_BIT(36) /* input outside model validity */
+#define QC_MODEL_BOUND   QC_BIT(37) /* frame above the HS bound */
+#define QC_NOT_CONVERGED QC_BIT(38) /* an iteration did not converge */
+#define QC_NO_SHEAR      QC_BIT(39) /* no shear rigidity (vs = 0) */
+#define QC_INV_NONUNIQUE QC_BIT(40) /* the data do not fix the answer */
+#define QC_INV_BOUND     QC_BIT(41) /* the estimate lies on a bound */
+#define QC_INV_OUTSIDE   QC_BIT(42) /* observation outside the model */
+#define QC_INV_MULTIPLE  QC_BIT(43) /* two separate solutions fit */
+/* Seismic modelling (44-47). */
+#define QC_SEIS_FILLED    QC_BIT(44) /* log value bridged or held */
+#define QC_SEIS_NULL_NEAR QC_BIT(45) /* null interface within reach */
+#define QC_SEIS_OUTSIDE   QC_BIT(46) /* outside the log or the axis */
+#define QC_SEIS_FIT       QC_BIT(47) /* AVO fit poorly determined */
+/* Pressures and stresses (48-52). */
+#define QC_PRES_CAUTION      QC_BIT(48) /* every answer of the family */
+#define QC_PRES_EXTRAPOLATED QC_BIT(49) /* trend or law beyond its data */
+#define QC_PRES_NOT_SHALE    QC_BIT(50) /* not the shale it needs */
+#define QC_PRES_INCONSISTENT QC_BIT(51) /* e.g. pp above overburden */
+#define QC_STRENGTH_RANGE    QC_BIT(52) /* correlation outside its range */
 
 #endif

@@ -416,5 +416,36 @@ cJSON *proto__openrpc(void)
 		schemas = cJSON_AddObjectToObject(comps, "schemas");
 	for (size_t i = 0; (m = proto_method_at(i)); i++)
 		cJSON_AddItemToArray(methods, method_doc(m, schemas));
+	/* the accepted units, from the one table in units.c */
+	{
+		cJSON *u = cJSON_CreateObject(), *props;
+		cJSON_AddStringToObject(
+		    u, "description",
+		    "Overrides the unit of a quantity kind for "
+		    "this request (inputs and outputs).");
+		cJSON_AddStringToObject(u, "type", "object");
+		cJSON_AddBoolToObject(u, "additionalProperties", 0);
+		props = cJSON_AddObjectToObject(u, "properties");
+		for (int k = 1; k < PK_COUNT; k++) {
+			cJSON *e = cJSON_CreateObject();
+			cJSON *list = cJSON_AddArrayToObject(e, "enum");
+			for (size_t j = 0; j < proto_units_count((proto_kind)k);
+			     j++) {
+				const char *alias =
+				    proto_units_alias_at((proto_kind)k, j);
+				cJSON_AddItemToArray(
+				    list,
+				    cJSON_CreateString(
+				        proto_units_name_at((proto_kind)k, j)));
+				if (alias)
+					cJSON_AddItemToArray(
+					    list, cJSON_CreateString(alias));
+			}
+			cJSON_AddItemToObject(
+			    props, proto_kind_name((proto_kind)k), e);
+		}
+		cJSON_DeleteItemFromObjectCaseSensitive(schemas, "unitsIn");
+		cJSON_AddItemToObject(schemas, "unitsIn", u);
+	}
 	return doc;
 }

@@ -43,7 +43,11 @@ static const unit_def u_temperature[] = {
     {"degC", NULL, 1, 0},
     {"degF", NULL, 5.0 / 9.0, -32.0 * 5.0 / 9.0},
     {"K", NULL, 1, -273.15}};
-static const unit_def u_length[] = {{"m", NULL, 1, 0}, {"ft", NULL, FT, 0}};
+static const unit_def u_length[] = {{"m", NULL, 1, 0},
+                                    {"ft", NULL, FT, 0},
+                                    {"in", NULL, FT / 12, 0},
+                                    {"cm", NULL, 0.01, 0},
+                                    {"mm", NULL, 0.001, 0}};
 static const unit_def u_impedance[] = {{"m/s*g/cm3", NULL, 1000, 0},
                                        {"kg/m2s", NULL, 1, 0},
                                        {"ft/s*g/cm3", NULL, FT * 1000, 0}};
@@ -60,6 +64,23 @@ static const unit_def u_grad_t[] = {
     {"degC/km", NULL, 1e-3, 0},
     {"degC/m", NULL, 1, 0},
     {"degF/100ft", NULL, 5.0 / 9.0 / (100 * FT), 0}};
+
+/* 1 lb/gal (US) = 0.45359237 kg / 3.785411784 L (both exact by
+ * definition) = 119.826427... kg/m^3. */
+#define LB_PER_GAL (0.45359237 / 3.785411784e-3)
+static const unit_def u_mud_weight[] = {{"g/cm3", "sg", 1000, 0},
+                                        {"lb/gal", "ppg", LB_PER_GAL, 0},
+                                        {"kg/m3", NULL, 1, 0}};
+static const unit_def u_time[] = {
+    {"ms", NULL, 1e-3, 0}, {"s", NULL, 1, 0}, {"us", NULL, 1e-6, 0}};
+static const unit_def u_frequency[] = {{"Hz", NULL, 1, 0},
+                                       {"kHz", NULL, 1e3, 0}};
+static const unit_def u_inv_length[] = {
+    {"1/m", NULL, 1, 0}, {"1/km", NULL, 1e-3, 0}, {"1/ft", NULL, 1 / FT, 0}};
+static const unit_def u_strain[] = {{"fraction", NULL, 1, 0},
+                                    {"microstrain", NULL, 1e-6, 0}};
+static const unit_def u_moddens[] = {{"GPa*g/cm3", NULL, 1e12, 0},
+                                     {"Pa*kg/m3", NULL, 1, 0}};
 
 #define KIND(n, a)                                                             \
 	{                                                                      \
@@ -80,6 +101,12 @@ static const kind_def kinds[PK_COUNT] = {
     [PK_ANGLE] = KIND("angle", u_angle),
     [PK_GRADIENT_P] = KIND("pressure_gradient", u_grad_p),
     [PK_GRADIENT_T] = KIND("temperature_gradient", u_grad_t),
+    [PK_MUD_WEIGHT] = KIND("mud_weight", u_mud_weight),
+    [PK_TIME] = KIND("time", u_time),
+    [PK_FREQUENCY] = KIND("frequency", u_frequency),
+    [PK_INV_LENGTH] = KIND("inverse_length", u_inv_length),
+    [PK_STRAIN] = KIND("strain", u_strain),
+    [PK_MODULUS_DENSITY] = KIND("modulus_density", u_moddens),
 };
 
 const char *proto_kind_name(proto_kind k)
@@ -205,6 +232,12 @@ const char *proto_units_name_at(proto_kind k, size_t i)
 {
 	assert(i < proto_units_count(k));
 	return kinds[k].units[i].name;
+}
+
+const char *proto_units_alias_at(proto_kind k, size_t i)
+{
+	assert(i < proto_units_count(k));
+	return kinds[k].units[i].alias;
 }
 
 void proto_units_factor_at(proto_kind k, size_t i, double *scale,

@@ -81,6 +81,15 @@ static void type_text(const cJSON *doc, const cJSON *node, char *buf,
 	size_t used = 0;
 
 	buf[0] = '\0';
+	{
+		const cJSON *r = cJSON_GetObjectItemCaseSensitive(node, "$ref");
+		const char *tail =
+		    cJSON_IsString(r) ? strrchr(r->valuestring, '/') : NULL;
+		if (tail && strcmp(tail, "/distribution") == 0) {
+			snprintf(buf, size, "a distribution");
+			return;
+		}
+	}
 	node = cli__schema_deref(doc, node);
 	if (!node || depth > 4)
 		return;
@@ -265,6 +274,26 @@ static void print_method_help(FILE *f, const cJSON *doc, const cJSON *m)
 			    extra + used, sizeof extra - used, "%sdefault %s",
 			    used ? ", " : "", d ? d : "?");
 			cJSON_free(d);
+		}
+		{
+			/* bounds may sit in the first alternative (a number
+			 * that may also be a distribution, or an array) */
+			const cJSON *rn = node;
+			for (int hop = 0;
+			     hop < 3 && rn &&
+			     !cJSON_GetObjectItem(rn, "minimum") &&
+			     !cJSON_GetObjectItem(rn, "maximum") &&
+			     !cJSON_GetObjectItem(rn, "exclusiveMinimum");
+			     hop++) {
+				const cJSON *alt =
+				    cJSON_GetObjectItem(rn, "anyOf");
+				if (!alt)
+					alt = cJSON_GetObjectItem(rn, "oneOf");
+				rn = alt ? cli__schema_deref(doc, alt->child)
+				         : NULL;
+			}
+			if (rn)
+				node = rn;
 		}
 		number_of(node, "minimum", ">=", extra, sizeof extra, &used);
 		number_of(node, "exclusiveMinimum", ">", extra, sizeof extra,

@@ -73,27 +73,6 @@ static void field_names(const proto_decl *d, char *buf, size_t size)
 	}
 }
 
-int proto_join(proto_call *c, int g, size_t n, int is_array, const char *path)
-{
-	proto_group *gr;
-
-	assert(g >= 0 && g < PROTO_MAX_GROUPS);
-	if (!is_array)
-		return 0;
-	gr = &c->group[g];
-	if (gr->any_array && gr->n != n)
-		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-		                  "array length %zu does not match length %zu "
-		                  "of '%s'",
-		                  n, gr->n, gr->from);
-	if (!gr->any_array) {
-		gr->any_array = 1;
-		gr->n = n;
-		gr->from = path;
-	}
-	return 0;
-}
-
 /* ---- numbers ------------------------------------------------------------ */
 
 /* The bound of f in the call's units, for messages. */
@@ -102,7 +81,7 @@ static double shown(const proto_call *c, const proto_field *f, double v)
 	return proto_from_internal(&c->units, f->kind, v);
 }
 
-static int check_bounds(proto_call *c, const proto_field *f, const char *path,
+int proto__check_bounds(proto_call *c, const proto_field *f, const char *path,
                         const double *v, size_t n, int is_array)
 {
 	int lo = (f->flags & (PF_LO | PF_FRACTION)) != 0;
@@ -140,16 +119,17 @@ static int check_bounds(proto_call *c, const proto_field *f, const char *path,
 		if (lo && hi)
 			return proto_fail(
 			    c, PROTO_INVALID_PARAMS, path,
-			    "%s%.9g %s is outside %s%.9g, %.9g%s", at,
-			    shown(c, f, x), f->kind ? unit : "",
+			    "%s%.9g%s%s is outside %s%.9g, %.9g%s", at,
+			    shown(c, f, x), f->kind ? " " : "",
+			    f->kind ? unit : "",
 			    f->flags & PF_LO_OPEN ? "(" : "[", shown(c, f, l),
 			    shown(c, f, h), f->flags & PF_HI_OPEN ? ")" : "]");
-		return proto_fail(c, PROTO_INVALID_PARAMS, path,
-		                  "%s%.9g %s must be %s %.9g", at,
-		                  shown(c, f, x), f->kind ? unit : "",
-		                  bad_lo ? (f->flags & PF_LO_OPEN ? ">" : ">=")
-		                         : (f->flags & PF_HI_OPEN ? "<" : "<="),
-		                  shown(c, f, bad_lo ? l : h));
+		return proto_fail(
+		    c, PROTO_INVALID_PARAMS, path, "%s%.9g%s%s must be %s %.9g",
+		    at, shown(c, f, x), f->kind ? " " : "", f->kind ? unit : "",
+		    bad_lo ? (f->flags & PF_LO_OPEN ? ">" : ">=")
+		           : (f->flags & PF_HI_OPEN ? "<" : "<="),
+		    shown(c, f, bad_lo ? l : h));
 	}
 	return 0;
 }
@@ -192,11 +172,23 @@ static int parse_nums(proto_call *c, const proto_field *f, const char *path,
 			return proto_fail(
 			    c, PROTO_INVALID_PARAMS, path,
 			    "empty array: give at least one value");
+	} else if (cJSON_IsObject(v) &&
+	           cJSON_GetObjectItemCaseSensitive(v, "dist")) {
+		if (f->flags & PF_ARRAY || !c->method ||
+		    (c->method->flags & PM_NO_UNCERTAINTY) ||
+		    !c->method->kernel)
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, path,
+			    "cannot be given as a distribution "
+			    "here: uncertainty runs the per-sample "
+			    "kernels of a method over draws");
+		return proto__dist_parse(c, f, path, v, out);
 	} else {
 		return proto_fail(
-		    c, PROTO_INVALID_PARAMS, path, "must be %s, not %s",
+		    c, PROTO_INVALID_PARAMS, path, "must be %s%s, not %s",
 		    f->flags & PF_SCALAR ? "a number"
 		                         : "a number or an array of numbers",
+		    f->flags & PF_NULLS ? " (null: missing)" : "",
 		    type_name(v));
 	}
 	buf = proto_alloc_doubles(c, n);
@@ -235,7 +227,7 @@ static int parse_nums(proto_call *c, const proto_field *f, const char *path,
 	}
 	for (i = 0; i < n; i++)
 		buf[i] = proto_to_internal(&c->units, f->kind, buf[i]);
-	if (check_bounds(c, f, path, buf, n, cJSON_IsArray(v)))
+	if (proto__check_bounds(c, f, path, buf, n, cJSON_IsArray(v)))
 		return -1;
 	out->v = buf;
 	out->n = n;
@@ -257,7 +249,7 @@ int proto__vec_accept(proto_call *c, const proto_field *f, const char *path,
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
 		                  "the session holds one value, but this "
 		                  "method needs one per sample");
-	if (check_bounds(c, f, path, v, n, is_array))
+	if (proto__check_bounds(c, f, path, v, n, is_array))
 		return -1;
 	out->v = v;
 	out->n = n;

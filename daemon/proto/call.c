@@ -68,6 +68,20 @@ int proto__call_keep_json(proto_call *c, cJSON *tree)
 	return 0;
 }
 
+void proto__arena_adopt(proto_call *c, proto_call *t)
+{
+	while (t->arena) {
+		proto_arena_block *b = t->arena;
+		t->arena = b->next;
+		b->next = c->arena;
+		c->arena = b;
+	}
+	for (size_t i = 0; i < t->n_trees; i++)
+		if (proto__call_keep_json(c, t->trees[i]))
+			c->out->oom = 1;
+	t->n_trees = 0;
+}
+
 void proto__arena_free(proto_call *c)
 {
 	for (size_t i = 0; i < c->n_trees; i++)
@@ -144,6 +158,27 @@ void proto_warn(proto_call *c, const char *param, const char *fmt, ...)
 		return;
 	c->warnings = list;
 	c->n_warnings++;
+}
+
+int proto_join(proto_call *c, int g, size_t n, int is_array, const char *path)
+{
+	proto_group *gr;
+
+	assert(g >= 0 && g < PROTO_MAX_GROUPS);
+	if (!is_array)
+		return 0;
+	gr = &c->group[g];
+	if (gr->any_array && gr->n != n)
+		return proto_fail(c, PROTO_INVALID_PARAMS, path,
+		                  "array length %zu does not match length %zu "
+		                  "of '%s'",
+		                  n, gr->n, gr->from);
+	if (!gr->any_array) {
+		gr->any_array = 1;
+		gr->n = n;
+		gr->from = path;
+	}
+	return 0;
 }
 
 int proto_check_size(proto_call *c, size_t samples, size_t work)

@@ -47,8 +47,8 @@ static int parse_fields(proto_call *c)
 	for (const proto_output *o = m->outputs; o->name; o++)
 		if (nsel < 128 && selectable(o))
 			names[nsel++] = o->name;
-	list = proto_alloc(c, ((size_t)cJSON_GetArraySize(f) + 128) *
-	                          sizeof *list);
+	size_t cap = (size_t)cJSON_GetArraySize(f) + 256;
+	list = proto_alloc(c, cap * sizeof *list);
 	if (!list)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, "fields",
 		                  "out of memory");
@@ -95,6 +95,13 @@ static int parse_fields(proto_call *c)
 			list[n++] = o->name;
 	list[n++] = "units";
 	list[n++] = "warnings";
+	/* the members uncertainty adds (uncertainty.c) */
+	list[n++] = "uncertainty";
+	list[n++] = "sensitivity";
+	list[n++] = "draws";
+	for (const proto_output *o = m->outputs; o->name; o++)
+		if (o->type == PO_FLAGS && n < cap)
+			list[n++] = proto_path(c, o->name, "_probability", "");
 	c->fields = list;
 	c->n_fields = n;
 	return 0;
@@ -209,51 +216,9 @@ static int run_samples(run *r)
 static void write_grid(proto_call *c, const proto_method *m, const run *r,
                        const proto_output *o, int k)
 {
-	const proto_cells *cs = &m->cells[k];
-	const proto_shape *sh = r->shape;
-	size_t n = sh->n, mm = sh->m[k], sz = cs->row_size;
-	int sarr = sh->arr, carr = sh->m_arr[k];
-	const unsigned char *base = r->cells[k];
-	int flags = o->type == PO_FLAGS;
-	size_t outer = cs->cell_major ? mm : n;
-	size_t inner = cs->cell_major ? n : mm;
-	int outer_arr = cs->cell_major ? carr : sarr;
-	int inner_arr = cs->cell_major ? sarr : carr;
-	/* [sample][cell] storage: steps in bytes along each dimension */
-	size_t s_step = mm * sz, c_step = sz;
-	size_t o_step = cs->cell_major ? c_step : s_step;
-	size_t i_step = cs->cell_major ? s_step : c_step;
-
-	if (outer_arr && inner_arr) {
-		proto_w_arr_begin(c, o->name);
-		for (size_t a = 0; a < outer; a++) {
-			const unsigned char *p = base + a * o_step;
-			if (flags)
-				proto_w_flag_rows(c, NULL, p, i_step, o->offset,
-				                  inner, 1);
-			else
-				proto_w_rows(c, NULL, o->kind, p, i_step,
-				             o->offset, inner, 1);
-		}
-		proto_w_arr_end(c);
-		return;
-	}
-	/* One dimension has one element: a plain vector along the other. */
-	if (outer_arr || !inner_arr) {
-		if (flags)
-			proto_w_flag_rows(c, o->name, base, o_step, o->offset,
-			                  outer, outer_arr);
-		else
-			proto_w_rows(c, o->name, o->kind, base, o_step,
-			             o->offset, outer, outer_arr);
-	} else {
-		if (flags)
-			proto_w_flag_rows(c, o->name, base, i_step, o->offset,
-			                  inner, 1);
-		else
-			proto_w_rows(c, o->name, o->kind, base, i_step,
-			             o->offset, inner, 1);
-	}
+	proto__w_layout(c, o->name, o->kind, o->type == PO_FLAGS, r->cells[k],
+	                m->cells[k].row_size, o->offset, r->shape, k,
+	                m->cells[k].cell_major);
 }
 
 static void write_strings(proto_call *c, const char *key,
@@ -281,77 +246,6 @@ static void write_strings(proto_call *c, const char *key,
 	proto_w_arr_end(c);
 }
 
-static void write_req(proto_call *c, const proto_output *o, const void *args,
-                      const proto_shape *sh)
-{
-	const unsigned char *at = (const unsigned char *)args + o->offset;
-
-	switch (o->type) {
-	case PO_NUM: {
-		double v;
-		memcpy(&v, at, sizeof v);
-		proto_w_num(c, o->name, o->kind, v);
-		break;
-	}
-	case PO_INT: {
-		long long v;
-		memcpy(&v, at, sizeof v);
-		proto_w_int(c, o->name, v);
-		break;
-	}
-	case PO_BOOL: {
-		int v;
-		memcpy(&v, at, sizeof v);
-		proto_w_bool(c, o->name, v);
-		break;
-	}
-	case PO_STR: {
-		const char *s;
-		memcpy(&s, at, sizeof s);
-		if (s)
-			proto_w_str(c, o->name, s);
-		else
-			proto_w_null(c, o->name);
-		break;
-	}
-	case PO_ENUM: {
-		int k;
-		memcpy(&k, at, sizeof k);
-		if (k >= 0)
-			proto_w_str(c, o->name, o->choices[k]);
-		else
-			proto_w_null(c, o->name);
-		break;
-	}
-	case PO_VEC: {
-		/* broadcast along the samples, or along a cell set */
-		const proto_vec *v = (const proto_vec *)at;
-		size_t n = o->dim == D_CELL    ? sh->m[0]
-		           : o->dim == D_CELL2 ? sh->m[1]
-		                               : sh->n;
-		int arr = o->dim == D_CELL    ? sh->m_arr[0]
-		          : o->dim == D_CELL2 ? sh->m_arr[1]
-		                              : sh->arr;
-		proto_w_vec(c, o->name, o->kind, v->v, n, v->n == 1 ? 0 : 1,
-		            arr);
-		break;
-	}
-	case PO_CUSTOM: o->write(c, o->name, args); break;
-	case PO_COUNT:
-		proto_w_int(c, o->name,
-		            (long long)(o->offset == 0   ? sh->n
-		                        : o->offset == 1 ? sh->m[0]
-		                                         : sh->m[1]));
-		break;
-	case PO_FLAGS: {
-		uint64_t f;
-		memcpy(&f, at, sizeof f);
-		proto_w_flags1(c, o->name, f);
-		break;
-	}
-	}
-}
-
 static void write_outputs(proto_call *c, const proto_method *m, const run *r)
 {
 	const proto_shape *sh = r->shape;
@@ -361,7 +255,7 @@ static void write_outputs(proto_call *c, const proto_method *m, const run *r)
 		if (o->when && !o->when(r->args))
 			continue;
 		if (o->type == PO_VEC) {
-			write_req(c, o, r->args, sh);
+			proto__write_req(c, o, r->args, sh);
 			continue;
 		}
 		switch (o->dim) {
@@ -380,21 +274,9 @@ static void write_outputs(proto_call *c, const proto_method *m, const run *r)
 			break;
 		case D_CELL:
 		case D_CELL2: write_grid(c, m, r, o, o->dim - D_CELL); break;
-		default: write_req(c, o, r->args, sh);
+		default: proto__write_req(c, o, r->args, sh);
 		}
 	}
-}
-
-void proto__write_tail(proto_call *c)
-{
-	if (c->n_warnings) {
-		proto_w_arr_begin(c, "warnings");
-		for (size_t i = 0; i < c->n_warnings; i++)
-			proto_w_str(c, NULL, c->warnings[i]);
-		proto_w_arr_end(c);
-	}
-	proto_w_units(c);
-	proto_w_obj_end(c);
 }
 
 /* ---- the method --------------------------------------------------------- */
@@ -418,6 +300,12 @@ int proto__run_method(proto_call *c)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
 		                  "out of memory");
 	c->args = args;
+	if ((!m->kernel || (m->flags & PM_NO_UNCERTAINTY)) &&
+	    cJSON_GetObjectItemCaseSensitive(c->params, "uncertainty"))
+		return proto_fail(c, PROTO_INVALID_PARAMS, "uncertainty",
+		                  "%s is not a per-sample method: it takes no "
+		                  "uncertainty",
+		                  m->name);
 	if (m->flags & PM_RAW_PARAMS) {
 		assert(m->body);
 		return m->body(c, args);
@@ -438,6 +326,14 @@ int proto__run_method(proto_call *c)
 	}
 	if (m->prepare && m->prepare(c, args, &sh))
 		return -1;
+	if (cJSON_GetObjectItemCaseSensitive(c->params, "uncertainty") ||
+	    proto__has_dist(m->params, args)) {
+		if (m->flags & PM_NO_UNCERTAINTY)
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, "uncertainty",
+			    "%s does not take uncertainty", m->name);
+		return proto__run_uncertain(c, args, &sh);
+	}
 	{
 		size_t cells = sh.m[0] + sh.m[1];
 		size_t per = cells ? cells : 1;

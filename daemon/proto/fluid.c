@@ -129,7 +129,8 @@ static const proto_decl sat_decl = {
 	     .type = PT_OBJ,                                                   \
 	     .offset = offsetof(st, pre saturation),                           \
 	     .sub = &sat_decl,                                                 \
-	     .desc = "saturation of each described phase"},                    \
+	     .desc = "saturation of each described phase; one may be left "    \
+	             "out to fill the rest of the pore space"},                \
 	    {.name = "mix",                                                    \
 	     .type = PT_ENUM,                                                  \
 	     .flags = PF_DFLT,                                                 \
@@ -146,6 +147,39 @@ static const proto_decl sat_decl = {
 		.desc = "Brie exponent e >= 1 (only with mix \"brie\"; e < 1 " \
 		        "would exceed the Voigt bound)"                        \
 	}
+
+/* The saturation of phase `rest`, left out of the request: 1 less the
+ * others at each of the n samples (a null where one is null). */
+static int saturation_rest(proto_call *c, proto_fluid *f, const char *path,
+                           int rest, size_t n)
+{
+	double *v = proto_alloc_doubles(c, n);
+
+	if (!v)
+		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
+		                  "out of memory");
+	for (size_t i = 0; i < n; i++) {
+		double sum = 0.0;
+		for (int p = 0; p < PROTO_NPHASES; p++)
+			if (f->has[p] && p != rest)
+				sum += proto_at(&f->sat[p], i);
+		if (sum > 1.0 + 1e-6)
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS,
+			    proto_path(c, path, "saturation", ""),
+			    "the given saturations sum to %.9g at sample "
+			    "%zu, leaving nothing for the %s (more than 1)",
+			    sum, i, proto_phase_names[rest]);
+		v[i] = sum > 1.0 ? 0.0 : 1.0 - sum;
+	}
+	memset(&f->sat[rest], 0, sizeof f->sat[rest]);
+	f->sat[rest].v = v;
+	f->sat[rest].n = n;
+	f->sat[rest].present = 1;
+	for (int p = 0; p < PROTO_NPHASES; p++)
+		f->sat[rest].is_array |= f->has[p] && f->sat[p].is_array;
+	return 0;
+}
 
 /* Checks the phases, saturations and mixing rule of f (`path` its
  * prefix, "" at the top of fluid.properties), derives has[], sat[]. */
@@ -171,6 +205,7 @@ static int phases_check(proto_call *c, proto_fluid *f, const char *path)
 		                  "oil");
 	f->live = f->oil.gor.present;
 	if (f->saturation.hdr.present) {
+		int rest = -1;
 		for (int p = 0; p < PROTO_NPHASES; p++) {
 			const char *full = proto_path(c, path, "saturation.",
 			                              proto_phase_names[p]);
@@ -181,15 +216,27 @@ static int phases_check(proto_call *c, proto_fluid *f, const char *path)
 				    "(%s%s) or drop its saturation",
 				    proto_phase_names[p], path,
 				    proto_phase_names[p]);
-			if (!sv[p]->present && f->has[p])
-				return proto_fail(
-				    c, PROTO_INVALID_PARAMS, full,
-				    "required: the %s phase is described",
-				    proto_phase_names[p]);
+			if (!sv[p]->present && f->has[p]) {
+				/* one described phase may be left out: it
+				 * fills the rest of the pore space */
+				if (rest >= 0)
+					return proto_fail(
+					    c, PROTO_INVALID_PARAMS, full,
+					    "required: the %s phase is "
+					    "described and only one phase "
+					    "(here %s) may be left to fill "
+					    "the rest",
+					    proto_phase_names[p],
+					    proto_phase_names[rest]);
+				rest = p;
+				continue;
+			}
 			f->sat[p] = *sv[p];
 			if (sv[p]->n > n)
 				n = sv[p]->n;
 		}
+		if (rest >= 0 && saturation_rest(c, f, path, rest, n))
+			return -1;
 	} else if (nph > 1) {
 		return proto_fail(c, PROTO_INVALID_PARAMS,
 		                  proto_path(c, path, "saturation", ""),
@@ -225,7 +272,8 @@ static int phases_check(proto_call *c, proto_fluid *f, const char *path)
 			    c, PROTO_INVALID_PARAMS,
 			    proto_path(c, path, "saturation", ""),
 			    "saturations sum to %.9g at sample %zu, "
-			    "not 1 (tolerance 1e-6)",
+			    "not 1 (tolerance 1e-6); one phase may be left "
+			    "out to fill the rest",
 			    sum, i);
 	}
 	f->salinity_unit = c->units.sel[PK_SALINITY] == 0;

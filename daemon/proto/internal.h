@@ -144,6 +144,27 @@ typedef struct proto_vec {
 	const proto_dist *dist; /* given as a distribution (uncertainty) */
 } proto_vec;
 
+/* An input given as a probability distribution (uncertainty.c). The
+ * parameters are in internal units (a standard deviation converts by the
+ * unit's scale only); each is a scalar or an array of the samples. */
+enum {
+	PROTO_DIST_NORMAL = 0,
+	PROTO_DIST_LOGNORMAL,
+	PROTO_DIST_UNIFORM,
+	PROTO_DIST_TRIANGULAR,
+	PROTO_DIST_TRUNC_NORMAL,
+	PROTO_DIST_PERCENTILES,
+	PROTO_DIST_COUNT
+};
+struct proto_dist {
+	int kind;          /* PROTO_DIST_* */
+	int lognormal;     /* percentiles: the shape through them */
+	double p_lo, p_hi; /* percentiles: their probabilities */
+	proto_vec p[4];    /* the parameters (see uncertainty.c) */
+	size_t n;          /* 1, or the samples given */
+	const char *path;  /* the input's dotted name */
+};
+
 /* Element i with scalar broadcasting. */
 static inline double proto_at(const proto_vec *x, size_t i)
 {
@@ -319,6 +340,27 @@ extern const proto_decl proto_qc_ranges_decl;
  * object: the defaults. */
 void proto_qc_ranges_default(proto_qc_ranges *r);
 
+extern const proto_decl proto_uncertainty_decl;
+/* The core distribution of sample i of d (dist.c): RW_OK or RW_EDOM. */
+struct rw_dist;
+int proto__dist_at(const proto_dist *d, size_t i, struct rw_dist *out);
+/* Parses a distribution object for field f at path into out (its nominal
+ * value, the mean, in out->v) (uncertainty.c). 0 or -1. */
+int proto__dist_parse(proto_call *c, const proto_field *f, const char *path,
+                      const cJSON *v, proto_vec *out);
+/* Runs a per-sample method over draws of its uncertain inputs and writes
+ * the statistics of its outputs (uncertainty.c). Called by the driver
+ * after prepare when an input is a distribution. 0 or -1. */
+struct proto_shape;
+int proto__run_uncertain(proto_call *c, void *args,
+                         const struct proto_shape *sh);
+/* Checks n values of field f against its declared bounds (args.c):
+ * 0, or -1 after proto_fail naming path. */
+int proto__check_bounds(proto_call *c, const proto_field *f, const char *path,
+                        const double *v, size_t n, int is_array);
+/* 1 when the parsed args hold an input given as a distribution. */
+int proto__has_dist(const proto_decl *d, const void *args);
+
 /* ---- outputs and methods ------------------------------------------------ */
 
 typedef enum proto_otype {
@@ -483,6 +525,17 @@ int proto__run_method(proto_call *c);
 int proto__session_inherit(proto_call *c, const proto_decl *d, void *dst,
                            const cJSON *obj);
 
+/* Writes values laid out as the shape says: set -1 a vector along the
+ * samples, set 0 or 1 a grid [sample][cell] of that cell set (written
+ * [cell][sample] when cell_major), each dimension an array only when its
+ * input was one. Element e of the storage is at base + e * elem + offset.
+ * flags: uint64_t values, else doubles of kind `kind`. */
+void proto__w_layout(proto_call *c, const char *key, proto_kind kind, int flags,
+                     const unsigned char *base, size_t elem, size_t offset,
+                     const struct proto_shape *sh, int set, int cell_major);
+/* Writes a request-level output (dim D_REQ, or a PO_VEC) of args. */
+void proto__write_req(proto_call *c, const proto_output *o, const void *args,
+                      const struct proto_shape *sh);
 /* Writes "warnings" (when any), "units" and closes the result object:
  * the end of every result, for methods with a body too. */
 void proto__write_tail(proto_call *c);
@@ -530,6 +583,9 @@ void proto_w_flag_rows(proto_call *c, const char *key, const void *rows,
 /* The "units" member: for every field written so far with a dimension,
  * its dotted path and unit. Last member of a result object. */
 void proto_w_units(proto_call *c);
+/* Notes that member `key` of the open object has kind k, for the "units"
+ * map, when its numbers were written converted already (as PK_NONE). */
+void proto_w_note_unit(proto_call *c, const char *key, proto_kind k);
 /* 1 when the result member `key` is selected by `fields`. */
 int proto_w_selected(const proto_call *c, const char *key);
 
@@ -554,6 +610,9 @@ int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
                        proto_units *u);
 /* Frees the call's arena. */
 void proto__arena_free(proto_call *c);
+/* Moves t's arena blocks and kept trees into c's (a scratch call's
+ * memory then lives as long as c). */
+void proto__arena_adopt(proto_call *c, proto_call *t);
 /* Appends s to b as a JSON string. */
 void proto__buf_json_string(proto_buf *b, const char *s);
 /* The OpenRPC document generated from the declarations (schema.c), as a

@@ -123,6 +123,14 @@ static cJSON *field_schema(const proto_field *f, cJSON *components)
 			    number_schema(f, f->flags & PF_NULLS));
 			cJSON_AddItemToArray(one, arr);
 		}
+		if (!(f->flags & PF_ARRAY)) {
+			/* any number may be a distribution (uncertainty) */
+			cJSON *alt = cJSON_CreateObject();
+			cJSON *any = cJSON_AddArrayToObject(alt, "anyOf");
+			cJSON_AddItemToArray(any, s);
+			cJSON_AddItemToArray(any, ref("distribution"));
+			s = alt;
+		}
 		/* fractions (porosity, saturations) are a kind of their own
 		 * for clients: they may arrive as percent in a log file */
 		cJSON_AddStringToObject(s, "x-kind",
@@ -279,6 +287,17 @@ static cJSON *output_schema(const proto_output *o)
 		default: s = cJSON_CreateObject(); break;
 		}
 	}
+	if (o->dim != D_REQ && o->type != PO_VEC) {
+		/* under uncertainty: statistics, probabilities or the union */
+		cJSON *alt = cJSON_CreateObject();
+		cJSON *any = cJSON_AddArrayToObject(alt, "anyOf");
+		cJSON_AddItemToArray(any, s);
+		if (o->type == PO_NUM)
+			cJSON_AddItemToArray(any, ref("outStatistics"));
+		else if (o->type == PO_STR)
+			cJSON_AddItemToArray(any, ref("outProbabilities"));
+		s = alt;
+	}
 	if (cJSON_GetObjectItem(s, "$ref")) {
 		/* draft-07 ignores siblings of $ref: wrap it */
 		cJSON *w = cJSON_CreateObject();
@@ -316,6 +335,24 @@ static cJSON *result_schema(const proto_method *m)
 	                        "answered, but something in it deserves a "
 	                        "look");
 	cJSON_AddItemToObject(props, "warnings", w);
+	if (m->kernel && !(m->flags & PM_NO_UNCERTAINTY)) {
+		cJSON_AddItemToObject(props, "uncertainty",
+		                      ref("uncertaintySummary"));
+		cJSON_AddItemToObject(props, "sensitivity", ref("sensitivity"));
+		cJSON_AddItemToObject(props, "draws", ref("rawDraws"));
+		for (const proto_output *out = m->outputs; out && out->name;
+		     out++)
+			if (out->type == PO_FLAGS) {
+				char key[64];
+				snprintf(key, sizeof key, "%s_probability",
+				         out->name);
+				if (!cJSON_GetObjectItemCaseSensitive(props,
+				                                      key))
+					cJSON_AddItemToObject(
+					    props, key,
+					    ref("flagProbabilities"));
+			}
+	}
 	cJSON_AddItemToObject(props, "units", ref("unitsOut"));
 	return o;
 }
@@ -355,6 +392,20 @@ static cJSON *method_doc(const proto_method *m, cJSON *components)
 		     out++)
 			selectable |=
 			    out->dim != D_REQ && out->type != PO_FLAGS;
+		if (m->kernel && !(m->flags & PM_NO_UNCERTAINTY)) {
+			p = cJSON_CreateObject();
+			cJSON_AddStringToObject(p, "name", "uncertainty");
+			cJSON_AddStringToObject(
+			    p, "description",
+			    "Monte Carlo over the inputs given as "
+			    "distributions: "
+			    "every output becomes its mean, sd and percentiles "
+			    "(protocol.md, Uncertainty)");
+			cJSON_AddItemToObject(
+			    p, "schema",
+			    component(&proto_uncertainty_decl, components));
+			cJSON_AddItemToArray(params, p);
+		}
 		if (selectable && !(m->flags & PM_NO_FIELDS)) {
 			cJSON *s = cJSON_CreateObject(), *items, *e;
 			p = cJSON_CreateObject();

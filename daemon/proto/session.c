@@ -290,7 +290,7 @@ static sess_default *make_default(proto_call *c, const char *path,
 		           len, lim->max_samples);
 		return NULL;
 	}
-	if (ft->f->type == PT_NUMS) {
+	if (ft->f->type == PT_NUMS && !cJSON_IsObject(v)) {
 		size_t n = cJSON_IsArray(v) ? (size_t)cJSON_GetArraySize(v) : 1;
 		const cJSON *e;
 		size_t i = 0;

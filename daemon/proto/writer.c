@@ -166,6 +166,12 @@ static void note_unit(proto_call *c, const char *key, proto_kind k)
 	c->n_unit_notes++;
 }
 
+void proto_w_note_unit(proto_call *c, const char *key, proto_kind k)
+{
+	if (!c->skip_depth)
+		note_unit(c, key, k);
+}
+
 void proto_w_obj_begin(proto_call *c, const char *key)
 {
 	w_open(c, key, '{');

@@ -127,7 +127,8 @@ try:
                "\n  %s\n" % p["name"] not in out]
     t.ok(rc == 0 and out.startswith("log.process: ") and not missing,
          "every log.process parameter listed (missing %r)" % missing)
-    t.ok(re.search(r"drho_limit  number\n      \([^)]*> 0\)", out) is not None,
+    t.ok(re.search(r"drho_limit  number( or a distribution)?\n      \([^)]*> 0\)",
+                   out) is not None,
          "ranges from the schema shown")
     t.ok('one of "none"|"greenberg_castagna"|"mudrock"' in out,
          "option values shown")

@@ -223,6 +223,22 @@ static void test_saturation_sweep(void **state)
 	for (int i = 1; i < 5; i++)
 		assert_true(num_at(res, "mix_k", i) <
 		            num_at(res, "mix_k", i - 1));
+	/* the brine left out fills the rest: the same answer as giving it */
+	{
+		cJSON *r2 = call(
+		    REQ("{\"pressure\":25,\"temperature\":75,\"brine\":"
+		        "{\"salinity\":50000},\"gas\":{\"gravity\":0.6},"
+		        "\"oil\":{\"api\":35},\"saturation\":{\"gas\":[0,0.25,"
+		        "0.5,0.75,1],\"oil\":0}}"));
+		const cJSON *res2 = result_of(r2);
+		for (int i = 0; i < 5; i++) {
+			assert_rel(num_at(res2, "mix_k", i),
+			           num_at(res, "mix_k", i), 1e-15);
+			assert_rel(num_at(res2, "sat_brine", i) + 1.0,
+			           num_at(res, "sat_brine", i) + 1.0, 1e-15);
+		}
+		cJSON_Delete(r2);
+	}
 	cJSON_Delete(r);
 }
 
@@ -296,10 +312,20 @@ static void test_errors(void **state)
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
 	                   "{\"salinity\":0},\"gas\":{\"gravity\":0.6}}"),
 	               "saturation", "more than one phase");
+	expect_invalid(
+	    REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
+	        "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
+	        "\"oil\":{\"api\":30},\"saturation\":{\"brine\":1}}"),
+	    "saturation.oil", "only one phase (here gas)");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
 	                   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
-	                   "\"saturation\":{\"brine\":1}}"),
-	               "saturation.gas", "required");
+	                   "\"saturation\":{\"gas\":1.5}}"),
+	               "saturation.gas", "outside [0, 1]");
+	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
+	                   "{\"salinity\":0},\"gas\":{\"gravity\":0.6},"
+	                   "\"oil\":{\"api\":30},\"saturation\":{\"gas\":0.7,"
+	                   "\"oil\":0.6}}"),
+	               "saturation", "leaving nothing for the brine");
 	expect_invalid(REQ("{\"pressure\":20,\"temperature\":60,\"brine\":"
 	                   "{\"salinity\":0},\"saturation\":{\"brine\":0.5,"
 	                   "\"oil\":0.5}}"),

@@ -1,0 +1,189 @@
+/* Connection lifetime and accounting. A connection holds one reference of
+ * its own from srv__conn_new until srv__conn_close; every open handle and
+ * every read, write or work request in flight holds another. The last
+ * srv__conn_unref unlinks and frees it, so it is never freed inside its
+ * own callback chain. Its bytes (buffered input, unsent answers, a line
+ * in the thread pool) are counted in the server's buffered_bytes, which
+ * the global budget bounds. */
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "server/internal.h"
+
+size_t srv__conn_unsent(const conn *c)
+{
+	return c->pending.len + (c->wlen - c->woff);
+}
+
+uint64_t srv__conn_sent(const conn *c)
+{
+	if (conn_has(c, CF_WRITING) && c->out_kind == IO_STREAM &&
+	    !conn_closing(c))
+		return c->out_handed -
+		       uv_stream_get_write_queue_size(c->out_stream);
+	return c->out_done;
+}
+
+/* Global budget: past it every connection stops reading; reading resumes
+ * below three quarters of it. */
+static void budget_check(srv *s)
+{
+	size_t budget = s->cfg->limits.global_budget;
+	uint64_t now = s->stats->buffered_bytes;
+	conn *c;
+
+	if (!budget)
+		return;
+	if (!s->over_budget && now > budget) {
+		s->over_budget = 1;
+		srv_log("warning",
+		        "%llu bytes buffered over all connections, past the "
+		        "budget of %zu: reads wait",
+		        (unsigned long long)now, budget);
+		for (c = s->conns; c; c = c->next) {
+			if (!conn_has(c, CF_PEER_DONE))
+				conn_set(c, CF_BUDGET_WAIT);
+			srv__conn_update_read(c);
+		}
+	} else if (s->over_budget && now <= budget / 4 * 3) {
+		s->over_budget = 0;
+		srv_log("info", "buffered bytes back under the budget");
+		for (c = s->conns; c; c = c->next) {
+			conn_clear(c, CF_BUDGET_WAIT);
+			srv__conn_update_read(c);
+		}
+	}
+}
+
+void srv__conn_account(conn *c)
+{
+	srv *s = c->srv;
+	size_t now = conn_closing(c) ? 0
+	                             : srv_lines_buffered(&c->lines) +
+	                                   srv__conn_unsent(c) + c->work_len;
+
+	assert(s->stats->buffered_bytes >= c->acct);
+	s->stats->buffered_bytes -= c->acct;
+	s->stats->buffered_bytes += now;
+	c->acct = now;
+	budget_check(s);
+}
+
+void srv__conn_ref(conn *c)
+{
+	assert(c->refs > 0);
+	c->refs++;
+}
+
+void srv__conn_unref(conn *c)
+{
+	srv *s = c->srv;
+
+	assert(c->refs > 0);
+	if (--c->refs > 0)
+		return;
+	/* Last reference: nothing can be in flight, and the connection was
+	 * closed (its own reference is the one dropped there). */
+	assert(conn_closing(c));
+	assert(!conn_has(c, CF_READY | CF_IN_OPEN | CF_OUT_OPEN | CF_FILE_READ |
+	                        CF_WRITING | CF_BUSY));
+	assert(s->stats->buffered_bytes >= c->acct);
+	s->stats->buffered_bytes -= c->acct;
+	c->acct = 0;
+	if (c->prev)
+		c->prev->next = c->next;
+	else
+		s->conns = c->next;
+	if (c->next)
+		c->next->prev = c->prev;
+	assert(s->stats->connections_open > 0);
+	s->stats->connections_open--;
+	srv_lines_free(&c->lines);
+	proto_buf_free(&c->pending);
+	proto_buf_free(&c->work_out);
+	free(c->wdata);
+	free(c->work_line);
+	free(c->in_buf);
+	proto_session_free(c->session);
+	free(c);
+	budget_check(s);
+	srv__maybe_finish(s);
+}
+
+void srv__on_handle_closed(uv_handle_t *h)
+{
+	srv__conn_unref(h->data);
+}
+
+static const char *kind_name(enum conn_kind kind)
+{
+	switch (kind) {
+	case CONN_UNIX: return "unix";
+	case CONN_TCP: return "tcp";
+	default: return "stdio";
+	}
+}
+
+conn *srv__conn_new(srv *s, enum conn_kind kind)
+{
+	conn *c = calloc(1, sizeof *c);
+
+	if (!c)
+		return NULL;
+	c->session = proto_session_new(s->ctx);
+	if (!c->session) {
+		free(c);
+		return NULL;
+	}
+	c->srv = s;
+	c->kind = kind;
+	c->state = CONN_OPEN;
+	c->refs = 1;
+	c->in_fd = c->out_fd = -1;
+	if (s->over_budget)
+		conn_set(c, CF_BUDGET_WAIT);
+	c->active_ms = c->stall_ms = uv_now(s->loop);
+	srv_lines_init(&c->lines, s->cfg->limits.max_line);
+	proto_buf_init(&c->pending);
+	proto_buf_init(&c->work_out);
+	snprintf(c->name, sizeof c->name, "%s#%lu", kind_name(kind),
+	         ++s->next_id);
+	c->next = s->conns;
+	if (s->conns)
+		s->conns->prev = c;
+	s->conns = c;
+	s->stats->connections_total++;
+	s->stats->connections_open++;
+	return c;
+}
+
+void srv__conn_close(conn *c)
+{
+	if (conn_closing(c))
+		return;
+	conn_set_state(c, CONN_CLOSING);
+	srv__ready_remove(c);
+	srv__conn_account(c);
+	if (conn_has(c, CF_IN_OPEN)) {
+		conn_clear(c, CF_IN_OPEN | CF_READING);
+		uv_close(&c->in.h, srv__on_handle_closed);
+	}
+	if (conn_has(c, CF_OUT_OPEN)) {
+		conn_clear(c, CF_OUT_OPEN);
+		uv_close(&c->outh.h, srv__on_handle_closed);
+	}
+	/* File descriptors 0 and 1 of --stdio are not ours to close. */
+	srv__conn_unref(c); /* the reference held by the connection itself */
+}
+
+void srv__conn_check_done(conn *c)
+{
+	if (conn_closing(c) || !conn_eof(c) ||
+	    conn_has(c, CF_BUSY | CF_WRITING) || c->pending.len ||
+	    srv_lines_buffered(&c->lines))
+		return;
+	if (c->srv->stopping)
+		srv__drain_kernel(c, 0);
+	srv__conn_close(c);
+}

@@ -1,0 +1,96 @@
+/* The server's entry point: configuration defaults, and srv_run, which
+ * sets up the loop, the signals, the tick and the listeners (or stdio),
+ * runs until shutdown and tears everything down. The concerns themselves
+ * live in the files listed in internal.h. */
+#include <errno.h>
+#include <signal.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "server/internal.h"
+
+void srv_config_default(srv_config *cfg)
+{
+	memset(cfg, 0, sizeof *cfg);
+	cfg->socket_mode = 0600;
+	cfg->lines_per_turn = 20;
+	cfg->offload_bytes = 256 * 1024;
+	proto_limits_default(&cfg->limits);
+}
+
+int srv_run(const srv_config *cfg)
+{
+	srv *s;
+	int rc = SRV_EXIT_OK;
+	char msg[400];
+
+	signal(SIGPIPE, SIG_IGN);
+	if (cfg->log_path && srv_log_open(cfg->log_path) < 0) {
+		srv_log("error", "--log %s: %s", cfg->log_path,
+		        strerror(errno));
+		return SRV_EXIT_RUNTIME;
+	}
+	s = calloc(1, sizeof *s);
+	if (!s)
+		return SRV_EXIT_RUNTIME;
+	s->cfg = cfg;
+	s->loop = uv_default_loop();
+	s->ctx = proto_ctx_new(&cfg->limits);
+	if (!s->ctx) {
+		free(s);
+		return SRV_EXIT_RUNTIME;
+	}
+	if (srv__notify_open(&s->notify) < 0)
+		srv_log("warning", "NOTIFY_SOCKET unusable; not notifying");
+	s->stats = proto_ctx_server_stats(s->ctx);
+	uv_idle_init(s->loop, &s->idle);
+	s->idle.data = s;
+	uv_timer_init(s->loop, &s->drain_timer);
+	s->drain_timer.data = s;
+	uv_unref((uv_handle_t *)&s->drain_timer);
+	uv_timer_init(s->loop, &s->tick);
+	s->tick.data = s;
+	uv_timer_start(&s->tick, srv__on_tick, SRV_TICK_MS, SRV_TICK_MS);
+	uv_unref((uv_handle_t *)&s->tick);
+	uv_signal_init(s->loop, &s->sig_int);
+	uv_signal_init(s->loop, &s->sig_term);
+	uv_signal_init(s->loop, &s->sig_hup);
+	s->sig_int.data = s->sig_term.data = s->sig_hup.data = s;
+	uv_signal_start(&s->sig_int, srv__on_signal, SIGINT);
+	uv_signal_start(&s->sig_term, srv__on_signal, SIGTERM);
+	uv_signal_start(&s->sig_hup, srv__on_signal, SIGHUP);
+
+	if (cfg->use_stdio) {
+		s->stats->transport = "stdio";
+		if (srv__start_stdio(s) < 0)
+			rc = SRV_EXIT_RUNTIME;
+	} else if (srv__start_listeners(s) < 0) {
+		rc = SRV_EXIT_LISTEN;
+	}
+	if (rc != SRV_EXIT_OK) {
+		s->stopping = 1;
+		s->stop_notified = 1;
+		srv__close_listeners(s);
+		srv__close_all(s);
+	} else {
+		snprintf(msg, sizeof msg, "READY=1\nSTATUS=serving %s",
+		         s->stats->transport);
+		if (srv__notify_send(&s->notify, msg) < 0)
+			srv_log("warning", "readiness notification failed: %s",
+			        strerror(errno));
+	}
+	srv__maybe_finish(s);
+	uv_run(s->loop, UV_RUN_DEFAULT);
+	srv__close_listeners(s);
+	/* Listeners that failed half-way are closed above; let them go. */
+	uv_run(s->loop, UV_RUN_NOWAIT);
+	srv__notify_stopping(s);
+	srv__notify_close(&s->notify);
+	if (uv_loop_close(s->loop) != 0)
+		srv_log("warning", "loop closed with handles still open");
+	uv_tty_reset_mode();
+	proto_ctx_free(s->ctx);
+	free(s);
+	return rc;
+}

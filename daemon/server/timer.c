@@ -1,0 +1,65 @@
+/* The periodic tick (every SRV_TICK_MS): the slow-reader rule, the idle
+ * timeout, and hang-up checks on connections whose reads wait for the
+ * budget. */
+#include "server/internal.h"
+
+/* The slow-reader rule (protocol-docs/limits.md): a socket connection
+ * holding more than the hard bound of unsent output, or any paused one
+ * while the global budget is exhausted, must get at least
+ * SRV_STALL_PROGRESS bytes out per stall window, else it is closed. A
+ * client that reads a huge answer keeps it alive however large that
+ * answer is. */
+static void conn_tick(conn *c, uint64_t now)
+{
+	const srv_config *cfg = c->srv->cfg;
+	uint64_t sent = srv__conn_sent(c);
+	size_t unsent = srv__conn_unsent(c);
+	size_t hard = cfg->limits.out_hard_limit;
+	uint64_t stall = (uint64_t)(cfg->limits.stall_timeout_s * 1000);
+	uint64_t idle = (uint64_t)(cfg->limits.idle_timeout_s * 1000);
+	int held = (hard && unsent > hard) ||
+	           (c->srv->over_budget && conn_has(c, CF_PAUSED));
+
+	if (sent != c->seen_sent) {
+		c->seen_sent = sent;
+		c->active_ms = now;
+	}
+	if (!held || sent - c->stall_mark >= SRV_STALL_PROGRESS) {
+		c->stall_ms = now;
+		c->stall_mark = sent;
+	} else if (now - c->stall_ms >= stall) {
+		c->srv->stats->connections_closed_slow++;
+		srv_log("warning",
+		        "%s: closed as slow: %zu bytes of answers unsent and "
+		        "under %u bytes taken in %.1f s",
+		        c->name, unsent, SRV_STALL_PROGRESS,
+		        cfg->limits.stall_timeout_s);
+		srv__conn_close(c);
+		return;
+	}
+	if (idle && !conn_has(c, CF_BUSY) && now - c->active_ms >= idle) {
+		srv_log("info", "%s: closed after %.1f s idle", c->name,
+		        cfg->limits.idle_timeout_s);
+		c->srv->stats->connections_closed_idle++;
+		srv__conn_close(c);
+	}
+}
+
+void srv__on_tick(uv_timer_t *t)
+{
+	srv *s = t->data;
+	uint64_t now = uv_now(s->loop);
+	conn *c, *next;
+
+	for (c = s->conns; c; c = next) {
+		next = c->next;
+		if (c->kind != CONN_STDIO && !conn_closing(c)) {
+			srv__conn_ref(c);
+			srv__conn_peek_hangup(c);
+			if (!conn_closing(c))
+				conn_tick(c, now);
+			next = c->next;
+			srv__conn_unref(c);
+		}
+	}
+}

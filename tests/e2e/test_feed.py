@@ -7,7 +7,6 @@ values from a record without depth join the next depth's sample."""
 import json
 import os
 import socket
-import subprocess
 import sys
 import threading
 
@@ -82,8 +81,8 @@ def check(out, err, rc, how):
 d = rwtest.Daemon()
 try:
     # 1. stdin
-    p = subprocess.run([rwtest.CLIENT, "--socket", d.path, "feed"],
-                       input=stream, capture_output=True, timeout=60)
+    p = rwtest.run([rwtest.CLIENT, "--socket", d.path, "feed"],
+                   input=stream, timeout=60)
     check(p.stdout, p.stderr, p.returncode, "stdin")
 
     # 2. loopback TCP: the test serves the stream in small pieces.
@@ -100,18 +99,17 @@ try:
 
     th = threading.Thread(target=serve, daemon=True)
     th.start()
-    p = subprocess.run([rwtest.CLIENT, "--socket", d.path, "feed",
-                        "--connect", "127.0.0.1:%d" % port],
-                       capture_output=True, timeout=60)
+    p = rwtest.run([rwtest.CLIENT, "--socket", d.path, "feed",
+                    "--connect", "127.0.0.1:%d" % port], timeout=60)
     th.join(10)
     srv.close()
     check(p.stdout, p.stderr, p.returncode, "tcp")
 
     # 3. CSV, an explicit map and a --set option.
-    p = subprocess.run([rwtest.CLIENT, "--socket", d.path, "feed",
-                        "--format", "csv", "--map", "0114=none",
-                        "--set", "vs_predict=mudrock"],
-                       input=stream, capture_output=True, timeout=60)
+    p = rwtest.run([rwtest.CLIENT, "--socket", d.path, "feed",
+                    "--format", "csv", "--map", "0114=none",
+                    "--set", "vs_predict=mudrock"],
+                   input=stream, timeout=60)
     rows = p.stdout.decode().strip().split("\n")
     t.ok(p.returncode == 0 and len(rows) == len(expect) + 1,
          "csv: header and one row per sample (%d)" % len(rows))
@@ -122,13 +120,11 @@ try:
     t.ok(abs(vs - (vp - 1360) / 1.16) < 1e-6 * vs,
          "csv: mudrock vs (Castagna et al. 1985)")
     # Usage errors.
-    p = subprocess.run([rwtest.CLIENT, "--socket", d.path, "feed",
-                        "--map", "108=depth"], input=b"",
-                       capture_output=True, timeout=20)
+    p = rwtest.run([rwtest.CLIENT, "--socket", d.path, "feed",
+                    "--map", "108=depth"], input=b"", timeout=20)
     t.ok(p.returncode == 2 and b"4-digit" in p.stderr, "bad --map code")
-    p = subprocess.run([rwtest.CLIENT, "--socket", d.path, "feed",
-                        "--connect", "nohostport"], input=b"",
-                       capture_output=True, timeout=20)
+    p = rwtest.run([rwtest.CLIENT, "--socket", d.path, "feed",
+                    "--connect", "nohostport"], input=b"", timeout=20)
     t.ok(p.returncode == 2, "bad --connect")
 finally:
     d.stop()

@@ -20,72 +20,7 @@ import tempfile
 import threading
 import time
 
-from rwtest import check, finish  # noqa: E402
-
-BUILD = os.environ.get("RW_BUILD", "build")
-DAEMON = os.path.join(BUILD, "rockwired")
-
-
-
-
-class Daemon:
-    def __init__(self, *args):
-        self.dir = tempfile.mkdtemp(prefix="rw-hard-")
-        self.sock = os.path.join(self.dir, "rw.sock")
-        self.log = os.path.join(self.dir, "log")
-        argv = [DAEMON, "--socket", self.sock] + list(args)
-        self.errf = open(self.log + ".stderr", "w")
-        self.p = subprocess.Popen(argv, stdin=subprocess.DEVNULL,
-                                  stdout=subprocess.DEVNULL, stderr=self.errf)
-        deadline = time.time() + 10
-        while time.time() < deadline:
-            try:
-                socket.socket(socket.AF_UNIX).connect(self.sock)
-                break
-            except OSError:
-                time.sleep(0.05)
-
-    def connect(self, timeout=30):
-        s = socket.socket(socket.AF_UNIX)
-        s.settimeout(timeout)
-        s.connect(self.sock)
-        return s
-
-    def logtext(self):
-        out = ""
-        for n in (self.log, self.log + ".stderr"):
-            if os.path.exists(n):
-                with open(n) as f:
-                    out += f.read()
-        return out
-
-    def info(self):
-        s = self.connect(10)
-        s.sendall(b'{"jsonrpc":"2.0","id":"i","method":"service.info"}\n')
-        r = json.loads(s.makefile("rb").readline())
-        s.close()
-        return r["result"]
-
-    def serves(self):
-        try:
-            s = self.connect(10)
-            s.sendall(req(1))
-            r = json.loads(s.makefile("rb").readline())
-            s.close()
-            return r.get("result", {}).get("vp") == 3000
-        except (OSError, ValueError):
-            return False
-
-    def stop(self):
-        if self.p.poll() is None:
-            self.p.terminate()
-        try:
-            rc = self.p.wait(15)
-        except subprocess.TimeoutExpired:
-            self.p.kill()
-            rc = self.p.wait()
-        self.errf.close()
-        return rc
+from rwtest import DAEMON, Daemon, check, finish, run_tests
 
 
 def req(i, n=1):
@@ -164,7 +99,7 @@ def test_flood(d):
         try:
             s = socket.socket(socket.AF_UNIX)
             s.settimeout(5)
-            s.connect(d.sock)
+            s.connect(d.path)
             if i % 3 == 0:
                 rst_close(s)
             elif i % 3 == 1:
@@ -362,9 +297,9 @@ def test_sigterm_under_load():
         check("conn %d: answers are an in-order prefix" % k,
               ids == list(range(len(ids))), ids[:5])
     check("some answers came", sum(len(v) for v in results.values()) > 0)
-    check("socket removed", not os.path.exists(d.sock))
+    check("socket removed", not os.path.exists(d.path))
     try:
-        socket.socket(socket.AF_UNIX).connect(d.sock)
+        socket.socket(socket.AF_UNIX).connect(d.path)
         refused = False
     except OSError:
         refused = True
@@ -377,21 +312,13 @@ def main():
         print("no daemon at", DAEMON)
         return 1
     d = Daemon("--offload", "4K")
-    for t in (test_disconnects, test_vanish_during_work, test_trickle,
-              test_flood, test_malformed_mid_pipeline,
-              test_heavy_does_not_stall):
-        try:
-            t(d)
-        except Exception as e:
-            check(t.__name__, False, repr(e))
+    run_tests([test_disconnects, test_vanish_during_work, test_trickle,
+               test_flood, test_malformed_mid_pipeline,
+               test_heavy_does_not_stall], d)
     check("shared daemon still serving", d.serves())
     check("shared daemon exit 0", d.stop() == 0)
-    for t in (test_slow_rule, test_budget, test_sighup,
-              test_sigterm_under_load):
-        try:
-            t()
-        except Exception as e:
-            check(t.__name__, False, repr(e))
+    run_tests([test_slow_rule, test_budget, test_sighup,
+               test_sigterm_under_load])
     return finish()
 
 

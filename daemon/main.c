@@ -29,17 +29,24 @@ static void usage(FILE *f)
 	    "\n"
 	    "  --stdio              serve requests on stdin, answer on stdout\n"
 	    "  --socket PATH        listen on a Unix socket (same as --listen\n"
-	    "                       unix:PATH). With no listener given:\n"
-	    "                       sockets passed by the service manager\n"
-	    "                       (LISTEN_FDS), else\n"
+	    "                       unix:PATH; at most 107 bytes). With no\n"
+	    "                       listener given: sockets passed by the\n"
+	    "                       service manager (LISTEN_FDS), else\n"
 	    "                       $XDG_RUNTIME_DIR/rockwire.sock, else\n"
-	    "                       /tmp/rockwire-<uid>.sock\n"
+	    "                       /tmp/rockwire-<uid>/rockwire.sock (the\n"
+	    "                       directory made 0700 and checked)\n"
 	    "  --listen SPEC        unix:PATH or tcp:HOST:PORT (HOST numeric\n"
-	    "                       or localhost, [V6] for IPv6; port 0 picks\n"
-	    "                       one); repeatable, up to 8\n"
+	    "                       or localhost, [V6] for IPv6; PORT "
+	    "1..65535,\n"
+	    "                       0 picks one); repeatable, up to 8\n"
 	    "  --allow-remote       allow TCP beyond loopback (the protocol\n"
 	    "                       has no authentication)\n"
-	    "  --socket-mode MODE   octal permission bits (default 0600)\n"
+	    "  --socket-mode MODE   octal permission bits (default 0600); at\n"
+	    "                       most the owner's group (0660)\n"
+	    "  --allow-world-access let --socket-mode give others access\n"
+	    "                       (0666): any local user can connect\n"
+	    "  --backlog N          pending connections the kernel queues\n"
+	    "                       (default 4096, capped by somaxconn)\n"
 	    "  --log FILE           log to FILE instead of stderr; SIGHUP\n"
 	    "                       reopens it\n"
 	    "\n"
@@ -149,7 +156,9 @@ int main(int argc, char **argv)
 		O_LOG,
 		O_IDLE,
 		O_STALL,
-		O_DRAIN
+		O_DRAIN,
+		O_WORLD,
+		O_BACKLOG
 	};
 	static const struct option opts[] = {
 	    {"stdio", no_argument, NULL, 'i'},
@@ -157,6 +166,8 @@ int main(int argc, char **argv)
 	    {"listen", required_argument, NULL, O_LISTEN},
 	    {"allow-remote", no_argument, NULL, O_REMOTE},
 	    {"socket-mode", required_argument, NULL, O_MODE},
+	    {"allow-world-access", no_argument, NULL, O_WORLD},
+	    {"backlog", required_argument, NULL, O_BACKLOG},
 	    {"log", required_argument, NULL, O_LOG},
 	    {"max-line", required_argument, NULL, O_LINE},
 	    {"max-samples", required_argument, NULL, O_SAMPLES},
@@ -178,6 +189,7 @@ int main(int argc, char **argv)
 	};
 	srv_config cfg;
 	static char unix_spec[SRV_MAX_LISTEN][600];
+	char err[300];
 	size_t v;
 	double secs;
 	int o;
@@ -198,10 +210,12 @@ int main(int argc, char **argv)
 				return 2;
 			}
 			if (o == 's') {
-				if (!*optarg || strlen(optarg) >= 500) {
+				if (strlen(optarg) >= 500) {
 					fprintf(stderr,
-					        "rockwired: --socket: "
-					        "empty or too long path\n");
+					        "rockwired: --socket: path of "
+					        "%zu bytes is longer than a "
+					        "socket address holds\n",
+					        strlen(optarg));
 					return 2;
 				}
 				snprintf(unix_spec[cfg.n_listen],
@@ -209,18 +223,19 @@ int main(int argc, char **argv)
 				         optarg);
 				cfg.listen[cfg.n_listen] =
 				    unix_spec[cfg.n_listen];
-				cfg.n_listen++;
-			} else if (strncmp(optarg, "unix:", 5) == 0 ||
-			           strncmp(optarg, "tcp:", 4) == 0) {
-				cfg.listen[cfg.n_listen++] = optarg;
 			} else {
-				fprintf(stderr,
-				        "rockwired: --listen: '%s' is "
-				        "not unix:PATH or tcp:HOST:PORT\n",
-				        optarg);
+				cfg.listen[cfg.n_listen] = optarg;
+			}
+			if (srv_check_listen_spec(cfg.listen[cfg.n_listen], err,
+			                          sizeof err) < 0) {
+				fprintf(stderr, "rockwired: %s: %s\n",
+				        o == 's' ? "--socket" : "--listen",
+				        err);
 				return 2;
 			}
+			cfg.n_listen++;
 			continue;
+		case O_WORLD: cfg.allow_world = 1; continue;
 		case O_REMOTE: cfg.allow_remote = 1; continue;
 		case O_LOG:
 			if (!*optarg) {
@@ -281,6 +296,7 @@ int main(int argc, char **argv)
 		case O_HIGH: name = "--high-water"; break;
 		case O_HARD: name = "--max-output"; break;
 		case O_BUDGET: name = "--budget"; break;
+		case O_BACKLOG: name = "--backlog"; break;
 		default: usage(stderr); return 2;
 		}
 		if (parse_size(optarg, &v) < 0) {
@@ -292,7 +308,7 @@ int main(int argc, char **argv)
 			return 2;
 		}
 		if ((o == O_LINE || o == O_DEPTH || o == O_CONNS ||
-		     o == O_HIGH) &&
+		     o == O_HIGH || o == O_BACKLOG) &&
 		    v == 0) {
 			fprintf(stderr, "rockwired: %s must be at least 1\n",
 			        name);
@@ -315,6 +331,7 @@ int main(int argc, char **argv)
 		case O_HIGH: cfg.limits.out_high_water = v; break;
 		case O_HARD: cfg.limits.out_hard_limit = v; break;
 		case O_BUDGET: cfg.limits.global_budget = v; break;
+		case O_BACKLOG: cfg.backlog = v > 65535 ? 65535 : (int)v; break;
 		}
 	}
 	if (optind < argc) {
@@ -326,6 +343,15 @@ int main(int argc, char **argv)
 	if (cfg.use_stdio && cfg.n_listen) {
 		fprintf(stderr, "rockwired: --stdio excludes --socket and "
 		                "--listen\n");
+		return 2;
+	}
+	if ((cfg.socket_mode & 0007) && !cfg.allow_world) {
+		fprintf(stderr,
+		        "rockwired: --socket-mode %04o gives every local user "
+		        "access to an unauthenticated protocol; it may widen "
+		        "only to the group (e.g. 0660), or add "
+		        "--allow-world-access\n",
+		        cfg.socket_mode);
 		return 2;
 	}
 	if (cfg.limits.out_hard_limit &&

@@ -275,8 +275,26 @@ void srv__on_tick(uv_timer_t *t);
 
 int srv__start_stdio(srv *s);
 
+/* ---- sockpath.c --------------------------------------------------------- */
+
+/* "uid N (name)", or "uid N" when the name is unknown. */
+void srv__owner_text(uid_t uid, char *buf, size_t size);
+/* Resolves the default socket path into `path` and prepares its
+ * directory (creates /tmp/rockwire-<euid> 0700 when missing; checks the
+ * directory with lstat: not a symlink, owned by us, not group or world
+ * writable). Returns an SRV_EXIT_* code, after logging why it is not
+ * SRV_EXIT_OK. */
+int srv__default_socket(char *path, size_t size);
+/* Checks what lstat found at a socket path we are to listen on: only a
+ * socket owned by our effective uid may be probed and reclaimed; a
+ * symlink, another kind of file or another user's socket is refused,
+ * naming its owner. Returns 0, or -1 after logging. */
+struct stat;
+int srv__check_existing(const char *path, const struct stat *st);
+
 /* ---- listen.c ----------------------------------------------------------- */
 
+/* Starts every listener; returns an SRV_EXIT_* code. */
 int srv__start_listeners(srv *s);
 void srv__close_listeners(srv *s);
 

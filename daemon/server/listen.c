@@ -19,16 +19,6 @@
 
 #include "server/internal.h"
 
-char *srv_default_socket_path(char *buf, size_t size)
-{
-	const char *xdg = getenv("XDG_RUNTIME_DIR");
-	if (xdg && *xdg)
-		snprintf(buf, size, "%s/rockwire.sock", xdg);
-	else
-		snprintf(buf, size, "/tmp/rockwire-%ld.sock", (long)getuid());
-	return buf;
-}
-
 static void peer_name(conn *c)
 {
 	struct sockaddr_storage ss;
@@ -115,12 +105,8 @@ static int reclaim_stale(const char *path)
 		           ? 0
 		           : (srv_log("error", "%s: %s", path, strerror(errno)),
 		              -1);
-	if (!S_ISSOCK(st.st_mode)) {
-		srv_log("error",
-		        "%s exists and is not a socket; refusing to touch it",
-		        path);
+	if (srv__check_existing(path, &st) < 0)
 		return -1;
-	}
 	memset(&sa, 0, sizeof sa);
 	sa.sun_family = AF_UNIX;
 	if (strlen(path) >= sizeof sa.sun_path) {
@@ -181,7 +167,7 @@ static srv_listener *listener_new(srv *s, enum srv_lst_kind kind)
 
 static int listener_listen(srv_listener *l)
 {
-	int rc = uv_listen(&l->h.s, 128, on_connection);
+	int rc = uv_listen(&l->h.s, l->srv->cfg->backlog, on_connection);
 
 	if (rc < 0) {
 		srv_log("error", "listen %s: %s", l->name, uv_strerror(rc));
@@ -219,6 +205,12 @@ static int start_unix(srv *s, const char *path, unsigned mode)
 	if (listener_listen(l) < 0)
 		return -1;
 	srv_log("info", "listening on %s (mode %04o)", path, mode);
+	if (mode & 0007)
+		srv_log("warning",
+		        "%s: mode %04o lets every local user connect "
+		        "(--allow-world-access); the protocol has no "
+		        "authentication",
+		        path, mode);
 	return 0;
 }
 
@@ -432,8 +424,8 @@ static void transport_text(srv *s)
 int srv__start_listeners(srv *s)
 {
 	const srv_config *cfg = s->cfg;
-	int fds[SRV_MAX_LISTEN], nfd, ignored;
-	char path[512];
+	int fds[SRV_MAX_LISTEN], nfd, ignored, rc;
+	char path[sizeof(((struct sockaddr_un *)0)->sun_path)];
 
 	nfd = srv__listen_fds(fds, SRV_MAX_LISTEN, &ignored);
 	if (ignored)
@@ -443,10 +435,9 @@ int srv__start_listeners(srv *s)
 		            : "not meant for this process");
 	for (int i = 0; i < nfd; i++)
 		if (start_activated(s, fds[i]) < 0)
-			return -1;
+			return SRV_EXIT_LISTEN;
 	for (int i = 0; i < cfg->n_listen; i++) {
 		const char *spec = cfg->listen[i];
-		int rc;
 		if (strncmp(spec, "unix:", 5) == 0)
 			rc = start_unix(s, spec + 5, cfg->socket_mode);
 		else if (strncmp(spec, "tcp:", 4) == 0)
@@ -459,15 +450,18 @@ int srv__start_listeners(srv *s)
 			rc = -1;
 		}
 		if (rc < 0)
-			return -1;
+			return SRV_EXIT_LISTEN;
 	}
-	if (!nfd && !cfg->n_listen &&
-	    start_unix(s, srv_default_socket_path(path, sizeof path),
-	               cfg->socket_mode) < 0)
-		return -1;
+	if (!nfd && !cfg->n_listen) {
+		if ((rc = srv__default_socket(path, sizeof path)) !=
+		    SRV_EXIT_OK)
+			return rc;
+		if (start_unix(s, path, cfg->socket_mode) < 0)
+			return SRV_EXIT_LISTEN;
+	}
 	s->listening = 1;
 	transport_text(s);
-	return 0;
+	return SRV_EXIT_OK;
 }
 
 void srv__close_listeners(srv *s)

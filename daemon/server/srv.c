@@ -14,6 +14,7 @@ void srv_config_default(srv_config *cfg)
 {
 	memset(cfg, 0, sizeof *cfg);
 	cfg->socket_mode = 0600;
+	cfg->backlog = 4096;
 	cfg->lines_per_turn = 20;
 	cfg->offload_bytes = 256 * 1024;
 	proto_limits_default(&cfg->limits);
@@ -65,8 +66,8 @@ int srv_run(const srv_config *cfg)
 		s->stats->transport = "stdio";
 		if (srv__start_stdio(s) < 0)
 			rc = SRV_EXIT_RUNTIME;
-	} else if (srv__start_listeners(s) < 0) {
-		rc = SRV_EXIT_LISTEN;
+	} else {
+		rc = srv__start_listeners(s);
 	}
 	if (rc != SRV_EXIT_OK) {
 		s->stopping = 1;

@@ -27,6 +27,9 @@ typedef struct srv_config {
 	int n_listen;
 	int allow_remote;     /* TCP on a non-loopback address */
 	unsigned socket_mode; /* Unix socket permission bits (0600) */
+	int allow_world;      /* socket_mode may give others access */
+	int backlog;          /* listen(2) backlog (the kernel caps it at
+	                         net.core.somaxconn) */
 	const char *log_path; /* log file (reopened on SIGHUP), or
 	                         NULL for stderr */
 	int lines_per_turn;   /* fairness: lines dispatched per turn */
@@ -36,9 +39,17 @@ typedef struct srv_config {
 } srv_config;
 
 void srv_config_default(srv_config *cfg);
-/* The default socket path: $XDG_RUNTIME_DIR/rockwire.sock, else
- * /tmp/rockwire-<uid>.sock. Writes into buf; returns buf. */
-char *srv_default_socket_path(char *buf, size_t size);
+/* Writes the default socket path into buf: $XDG_RUNTIME_DIR/rockwire.sock
+ * when XDG_RUNTIME_DIR is an absolute path, else
+ * /tmp/rockwire-<euid>/rockwire.sock (protocol-docs/limits.md, "Default
+ * socket path"). Returns 0, or -1 when the path does not fit in `size` or
+ * in a socket address. Checks nothing on disk. */
+int srv_default_socket_path(char *buf, size_t size);
+/* Checks a --listen spec before anything is opened: unix:PATH with a path
+ * that fits a socket address, or tcp:HOST:PORT / tcp:[V6]:PORT with a
+ * decimal port in 1..65535 (0 picks a free one). Returns 0, or -1 with
+ * the reason in err. The host is checked when listening. */
+int srv_check_listen_spec(const char *spec, char *err, size_t size);
 /* Runs the daemon until it is told to stop (signal, or EOF in stdio mode).
  * With no listener and no --stdio, listens on sockets passed by the
  * service manager, else on the default socket path. Returns an

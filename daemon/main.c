@@ -59,6 +59,13 @@ static void usage(FILE *f)
 	    "  --max-batch N        requests per batch (default 10000)\n"
 	    "  --max-depth N        JSON nesting depth (default 64)\n"
 	    "  --max-connections N  concurrent connections (default 1024)\n"
+	    "  --max-per-peer N     connections per peer: a uid on Unix\n"
+	    "                       sockets, an address on TCP (all of\n"
+	    "                       loopback is one); the daemon's own uid\n"
+	    "                       is exempt (default 128; 0 = no cap)\n"
+	    "  --owner-reserve N    connections kept for the daemon's own\n"
+	    "                       uid on Unix sockets (default 16, or an\n"
+	    "                       eighth of --max-connections if less)\n"
 	    "  --high-water BYTES   unsent answers (or buffered input) per\n"
 	    "                       connection before reading pauses\n"
 	    "                       (default 1M)\n"
@@ -72,6 +79,9 @@ static void usage(FILE *f)
 	    "                       off)\n"
 	    "  --idle-timeout S     close a connection idle this long\n"
 	    "                       (default 0 = never)\n"
+	    "  --tcp-idle-timeout S the same for TCP connections, which any\n"
+	    "                       local user can open (default 120; the\n"
+	    "                       shorter of the two applies; 0 = off)\n"
 	    "  --drain-timeout S    on SIGTERM, close what is left after S\n"
 	    "                       seconds (default 8)\n"
 	    "  --lines-per-turn N   fairness: lines per connection per loop\n"
@@ -158,7 +168,10 @@ int main(int argc, char **argv)
 		O_STALL,
 		O_DRAIN,
 		O_WORLD,
-		O_BACKLOG
+		O_BACKLOG,
+		O_PER_PEER,
+		O_RESERVE,
+		O_TCP_IDLE
 	};
 	static const struct option opts[] = {
 	    {"stdio", no_argument, NULL, 'i'},
@@ -175,6 +188,9 @@ int main(int argc, char **argv)
 	    {"max-batch", required_argument, NULL, O_BATCH},
 	    {"max-depth", required_argument, NULL, O_DEPTH},
 	    {"max-connections", required_argument, NULL, O_CONNS},
+	    {"max-per-peer", required_argument, NULL, O_PER_PEER},
+	    {"owner-reserve", required_argument, NULL, O_RESERVE},
+	    {"tcp-idle-timeout", required_argument, NULL, O_TCP_IDLE},
 	    {"high-water", required_argument, NULL, O_HIGH},
 	    {"max-output", required_argument, NULL, O_HARD},
 	    {"budget", required_argument, NULL, O_BUDGET},
@@ -265,9 +281,11 @@ int main(int argc, char **argv)
 		case O_IDLE:
 		case O_STALL:
 		case O_DRAIN:
-			name = o == O_IDLE    ? "--idle-timeout"
-			       : o == O_STALL ? "--stall-timeout"
-			                      : "--drain-timeout";
+		case O_TCP_IDLE:
+			name = o == O_IDLE       ? "--idle-timeout"
+			       : o == O_STALL    ? "--stall-timeout"
+			       : o == O_TCP_IDLE ? "--tcp-idle-timeout"
+			                         : "--drain-timeout";
 			if (parse_seconds(optarg, &secs) < 0) {
 				fprintf(stderr,
 				        "rockwired: %s: '%s' is not a "
@@ -279,6 +297,8 @@ int main(int argc, char **argv)
 				cfg.limits.idle_timeout_s = secs;
 			else if (o == O_STALL)
 				cfg.limits.stall_timeout_s = secs;
+			else if (o == O_TCP_IDLE)
+				cfg.tcp_idle_timeout_s = secs;
 			else
 				cfg.limits.drain_timeout_s = secs;
 			continue;
@@ -297,6 +317,8 @@ int main(int argc, char **argv)
 		case O_HARD: name = "--max-output"; break;
 		case O_BUDGET: name = "--budget"; break;
 		case O_BACKLOG: name = "--backlog"; break;
+		case O_PER_PEER: name = "--max-per-peer"; break;
+		case O_RESERVE: name = "--owner-reserve"; break;
 		default: usage(stderr); return 2;
 		}
 		if (parse_size(optarg, &v) < 0) {
@@ -332,6 +354,8 @@ int main(int argc, char **argv)
 		case O_HARD: cfg.limits.out_hard_limit = v; break;
 		case O_BUDGET: cfg.limits.global_budget = v; break;
 		case O_BACKLOG: cfg.backlog = v > 65535 ? 65535 : (int)v; break;
+		case O_PER_PEER: cfg.max_per_peer = v; break;
+		case O_RESERVE: cfg.owner_reserve = v; break;
 		}
 	}
 	if (optind < argc) {
@@ -343,6 +367,14 @@ int main(int argc, char **argv)
 	if (cfg.use_stdio && cfg.n_listen) {
 		fprintf(stderr, "rockwired: --stdio excludes --socket and "
 		                "--listen\n");
+		return 2;
+	}
+	if (cfg.owner_reserve != SRV_RESERVE_AUTO &&
+	    cfg.owner_reserve >= cfg.limits.max_conns) {
+		fprintf(stderr,
+		        "rockwired: --owner-reserve (%zu) must be below "
+		        "--max-connections (%zu)\n",
+		        cfg.owner_reserve, cfg.limits.max_conns);
 		return 2;
 	}
 	if ((cfg.socket_mode & 0007) && !cfg.allow_world) {

@@ -160,6 +160,8 @@ void proto__write_counters(proto_call *c)
 	proto_w_int(c, "connections_open", (long long)s->connections_open);
 	proto_w_int(c, "connections_refused",
 	            (long long)s->connections_refused);
+	proto_w_int(c, "connections_dropped",
+	            (long long)s->connections_dropped);
 	proto_w_int(c, "connections_closed_slow",
 	            (long long)s->connections_closed_slow);
 	proto_w_int(c, "connections_closed_idle",

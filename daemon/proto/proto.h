@@ -62,6 +62,8 @@ typedef struct proto_server_stats {
 	uint64_t connections_total;
 	uint64_t connections_open;
 	uint64_t connections_refused;
+	uint64_t connections_dropped; /* accept failed (out of descriptors):
+	                                 closed unanswered */
 	uint64_t connections_closed_slow;
 	uint64_t connections_closed_idle;
 	uint64_t lines_oversized;

@@ -99,6 +99,7 @@ void srv__conn_unref(conn *c)
 		c->next->prev = c->prev;
 	assert(s->stats->connections_open > 0);
 	s->stats->connections_open--;
+	srv__peer_detach(c);
 	srv_lines_free(&c->lines);
 	proto_buf_free(&c->pending);
 	proto_buf_free(&c->work_out);
@@ -106,8 +107,13 @@ void srv__conn_unref(conn *c)
 	free(c->work_line);
 	free(c->in_buf);
 	proto_session_free(c->session);
+	if (conn_has(c, CF_REFUSED)) {
+		assert(s->refusing > 0);
+		s->refusing--;
+	}
 	free(c);
 	budget_check(s);
+	srv__listen_resume(s);
 	srv__maybe_finish(s);
 }
 
@@ -180,9 +186,16 @@ void srv__conn_close(conn *c)
 void srv__conn_check_done(conn *c)
 {
 	if (conn_closing(c) || !conn_eof(c) ||
-	    conn_has(c, CF_BUSY | CF_WRITING) || c->pending.len ||
+	    conn_has(c, CF_BUSY | CF_WRITING | CF_LINGER) || c->pending.len ||
 	    srv_lines_buffered(&c->lines))
 		return;
+	if (conn_has(c, CF_REFUSED) && conn_has(c, CF_IN_OPEN)) {
+		/* the client may not have sent its request yet */
+		srv__conn_linger(c);
+		return;
+	}
+	/* Unread input would make the close a reset, which can cost the
+	 * peer the answers it has not read yet. */
 	if (c->srv->stopping)
 		srv__drain_kernel(c, 0);
 	srv__conn_close(c);

@@ -2,8 +2,9 @@
  * outside daemon/server/: the daemon state (srv), a connection (conn) and
  * a listener, and the srv__ functions each concern offers the others.
  *
- *   log.c       log lines, the log file
+ *   log.c       log lines, the log file, rate-limited warnings
  *   conn.c      connection lifetime (conn_ref / conn_unref), accounting
+ *   peer.c      peers (uid or address) and admission of connections
  *   read.c      the read path: streams, files, pausing, the kernel drain
  *   dispatch.c  the ready list and fair turns: lines to the protocol
  *   pool.c      the thread pool: heavy lines off the event loop
@@ -11,6 +12,7 @@
  *   timer.c     the periodic tick: idle and slow connections
  *   stdio.c     --stdio (pipes, terminals, files)
  *   listen.c    Unix, TCP and activated listeners, accepting
+ *   sockpath.c  the default socket path and checks on socket paths
  *   shutdown.c  signals, draining, the end of the loop
  *   srv.c       configuration defaults and srv_run, which wires them
  *
@@ -45,6 +47,10 @@
 #define SRV_READ_CHUNK     65536
 #define SRV_TICK_MS        250         /* idle and slow-reader checks */
 #define SRV_STALL_PROGRESS (64u << 10) /* bytes that count as progress */
+#define SRV_LOG_BURST      5           /* rate-limited warnings: at most */
+#define SRV_LOG_WINDOW_MS  10000       /* this many per window */
+#define SRV_REFUSING_MAX   8           /* refusals in flight, at most */
+#define SRV_LINGER_MS      2000        /* a refused peer's time to close */
 
 typedef struct srv srv;
 typedef struct conn conn;
@@ -75,9 +81,30 @@ enum conn_flag {
 	CF_IN_FULL = 1u << 8,     /* input above the high-water, a line in */
 	CF_BUDGET_WAIT = 1u << 9, /* reads wait for the global budget */
 	CF_PEER_DONE = 1u << 10,  /* the peer stopped sending */
-	CF_DROP_TAIL = 1u << 11   /* at the end, an unfinished line is
+	CF_DROP_TAIL = 1u << 11,  /* at the end, an unfinished line is
 	                             dropped (shutdown cut it short) */
+	CF_REFUSED = 1u << 12,    /* refused at accept: one error, close */
+	CF_LINGER = 1u << 13      /* written and shut down: input discarded
+	                             until the peer closes (or a timeout) */
 };
+
+/* Who is on the other end of connections (peer.c). */
+typedef struct srv_peer {
+	struct srv_peer *next;
+	char key[64];     /* "uid 1000", "loopback", "192.0.2.7", ... */
+	int owner;        /* the uid the daemon runs as */
+	size_t conns;     /* connections open */
+	size_t pool_jobs; /* lines in the thread pool */
+} srv_peer;
+
+/* A rate limiter for warnings: SRV_LOG_BURST per SRV_LOG_WINDOW_MS, then
+ * one line saying how many were not logged. */
+typedef struct srv_ratelimit {
+	const char *what; /* "refused-connection warnings" */
+	uint64_t start_ms;
+	unsigned count;
+	unsigned long suppressed;
+} srv_ratelimit;
 
 typedef union srv_handle {
 	uv_handle_t h;
@@ -96,6 +123,7 @@ struct conn {
 	enum conn_state state;
 	unsigned flags; /* enum conn_flag bits */
 	int refs;
+	srv_peer *peer; /* NULL for stdio (or when out of memory) */
 
 	enum srv_io in_kind;
 	srv_handle in;
@@ -110,6 +138,8 @@ struct conn {
 	uv_file out_fd;
 	uv_fs_t out_req;
 	uv_write_t wreq;
+	uv_shutdown_t sreq;
+	uint64_t linger_ms; /* when lingering began */
 
 	proto_buf pending; /* answers not yet handed to a write */
 	char *wdata;       /* the write in flight */
@@ -141,6 +171,7 @@ typedef struct srv_listener {
 	enum srv_lst_kind kind;
 	int open;
 	int activated; /* passed in by the service manager */
+	int deferred;  /* a connection waits in libuv, not yet accepted */
 	char *path;    /* Unix path we created, to remove */
 	dev_t dev;
 	ino_t ino;
@@ -167,6 +198,12 @@ struct srv {
 	int stopping;
 	int over_budget;
 	int exit_code;
+	srv_peer *peers;
+	size_t conn_cap; /* max_conns, lowered to fit the fd limit */
+	long fd_limit;   /* RLIMIT_NOFILE, 0 when unlimited */
+	int fd_warned;   /* "out of file descriptors" logged */
+	size_t refusing; /* refused connections not yet freed */
+	srv_ratelimit rl_refused;
 	unsigned long next_id;
 	char read_buf[SRV_READ_CHUNK];
 	char transport[320];
@@ -233,9 +270,34 @@ uint64_t srv__conn_sent(const conn *c);
  * the global budget. */
 void srv__conn_account(conn *c);
 
+/* ---- peer.c ------------------------------------------------------------- */
+
+/* Finds or makes the connection's peer and counts the connection. */
+void srv__peer_attach(conn *c);
+void srv__peer_detach(conn *c);
+/* Sets conn_cap from --max-connections and the descriptor limit. */
+void srv__fd_budget(srv *s);
+/* NULL when the (attached, counted) connection may be served; else a
+ * short name of the rule that refuses it, with the client's message in
+ * `why`. */
+const char *srv__admit(conn *c, char *why, size_t size);
+
+/* ---- log.c -------------------------------------------------------------- */
+
+/* 1 when a rate-limited warning may be logged now. */
+int srv__ratelimit(srv_ratelimit *rl, uint64_t now_ms);
+/* Logs how many were not logged, once their window is over. */
+void srv__ratelimit_flush(srv_ratelimit *rl, uint64_t now_ms);
+
 /* ---- read.c ------------------------------------------------------------- */
 
 void srv__read_stop(conn *c);
+/* Lingering close of a socket connection whose last bytes are written:
+ * shuts down our side (FIN), then discards input until the peer closes,
+ * so that a request it sent late cannot turn the close into a reset that
+ * destroys the answer unread (a refusal's -32000). timer.c closes it
+ * after SRV_LINGER_MS. */
+void srv__conn_linger(conn *c);
 /* Reads while nothing holds the connection back: its own unsent output,
  * its own buffered input, or the global budget. */
 void srv__conn_update_read(conn *c);
@@ -296,6 +358,12 @@ int srv__check_existing(const char *path, const struct stat *st);
 
 /* Starts every listener; returns an SRV_EXIT_* code. */
 int srv__start_listeners(srv *s);
+/* Accepts what waits in listeners that deferred accepting (too many
+ * refusals in flight). */
+void srv__listen_resume(srv *s);
+/* 1 for 127.0.0.0/8, ::1 and ::ffff:127.0.0.0/104. */
+struct sockaddr;
+int srv__is_loopback(const struct sockaddr *sa);
 void srv__close_listeners(srv *s);
 
 /* ---- shutdown.c --------------------------------------------------------- */

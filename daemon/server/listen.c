@@ -41,16 +41,45 @@ static void peer_name(conn *c)
 	snprintf(c->name + n, sizeof c->name - n, "(%s:%d)", host, port);
 }
 
+/* Answers a refused connection with one -32000 line and closes it once
+ * the line is written. */
+static void refuse(conn *c, const char *rule, const char *why)
+{
+	srv *s = c->srv;
+
+	s->stats->connections_refused++;
+	if (srv__ratelimit(&s->rl_refused, uv_now(s->loop)))
+		srv_log("warning", "%s from %s: refused (%s; %llu open)",
+		        c->name, c->peer ? c->peer->key : "?", rule,
+		        (unsigned long long)s->stats->connections_open);
+	conn_set(c, CF_REFUSED);
+	s->refusing++;
+	proto_error_line(s->ctx, &c->pending, PROTO_SERVER_BUSY, NULL, why);
+	conn_set_state(c, CONN_EOF);
+	srv__conn_flush(c);
+}
+
 static void on_connection(uv_stream_t *server, int status)
 {
 	srv_listener *l = server->data;
 	srv *s = l->srv;
+	const char *rule;
+	char why[200];
 	conn *c;
 	int rc;
 
 	if (status < 0) {
-		srv_log("warning", "%s: accept: %s", l->name,
-		        uv_strerror(status));
+		/* libuv closes what it cannot accept (EMFILE) itself */
+		s->stats->connections_dropped++;
+		if (srv__ratelimit(&s->rl_refused, uv_now(s->loop)))
+			srv_log("warning", "%s: accept: %s", l->name,
+			        uv_strerror(status));
+		return;
+	}
+	if (s->refusing >= SRV_REFUSING_MAX) {
+		/* Leave it with libuv, which stops accepting until we take
+		 * it: refusals in flight hold descriptors. */
+		l->deferred = 1;
 		return;
 	}
 	c = srv__conn_new(s, l->kind == LST_TCP ? CONN_TCP : CONN_UNIX);
@@ -78,18 +107,23 @@ static void on_connection(uv_stream_t *server, int status)
 		uv_tcp_nodelay(&c->in.tcp, 1);
 		peer_name(c);
 	}
-	if (s->stats->connections_open > s->cfg->limits.max_conns) {
-		s->stats->connections_refused++;
-		srv_log("warning", "%s: refused, %zu connections open (limit)",
-		        c->name, s->cfg->limits.max_conns);
-		proto_error_line(s->ctx, &c->pending, PROTO_SERVER_BUSY, NULL,
-		                 "server busy: too many connections; retry "
-		                 "later");
-		conn_set_state(c, CONN_EOF);
-		srv__conn_flush(c);
+	srv__peer_attach(c);
+	if ((rule = srv__admit(c, why, sizeof why))) {
+		refuse(c, rule, why);
 		return;
 	}
 	srv__conn_update_read(c);
+}
+
+void srv__listen_resume(srv *s)
+{
+	for (int i = 0; i < s->n_lst && s->refusing < SRV_REFUSING_MAX; i++) {
+		srv_listener *l = &s->lst[i];
+		if (l->deferred && l->open) {
+			l->deferred = 0;
+			on_connection(&l->h.s, 0);
+		}
+	}
 }
 
 /* Reclaims a stale socket file at path: only when it is a socket and
@@ -214,8 +248,7 @@ static int start_unix(srv *s, const char *path, unsigned mode)
 	return 0;
 }
 
-/* 1 when the address is loopback: 127.0.0.0/8, ::1, or ::ffff:127.x. */
-static int is_loopback(const struct sockaddr *sa)
+int srv__is_loopback(const struct sockaddr *sa)
 {
 	if (sa->sa_family == AF_INET) {
 		const struct sockaddr_in *a = (const struct sockaddr_in *)sa;
@@ -302,7 +335,7 @@ static int start_tcp(srv *s, const char *spec)
 		        spec, gai_strerror(rc));
 		return -1;
 	}
-	loop = is_loopback(ai->ai_addr);
+	loop = srv__is_loopback(ai->ai_addr);
 	if (!loop && !s->cfg->allow_remote) {
 		srv_log("error",
 		        "--listen tcp:%s: not a loopback address; the protocol "
@@ -373,7 +406,7 @@ static int start_activated(srv *s, int fd)
 			snprintf(l->name, sizeof l->name, "unix:fd%d", fd);
 		rc = uv_pipe_open(&l->h.pipe, fd);
 	} else if (ss.ss_family == AF_INET || ss.ss_family == AF_INET6) {
-		int loop = is_loopback((struct sockaddr *)&ss);
+		int loop = srv__is_loopback((struct sockaddr *)&ss);
 		if (!loop && !s->cfg->allow_remote) {
 			char a[128];
 			addr_text((struct sockaddr *)&ss, a, sizeof a);

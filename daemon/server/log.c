@@ -1,5 +1,6 @@
 /* Logging: one line per event on stderr, which --log points at a file
- * (reopened on SIGHUP for rotation). */
+ * (reopened on SIGHUP for rotation); warnings a client can provoke at
+ * will (refused connections) go through a rate limiter. */
 #include <errno.h>
 #include <fcntl.h>
 #include <stdarg.h>
@@ -42,4 +43,28 @@ int srv_log_open(const char *path)
 	if (fd != STDERR_FILENO)
 		close(fd);
 	return 0;
+}
+
+int srv__ratelimit(srv_ratelimit *rl, uint64_t now_ms)
+{
+	srv__ratelimit_flush(rl, now_ms);
+	if (rl->count < SRV_LOG_BURST) {
+		rl->count++;
+		return 1;
+	}
+	rl->suppressed++;
+	return 0;
+}
+
+void srv__ratelimit_flush(srv_ratelimit *rl, uint64_t now_ms)
+{
+	if (now_ms - rl->start_ms < SRV_LOG_WINDOW_MS)
+		return;
+	if (rl->suppressed)
+		srv_log("warning", "%lu more %s not logged in the last %u s",
+		        rl->suppressed, rl->what,
+		        (unsigned)((now_ms - rl->start_ms) / 1000));
+	rl->start_ms = now_ms;
+	rl->count = 0;
+	rl->suppressed = 0;
 }

@@ -93,6 +93,11 @@ static void on_read(uv_stream_t *st, ssize_t nread, const uv_buf_t *buf)
 
 	if (conn_closing(c))
 		return;
+	if (conn_has(c, CF_LINGER)) {
+		if (nread < 0) /* the peer closed: done */
+			srv__conn_close(c);
+		return;
+	}
 	if (nread > 0) {
 		conn_feed(c, buf->base, (size_t)nread);
 	} else if (nread == UV_EOF) {
@@ -201,4 +206,33 @@ void srv__conn_peek_hangup(conn *c)
 		conn_clear(c, CF_BUDGET_WAIT);
 		srv__conn_update_read(c);
 	}
+}
+
+static void on_shutdown(uv_shutdown_t *req, int status)
+{
+	conn *c = req->data;
+
+	(void)status;
+	srv__conn_unref(c); /* the request's */
+}
+
+void srv__conn_linger(conn *c)
+{
+	assert(c->kind != CONN_STDIO && conn_has(c, CF_IN_OPEN));
+	if (conn_has(c, CF_LINGER))
+		return;
+	conn_set(c, CF_LINGER);
+	c->linger_ms = uv_now(c->srv->loop);
+	c->sreq.data = c;
+	srv__conn_ref(c);
+	if (uv_shutdown(&c->sreq, &c->in.s, on_shutdown) < 0) {
+		srv__conn_unref(c);
+		srv__conn_close(c);
+		return;
+	}
+	srv__read_stop(c);
+	if (uv_read_start(&c->in.s, on_alloc, on_read) < 0)
+		srv__conn_close(c);
+	else
+		conn_set(c, CF_READING);
 }

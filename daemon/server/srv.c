@@ -15,6 +15,9 @@ void srv_config_default(srv_config *cfg)
 	memset(cfg, 0, sizeof *cfg);
 	cfg->socket_mode = 0600;
 	cfg->backlog = 4096;
+	cfg->max_per_peer = 128;
+	cfg->owner_reserve = SRV_RESERVE_AUTO;
+	cfg->tcp_idle_timeout_s = 120;
 	cfg->lines_per_turn = 20;
 	cfg->offload_bytes = 256 * 1024;
 	proto_limits_default(&cfg->limits);
@@ -45,6 +48,8 @@ int srv_run(const srv_config *cfg)
 	if (srv__notify_open(&s->notify) < 0)
 		srv_log("warning", "NOTIFY_SOCKET unusable; not notifying");
 	s->stats = proto_ctx_server_stats(s->ctx);
+	s->rl_refused.what = "refused-connection warnings";
+	s->conn_cap = cfg->limits.max_conns;
 	uv_idle_init(s->loop, &s->idle);
 	s->idle.data = s;
 	uv_timer_init(s->loop, &s->drain_timer);
@@ -69,6 +74,8 @@ int srv_run(const srv_config *cfg)
 	} else {
 		rc = srv__start_listeners(s);
 	}
+	if (rc == SRV_EXIT_OK)
+		srv__fd_budget(s);
 	if (rc != SRV_EXIT_OK) {
 		s->stopping = 1;
 		s->stop_notified = 1;

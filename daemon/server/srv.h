@@ -19,6 +19,9 @@
  * activation (LISTEN_FDS), at most this many in all. */
 #define SRV_MAX_LISTEN 8
 
+/* owner_reserve's default: 16, or an eighth of max_conns when less. */
+#define SRV_RESERVE_AUTO ((size_t)-1)
+
 typedef struct srv_config {
 	int use_stdio; /* serve stdin/stdout */
 	/* "unix:PATH" or "tcp:HOST:PORT" ("tcp:[V6]:PORT"); HOST is a
@@ -28,13 +31,19 @@ typedef struct srv_config {
 	int allow_remote;     /* TCP on a non-loopback address */
 	unsigned socket_mode; /* Unix socket permission bits (0600) */
 	int allow_world;      /* socket_mode may give others access */
-	int backlog;          /* listen(2) backlog (the kernel caps it at
-	                         net.core.somaxconn) */
-	const char *log_path; /* log file (reopened on SIGHUP), or
-	                         NULL for stderr */
-	int lines_per_turn;   /* fairness: lines dispatched per turn */
-	size_t offload_bytes; /* lines at least this long go to the
-	                         thread pool (0 = never) */
+	/* listen(2) backlog (the kernel caps it at net.core.somaxconn) */
+	int backlog;
+	/* log file (reopened on SIGHUP), or NULL for stderr */
+	const char *log_path;
+	/* connections per peer other than the owner (0 = no cap) */
+	size_t max_per_peer;
+	/* connection slots only the owner's uid may take */
+	size_t owner_reserve;
+	/* idle timeout of TCP connections (0 = only --idle-timeout) */
+	double tcp_idle_timeout_s;
+	int lines_per_turn; /* fairness: lines dispatched per turn */
+	/* lines at least this long go to the thread pool (0 = never) */
+	size_t offload_bytes;
 	proto_limits limits;
 } srv_config;
 

@@ -16,10 +16,17 @@ static void conn_tick(conn *c, uint64_t now)
 	size_t unsent = srv__conn_unsent(c);
 	size_t hard = cfg->limits.out_hard_limit;
 	uint64_t stall = (uint64_t)(cfg->limits.stall_timeout_s * 1000);
-	uint64_t idle = (uint64_t)(cfg->limits.idle_timeout_s * 1000);
+	double idle_s = cfg->limits.idle_timeout_s;
+	uint64_t idle;
 	int held = (hard && unsent > hard) ||
 	           (c->srv->over_budget && conn_has(c, CF_PAUSED));
 
+	/* TCP connections, which any local user can open, have an idle
+	 * timeout of their own: the shorter of the two that are set. */
+	if (c->kind == CONN_TCP && cfg->tcp_idle_timeout_s > 0 &&
+	    (idle_s <= 0 || cfg->tcp_idle_timeout_s < idle_s))
+		idle_s = cfg->tcp_idle_timeout_s;
+	idle = (uint64_t)(idle_s * 1000);
 	if (sent != c->seen_sent) {
 		c->seen_sent = sent;
 		c->active_ms = now;
@@ -39,7 +46,7 @@ static void conn_tick(conn *c, uint64_t now)
 	}
 	if (idle && !conn_has(c, CF_BUSY) && now - c->active_ms >= idle) {
 		srv_log("info", "%s: closed after %.1f s idle", c->name,
-		        cfg->limits.idle_timeout_s);
+		        idle_s);
 		c->srv->stats->connections_closed_idle++;
 		srv__conn_close(c);
 	}
@@ -51,8 +58,18 @@ void srv__on_tick(uv_timer_t *t)
 	uint64_t now = uv_now(s->loop);
 	conn *c, *next;
 
+	srv__ratelimit_flush(&s->rl_refused, now);
 	for (c = s->conns; c; c = next) {
 		next = c->next;
+		if (conn_has(c, CF_LINGER) && !conn_closing(c)) {
+			if (now - c->linger_ms >= SRV_LINGER_MS) {
+				srv__conn_ref(c);
+				srv__conn_close(c);
+				next = c->next;
+				srv__conn_unref(c);
+			}
+			continue;
+		}
 		if (c->kind != CONN_STDIO && !conn_closing(c)) {
 			srv__conn_ref(c);
 			srv__conn_peek_hangup(c);

@@ -210,8 +210,11 @@ int main(int argc, char **argv)
 	double secs;
 	int o;
 
+	unsigned std_closed = srv_fix_std_fds();
+
 	gsl_set_error_handler_off();
 	srv_config_default(&cfg);
+	cfg.std_closed = std_closed;
 	while ((o = getopt_long(argc, argv, "", opts, NULL)) != -1) {
 		const char *name = NULL;
 		switch (o) {

@@ -103,9 +103,14 @@ static void on_read(uv_stream_t *st, ssize_t nread, const uv_buf_t *buf)
 	} else if (nread == UV_EOF) {
 		on_eof(c);
 	} else if (nread < 0) {
-		if (nread != UV_ECONNRESET)
+		if (c->kind == CONN_STDIO) {
+			srv_log("error", "stdin: read failed: %s",
+			        uv_strerror((int)nread));
+			c->srv->exit_code = SRV_EXIT_RUNTIME;
+		} else if (nread != UV_ECONNRESET) {
 			srv_log("warning", "%s: read: %s", c->name,
 			        uv_strerror((int)nread));
+		}
 		/* The peer is gone: nobody is left to answer. */
 		srv__conn_close(c);
 	}
@@ -125,9 +130,11 @@ static void on_file_read(uv_fs_t *req)
 			if (!conn_closing(c) && conn_has(c, CF_READING))
 				file_read_next(c);
 		} else {
-			if (n < 0)
-				srv_log("warning", "%s: read: %s", c->name,
+			if (n < 0) {
+				srv_log("error", "stdin: read failed: %s",
 				        uv_strerror((int)n));
+				c->srv->exit_code = SRV_EXIT_RUNTIME;
+			}
 			on_eof(c);
 		}
 	}

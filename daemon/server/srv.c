@@ -3,10 +3,12 @@
  * runs until shutdown and tears everything down. The concerns themselves
  * live in the files listed in internal.h. */
 #include <errno.h>
+#include <fcntl.h>
 #include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <unistd.h>
 
 #include "server/internal.h"
 
@@ -21,6 +23,20 @@ void srv_config_default(srv_config *cfg)
 	cfg->lines_per_turn = 20;
 	cfg->offload_bytes = 256 * 1024;
 	proto_limits_default(&cfg->limits);
+}
+
+unsigned srv_fix_std_fds(void)
+{
+	unsigned closed = 0;
+
+	for (int fd = 0; fd <= 2; fd++) {
+		if (fcntl(fd, F_GETFD) >= 0 || errno != EBADF)
+			continue;
+		/* the lowest free number is fd itself */
+		if (open("/dev/null", fd ? O_WRONLY : O_RDONLY) == fd)
+			closed |= 1u << fd;
+	}
+	return closed;
 }
 
 int srv_run(const srv_config *cfg)
@@ -69,8 +85,15 @@ int srv_run(const srv_config *cfg)
 
 	if (cfg->use_stdio) {
 		s->stats->transport = "stdio";
-		if (srv__start_stdio(s) < 0)
+		if (cfg->std_closed & 3) {
+			srv_log("error", "--stdio: %s closed: nowhere to %s",
+			        cfg->std_closed & 2 ? "stdout is" : "stdin is",
+			        cfg->std_closed & 2 ? "write answers"
+			                            : "read requests from");
 			rc = SRV_EXIT_RUNTIME;
+		} else if (srv__start_stdio(s) < 0) {
+			rc = SRV_EXIT_RUNTIME;
+		}
 	} else {
 		rc = srv__start_listeners(s);
 	}
@@ -99,6 +122,8 @@ int srv_run(const srv_config *cfg)
 		srv_log("warning", "loop closed with handles still open");
 	uv_tty_reset_mode();
 	proto_ctx_free(s->ctx);
+	if (rc == SRV_EXIT_OK)
+		rc = s->exit_code; /* an I/O failure while serving */
 	free(s);
 	return rc;
 }

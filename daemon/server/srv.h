@@ -23,7 +23,8 @@
 #define SRV_RESERVE_AUTO ((size_t)-1)
 
 typedef struct srv_config {
-	int use_stdio; /* serve stdin/stdout */
+	int use_stdio;       /* serve stdin/stdout */
+	unsigned std_closed; /* from srv_fix_std_fds */
 	/* "unix:PATH" or "tcp:HOST:PORT" ("tcp:[V6]:PORT"); HOST is a
 	 * numeric address or "localhost". */
 	const char *listen[SRV_MAX_LISTEN];
@@ -48,6 +49,12 @@ typedef struct srv_config {
 } srv_config;
 
 void srv_config_default(srv_config *cfg);
+/* Opens /dev/null on any of the descriptors 0, 1, 2 that is closed, so
+ * that no socket or loop descriptor opened later takes its number (logs
+ * or answers would go into it). Call first thing in main. Returns a bit
+ * set of those that were closed (1 = stdin, 2 = stdout, 4 = stderr), for
+ * srv_config.std_closed. */
+unsigned srv_fix_std_fds(void);
 /* Writes the default socket path into buf: $XDG_RUNTIME_DIR/rockwire.sock
  * when XDG_RUNTIME_DIR is an absolute path, else
  * /tmp/rockwire-<euid>/rockwire.sock (protocol-docs/limits.md, "Default

@@ -30,10 +30,20 @@ static void write_done(conn *c, int status, size_t n)
 {
 	conn_clear(c, CF_WRITING);
 	if (status < 0) {
-		if (!conn_closing(c) && status != UV_ECANCELED &&
-		    status != UV_EPIPE && status != UV_ECONNRESET)
+		if (c->kind == CONN_STDIO && status != UV_ECANCELED) {
+			/* Nobody else will tell: the answers are lost, and
+			 * the exit status must say so. */
+			srv_log(
+			    "error",
+			    "stdout: write failed: %s; %zu bytes of answers "
+			    "lost",
+			    uv_strerror(status), srv__conn_unsent(c));
+			c->srv->exit_code = SRV_EXIT_RUNTIME;
+		} else if (!conn_closing(c) && status != UV_ECANCELED &&
+		           status != UV_EPIPE && status != UV_ECONNRESET) {
 			srv_log("warning", "%s: write: %s", c->name,
 			        uv_strerror(status));
+		}
 		free(c->wdata);
 		c->wdata = NULL;
 		c->wlen = c->woff = 0;

@@ -20,7 +20,7 @@ import tempfile
 import threading
 import time
 
-from rwtest import DAEMON, Daemon, check, finish, run_tests
+from rwtest import DAEMON, Daemon, check, finish, run, run_tests
 
 
 def req(i, n=1):
@@ -307,6 +307,38 @@ def test_sigterm_under_load():
     d.stop()
 
 
+def test_stdio_errors():
+    """--stdio used to exit 0 without a word when its answers could not
+    be written (stdout closed, a full disk, a reader that went away)."""
+    line = b'{"jsonrpc":"2.0","id":1,"method":"rpc.discover"}\n'
+    cases = [
+        ("stdout closed", 'exec "$0" --stdio >&-', "stdout is closed"),
+        ("stdin closed", 'exec "$0" --stdio <&-', "stdin is closed"),
+        ("stdout /dev/full", 'exec "$0" --stdio >/dev/full',
+         "no space left"),
+        # the reader goes away: the answer (112 KB) is more than the
+        # pipe holds, so it cannot all be written before
+        ("stdout broken pipe",
+         '("$0" --stdio < "$1"; echo "rc=$?" >&2) | true', "broken pipe"),
+    ]
+    tmp = tempfile.mkdtemp(prefix="rw-stdio-")
+    req_file = os.path.join(tmp, "req")
+    with open(req_file, "wb") as f:
+        f.write(line)
+    for name, script, words in cases:
+        p = run(["sh", "-c", script, DAEMON, req_file], input=line,
+                timeout=20)
+        err = p.stderr.decode()
+        rc = p.returncode
+        if "rc=" in err:  # the daemon's own status, through the shell
+            rc = int(err.rsplit("rc=", 1)[1].split()[0])
+        check("--stdio, %s: exit 4" % name, rc == 4, (rc, err))
+        check("--stdio, %s: says so" % name, words in err, err)
+    p = run([DAEMON, "--stdio"], stdin=open(os.devnull), timeout=20)
+    check("--stdio </dev/null still exits 0 quietly",
+          p.returncode == 0 and p.stderr == b"", p.stderr)
+
+
 def main():
     if not os.path.exists(DAEMON):
         print("no daemon at", DAEMON)
@@ -318,7 +350,7 @@ def main():
     check("shared daemon still serving", d.serves())
     check("shared daemon exit 0", d.stop() == 0)
     run_tests([test_slow_rule, test_budget, test_sighup,
-               test_sigterm_under_load])
+               test_sigterm_under_load, test_stdio_errors])
     return finish()
 
 

@@ -20,8 +20,7 @@
 
 static void usage(FILE *f)
 {
-	fprintf(
-	    f,
+	fputs(
 	    "usage: rockwired [--stdio | --socket PATH | --listen SPEC...]"
 	    " [options]\n"
 	    "\n"
@@ -49,7 +48,10 @@ static void usage(FILE *f)
 	    "                       (default 4096, capped by somaxconn)\n"
 	    "  --log FILE           log to FILE instead of stderr; SIGHUP\n"
 	    "                       reopens it\n"
-	    "\n"
+	    "\n",
+	    f);
+	fputs(
+	    /* split: C guarantees string literals of 4095 bytes only */
 	    "Limits (see protocol-docs/limits.md; all shown by "
 	    "service.info):\n"
 	    "  --max-line BYTES     longest request line (default 64M)\n"
@@ -88,7 +90,16 @@ static void usage(FILE *f)
 	    "                       turn (default 20)\n"
 	    "  --offload BYTES      lines this long run in the thread pool\n"
 	    "                       (default 256K; 0 = never)\n"
-	    "  --help, --version\n"
+	    "  --offload-work N     so do shorter ones whose work (samples\n"
+	    "                       x angles, session defaults included) is\n"
+	    "                       at least N (default 1000; 0 = never)\n"
+	    "  --threads N          thread pool size (default 4, or\n"
+	    "                       UV_THREADPOOL_SIZE; at most 1024)\n"
+	    "  --pool-per-peer N    pool threads one peer may hold at once\n"
+	    "                       (default: the pool size - 1, at least 1)\n"
+	    "  --help, --version\n",
+	    f);
+	fputs(
 	    "\n"
 	    "Signals: SIGTERM/SIGINT stop accepting, answer what was read\n"
 	    "and exit 0 (a second one closes at once); SIGHUP reopens the\n"
@@ -99,7 +110,8 @@ static void usage(FILE *f)
 	    "\n"
 	    "Screening estimates only: not a substitute for qualified review,\n"
 	    "local regulations and licensed practice; never the sole basis\n"
-	    "for well-control decisions.\n");
+	    "for well-control decisions.\n",
+	    f);
 }
 
 /* Parses a non-negative integer with optional K/M/G suffix (binary). */
@@ -171,7 +183,10 @@ int main(int argc, char **argv)
 		O_BACKLOG,
 		O_PER_PEER,
 		O_RESERVE,
-		O_TCP_IDLE
+		O_TCP_IDLE,
+		O_OFFLOAD_WORK,
+		O_THREADS,
+		O_POOL_PEER
 	};
 	static const struct option opts[] = {
 	    {"stdio", no_argument, NULL, 'i'},
@@ -199,6 +214,9 @@ int main(int argc, char **argv)
 	    {"drain-timeout", required_argument, NULL, O_DRAIN},
 	    {"lines-per-turn", required_argument, NULL, O_TURN},
 	    {"offload", required_argument, NULL, O_OFFLOAD},
+	    {"offload-work", required_argument, NULL, O_OFFLOAD_WORK},
+	    {"threads", required_argument, NULL, O_THREADS},
+	    {"pool-per-peer", required_argument, NULL, O_POOL_PEER},
 	    {"help", no_argument, NULL, 'h'},
 	    {"version", no_argument, NULL, 'V'},
 	    {NULL, 0, NULL, 0},
@@ -316,6 +334,9 @@ int main(int argc, char **argv)
 		case O_CONNS: name = "--max-connections"; break;
 		case O_TURN: name = "--lines-per-turn"; break;
 		case O_OFFLOAD: name = "--offload"; break;
+		case O_OFFLOAD_WORK: name = "--offload-work"; break;
+		case O_THREADS: name = "--threads"; break;
+		case O_POOL_PEER: name = "--pool-per-peer"; break;
 		case O_HIGH: name = "--high-water"; break;
 		case O_HARD: name = "--max-output"; break;
 		case O_BUDGET: name = "--budget"; break;
@@ -333,7 +354,8 @@ int main(int argc, char **argv)
 			return 2;
 		}
 		if ((o == O_LINE || o == O_DEPTH || o == O_CONNS ||
-		     o == O_HIGH || o == O_BACKLOG) &&
+		     o == O_HIGH || o == O_BACKLOG || o == O_THREADS ||
+		     o == O_POOL_PEER) &&
 		    v == 0) {
 			fprintf(stderr, "rockwired: %s must be at least 1\n",
 			        name);
@@ -353,6 +375,9 @@ int main(int argc, char **argv)
 			    v ? (int)(v > 100000 ? 100000 : v) : 1;
 			break;
 		case O_OFFLOAD: cfg.offload_bytes = v; break;
+		case O_OFFLOAD_WORK: cfg.offload_work = v; break;
+		case O_THREADS: cfg.threads = v; break;
+		case O_POOL_PEER: cfg.pool_per_peer = v; break;
 		case O_HIGH: cfg.limits.out_high_water = v; break;
 		case O_HARD: cfg.limits.out_hard_limit = v; break;
 		case O_BUDGET: cfg.limits.global_budget = v; break;
@@ -370,6 +395,10 @@ int main(int argc, char **argv)
 	if (cfg.use_stdio && cfg.n_listen) {
 		fprintf(stderr, "rockwired: --stdio excludes --socket and "
 		                "--listen\n");
+		return 2;
+	}
+	if (cfg.threads > 1024) {
+		fprintf(stderr, "rockwired: --threads: at most 1024\n");
 		return 2;
 	}
 	if (cfg.owner_reserve != SRV_RESERVE_AUTO &&

@@ -170,6 +170,7 @@ void srv__conn_close(conn *c)
 		return;
 	conn_set_state(c, CONN_CLOSING);
 	srv__ready_remove(c);
+	srv__pool_cancel(c);
 	srv__conn_account(c);
 	if (conn_has(c, CF_IN_OPEN)) {
 		conn_clear(c, CF_IN_OPEN | CF_READING);

@@ -48,14 +48,28 @@ void srv__conn_schedule(conn *c)
 	}
 }
 
-/* Runs one line on the loop or hands it to the thread pool. */
+/* Runs one line on the loop or hands it to the thread pool. Long lines
+ * go to the pool unread; shorter ones are costed (rw_proto_cost: samples
+ * x angles, session defaults included) and go there when the work passes
+ * --offload-work, so a short line that asks for much never runs on the
+ * loop. */
 static void dispatch_line(conn *c, const char *line, size_t len)
 {
 	srv *s = c->srv;
+	const srv_config *cfg = s->cfg;
+	int heavy = cfg->offload_bytes && len >= cfg->offload_bytes;
 
-	if (s->cfg->offload_bytes && len >= s->cfg->offload_bytes &&
-	    srv__pool_submit(c, line, len) == 0)
+	if (!heavy && cfg->offload_work)
+		heavy =
+		    rw_proto_cost(c->session, line, len) >= cfg->offload_work;
+	if (heavy) {
+		if (srv__pool_submit(c, line, len) == 0)
+			return;
+		proto_error_line(s->ctx, &c->pending, PROTO_INTERNAL_ERROR,
+		                 NULL,
+		                 "out of memory: cannot take the request");
 		return;
+	}
 	if (rw_proto_handle(c->session, line, len, &c->pending)) {
 		c->pending.oom = 0;
 		proto_error_line(s->ctx, &c->pending, PROTO_INTERNAL_ERROR,

@@ -51,6 +51,7 @@
 #define SRV_LOG_WINDOW_MS  10000       /* this many per window */
 #define SRV_REFUSING_MAX   8           /* refusals in flight, at most */
 #define SRV_LINGER_MS      2000        /* a refused peer's time to close */
+#define SRV_TRIM_AFTER     (8u << 20)  /* bytes of a job that was large */
 
 typedef struct srv srv;
 typedef struct conn conn;
@@ -84,8 +85,10 @@ enum conn_flag {
 	CF_DROP_TAIL = 1u << 11,  /* at the end, an unfinished line is
 	                             dropped (shutdown cut it short) */
 	CF_REFUSED = 1u << 12,    /* refused at accept: one error, close */
-	CF_LINGER = 1u << 13      /* written and shut down: input discarded
+	CF_LINGER = 1u << 13,     /* written and shut down: input discarded
 	                             until the peer closes (or a timeout) */
+	CF_POOL_WAIT = 1u << 14   /* its line waits for a pool slot (with
+	                             CF_BUSY) */
 };
 
 /* Who is on the other end of connections (peer.c). */
@@ -157,6 +160,7 @@ struct conn {
 	uint64_t seen_sent;  /* bytes sent at the last tick */
 
 	uv_work_t work;
+	conn *pool_next; /* the pool queue (CF_POOL_WAIT) */
 	char *work_line;
 	size_t work_len;
 	proto_buf work_out;
@@ -204,6 +208,11 @@ struct srv {
 	int fd_warned;   /* "out of file descriptors" logged */
 	size_t refusing; /* refused connections not yet freed */
 	srv_ratelimit rl_refused;
+	conn *pool_head, *pool_tail; /* lines waiting for a pool slot */
+	size_t pool_threads;         /* libuv's thread pool size */
+	size_t pool_per_peer;        /* pool lines per peer at once */
+	size_t pool_running;         /* lines in the pool now */
+	int trim_pending;            /* a large job ended: trim memory */
 	unsigned long next_id;
 	char read_buf[SRV_READ_CHUNK];
 	char transport[320];
@@ -318,9 +327,19 @@ void srv__on_idle(uv_idle_t *h);
 
 /* ---- pool.c ------------------------------------------------------------- */
 
-/* Hands a copy of the line to the thread pool. Returns 0, or -1 when it
- * could not (out of memory), in which case nothing changed. */
+/* Hands a copy of the line to the thread pool, or to the pool queue when
+ * its peer holds its share of the pool already. Returns 0 (the answer,
+ * possibly an error, comes back through the connection), or -1 when out
+ * of memory, in which case nothing changed. */
 int srv__pool_submit(conn *c, const char *line, size_t len);
+/* A closing connection's line leaves the pool queue. */
+void srv__pool_cancel(conn *c);
+/* Reads the pool size (UV_THREADPOOL_SIZE) and sets the per-peer share
+ * and fewer malloc arenas. Before the first job. */
+void srv__pool_init(srv *s);
+/* From the tick: samples the resident size, and returns free memory to
+ * the system after a large job once the pool is idle. */
+void srv__memory_tick(srv *s);
 
 /* ---- write.c ------------------------------------------------------------ */
 

@@ -22,6 +22,7 @@ void srv_config_default(srv_config *cfg)
 	cfg->tcp_idle_timeout_s = 120;
 	cfg->lines_per_turn = 20;
 	cfg->offload_bytes = 256 * 1024;
+	cfg->offload_work = 1000;
 	proto_limits_default(&cfg->limits);
 }
 
@@ -46,6 +47,12 @@ int srv_run(const srv_config *cfg)
 	char msg[400];
 
 	signal(SIGPIPE, SIG_IGN);
+	if (cfg->threads) {
+		/* read by libuv when its pool first starts */
+		char n[24];
+		snprintf(n, sizeof n, "%zu", cfg->threads);
+		setenv("UV_THREADPOOL_SIZE", n, 1);
+	}
 	if (cfg->log_path && srv_log_open(cfg->log_path) < 0) {
 		srv_log("error", "--log %s: %s", cfg->log_path,
 		        strerror(errno));
@@ -65,6 +72,7 @@ int srv_run(const srv_config *cfg)
 		srv_log("warning", "NOTIFY_SOCKET unusable; not notifying");
 	s->stats = proto_ctx_server_stats(s->ctx);
 	s->rl_refused.what = "refused-connection warnings";
+	srv__pool_init(s);
 	s->conn_cap = cfg->limits.max_conns;
 	uv_idle_init(s->loop, &s->idle);
 	s->idle.data = s;

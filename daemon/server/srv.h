@@ -45,6 +45,13 @@ typedef struct srv_config {
 	int lines_per_turn; /* fairness: lines dispatched per turn */
 	/* lines at least this long go to the thread pool (0 = never) */
 	size_t offload_bytes;
+	/* shorter lines whose work estimate (rw_proto_cost) is at least
+	 * this go there too (0 = never) */
+	size_t offload_work;
+	/* pool lines one peer may hold at once (0 = pool size - 1) */
+	size_t pool_per_peer;
+	/* thread pool size (0 = UV_THREADPOOL_SIZE, else libuv's 4) */
+	size_t threads;
 	proto_limits limits;
 } srv_config;
 

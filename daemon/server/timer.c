@@ -59,6 +59,7 @@ void srv__on_tick(uv_timer_t *t)
 	conn *c, *next;
 
 	srv__ratelimit_flush(&s->rl_refused, now);
+	srv__memory_tick(s);
 	for (c = s->conns; c; c = next) {
 		next = c->next;
 		if (conn_has(c, CF_LINGER) && !conn_closing(c)) {

@@ -52,6 +52,8 @@ static void write_done(conn *c, int status, size_t n)
 	}
 	c->srv->stats->bytes_out += n;
 	c->out_done += n;
+	if (c->wlen >= SRV_TRIM_AFTER)
+		c->srv->trim_pending = 1;
 	free(c->wdata);
 	c->wdata = NULL;
 	c->wlen = c->woff = 0;

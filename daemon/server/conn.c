@@ -25,35 +25,73 @@ uint64_t srv__conn_sent(const conn *c)
 	return c->out_done;
 }
 
-/* Global budget: past it every connection stops reading; reading resumes
- * below three quarters of it. */
+/* Whether the budget holds this connection's reads back: everyone's past
+ * the whole budget; past all but its reserve (the last eighth), only
+ * those of connections holding more than the high-water mark, so new
+ * and small requests are still read and served. A peer that stopped
+ * sending is read to its end (what is left is in the kernel). */
+static int budget_holds(const srv *s, const conn *c)
+{
+	if (conn_has(c, CF_PEER_DONE) || s->over_budget == BUDGET_OK)
+		return 0;
+	return s->over_budget == BUDGET_FULL ||
+	       c->acct > s->cfg->limits.out_high_water;
+}
+
+static void budget_apply(conn *c)
+{
+	int hold = budget_holds(c->srv, c);
+
+	if (hold == conn_has(c, CF_BUDGET_WAIT))
+		return;
+	if (hold)
+		conn_set(c, CF_BUDGET_WAIT);
+	else
+		conn_clear(c, CF_BUDGET_WAIT);
+	srv__conn_update_read(c);
+}
+
+/* Global budget, in three states with hysteresis: past budget - reserve
+ * big connections wait (BUDGET_RESERVE), past the budget all do
+ * (BUDGET_FULL); back under three quarters of budget - reserve nobody
+ * waits. */
 static void budget_check(srv *s)
 {
 	size_t budget = s->cfg->limits.global_budget;
+	size_t soft = budget - budget / 8;
 	uint64_t now = s->stats->buffered_bytes;
+	int was = s->over_budget, st = was;
 	conn *c;
 
 	if (!budget)
 		return;
-	if (!s->over_budget && now > budget) {
-		s->over_budget = 1;
+	if (now > budget)
+		st = BUDGET_FULL;
+	else if (now > soft && st == BUDGET_OK)
+		st = BUDGET_RESERVE;
+	else if (now <= soft && st == BUDGET_FULL)
+		st = BUDGET_RESERVE;
+	if (now <= soft / 4 * 3)
+		st = BUDGET_OK;
+	if (st == was)
+		return;
+	s->over_budget = st;
+	if (st == BUDGET_FULL)
 		srv_log("warning",
 		        "%llu bytes buffered over all connections, past the "
 		        "budget of %zu: reads wait",
 		        (unsigned long long)now, budget);
-		for (c = s->conns; c; c = c->next) {
-			if (!conn_has(c, CF_PEER_DONE))
-				conn_set(c, CF_BUDGET_WAIT);
-			srv__conn_update_read(c);
-		}
-	} else if (s->over_budget && now <= budget / 4 * 3) {
-		s->over_budget = 0;
+	else if (st == BUDGET_RESERVE && was == BUDGET_OK)
+		srv_log("warning",
+		        "%llu bytes buffered over all connections, into the "
+		        "last eighth of the budget of %zu: connections holding "
+		        "more than %zu bytes wait, smaller ones are served",
+		        (unsigned long long)now, budget,
+		        s->cfg->limits.out_high_water);
+	else if (st == BUDGET_OK)
 		srv_log("info", "buffered bytes back under the budget");
-		for (c = s->conns; c; c = c->next) {
-			conn_clear(c, CF_BUDGET_WAIT);
-			srv__conn_update_read(c);
-		}
-	}
+	for (c = s->conns; c; c = c->next)
+		budget_apply(c);
 }
 
 void srv__conn_account(conn *c)
@@ -68,6 +106,8 @@ void srv__conn_account(conn *c)
 	s->stats->buffered_bytes += now;
 	c->acct = now;
 	budget_check(s);
+	if (s->over_budget == BUDGET_RESERVE && !conn_closing(c))
+		budget_apply(c); /* it may have grown past the mark */
 }
 
 void srv__conn_ref(conn *c)
@@ -147,9 +187,9 @@ conn *srv__conn_new(srv *s, enum conn_kind kind)
 	c->state = CONN_OPEN;
 	c->refs = 1;
 	c->in_fd = c->out_fd = -1;
-	if (s->over_budget)
+	if (s->over_budget == BUDGET_FULL)
 		conn_set(c, CF_BUDGET_WAIT);
-	c->active_ms = c->stall_ms = uv_now(s->loop);
+	c->active_ms = c->stall_ms = c->in_stall_ms = uv_now(s->loop);
 	srv_lines_init(&c->lines, s->cfg->limits.max_line);
 	proto_buf_init(&c->pending);
 	proto_buf_init(&c->work_out);
@@ -190,8 +230,8 @@ void srv__conn_check_done(conn *c)
 	    conn_has(c, CF_BUSY | CF_WRITING | CF_LINGER) || c->pending.len ||
 	    srv_lines_buffered(&c->lines))
 		return;
-	if (conn_has(c, CF_REFUSED) && conn_has(c, CF_IN_OPEN)) {
-		/* the client may not have sent its request yet */
+	if (conn_has(c, CF_LAST_WORD) && conn_has(c, CF_IN_OPEN)) {
+		/* the client may still be sending: let it read the error */
 		srv__conn_linger(c);
 		return;
 	}

@@ -59,6 +59,13 @@ typedef struct conn conn;
 enum srv_io { IO_NONE, IO_STREAM, IO_FILE };
 enum srv_lst_kind { LST_UNIX, LST_TCP };
 
+/* The global budget's state (conn.c). */
+enum srv_budget {
+	BUDGET_OK,      /* nobody waits for it */
+	BUDGET_RESERVE, /* in its last eighth: only big connections wait */
+	BUDGET_FULL     /* past it: every connection waits */
+};
+
 /* Where a connection came from. */
 enum conn_kind { CONN_STDIO, CONN_UNIX, CONN_TCP };
 
@@ -87,8 +94,10 @@ enum conn_flag {
 	CF_REFUSED = 1u << 12,    /* refused at accept: one error, close */
 	CF_LINGER = 1u << 13,     /* written and shut down: input discarded
 	                             until the peer closes (or a timeout) */
-	CF_POOL_WAIT = 1u << 14   /* its line waits for a pool slot (with
+	CF_POOL_WAIT = 1u << 14,  /* its line waits for a pool slot (with
 	                             CF_BUSY) */
+	CF_LAST_WORD = 1u << 15   /* closed by us after one error line:
+	                             lingers so the client can read it */
 };
 
 /* Who is on the other end of connections (peer.c). */
@@ -153,11 +162,14 @@ struct conn {
 	srv_lines lines;
 	proto_session *session;
 
-	size_t acct;         /* bytes counted in stats->buffered_bytes */
-	uint64_t active_ms;  /* last byte in or out */
-	uint64_t stall_ms;   /* start of the current progress window */
-	uint64_t stall_mark; /* bytes sent at stall_ms */
-	uint64_t seen_sent;  /* bytes sent at the last tick */
+	size_t acct;            /* bytes counted in stats->buffered_bytes */
+	uint64_t active_ms;     /* last byte in or out */
+	uint64_t stall_ms;      /* start of the current progress window */
+	uint64_t stall_mark;    /* bytes sent at stall_ms */
+	uint64_t seen_sent;     /* bytes sent at the last tick */
+	uint64_t in_bytes;      /* bytes received */
+	uint64_t in_stall_ms;   /* start of the input progress window */
+	uint64_t in_stall_mark; /* in_bytes at in_stall_ms */
 
 	uv_work_t work;
 	conn *pool_next; /* the pool queue (CF_POOL_WAIT) */
@@ -200,7 +212,7 @@ struct srv {
 	srv_notify notify;
 	int stop_notified;
 	int stopping;
-	int over_budget;
+	int over_budget; /* enum srv_budget */
 	int exit_code;
 	srv_peer *peers;
 	size_t conn_cap; /* max_conns, lowered to fit the fd limit */

@@ -52,7 +52,7 @@ static void refuse(conn *c, const char *rule, const char *why)
 		srv_log("warning", "%s from %s: refused (%s; %llu open)",
 		        c->name, c->peer ? c->peer->key : "?", rule,
 		        (unsigned long long)s->stats->connections_open);
-	conn_set(c, CF_REFUSED);
+	conn_set(c, CF_REFUSED | CF_LAST_WORD);
 	s->refusing++;
 	proto_error_line(s->ctx, &c->pending, PROTO_SERVER_BUSY, NULL, why);
 	conn_set_state(c, CONN_EOF);

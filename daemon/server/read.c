@@ -67,6 +67,7 @@ void srv__conn_update_read(conn *c)
 static void conn_feed(conn *c, const char *data, size_t n)
 {
 	c->srv->stats->bytes_in += n;
+	c->in_bytes += n;
 	c->active_ms = uv_now(c->srv->loop);
 	if (srv_lines_append(&c->lines, data, n)) {
 		srv_log("error", "%s: out of memory buffering input; closing",
@@ -181,6 +182,7 @@ void srv__drain_kernel(conn *c, int keep)
 		if (!keep)
 			continue;
 		c->srv->stats->bytes_in += (size_t)n;
+		c->in_bytes += (size_t)n;
 		if (srv_lines_append(&c->lines, c->srv->read_buf, (size_t)n))
 			break;
 	}

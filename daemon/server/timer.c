@@ -1,7 +1,57 @@
-/* The periodic tick (every SRV_TICK_MS): the slow-reader rule, the idle
- * timeout, and hang-up checks on connections whose reads wait for the
- * budget. */
+/* The periodic tick (every SRV_TICK_MS): the slow-reader rule, the
+ * stalled-input rule, the idle timeout, hang-up checks on connections
+ * whose reads wait for the budget, and memory sampling. */
+#include <stdio.h>
+
 #include "server/internal.h"
+
+/* The stalled-input rule (protocol-docs/limits.md): an unfinished line
+ * of more than the high-water mark must keep arriving, at least
+ * SRV_STALL_PROGRESS bytes per stall window, else the connection gets
+ * one error and is closed, and its bytes go back to the budget. Waiting
+ * for the budget is no excuse (those bytes are what holds it); waiting
+ * for its own answers to be read (paused) or for its request in the
+ * pool is. Returns 1 when it closed the connection. */
+static int input_tick(conn *c, uint64_t now, uint64_t stall)
+{
+	srv *s = c->srv;
+	size_t high = s->cfg->limits.out_high_water;
+	size_t unfinished = 0;
+	char why[200];
+
+	if (!conn_eof(c) && !conn_has(c, CF_PAUSED | CF_BUSY) &&
+	    !srv_lines_has_line(&c->lines))
+		unfinished = srv_lines_buffered(&c->lines);
+	if (unfinished <= high ||
+	    c->in_bytes - c->in_stall_mark >= SRV_STALL_PROGRESS) {
+		c->in_stall_ms = now;
+		c->in_stall_mark = c->in_bytes;
+		return 0;
+	}
+	if (now - c->in_stall_ms < stall)
+		return 0;
+	s->stats->connections_closed_slow++;
+	srv_log("warning",
+	        "%s: closed as slow: an unfinished line of %zu bytes grew "
+	        "by under %u bytes in %.1f s",
+	        c->name, unfinished, SRV_STALL_PROGRESS,
+	        s->cfg->limits.stall_timeout_s);
+	snprintf(why, sizeof why,
+	         "unfinished line of %zu bytes stalled: under %u bytes "
+	         "arrived in %.1f s; connection closed",
+	         unfinished, SRV_STALL_PROGRESS,
+	         s->cfg->limits.stall_timeout_s);
+	srv__read_stop(c);
+	srv_lines_free(&c->lines);
+	conn_set_state(c, CONN_EOF);
+	if (c->kind != CONN_STDIO)
+		conn_set(c, CF_LAST_WORD);
+	proto_error_line(s->ctx, &c->pending, PROTO_INVALID_REQUEST, NULL, why);
+	srv__conn_flush(c);
+	srv__update_pause(c);
+	srv__conn_check_done(c);
+	return 1;
+}
 
 /* The slow-reader rule (protocol-docs/limits.md): a socket connection
  * holding more than the hard bound of unsent output, or any paused one
@@ -27,6 +77,8 @@ static void conn_tick(conn *c, uint64_t now)
 	    (idle_s <= 0 || cfg->tcp_idle_timeout_s < idle_s))
 		idle_s = cfg->tcp_idle_timeout_s;
 	idle = (uint64_t)(idle_s * 1000);
+	if (input_tick(c, now, stall))
+		return;
 	if (sent != c->seen_sent) {
 		c->seen_sent = sent;
 		c->active_ms = now;

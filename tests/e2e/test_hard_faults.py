@@ -236,6 +236,84 @@ def test_budget():
     check("budget daemon exit 0", d.stop() == 0)
 
 
+def test_unfinished_lines():
+    """An unfinished line over the high-water mark must keep arriving
+    (the stalled-input rule); one that keeps coming is served."""
+    d = Daemon("--high-water", "256K", "--stall-timeout", "1")
+    s = d.connect(20)
+    s.sendall(b'{"jsonrpc":"2.0","id":1,"method":"x","params":{"s":"' +
+              b"y" * (1 << 20))
+    t0 = time.time()
+    line = s.makefile("rb").readline()
+    took = time.time() - t0
+    r = json.loads(line) if line else {}
+    print("stalled 1 MiB line answered after %.1f s: %s" % (took, line[:120]))
+    check("a stalled unfinished line gets one error",
+          r.get("error", {}).get("code") == -32600 and "stalled" in
+          r["error"].get("data", {}).get("reason", ""), line)
+    check("and its connection is closed", s.recv(10) == b"")
+    s.close()
+    check("counted as closed slow",
+          d.info()["counters"]["connections_closed_slow"] == 1)
+    check("others still served", d.serves())
+    # a big line that keeps coming (about 128 KiB every 0.5 s) is served
+    s = d.connect(30)
+    s.sendall(b'{"jsonrpc":"2.0","id":2,"method":"elastic.convert",'
+              b'"params":{"rho":2.4,"vs":1500,"vp":[3000')
+    chunk = b",3000" * 26000
+    for _ in range(8):
+        time.sleep(0.5)
+        s.sendall(chunk)
+    s.sendall(b"]}}\n")
+    r = json.loads(s.makefile("rb").readline() or b"{}")
+    check("a steady big line is served whole",
+          r.get("result", {}).get("n") == 8 * 26000 + 1, str(r)[:200])
+    s.close()
+    check("unfinished-line daemon exit 0", d.stop() == 0)
+
+
+def test_budget_reserve():
+    """Big unfinished lines that fill the budget leave its last eighth
+    to new and small requests."""
+    d = Daemon("--budget", "8M")
+    big = b'{"jsonrpc":"2.0","id":1,"method":"x","params":{"s":"' + \
+        b"y" * (1900 << 10)
+    socks = []
+
+    def send(s):
+        try:
+            s.sendall(big)
+        except OSError:
+            pass
+
+    ts = []
+    for _ in range(5):  # 9.5 MB in all, past the budget
+        s = d.connect(5)
+        socks.append(s)
+        ts.append(threading.Thread(target=send, args=(s,), daemon=True))
+        ts[-1].start()
+    time.sleep(1.5)
+    t0 = time.time()
+    try:
+        b = d.connect(10)
+        b.sendall(req(7))
+        r = json.loads(b.makefile("rb").readline() or b"{}")
+        b.close()
+    except OSError as e:
+        r = {"error": repr(e)}
+    print("small request beside 5 big unfinished lines: %.2f s" %
+          (time.time() - t0))
+    check("a small request is served while big lines fill the budget",
+          r.get("id") == 7 and "result" in r, r)
+    cnt = d.info()["counters"]
+    check("the big lines were held under the budget (%d bytes)" %
+          cnt["buffered_bytes"], cnt["buffered_bytes"] <= (8 << 20), cnt)
+    check("reserve logged", "last eighth of the budget" in d.logtext())
+    for s in socks:
+        s.close()
+    check("budget-reserve daemon exit 0", d.stop() == 0)
+
+
 def test_sighup():
     d0 = tempfile.mkdtemp(prefix="rw-hard-")
     log = os.path.join(d0, "daemon.log")
@@ -349,8 +427,9 @@ def main():
                test_heavy_does_not_stall], d)
     check("shared daemon still serving", d.serves())
     check("shared daemon exit 0", d.stop() == 0)
-    run_tests([test_slow_rule, test_budget, test_sighup,
-               test_sigterm_under_load, test_stdio_errors])
+    run_tests([test_slow_rule, test_budget, test_unfinished_lines,
+               test_budget_reserve, test_sighup, test_sigterm_under_load,
+               test_stdio_errors])
     return finish()
 
 

@@ -13,6 +13,7 @@ import atexit
 import ctypes
 import json
 import os
+import shutil
 import signal
 import socket
 import subprocess
@@ -130,10 +131,16 @@ def _end(p, timeout=5):
         p.wait()
 
 
+_dirs = []  # temporary directories of Daemon, removed at exit
+
+
 def end_all():
-    """Ends every process (and its group) started through this module."""
+    """Ends every process (and its group) started through this module
+    and removes the daemons' temporary directories."""
     while _procs:
         _end(_procs.pop())
+    while _dirs:
+        shutil.rmtree(_dirs.pop(), ignore_errors=True)
 
 
 def spawn(argv, preexec=None, **kw):
@@ -186,6 +193,7 @@ class Daemon:
     def __init__(self, *args, path=None, sock=True, env=None, preexec=None,
                  wait=True):
         self.dir = tempfile.mkdtemp(prefix="rw-e2e-")
+        _dirs.append(self.dir)
         self.path = path or os.path.join(self.dir, "rw.sock")
         self.logpath = os.path.join(self.dir, "daemon.log")
         self.log = open(self.logpath, "w+")

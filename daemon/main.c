@@ -20,8 +20,7 @@
 
 static void usage(FILE *f)
 {
-	fprintf(
-	    f,
+	fputs(
 	    "usage: rockwired [--stdio | --socket PATH | --listen SPEC...]"
 	    " [options]\n"
 	    "\n"
@@ -29,20 +28,30 @@ static void usage(FILE *f)
 	    "\n"
 	    "  --stdio              serve requests on stdin, answer on stdout\n"
 	    "  --socket PATH        listen on a Unix socket (same as --listen\n"
-	    "                       unix:PATH). With no listener given:\n"
-	    "                       sockets passed by the service manager\n"
-	    "                       (LISTEN_FDS), else\n"
+	    "                       unix:PATH; at most 107 bytes). With no\n"
+	    "                       listener given: sockets passed by the\n"
+	    "                       service manager (LISTEN_FDS), else\n"
 	    "                       $XDG_RUNTIME_DIR/rockwire.sock, else\n"
-	    "                       /tmp/rockwire-<uid>.sock\n"
+	    "                       /tmp/rockwire-<uid>/rockwire.sock (the\n"
+	    "                       directory made 0700 and checked)\n"
 	    "  --listen SPEC        unix:PATH or tcp:HOST:PORT (HOST numeric\n"
-	    "                       or localhost, [V6] for IPv6; port 0 picks\n"
-	    "                       one); repeatable, up to 8\n"
+	    "                       or localhost, [V6] for IPv6; PORT "
+	    "1..65535,\n"
+	    "                       0 picks one); repeatable, up to 8\n"
 	    "  --allow-remote       allow TCP beyond loopback (the protocol\n"
 	    "                       has no authentication)\n"
-	    "  --socket-mode MODE   octal permission bits (default 0600)\n"
+	    "  --socket-mode MODE   octal permission bits (default 0600); at\n"
+	    "                       most the owner's group (0660)\n"
+	    "  --allow-world-access let --socket-mode give others access\n"
+	    "                       (0666): any local user can connect\n"
+	    "  --backlog N          pending connections the kernel queues\n"
+	    "                       (default 4096, capped by somaxconn)\n"
 	    "  --log FILE           log to FILE instead of stderr; SIGHUP\n"
 	    "                       reopens it\n"
-	    "\n"
+	    "\n",
+	    f);
+	fputs(
+	    /* split: C guarantees string literals of 4095 bytes only */
 	    "Limits (see protocol-docs/limits.md; all shown by "
 	    "service.info):\n"
 	    "  --max-line BYTES     longest request line (default 64M)\n"
@@ -52,6 +61,13 @@ static void usage(FILE *f)
 	    "  --max-batch N        requests per batch (default 10000)\n"
 	    "  --max-depth N        JSON nesting depth (default 64)\n"
 	    "  --max-connections N  concurrent connections (default 1024)\n"
+	    "  --max-per-peer N     connections per peer: a uid on Unix\n"
+	    "                       sockets, an address on TCP (all of\n"
+	    "                       loopback is one); the daemon's own uid\n"
+	    "                       is exempt (default 128; 0 = no cap)\n"
+	    "  --owner-reserve N    connections kept for the daemon's own\n"
+	    "                       uid on Unix sockets (default 16, or an\n"
+	    "                       eighth of --max-connections if less)\n"
 	    "  --high-water BYTES   unsent answers (or buffered input) per\n"
 	    "                       connection before reading pauses\n"
 	    "                       (default 1M)\n"
@@ -65,13 +81,25 @@ static void usage(FILE *f)
 	    "                       off)\n"
 	    "  --idle-timeout S     close a connection idle this long\n"
 	    "                       (default 0 = never)\n"
+	    "  --tcp-idle-timeout S the same for TCP connections, which any\n"
+	    "                       local user can open (default 120; the\n"
+	    "                       shorter of the two applies; 0 = off)\n"
 	    "  --drain-timeout S    on SIGTERM, close what is left after S\n"
 	    "                       seconds (default 8)\n"
 	    "  --lines-per-turn N   fairness: lines per connection per loop\n"
 	    "                       turn (default 20)\n"
 	    "  --offload BYTES      lines this long run in the thread pool\n"
 	    "                       (default 256K; 0 = never)\n"
-	    "  --help, --version\n"
+	    "  --offload-work N     so do shorter ones whose work (samples\n"
+	    "                       x angles, session defaults included) is\n"
+	    "                       at least N (default 1000; 0 = never)\n"
+	    "  --threads N          thread pool size (default 4, or\n"
+	    "                       UV_THREADPOOL_SIZE; at most 1024)\n"
+	    "  --pool-per-peer N    pool threads one peer may hold at once\n"
+	    "                       (default: the pool size - 1, at least 1)\n"
+	    "  --help, --version\n",
+	    f);
+	fputs(
 	    "\n"
 	    "Signals: SIGTERM/SIGINT stop accepting, answer what was read\n"
 	    "and exit 0 (a second one closes at once); SIGHUP reopens the\n"
@@ -82,7 +110,8 @@ static void usage(FILE *f)
 	    "\n"
 	    "Screening estimates only: not a substitute for qualified review,\n"
 	    "local regulations and licensed practice; never the sole basis\n"
-	    "for well-control decisions.\n");
+	    "for well-control decisions.\n",
+	    f);
 }
 
 /* Parses a non-negative integer with optional K/M/G suffix (binary). */
@@ -149,7 +178,15 @@ int main(int argc, char **argv)
 		O_LOG,
 		O_IDLE,
 		O_STALL,
-		O_DRAIN
+		O_DRAIN,
+		O_WORLD,
+		O_BACKLOG,
+		O_PER_PEER,
+		O_RESERVE,
+		O_TCP_IDLE,
+		O_OFFLOAD_WORK,
+		O_THREADS,
+		O_POOL_PEER
 	};
 	static const struct option opts[] = {
 	    {"stdio", no_argument, NULL, 'i'},
@@ -157,6 +194,8 @@ int main(int argc, char **argv)
 	    {"listen", required_argument, NULL, O_LISTEN},
 	    {"allow-remote", no_argument, NULL, O_REMOTE},
 	    {"socket-mode", required_argument, NULL, O_MODE},
+	    {"allow-world-access", no_argument, NULL, O_WORLD},
+	    {"backlog", required_argument, NULL, O_BACKLOG},
 	    {"log", required_argument, NULL, O_LOG},
 	    {"max-line", required_argument, NULL, O_LINE},
 	    {"max-samples", required_argument, NULL, O_SAMPLES},
@@ -164,6 +203,9 @@ int main(int argc, char **argv)
 	    {"max-batch", required_argument, NULL, O_BATCH},
 	    {"max-depth", required_argument, NULL, O_DEPTH},
 	    {"max-connections", required_argument, NULL, O_CONNS},
+	    {"max-per-peer", required_argument, NULL, O_PER_PEER},
+	    {"owner-reserve", required_argument, NULL, O_RESERVE},
+	    {"tcp-idle-timeout", required_argument, NULL, O_TCP_IDLE},
 	    {"high-water", required_argument, NULL, O_HIGH},
 	    {"max-output", required_argument, NULL, O_HARD},
 	    {"budget", required_argument, NULL, O_BUDGET},
@@ -172,18 +214,25 @@ int main(int argc, char **argv)
 	    {"drain-timeout", required_argument, NULL, O_DRAIN},
 	    {"lines-per-turn", required_argument, NULL, O_TURN},
 	    {"offload", required_argument, NULL, O_OFFLOAD},
+	    {"offload-work", required_argument, NULL, O_OFFLOAD_WORK},
+	    {"threads", required_argument, NULL, O_THREADS},
+	    {"pool-per-peer", required_argument, NULL, O_POOL_PEER},
 	    {"help", no_argument, NULL, 'h'},
 	    {"version", no_argument, NULL, 'V'},
 	    {NULL, 0, NULL, 0},
 	};
 	srv_config cfg;
 	static char unix_spec[SRV_MAX_LISTEN][600];
+	char err[300];
 	size_t v;
 	double secs;
 	int o;
 
+	unsigned std_closed = srv_fix_std_fds();
+
 	gsl_set_error_handler_off();
 	srv_config_default(&cfg);
+	cfg.std_closed = std_closed;
 	while ((o = getopt_long(argc, argv, "", opts, NULL)) != -1) {
 		const char *name = NULL;
 		switch (o) {
@@ -198,10 +247,12 @@ int main(int argc, char **argv)
 				return 2;
 			}
 			if (o == 's') {
-				if (!*optarg || strlen(optarg) >= 500) {
+				if (strlen(optarg) >= 500) {
 					fprintf(stderr,
-					        "rockwired: --socket: "
-					        "empty or too long path\n");
+					        "rockwired: --socket: path of "
+					        "%zu bytes is longer than a "
+					        "socket address holds\n",
+					        strlen(optarg));
 					return 2;
 				}
 				snprintf(unix_spec[cfg.n_listen],
@@ -209,18 +260,19 @@ int main(int argc, char **argv)
 				         optarg);
 				cfg.listen[cfg.n_listen] =
 				    unix_spec[cfg.n_listen];
-				cfg.n_listen++;
-			} else if (strncmp(optarg, "unix:", 5) == 0 ||
-			           strncmp(optarg, "tcp:", 4) == 0) {
-				cfg.listen[cfg.n_listen++] = optarg;
 			} else {
-				fprintf(stderr,
-				        "rockwired: --listen: '%s' is "
-				        "not unix:PATH or tcp:HOST:PORT\n",
-				        optarg);
+				cfg.listen[cfg.n_listen] = optarg;
+			}
+			if (srv_check_listen_spec(cfg.listen[cfg.n_listen], err,
+			                          sizeof err) < 0) {
+				fprintf(stderr, "rockwired: %s: %s\n",
+				        o == 's' ? "--socket" : "--listen",
+				        err);
 				return 2;
 			}
+			cfg.n_listen++;
 			continue;
+		case O_WORLD: cfg.allow_world = 1; continue;
 		case O_REMOTE: cfg.allow_remote = 1; continue;
 		case O_LOG:
 			if (!*optarg) {
@@ -250,9 +302,11 @@ int main(int argc, char **argv)
 		case O_IDLE:
 		case O_STALL:
 		case O_DRAIN:
-			name = o == O_IDLE    ? "--idle-timeout"
-			       : o == O_STALL ? "--stall-timeout"
-			                      : "--drain-timeout";
+		case O_TCP_IDLE:
+			name = o == O_IDLE       ? "--idle-timeout"
+			       : o == O_STALL    ? "--stall-timeout"
+			       : o == O_TCP_IDLE ? "--tcp-idle-timeout"
+			                         : "--drain-timeout";
 			if (parse_seconds(optarg, &secs) < 0) {
 				fprintf(stderr,
 				        "rockwired: %s: '%s' is not a "
@@ -264,6 +318,8 @@ int main(int argc, char **argv)
 				cfg.limits.idle_timeout_s = secs;
 			else if (o == O_STALL)
 				cfg.limits.stall_timeout_s = secs;
+			else if (o == O_TCP_IDLE)
+				cfg.tcp_idle_timeout_s = secs;
 			else
 				cfg.limits.drain_timeout_s = secs;
 			continue;
@@ -278,9 +334,15 @@ int main(int argc, char **argv)
 		case O_CONNS: name = "--max-connections"; break;
 		case O_TURN: name = "--lines-per-turn"; break;
 		case O_OFFLOAD: name = "--offload"; break;
+		case O_OFFLOAD_WORK: name = "--offload-work"; break;
+		case O_THREADS: name = "--threads"; break;
+		case O_POOL_PEER: name = "--pool-per-peer"; break;
 		case O_HIGH: name = "--high-water"; break;
 		case O_HARD: name = "--max-output"; break;
 		case O_BUDGET: name = "--budget"; break;
+		case O_BACKLOG: name = "--backlog"; break;
+		case O_PER_PEER: name = "--max-per-peer"; break;
+		case O_RESERVE: name = "--owner-reserve"; break;
 		default: usage(stderr); return 2;
 		}
 		if (parse_size(optarg, &v) < 0) {
@@ -292,7 +354,8 @@ int main(int argc, char **argv)
 			return 2;
 		}
 		if ((o == O_LINE || o == O_DEPTH || o == O_CONNS ||
-		     o == O_HIGH) &&
+		     o == O_HIGH || o == O_BACKLOG || o == O_THREADS ||
+		     o == O_POOL_PEER) &&
 		    v == 0) {
 			fprintf(stderr, "rockwired: %s must be at least 1\n",
 			        name);
@@ -312,9 +375,15 @@ int main(int argc, char **argv)
 			    v ? (int)(v > 100000 ? 100000 : v) : 1;
 			break;
 		case O_OFFLOAD: cfg.offload_bytes = v; break;
+		case O_OFFLOAD_WORK: cfg.offload_work = v; break;
+		case O_THREADS: cfg.threads = v; break;
+		case O_POOL_PEER: cfg.pool_per_peer = v; break;
 		case O_HIGH: cfg.limits.out_high_water = v; break;
 		case O_HARD: cfg.limits.out_hard_limit = v; break;
 		case O_BUDGET: cfg.limits.global_budget = v; break;
+		case O_BACKLOG: cfg.backlog = v > 65535 ? 65535 : (int)v; break;
+		case O_PER_PEER: cfg.max_per_peer = v; break;
+		case O_RESERVE: cfg.owner_reserve = v; break;
 		}
 	}
 	if (optind < argc) {
@@ -326,6 +395,27 @@ int main(int argc, char **argv)
 	if (cfg.use_stdio && cfg.n_listen) {
 		fprintf(stderr, "rockwired: --stdio excludes --socket and "
 		                "--listen\n");
+		return 2;
+	}
+	if (cfg.threads > 1024) {
+		fprintf(stderr, "rockwired: --threads: at most 1024\n");
+		return 2;
+	}
+	if (cfg.owner_reserve != SRV_RESERVE_AUTO &&
+	    cfg.owner_reserve >= cfg.limits.max_conns) {
+		fprintf(stderr,
+		        "rockwired: --owner-reserve (%zu) must be below "
+		        "--max-connections (%zu)\n",
+		        cfg.owner_reserve, cfg.limits.max_conns);
+		return 2;
+	}
+	if ((cfg.socket_mode & 0007) && !cfg.allow_world) {
+		fprintf(stderr,
+		        "rockwired: --socket-mode %04o gives every local user "
+		        "access to an unauthenticated protocol; it may widen "
+		        "only to the group (e.g. 0660), or add "
+		        "--allow-world-access\n",
+		        cfg.socket_mode);
 		return 2;
 	}
 	if (cfg.limits.out_hard_limit &&

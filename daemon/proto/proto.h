@@ -65,13 +65,21 @@ typedef struct proto_server_stats {
 	uint64_t connections_total;
 	uint64_t connections_open;
 	uint64_t connections_refused;
+	uint64_t connections_dropped; /* accept failed (out of descriptors):
+	                                 closed unanswered */
 	uint64_t connections_closed_slow;
 	uint64_t connections_closed_idle;
 	uint64_t lines_oversized;
 	uint64_t bytes_in, bytes_out;
 	uint64_t buffered_bytes;
 	uint64_t reads_paused;
-	const char *transport; /* "stdio", "unix:PATH", ... */
+	uint64_t pool_waits;            /* lines that waited for their peer's
+	                                   share of the thread pool */
+	uint64_t memory_rss_bytes;      /* resident size (sampled 4 per s) */
+	uint64_t memory_trims;          /* free memory returned after large
+	                                   requests (malloc_trim) */
+	uint64_t memory_released_bytes; /* resident bytes those released */
+	const char *transport;          /* "stdio", "unix:PATH", ... */
 } proto_server_stats;
 
 typedef struct proto_ctx proto_ctx;

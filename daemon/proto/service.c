@@ -120,6 +120,8 @@ static void write_counters(proto_call *c)
 	proto_w_int(c, "connections_open", (long long)s->connections_open);
 	proto_w_int(c, "connections_refused",
 	            (long long)s->connections_refused);
+	proto_w_int(c, "connections_dropped",
+	            (long long)s->connections_dropped);
 	proto_w_int(c, "connections_closed_slow",
 	            (long long)s->connections_closed_slow);
 	proto_w_int(c, "connections_closed_idle",
@@ -129,6 +131,11 @@ static void write_counters(proto_call *c)
 	proto_w_int(c, "bytes_out", (long long)s->bytes_out);
 	proto_w_int(c, "buffered_bytes", (long long)s->buffered_bytes);
 	proto_w_int(c, "reads_paused", (long long)s->reads_paused);
+	proto_w_int(c, "pool_waits", (long long)s->pool_waits);
+	proto_w_int(c, "memory_rss_bytes", (long long)s->memory_rss_bytes);
+	proto_w_int(c, "memory_trims", (long long)s->memory_trims);
+	proto_w_int(c, "memory_released_bytes",
+	            (long long)s->memory_released_bytes);
 	proto_w_obj_end(c);
 }
 

@@ -48,6 +48,8 @@ int srv_lines_append(srv_lines *lb, const char *data, size_t n)
 		lb->buf = NULL;
 		lb->start = lb->len = lb->cap = lb->scan = 0;
 	}
+	if (!n)
+		return 0; /* data may be NULL: not even memchr on it */
 	if (lb->discarding) {
 		const char *nl = memchr(data, '\n', n);
 		if (!nl)
@@ -83,11 +85,13 @@ int srv_lines_append(srv_lines *lb, const char *data, size_t n)
 srv_line_status srv_lines_next(srv_lines *lb, const char **line, size_t *len)
 {
 	size_t avail = lb->len - lb->start;
-	const char *p = lb->buf + lb->start;
-	const char *nl;
+	const char *p, *nl;
 
+	/* An empty framer may have no buffer at all: no pointer arithmetic
+	 * on it (NULL + 0 is undefined in C). */
 	if (!avail)
 		return SRV_LINE_NONE;
+	p = lb->buf + lb->start;
 	nl = memchr(p + lb->scan, '\n', avail - lb->scan);
 	if (!nl) {
 		lb->scan = avail;
@@ -114,11 +118,11 @@ srv_line_status srv_lines_next(srv_lines *lb, const char **line, size_t *len)
 int srv_lines_has_line(srv_lines *lb)
 {
 	size_t avail = lb->len - lb->start;
-	const char *p = lb->buf + lb->start;
-	const char *nl;
+	const char *p, *nl;
 
 	if (avail <= lb->scan)
 		return 0;
+	p = lb->buf + lb->start;
 	nl = memchr(p + lb->scan, '\n', avail - lb->scan);
 	if (!nl) {
 		lb->scan = avail;

@@ -6,7 +6,6 @@ also validated against protocol-docs/openrpc.json."""
 import json
 import os
 import pty
-import select
 import signal
 import socket
 import stat
@@ -15,7 +14,7 @@ import threading
 import time
 
 from rwtest import (CLIENT, DAEMON, Checks, Daemon, call, read_lines, req,
-                    stdio, validate_response)
+                    run, spawn, stdio, validate_response)
 
 t = Checks()
 
@@ -67,21 +66,20 @@ check_schema(out_pipe.splitlines(), "stdio")
 rc, out_file, err = stdio(REQS, stdin_file="/tmp/rw-e2e-stdin-%d" % os.getpid())
 t.ok(rc == 0 and strip_counters(out_file) == strip_counters(out_pipe),
      "regular-file stdin gives the same answers")
-p = subprocess.run([DAEMON, "--stdio"], stdin=subprocess.DEVNULL,
-                   capture_output=True, timeout=20)
+p = run([DAEMON, "--stdio"], stdin=subprocess.DEVNULL, timeout=20)
 t.ok(p.returncode == 0 and p.stdout == b"", "/dev/null stdin: exit 0, no output")
 # stdout to a regular file
 with open("/tmp/rw-e2e-out-%d" % os.getpid(), "w+b") as f:
-    p = subprocess.run([DAEMON, "--stdio"], input=("\n".join(REQS) + "\n").encode(),
-                       stdout=f, stderr=subprocess.PIPE, timeout=20)
+    p = run([DAEMON, "--stdio"], input=("\n".join(REQS) + "\n").encode(),
+            stdout=f, stderr=subprocess.PIPE, timeout=20)
     f.seek(0)
     t.ok(strip_counters(f.read().decode()) == strip_counters(out_pipe),
          "regular-file stdout gives the same answers")
 
 # a terminal on stdin
 master, slave = pty.openpty()
-proc = subprocess.Popen([DAEMON, "--stdio"], stdin=slave,
-                        stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+proc = spawn([DAEMON, "--stdio"], stdin=slave,
+             stdout=subprocess.PIPE, stderr=subprocess.PIPE)
 os.close(slave)
 for line in REQS[:3]:
     os.write(master, line.encode() + b"\n")
@@ -154,8 +152,8 @@ c.close()
 d2.stop()
 
 # --- live daemon on the path: refused; stale socket: reclaimed -------------
-p = subprocess.run([DAEMON, "--socket", d.path], capture_output=True,
-                   timeout=20)
+p = run([DAEMON, "--socket", d.path],
+        timeout=20)
 t.ok(p.returncode == 3 and b"already listening" in p.stderr,
      "a second daemon on a live path exits 3 with a clear message (%d %r)"
      % (p.returncode, p.stderr[-200:]))
@@ -173,8 +171,8 @@ t.ok(d3.stop() == 0 and not os.path.exists(stale),
      "socket removed at exit")
 notsock = os.path.join(d.dir, "plain-file")
 open(notsock, "w").close()
-p = subprocess.run([DAEMON, "--socket", notsock], capture_output=True,
-                   timeout=20)
+p = run([DAEMON, "--socket", notsock],
+        timeout=20)
 t.ok(p.returncode == 3 and os.path.exists(notsock),
      "a path that is not a socket is refused and left alone")
 
@@ -197,42 +195,41 @@ t.ok(not os.path.exists(d.path), "socket file removed after SIGTERM")
 # --- client ------------------------------------------------------------------
 d4 = Daemon()
 env = dict(os.environ)
-p = subprocess.run([CLIENT, "--socket", d4.path, "call", "elastic.convert",
-                    "rho=2.65", "k=36.6", "mu=45"], capture_output=True,
-                   timeout=20)
+p = run([CLIENT, "--socket", d4.path, "call", "elastic.convert",
+         "rho=2.65", "k=36.6", "mu=45"],
+        timeout=20)
 res = json.loads(p.stdout)
 t.ok(p.returncode == 0 and abs(res["vp"] - 6037.6) < 0.1,
      "rockwire call prints the result as one line (%r)" % p.stdout[:100])
 t.ok(len(p.stdout.splitlines()) == 1, "compact output when not a terminal")
-p = subprocess.run([CLIENT, "--socket", d4.path, "call", "elastic.convert",
-                    "rho=2.65", "k=36.6"], capture_output=True, timeout=20)
+p = run([CLIENT, "--socket", d4.path, "call", "elastic.convert",
+         "rho=2.65", "k=36.6"], timeout=20)
 t.ok(p.returncode == 1 and b"-32602" in p.stderr and p.stdout == b"",
      "an error goes to stderr with exit 1 (%r)" % p.stderr)
-p = subprocess.run([CLIENT, "--socket", d4.path, "call", "elastic.convert",
-                    "rho=[2.2,2.3]", "vp=[3000,3100]", "vs=1500", "--table"],
-                   capture_output=True, timeout=20)
+p = run([CLIENT, "--socket", d4.path, "call", "elastic.convert",
+         "rho=[2.2,2.3]", "vp=[3000,3100]", "vs=1500", "--table"], timeout=20)
 head = p.stdout.decode().splitlines()
 t.ok(p.returncode == 0 and any("vp[m/s]" in h for h in head) and len(head) >= 3,
      "--table prints columns with units (%r)" % head[:2])
-p = subprocess.run([CLIENT, "--socket", d4.path, "call", "elastic.convert",
-                    "--params", '{"rho":2.3,"vp":3,"vs":1.5}',
-                    "units.velocity=km/s"], capture_output=True, timeout=20)
+p = run([CLIENT, "--socket", d4.path, "call", "elastic.convert",
+         "--params", '{"rho":2.3,"vp":3,"vs":1.5}',
+         "units.velocity=km/s"], timeout=20)
 t.ok(p.returncode == 0 and json.loads(p.stdout)["units"]["vp"] == "km/s",
      "--params and dotted names combine")
 many = "\n".join(req("elastic.convert", {"rho": 2.3, "vp": 3000, "vs": 1500},
                      id=i) for i in range(5000)) + "\n"
-p = subprocess.run([CLIENT, "--socket", d4.path, "send", "-"],
-                   input=many.encode(), capture_output=True, timeout=60)
+p = run([CLIENT, "--socket", d4.path, "send", "-"],
+        input=many.encode(), timeout=60)
 ids = [json.loads(x)["id"] for x in p.stdout.splitlines()]
 t.ok(p.returncode == 0 and ids == list(range(5000)),
      "rockwire send pipelines 5000 requests in order")
 # spawned default: nothing listens on the given path
-p = subprocess.run([CLIENT, "--socket", os.path.join(d4.dir, "nobody.sock"),
-                    "call", "service.info"], capture_output=True, timeout=20)
+p = run([CLIENT, "--socket", os.path.join(d4.dir, "nobody.sock"),
+         "call", "service.info"], timeout=20)
 t.ok(p.returncode == 0 and json.loads(p.stdout)["transport"] == "stdio",
      "with nothing listening the client spawns a private daemon")
-p = subprocess.run([CLIENT, "--socket", d4.path, "--spawn", "send"],
-                   input=many.encode(), capture_output=True, timeout=60)
+p = run([CLIENT, "--socket", d4.path, "--spawn", "send"],
+        input=many.encode(), timeout=60)
 t.ok(p.returncode == 0 and len(p.stdout.splitlines()) == 5000,
      "--spawn send works through a private daemon")
 t.ok(d4.stop() == 0, "daemon exits 0")

@@ -104,9 +104,8 @@ def check(out, err, rc, how):
 
 
 def feed(*args, inp=b"", timeout=60):
-    p = subprocess.run([rwtest.CLIENT, "--socket", d.path, "feed"] +
-                       list(args), input=inp, capture_output=True,
-                       timeout=timeout)
+    p = rwtest.run([rwtest.CLIENT, "--socket", d.path, "feed"] +
+                   list(args), input=inp, timeout=timeout)
     return p.returncode, p.stdout, p.stderr
 
 
@@ -234,7 +233,7 @@ try:
 
     # 7. Flushed per line through a pipe: the answer to record k is
     # readable before record k+1 is sent.
-    p = subprocess.Popen([rwtest.CLIENT, "--socket", d.path, "feed"] + MAP,
+    p = rwtest.spawn([rwtest.CLIENT, "--socket", d.path, "feed"] + MAP,
                          stdin=subprocess.PIPE, stdout=subprocess.PIPE,
                          stderr=subprocess.PIPE)
     ok = True
@@ -280,7 +279,7 @@ try:
 
     th = threading.Thread(target=serve_twice, daemon=True)
     th.start()
-    p = subprocess.Popen([rwtest.CLIENT, "--socket", d.path, "feed"] + MAP +
+    p = rwtest.spawn([rwtest.CLIENT, "--socket", d.path, "feed"] + MAP +
                          ["--connect", "127.0.0.1:%d" % port, "--reconnect",
                           "--idle-timeout", "1"],
                          stdout=subprocess.PIPE, stderr=subprocess.PIPE)

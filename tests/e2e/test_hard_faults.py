@@ -20,72 +20,7 @@ import tempfile
 import threading
 import time
 
-from rwtest import check, finish  # noqa: E402
-
-BUILD = os.environ.get("RW_BUILD", "build")
-DAEMON = os.path.join(BUILD, "rockwired")
-
-
-
-
-class Daemon:
-    def __init__(self, *args):
-        self.dir = tempfile.mkdtemp(prefix="rw-hard-")
-        self.sock = os.path.join(self.dir, "rw.sock")
-        self.log = os.path.join(self.dir, "log")
-        argv = [DAEMON, "--socket", self.sock] + list(args)
-        self.errf = open(self.log + ".stderr", "w")
-        self.p = subprocess.Popen(argv, stdin=subprocess.DEVNULL,
-                                  stdout=subprocess.DEVNULL, stderr=self.errf)
-        deadline = time.time() + 10
-        while time.time() < deadline:
-            try:
-                socket.socket(socket.AF_UNIX).connect(self.sock)
-                break
-            except OSError:
-                time.sleep(0.05)
-
-    def connect(self, timeout=30):
-        s = socket.socket(socket.AF_UNIX)
-        s.settimeout(timeout)
-        s.connect(self.sock)
-        return s
-
-    def logtext(self):
-        out = ""
-        for n in (self.log, self.log + ".stderr"):
-            if os.path.exists(n):
-                with open(n) as f:
-                    out += f.read()
-        return out
-
-    def info(self):
-        s = self.connect(10)
-        s.sendall(b'{"jsonrpc":"2.0","id":"i","method":"service.info"}\n')
-        r = json.loads(s.makefile("rb").readline())
-        s.close()
-        return r["result"]
-
-    def serves(self):
-        try:
-            s = self.connect(10)
-            s.sendall(req(1))
-            r = json.loads(s.makefile("rb").readline())
-            s.close()
-            return r.get("result", {}).get("vp") == 3000
-        except (OSError, ValueError):
-            return False
-
-    def stop(self):
-        if self.p.poll() is None:
-            self.p.terminate()
-        try:
-            rc = self.p.wait(15)
-        except subprocess.TimeoutExpired:
-            self.p.kill()
-            rc = self.p.wait()
-        self.errf.close()
-        return rc
+from rwtest import DAEMON, Daemon, check, finish, run, run_tests
 
 
 def req(i, n=1):
@@ -164,7 +99,7 @@ def test_flood(d):
         try:
             s = socket.socket(socket.AF_UNIX)
             s.settimeout(5)
-            s.connect(d.sock)
+            s.connect(d.path)
             if i % 3 == 0:
                 rst_close(s)
             elif i % 3 == 1:
@@ -301,6 +236,84 @@ def test_budget():
     check("budget daemon exit 0", d.stop() == 0)
 
 
+def test_unfinished_lines():
+    """An unfinished line over the high-water mark must keep arriving
+    (the stalled-input rule); one that keeps coming is served."""
+    d = Daemon("--high-water", "256K", "--stall-timeout", "1")
+    s = d.connect(20)
+    s.sendall(b'{"jsonrpc":"2.0","id":1,"method":"x","params":{"s":"' +
+              b"y" * (1 << 20))
+    t0 = time.time()
+    line = s.makefile("rb").readline()
+    took = time.time() - t0
+    r = json.loads(line) if line else {}
+    print("stalled 1 MiB line answered after %.1f s: %s" % (took, line[:120]))
+    check("a stalled unfinished line gets one error",
+          r.get("error", {}).get("code") == -32600 and "stalled" in
+          r["error"].get("data", {}).get("reason", ""), line)
+    check("and its connection is closed", s.recv(10) == b"")
+    s.close()
+    check("counted as closed slow",
+          d.info()["counters"]["connections_closed_slow"] == 1)
+    check("others still served", d.serves())
+    # a big line that keeps coming (about 128 KiB every 0.5 s) is served
+    s = d.connect(30)
+    s.sendall(b'{"jsonrpc":"2.0","id":2,"method":"elastic.convert",'
+              b'"params":{"rho":2.4,"vs":1500,"vp":[3000')
+    chunk = b",3000" * 26000
+    for _ in range(8):
+        time.sleep(0.5)
+        s.sendall(chunk)
+    s.sendall(b"]}}\n")
+    r = json.loads(s.makefile("rb").readline() or b"{}")
+    check("a steady big line is served whole",
+          r.get("result", {}).get("n") == 8 * 26000 + 1, str(r)[:200])
+    s.close()
+    check("unfinished-line daemon exit 0", d.stop() == 0)
+
+
+def test_budget_reserve():
+    """Big unfinished lines that fill the budget leave its last eighth
+    to new and small requests."""
+    d = Daemon("--budget", "8M")
+    big = b'{"jsonrpc":"2.0","id":1,"method":"x","params":{"s":"' + \
+        b"y" * (1900 << 10)
+    socks = []
+
+    def send(s):
+        try:
+            s.sendall(big)
+        except OSError:
+            pass
+
+    ts = []
+    for _ in range(5):  # 9.5 MB in all, past the budget
+        s = d.connect(5)
+        socks.append(s)
+        ts.append(threading.Thread(target=send, args=(s,), daemon=True))
+        ts[-1].start()
+    time.sleep(1.5)
+    t0 = time.time()
+    try:
+        b = d.connect(10)
+        b.sendall(req(7))
+        r = json.loads(b.makefile("rb").readline() or b"{}")
+        b.close()
+    except OSError as e:
+        r = {"error": repr(e)}
+    print("small request beside 5 big unfinished lines: %.2f s" %
+          (time.time() - t0))
+    check("a small request is served while big lines fill the budget",
+          r.get("id") == 7 and "result" in r, r)
+    cnt = d.info()["counters"]
+    check("the big lines were held under the budget (%d bytes)" %
+          cnt["buffered_bytes"], cnt["buffered_bytes"] <= (8 << 20), cnt)
+    check("reserve logged", "last eighth of the budget" in d.logtext())
+    for s in socks:
+        s.close()
+    check("budget-reserve daemon exit 0", d.stop() == 0)
+
+
 def test_sighup():
     d0 = tempfile.mkdtemp(prefix="rw-hard-")
     log = os.path.join(d0, "daemon.log")
@@ -362,9 +375,9 @@ def test_sigterm_under_load():
         check("conn %d: answers are an in-order prefix" % k,
               ids == list(range(len(ids))), ids[:5])
     check("some answers came", sum(len(v) for v in results.values()) > 0)
-    check("socket removed", not os.path.exists(d.sock))
+    check("socket removed", not os.path.exists(d.path))
     try:
-        socket.socket(socket.AF_UNIX).connect(d.sock)
+        socket.socket(socket.AF_UNIX).connect(d.path)
         refused = False
     except OSError:
         refused = True
@@ -372,26 +385,51 @@ def test_sigterm_under_load():
     d.stop()
 
 
+def test_stdio_errors():
+    """--stdio used to exit 0 without a word when its answers could not
+    be written (stdout closed, a full disk, a reader that went away)."""
+    line = b'{"jsonrpc":"2.0","id":1,"method":"rpc.discover"}\n'
+    cases = [
+        ("stdout closed", 'exec "$0" --stdio >&-', "stdout is closed"),
+        ("stdin closed", 'exec "$0" --stdio <&-', "stdin is closed"),
+        ("stdout /dev/full", 'exec "$0" --stdio >/dev/full',
+         "no space left"),
+        # the reader goes away: the answer (112 KB) is more than the
+        # pipe holds, so it cannot all be written before
+        ("stdout broken pipe",
+         '("$0" --stdio < "$1"; echo "rc=$?" >&2) | true', "broken pipe"),
+    ]
+    tmp = tempfile.mkdtemp(prefix="rw-stdio-")
+    req_file = os.path.join(tmp, "req")
+    with open(req_file, "wb") as f:
+        f.write(line)
+    for name, script, words in cases:
+        p = run(["sh", "-c", script, DAEMON, req_file], input=line,
+                timeout=20)
+        err = p.stderr.decode()
+        rc = p.returncode
+        if "rc=" in err:  # the daemon's own status, through the shell
+            rc = int(err.rsplit("rc=", 1)[1].split()[0])
+        check("--stdio, %s: exit 4" % name, rc == 4, (rc, err))
+        check("--stdio, %s: says so" % name, words in err, err)
+    p = run([DAEMON, "--stdio"], stdin=open(os.devnull), timeout=20)
+    check("--stdio </dev/null still exits 0 quietly",
+          p.returncode == 0 and p.stderr == b"", p.stderr)
+
+
 def main():
     if not os.path.exists(DAEMON):
         print("no daemon at", DAEMON)
         return 1
     d = Daemon("--offload", "4K")
-    for t in (test_disconnects, test_vanish_during_work, test_trickle,
-              test_flood, test_malformed_mid_pipeline,
-              test_heavy_does_not_stall):
-        try:
-            t(d)
-        except Exception as e:
-            check(t.__name__, False, repr(e))
+    run_tests([test_disconnects, test_vanish_during_work, test_trickle,
+               test_flood, test_malformed_mid_pipeline,
+               test_heavy_does_not_stall], d)
     check("shared daemon still serving", d.serves())
     check("shared daemon exit 0", d.stop() == 0)
-    for t in (test_slow_rule, test_budget, test_sighup,
-              test_sigterm_under_load):
-        try:
-            t()
-        except Exception as e:
-            check(t.__name__, False, repr(e))
+    run_tests([test_slow_rule, test_budget, test_unfinished_lines,
+               test_budget_reserve, test_sighup, test_sigterm_under_load,
+               test_stdio_errors])
     return finish()
 
 

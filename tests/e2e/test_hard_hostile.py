@@ -14,55 +14,9 @@ import socket
 import stat
 import subprocess
 import sys
-import tempfile
 import time
 
-from rwtest import check, finish  # noqa: E402
-
-BUILD = os.environ.get("RW_BUILD", "build")
-DAEMON = os.path.join(BUILD, "rockwired")
-
-
-
-
-class Daemon:
-    def __init__(self, *args, sock=True):
-        self.dir = tempfile.mkdtemp(prefix="rw-hard-")
-        self.sock = os.path.join(self.dir, "rw.sock")
-        self.log = os.path.join(self.dir, "log")
-        argv = [DAEMON] + (["--socket", self.sock] if sock else []) + list(args)
-        self.errf = open(self.log, "w")
-        self.p = subprocess.Popen(argv, stdin=subprocess.DEVNULL,
-                                  stdout=subprocess.DEVNULL, stderr=self.errf)
-        if sock:
-            deadline = time.time() + 10
-            while time.time() < deadline:
-                try:
-                    socket.socket(socket.AF_UNIX).connect(self.sock)
-                    break
-                except OSError:
-                    time.sleep(0.05)
-
-    def connect(self):
-        s = socket.socket(socket.AF_UNIX)
-        s.settimeout(20)
-        s.connect(self.sock)
-        return s
-
-    def logtext(self):
-        with open(self.log) as f:
-            return f.read()
-
-    def stop(self):
-        if self.p.poll() is None:
-            self.p.terminate()
-        try:
-            rc = self.p.wait(15)
-        except subprocess.TimeoutExpired:
-            self.p.kill()
-            rc = self.p.wait()
-        self.errf.close()
-        return rc
+from rwtest import DAEMON, Daemon, check, finish, run, run_tests
 
 
 def readline(f):
@@ -221,30 +175,30 @@ def test_limits_reported():
     for bad in (["--max-line", "0"], ["--max-line", "-5"],
                 ["--idle-timeout", "nan"], ["--max-output", "1K"],
                 ["--listen", "udp:1"], ["--budget", "99999999999G"]):
-        p = subprocess.run([DAEMON, "--stdio"] + bad, capture_output=True,
-                           stdin=subprocess.DEVNULL, timeout=10)
+        p = run([DAEMON, "--stdio"] + bad, stdin=subprocess.DEVNULL,
+                timeout=10)
         check("usage error for %s" % bad, p.returncode == 2 and
               bad[0].encode() in p.stderr, p.stderr)
 
 
 def test_security():
     d = Daemon()
-    mode = stat.S_IMODE(os.lstat(d.sock).st_mode)
+    mode = stat.S_IMODE(os.lstat(d.path).st_mode)
     check("socket mode 0600", mode == 0o600, oct(mode))
     check("socket removed at exit", d.stop() == 0 and
-          not os.path.exists(d.sock))
+          not os.path.exists(d.path))
     # TCP beyond loopback is refused without --allow-remote
-    p = subprocess.run([DAEMON, "--listen", "tcp:0.0.0.0:0"],
-                       capture_output=True, stdin=subprocess.DEVNULL,
+    p = run([DAEMON, "--listen", "tcp:0.0.0.0:0"],
+                       stdin=subprocess.DEVNULL,
                        timeout=10)
     check("0.0.0.0 refused", p.returncode == 3 and
           b"--allow-remote" in p.stderr, p.stderr)
-    p = subprocess.run([DAEMON, "--listen", "tcp:[::]:0"],
-                       capture_output=True, stdin=subprocess.DEVNULL,
+    p = run([DAEMON, "--listen", "tcp:[::]:0"],
+                       stdin=subprocess.DEVNULL,
                        timeout=10)
     check(":: refused", p.returncode == 3, p.stderr)
-    p = subprocess.run([DAEMON, "--listen", "tcp:example:1"],
-                       capture_output=True, stdin=subprocess.DEVNULL,
+    p = run([DAEMON, "--listen", "tcp:example:1"],
+                       stdin=subprocess.DEVNULL,
                        timeout=10)
     check("host names other than localhost refused", p.returncode == 3,
           p.stderr)
@@ -279,11 +233,7 @@ def main():
     if not os.path.exists(DAEMON):
         print("no daemon at", DAEMON)
         return 1
-    for t in (test_corpus, test_limits_reported, test_security):
-        try:
-            t()
-        except Exception as e:  # a crash of the test is a failure
-            check(t.__name__, False, repr(e))
+    run_tests([test_corpus, test_limits_reported, test_security])
     return finish()
 
 

@@ -10,16 +10,11 @@ requests, with timeouts. Runs under /usr/bin/python3 with RW_BUILD set.
 import json
 import os
 import socket
-import subprocess
 import sys
-import tempfile
 import threading
 import time
 
-from rwtest import check, finish, sanitized
-
-BUILD = os.environ.get("RW_BUILD", "build")
-DAEMON = os.path.join(BUILD, "rockwired")
+from rwtest import DAEMON, Daemon, check, finish, run_tests, sanitized
 N_CONN, N_REQ, N_SLOW = 64, 2000, 5000
 HIGH = 64 << 10  # --high-water for this run
 
@@ -43,19 +38,14 @@ def main():
     if not os.path.exists(DAEMON):
         print("no daemon at", DAEMON)
         return 1
-    tmp = tempfile.mkdtemp(prefix="rw-load-")
-    sock = os.path.join(tmp, "rw.sock")
-    errf = open(os.path.join(tmp, "log"), "w")
-    p = subprocess.Popen([DAEMON, "--socket", sock, "--high-water",
-                          str(HIGH)], stdin=subprocess.DEVNULL,
-                         stdout=subprocess.DEVNULL, stderr=errf)
-    deadline = time.time() + 10
-    while time.time() < deadline:
-        try:
-            socket.socket(socket.AF_UNIX).connect(sock)
-            break
-        except OSError:
-            time.sleep(0.05)
+    d = Daemon("--high-water", str(HIGH))
+    run_tests([load], d)
+    check("load daemon exit 0", d.stop() == 0)
+    return finish()
+
+
+def load(d):
+    sock, p = d.path, d.proc
     base = rss_kib(p.pid)
 
     # The slow reader: sends everything, reads nothing for now.
@@ -170,10 +160,6 @@ def main():
     check("slow reader then gets all %d answers in order" % N_SLOW,
           ids == list(range(N_SLOW)), (len(ids), ids[:5]))
     slow.close()
-    p.terminate()
-    check("load daemon exit 0", p.wait(15) == 0)
-    errf.close()
-    return finish()
 
 
 if __name__ == "__main__":

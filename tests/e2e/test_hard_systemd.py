@@ -17,10 +17,7 @@ import sys
 import tempfile
 import time
 
-from rwtest import check, finish  # noqa: E402
-
-BUILD = os.environ.get("RW_BUILD", "build")
-DAEMON = os.path.join(BUILD, "rockwired")
+from rwtest import DAEMON, check, finish, run_tests, spawn
 PROBE = (b'{"jsonrpc":"2.0","id":"p","method":"elastic.convert",'
          b'"params":{"rho":2.4,"vp":3000,"vs":1500}}\n')
 
@@ -49,9 +46,9 @@ def notify_case(addr_name, bind_addr):
     rx = socket.socket(socket.AF_UNIX, socket.SOCK_DGRAM)
     rx.bind(bind_addr)
     env = dict(os.environ, NOTIFY_SOCKET=addr_name)
-    p = subprocess.Popen([DAEMON, "--socket", sock], env=env,
-                         stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL,
-                         stderr=subprocess.PIPE)
+    p = spawn([DAEMON, "--socket", sock], env=env,
+              stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL,
+              stderr=subprocess.PIPE)
     msgs = recv_msgs(rx, "READY=1")
     ready = any(m.split("\n")[0] == "READY=1" for m in msgs)
     check("READY=1 on %s" % addr_name, ready, msgs)
@@ -90,7 +87,6 @@ def activation_case(kind):
     rx = socket.socket(socket.AF_UNIX, socket.SOCK_DGRAM)
     nsock = os.path.join(tmp, "notify")
     rx.bind(nsock)
-    envfile = os.path.join(tmp, "env")
     # The shell's own pid becomes the daemon's through exec.
     script = ('LISTEN_PID=$$ LISTEN_FDS=1 LISTEN_FDNAMES=rw exec "$0" '
               '--log "$1"')
@@ -99,11 +95,11 @@ def activation_case(kind):
            if k not in ("LISTEN_PID", "LISTEN_FDS")}
     env["NOTIFY_SOCKET"] = nsock
     fd = ls.fileno()
-    p = subprocess.Popen(
+    p = spawn(
         ["sh", "-c", script, DAEMON, log], env=env,
         stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL,
         stderr=subprocess.DEVNULL, pass_fds=tuple(sorted({fd, 3})),
-        preexec_fn=(lambda: os.dup2(fd, 3)) if fd != 3 else None)
+        preexec=(lambda: os.dup2(fd, 3)) if fd != 3 else None)
     msgs = recv_msgs(rx, "READY=1")
     check("activated %s: READY=1" % kind, any("READY=1" in m for m in msgs),
           msgs)
@@ -139,10 +135,10 @@ def foreign_pid_case():
     tmp = tempfile.mkdtemp(prefix="rw-sd-")
     sock = os.path.join(tmp, "own.sock")
     env = dict(os.environ, LISTEN_PID="1", LISTEN_FDS="1")
-    p = subprocess.Popen([DAEMON, "--socket", sock, "--log",
-                          os.path.join(tmp, "log")], env=env,
-                         stdin=subprocess.DEVNULL,
-                         stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
+    p = spawn([DAEMON, "--socket", sock, "--log",
+               os.path.join(tmp, "log")], env=env,
+              stdin=subprocess.DEVNULL,
+              stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
     deadline = time.time() + 10
     while time.time() < deadline and not os.path.exists(sock):
         time.sleep(0.05)
@@ -168,11 +164,7 @@ def main():
              lambda: activation_case("unix"),
              lambda: activation_case("tcp"),
              foreign_pid_case]
-    for t in cases:
-        try:
-            t()
-        except Exception as e:
-            check("case crashed", False, repr(e))
+    run_tests(cases)
     return finish()
 
 

@@ -5,8 +5,6 @@ daemon printed; no timed assertion), spot values against the isotropic
 identities, output LAS re-read, CSV output, a malformed file (error names
 the line, no output file), an unknown unit (clear error), and the demo
 well with --summary. Responses are validated against openrpc.json."""
-import json
-import math
 import os
 import resource
 import subprocess
@@ -60,8 +58,8 @@ def peak_rss_kb(pid):
 
 def run_client(args, timeout=120):
     """Runs the client, returning (rc, stdout, stderr, peak RSS kB)."""
-    p = subprocess.Popen([rwtest.CLIENT] + args, stdout=subprocess.PIPE,
-                         stderr=subprocess.PIPE)
+    p = rwtest.spawn([rwtest.CLIENT] + args, stdout=subprocess.PIPE,
+                     stderr=subprocess.PIPE)
     out, err = p.communicate(timeout=timeout)
     ru = resource.getrusage(resource.RUSAGE_CHILDREN)
     return p.returncode, out.decode(), err.decode(), ru.ru_maxrss

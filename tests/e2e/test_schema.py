@@ -8,28 +8,25 @@ schema."""
 import glob
 import json
 import os
-import subprocess
 
 import jsonschema
 
-from rwtest import (SRC, Checks, method_doc, stdio, validate_request,
+from rwtest import (SRC, Checks, run, stdio, validate_request,
                     validate_response, req)
 
 t = Checks()
 doc_path = os.path.join(SRC, "protocol-docs", "openrpc.json")
-p = subprocess.run(["/usr/bin/python3",
-                    os.path.join(SRC, "protocol-docs", "build-openrpc"),
-                    os.environ.get("RW_BUILD", "build"), "--check"],
-                   capture_output=True)
+p = run(["/usr/bin/python3",
+         os.path.join(SRC, "protocol-docs", "build-openrpc"),
+         os.environ.get("RW_BUILD", "build"), "--check"])
 t.ok(p.returncode == 0, "openrpc.json is what the build generates from the "
      "declarations: %s" % p.stderr.decode().strip())
 with open(doc_path) as f:
     doc = json.load(f)
 t.ok(doc.get("openrpc", "").startswith("1."), "openrpc version 1.x")
-p = subprocess.run(["/usr/bin/python3",
-                    os.path.join(SRC, "protocol-docs", "build-qc-flags"),
-                    os.environ.get("RW_BUILD", "build"), "--check"],
-                   capture_output=True)
+p = run(["/usr/bin/python3",
+         os.path.join(SRC, "protocol-docs", "build-qc-flags"),
+         os.environ.get("RW_BUILD", "build"), "--check"])
 t.ok(p.returncode == 0, "qc-flags.md matches the daemon's legend: %s"
      % p.stderr.decode().strip()[-200:])
 for m in doc["methods"]:

@@ -57,7 +57,8 @@ static char *run(size_t (*next_chunk)(size_t left, unsigned *seed),
 		       SRV_LINE_NONE) {
 			if (st == SRV_LINE_OVERSIZE) {
 				(*oversized)++;
-				proto_error_line(ctx, &out, -32600, NULL,
+				proto_error_line(ctx, &out,
+				                 PROTO_INVALID_REQUEST, NULL,
 				                 "too long");
 			} else {
 				rw_proto_handle(s, line, len, &out);
@@ -157,11 +158,49 @@ static void test_oversize_streaming(void **state)
 	srv_lines_free(&lb);
 }
 
+/* A framer that never held a byte (a connection closed before sending
+ * anything, --stdio </dev/null), one emptied after a long line gave its
+ * buffer back, and empty appends: nothing to take, and no arithmetic on
+ * the null buffer (clang's UBSan reports "applying zero offset to null
+ * pointer" otherwise). */
+static void test_empty(void **state)
+{
+	srv_lines lb;
+	const char *line = NULL;
+	size_t len = 0;
+	static char big[(1u << 20) + 2];
+	(void)state;
+
+	srv_lines_init(&lb, 4u << 20);
+	assert_int_equal(srv_lines_has_line(&lb), 0);
+	assert_int_equal(srv_lines_next(&lb, &line, &len), SRV_LINE_NONE);
+	assert_int_equal(srv_lines_tail(&lb, &line, &len), SRV_LINE_NONE);
+	assert_int_equal(srv_lines_append(&lb, "", 0), 0);
+	assert_int_equal(srv_lines_buffered(&lb), 0);
+	assert_int_equal(srv_lines_next(&lb, &line, &len), SRV_LINE_NONE);
+	/* a line over 1 MiB, taken: the next append releases the buffer */
+	memset(big, 'x', sizeof big - 1);
+	big[sizeof big - 1] = '\n';
+	assert_int_equal(srv_lines_append(&lb, big, sizeof big), 0);
+	assert_int_equal(srv_lines_next(&lb, &line, &len), SRV_LINE_OK);
+	assert_int_equal(len, sizeof big - 1);
+	assert_int_equal(srv_lines_append(&lb, "", 0), 0);
+	assert_int_equal(srv_lines_has_line(&lb), 0);
+	assert_int_equal(srv_lines_next(&lb, &line, &len), SRV_LINE_NONE);
+	assert_int_equal(srv_lines_tail(&lb, &line, &len), SRV_LINE_NONE);
+	srv_lines_free(&lb);
+	/* and after free, as a closed connection's framer is */
+	assert_int_equal(srv_lines_has_line(&lb), 0);
+	assert_int_equal(srv_lines_next(&lb, &line, &len), SRV_LINE_NONE);
+	assert_int_equal(srv_lines_tail(&lb, &line, &len), SRV_LINE_NONE);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 	    cmocka_unit_test(test_framings_agree),
 	    cmocka_unit_test(test_oversize_streaming),
+	    cmocka_unit_test(test_empty),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

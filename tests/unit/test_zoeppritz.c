@@ -34,9 +34,13 @@ static rw_reflect_medium med(double vp, double vs, double rho)
 
 static rw_reflect_medium rand_solid(uint64_t *s, double gmin, double gmax)
 {
+	/* One draw per statement, in the order gcc evaluated the arguments
+	 * of one call (C leaves it unspecified; clang differs). */
 	double vp = urand(s, 1500.0, 6000.0);
+	double rho = urand(s, 1800.0, 2900.0);
+	double vs = vp * urand(s, gmin, gmax);
 
-	return med(vp, vp * urand(s, gmin, gmax), urand(s, 1800.0, 2900.0));
+	return med(vp, vs, rho);
 }
 
 static double abs2(rw_reflect_cplx c)

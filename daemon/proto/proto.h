@@ -80,6 +80,19 @@ typedef struct proto_server_stats {
 	                                   requests (malloc_trim) */
 	uint64_t memory_released_bytes; /* resident bytes those released */
 	const char *transport;          /* "stdio", "unix:PATH", ... */
+	/* The server's own settings, reported in service.info's limits
+	 * (set once at start; `set` 0 when no server runs). */
+	struct {
+		int set;
+		size_t connection_cap; /* max_conns, lowered by ulimit -n */
+		size_t max_per_peer;   /* 0 = no cap */
+		size_t owner_reserve;  /* slots kept for the owner's uid */
+		double tcp_idle_timeout_s;
+		int lines_per_turn;
+		size_t offload_bytes, offload_work;
+		size_t pool_threads, pool_per_peer;
+		int backlog;
+	} settings;
 } proto_server_stats;
 
 typedef struct proto_ctx proto_ctx;

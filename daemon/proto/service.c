@@ -46,6 +46,7 @@ static int discover(proto_call *c, void *args)
 static void write_limits(proto_call *c)
 {
 	const proto_limits *l = proto_ctx_limits(c->ctx);
+	const proto_server_stats *st = proto_ctx_server_stats(c->ctx);
 
 	proto_w_obj_begin(c, "limits");
 	proto_w_int(c, "max_line_bytes", (long long)l->max_line);
@@ -63,6 +64,26 @@ static void write_limits(proto_call *c)
 	proto_w_num(c, "idle_timeout_s", PK_NONE, l->idle_timeout_s);
 	proto_w_num(c, "stall_timeout_s", PK_NONE, l->stall_timeout_s);
 	proto_w_num(c, "drain_timeout_s", PK_NONE, l->drain_timeout_s);
+	if (st->settings.set) {
+		proto_w_int(c, "connection_cap",
+		            (long long)st->settings.connection_cap);
+		proto_w_int(c, "max_per_peer",
+		            (long long)st->settings.max_per_peer);
+		proto_w_int(c, "owner_reserve",
+		            (long long)st->settings.owner_reserve);
+		proto_w_num(c, "tcp_idle_timeout_s", PK_NONE,
+		            st->settings.tcp_idle_timeout_s);
+		proto_w_int(c, "lines_per_turn", st->settings.lines_per_turn);
+		proto_w_int(c, "offload_bytes",
+		            (long long)st->settings.offload_bytes);
+		proto_w_int(c, "offload_work",
+		            (long long)st->settings.offload_work);
+		proto_w_int(c, "pool_threads",
+		            (long long)st->settings.pool_threads);
+		proto_w_int(c, "pool_per_peer",
+		            (long long)st->settings.pool_per_peer);
+		proto_w_int(c, "backlog", st->settings.backlog);
+	}
 	proto_w_obj_end(c);
 }
 

@@ -334,8 +334,9 @@ static int prepare_draws(unc_run *r, const void *args)
 				         "%.120s", t.err_param);
 				snprintf(r->why_reason, sizeof r->why_reason,
 				         "%.250s",
-				         t.err_code ? t.err_reason
-				                    : "the draw changes the shape");
+				         t.err_code
+				             ? t.err_reason
+				             : "the draw changes the shape");
 			}
 			r->dargs[d] = NULL;
 			continue;
@@ -740,8 +741,7 @@ static void stat_sample(void *arg, size_t i)
 					st->sens[j][k * cells + i * nc + c] =
 					    rw_unc_spearman(
 					        in->draws + s, in->len,
-					        r->num_v[j] +
-					            (i * nc + c) * nd,
+					        r->num_v[j] + (i * nc + c) * nd,
 					        1, nd, work);
 			}
 	}
@@ -946,7 +946,8 @@ static void write_result(proto_call *c, unc_run *r, stats *st, const void *args,
 				if (share)
 					proto__w_layout(
 					    c, "share", PK_NONE, 0,
-					    (unsigned char *)(share + k * cells),
+					    (unsigned char *)(share +
+					                      k * cells),
 					    sizeof(double), 0, sh, set, cm);
 				proto_w_obj_end(c);
 			}
@@ -1135,9 +1136,10 @@ int proto__run_uncertain(proto_call *c, void *args, const proto_shape *sh)
 	for (size_t j = 0; j < r.n_num; j++) {
 		st.num[j] =
 		    proto_alloc_doubles(c, (2 + st.npct) * n * r.cells[j]);
-		st.sens[j] = u.sensitivities ? proto_alloc_doubles(
-		                                   c, w->n * n * r.cells[j] + 1)
-		                             : NULL;
+		st.sens[j] =
+		    u.sensitivities
+		        ? proto_alloc_doubles(c, w->n * n * r.cells[j] + 1)
+		        : NULL;
 		if (!st.num[j] || (u.sensitivities && !st.sens[j]))
 			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
 			                  "out of memory");

@@ -298,6 +298,9 @@ void srv__peer_attach(conn *c);
 void srv__peer_detach(conn *c);
 /* Sets conn_cap from --max-connections and the descriptor limit. */
 void srv__fd_budget(srv *s);
+/* --owner-reserve, with its default (an eighth of --max-connections, at
+ * most 16) resolved. */
+size_t srv__owner_reserve(const srv_config *cfg);
 /* NULL when the (attached, counted) connection may be served; else a
  * short name of the rule that refuses it, with the client's message in
  * `why`. */

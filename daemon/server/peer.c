@@ -152,19 +152,21 @@ void srv__fd_budget(srv *s)
 	}
 }
 
+size_t srv__owner_reserve(const srv_config *cfg)
+{
+	if (cfg->owner_reserve != SRV_RESERVE_AUTO)
+		return cfg->owner_reserve;
+	return cfg->limits.max_conns / 8 < 16 ? cfg->limits.max_conns / 8 : 16;
+}
+
 const char *srv__admit(conn *c, char *why, size_t size)
 {
 	srv *s = c->srv;
 	const srv_config *cfg = s->cfg;
 	size_t open = (size_t)s->stats->connections_open; /* c included */
 	size_t cap = s->conn_cap;
-	size_t reserve = cfg->owner_reserve;
+	size_t reserve = srv__owner_reserve(cfg);
 	int owner = c->peer && c->peer->owner;
-
-	if (reserve == SRV_RESERVE_AUTO)
-		reserve = cfg->limits.max_conns / 8 < 16
-		              ? cfg->limits.max_conns / 8
-		              : 16;
 
 	if (open > cap) {
 		if (cap < cfg->limits.max_conns) {

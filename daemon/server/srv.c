@@ -105,8 +105,20 @@ int srv_run(const srv_config *cfg)
 	} else {
 		rc = srv__start_listeners(s);
 	}
-	if (rc == SRV_EXIT_OK)
+	if (rc == SRV_EXIT_OK) {
 		srv__fd_budget(s);
+		s->stats->settings.set = 1;
+		s->stats->settings.connection_cap = s->conn_cap;
+		s->stats->settings.max_per_peer = cfg->max_per_peer;
+		s->stats->settings.owner_reserve = srv__owner_reserve(cfg);
+		s->stats->settings.tcp_idle_timeout_s = cfg->tcp_idle_timeout_s;
+		s->stats->settings.lines_per_turn = cfg->lines_per_turn;
+		s->stats->settings.offload_bytes = cfg->offload_bytes;
+		s->stats->settings.offload_work = cfg->offload_work;
+		s->stats->settings.pool_threads = s->pool_threads;
+		s->stats->settings.pool_per_peer = s->pool_per_peer;
+		s->stats->settings.backlog = cfg->backlog;
+	}
 	if (rc != SRV_EXIT_OK) {
 		s->stopping = 1;
 		s->stop_notified = 1;

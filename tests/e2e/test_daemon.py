@@ -160,6 +160,16 @@ t.ok(p.returncode == 3 and b"already listening" in p.stderr,
 t.ok(call(d.connect(), req("service.info"))["result"]["name"] == "rockwire",
      "the first daemon still serves")
 
+# --- the server's own settings are reported in service.info ----------------
+d4 = Daemon("--max-per-peer", "7", "--offload-work", "55", "--backlog", "99",
+            "--pool-per-peer", "2", path=os.path.join(d.dir, "set.sock"))
+lim = call(d4.connect(), req("service.info"))["result"]["limits"]
+t.ok(lim.get("max_per_peer") == 7 and lim.get("offload_work") == 55 and
+     lim.get("backlog") == 99 and lim.get("pool_per_peer") == 2 and
+     lim.get("owner_reserve") == 16 and lim.get("connection_cap", 0) >= 1,
+     "server settings in service.info limits: %r" % lim)
+d4.stop()
+
 stale = os.path.join(d.dir, "stale.sock")
 u = socket.socket(socket.AF_UNIX, socket.SOCK_STREAM)
 u.bind(stale)

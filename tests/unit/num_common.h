@@ -10,7 +10,7 @@
 #include <string.h>
 
 /* Random cases per randomised test: 10^7 in a plain build (about 10 s
- * per test file at -O2 on one core), 3 10^5 under AddressSanitizer and
+ * per test file at -O2 on one core), 10^6 under AddressSanitizer and
  * UBSan, where every access is checked and the same run would take
  * minutes. RW_NUM_ITERS=N in the environment overrides both (e.g. 10^9
  * for a long soak). The switch is at compile time: gcc defines
@@ -23,7 +23,7 @@
 #endif
 #endif
 #ifdef NUM_SANITIZED
-#define NUM_ITERS_DEFAULT 300000L
+#define NUM_ITERS_DEFAULT 1000000L
 #else
 #define NUM_ITERS_DEFAULT 10000000L
 #endif

@@ -2,7 +2,9 @@
  * digits read 8 at a time (SWAR), Clinger's exact fast path, the
  * Eisel-Lemire 128-bit product (Lemire 2021, Algorithm 1, in the form of
  * the fast_float library's compute_float), and strtod on a private
- * locale-independent copy for the few inputs those cannot decide.
+ * locale-independent copy for the few inputs those cannot decide. Plus
+ * the numeric-array scanner: a counting pass, a one-pass parse into a
+ * caller's buffer, and spans for parsing one array on several threads.
  * Tables: numtab.c (cmake/gen-numtab). */
 #include <errno.h>
 #include <float.h>
@@ -15,12 +17,25 @@
 #include "proto/numparse.h"
 #include "proto/numtab.h"
 
+#if defined(__SSE2__)
+#include <emmintrin.h> /* every x86-64 has SSE2 */
+#endif
+
+#define NUM_ONES  UINT64_C(0x0101010101010101)
+#define NUM_HIGHS UINT64_C(0x8080808080808080)
+#define NUM_LOWS  UINT64_C(0x7f7f7f7f7f7f7f7f)
+
 /* Most significant digits the fallback copy keeps (numparse.h). */
 #define NUM_FALLBACK_DIGITS 800
 
 static inline int is_digit(char c)
 {
 	return (unsigned char)(c - '0') < 10;
+}
+
+static inline int is_ws(char c)
+{
+	return c == ' ' || c == '\n' || c == '\r' || c == '\t';
 }
 
 /* The 8 bytes at p as a little-endian word (byte p[0] lowest). */
@@ -56,6 +71,24 @@ static inline uint32_t eight_digits(uint64_t v)
 	v = (v * 10) + (v >> 8);
 	v = (((v & mask) * mul1) + (((v >> 16) & mask) * mul2)) >> 32;
 	return (uint32_t)v;
+}
+
+/* High bit set in each byte of v that is zero, and only there. */
+static inline uint64_t zero_bytes(uint64_t v)
+{
+	return ~(((v & NUM_LOWS) + NUM_LOWS) | v) & NUM_HIGHS;
+}
+
+static inline int popcount64(uint64_t v)
+{
+#if defined(__GNUC__) || defined(__clang__)
+	return __builtin_popcountll(v);
+#else
+	int n = 0;
+	for (; v; v &= v - 1)
+		n++;
+	return n;
+#endif
 }
 
 static const double num_exact_pow10[23] = {
@@ -275,8 +308,12 @@ static int64_t first19(const num_text *t, uint64_t *w, int *exact)
 /* Parses one number at p (p < end); the body of proto_num_parse and of
  * the array scanner. Returns a status; *stop is the end of the number or,
  * for PROTO_NUM_EINVAL, the offending byte, with *why set. */
-static inline int scan_number(const char *p, const char *end, double *v,
-                              const char **stop, const char **why)
+#if defined(__GNUC__) || defined(__clang__)
+__attribute__((always_inline))
+#endif
+static inline int
+scan_number(const char *p, const char *end, double *v, const char **stop,
+            const char **why)
 {
 	num_text t;
 	uint64_t w = 0, bits, b2;
@@ -403,6 +440,333 @@ int proto_num_parse(const char *s, size_t len, double *v, size_t *used)
 
 	*used = (size_t)(stop - s);
 	return st;
+}
+
+/* ---- arrays ------------------------------------------------------------ */
+
+static int arr_fail(proto_num_err *err, int status, size_t index, size_t offset,
+                    const char *why)
+{
+	if (err) {
+		err->status = status;
+		err->index = index;
+		err->offset = offset;
+		err->why = why;
+	}
+	return status;
+}
+
+/* Classifies a non-number element starting at p for the error. */
+static int bad_element(const char *p, const char *end, unsigned flags,
+                       const char **why)
+{
+	size_t left = (size_t)(end - p);
+
+	switch (*p) {
+	case '"': *why = "a string, not a number"; return PROTO_NUM_ETYPE;
+	case '{': *why = "an object, not a number"; return PROTO_NUM_ETYPE;
+	case '[': *why = "an array, not a number"; return PROTO_NUM_ETYPE;
+	case ']':
+	case ',': *why = "expected a number"; return PROTO_NUM_EINVAL;
+	case '+': *why = "a leading '+' is not JSON"; return PROTO_NUM_EINVAL;
+	case '.': *why = "expected a digit before '.'"; return PROTO_NUM_EINVAL;
+	default: break;
+	}
+	if ((left >= 4 && memcmp(p, "true", 4) == 0) ||
+	    (left >= 5 && memcmp(p, "false", 5) == 0)) {
+		*why = "true or false, not a number";
+		return PROTO_NUM_ETYPE;
+	}
+	if (left >= 4 && memcmp(p, "null", 4) == 0 &&
+	    !(flags & PROTO_NUM_NULLS)) {
+		*why = "null is not allowed here";
+		return PROTO_NUM_ETYPE;
+	}
+	*why = "expected a number";
+	return PROTO_NUM_EINVAL;
+}
+
+/* Parses one element at p < end into *v; returns a status, *stop the byte
+ * after it (or the offending byte) and *why on failure. */
+static inline int scan_element(const char *p, const char *end, unsigned flags,
+                               double *v, const char **stop, const char **why)
+{
+	if (*p == '-' || is_digit(*p))
+		return scan_number(p, end, v, stop, why);
+	if (*p == 'n' && (flags & PROTO_NUM_NULLS) && end - p >= 4 &&
+	    memcmp(p, "null", 4) == 0) {
+		*v = NAN;
+		*stop = p + 4;
+		return PROTO_NUM_OK;
+	}
+	*stop = p;
+	return bad_element(p, end, flags, why);
+}
+
+/* Parses elements first.. from p (just after '[' or a ',') up to end,
+ * storing out[i]. With want > 0, stops after exactly want elements and
+ * requires the text to end there; otherwise reads to the ']' that closes
+ * the array (at most cap elements). *count gets the elements read, *close
+ * the position of the ']' or of the end of the span. */
+static int scan_elements(const char *text, const char *p, const char *end,
+                         unsigned flags, double *out, size_t first, size_t cap,
+                         size_t want, size_t *count, const char **close,
+                         proto_num_err *err)
+{
+	size_t i = first;
+	const char *stop, *why = NULL;
+	int st;
+
+	for (;;) {
+		while (p < end && is_ws(*p))
+			p++;
+		if (p == end) {
+			return arr_fail(err, PROTO_NUM_EINVAL, i,
+			                (size_t)(p - text),
+			                "unterminated array");
+		}
+		if (!want && i >= cap)
+			return arr_fail(err, PROTO_NUM_ESIZE, cap,
+			                (size_t)(p - text),
+			                "more elements than the buffer holds");
+		st = scan_element(p, end, flags, &out[i], &stop, &why);
+		if (st != PROTO_NUM_OK)
+			return arr_fail(
+			    err, st, i,
+			    (size_t)((st == PROTO_NUM_ERANGE ? p : stop) -
+			             text),
+			    why);
+		p = stop;
+		i++;
+		while (p < end && is_ws(*p))
+			p++;
+		if (want && i - first == want) {
+			if (p != end)
+				return arr_fail(err, PROTO_NUM_EINVAL, i - 1,
+				                (size_t)(p - text),
+				                "expected ',' or ']'");
+			break;
+		}
+		if (p == end)
+			return arr_fail(
+			    err, PROTO_NUM_EINVAL, i - 1, (size_t)(p - text),
+			    want ? "fewer elements than the span says"
+			         : "unterminated array");
+		if (*p == ',') {
+			p++;
+			continue;
+		}
+		if (*p == ']' && !want)
+			break;
+		return arr_fail(err, PROTO_NUM_EINVAL, i - 1,
+		                (size_t)(p - text), "expected ',' or ']'");
+	}
+	*count = i - first;
+	*close = p;
+	return PROTO_NUM_OK;
+}
+
+/* Skips leading whitespace and the '['; returns the byte after it, or
+ * NULL (with *err) when the text does not start an array. */
+static const char *array_open(const char *text, const char *end,
+                              proto_num_err *err)
+{
+	const char *p = text;
+
+	while (p < end && is_ws(*p))
+		p++;
+	if (p == end || *p != '[') {
+		arr_fail(err, PROTO_NUM_ETYPE, 0, (size_t)(p - text),
+		         "expected '[' (an array)");
+		return NULL;
+	}
+	return p + 1;
+}
+
+int proto_num_array_parse(const char *text, size_t len, unsigned flags,
+                          double *out, size_t cap, size_t *n, size_t *end,
+                          proto_num_err *err)
+{
+	const char *e = text + len, *p, *close;
+	size_t count = 0;
+	int st;
+
+	*n = 0;
+	*end = 0;
+	p = array_open(text, e, err);
+	if (!p)
+		return PROTO_NUM_ETYPE;
+	while (p < e && is_ws(*p))
+		p++;
+	if (p < e && *p == ']') {
+		*end = (size_t)(p + 1 - text);
+		return PROTO_NUM_OK;
+	}
+	st = scan_elements(text, p, e, flags, out, 0, cap, 0, &count, &close,
+	                   err);
+	if (st != PROTO_NUM_OK)
+		return st;
+	*n = count;
+	*end = (size_t)(close + 1 - text);
+	return PROTO_NUM_OK;
+}
+
+int proto_num_array_parse_span(const char *text, const proto_num_span *span,
+                               unsigned flags, double *out, proto_num_err *err)
+{
+	size_t count;
+	const char *close;
+
+	if (span->n == 0)
+		return arr_fail(err, PROTO_NUM_EINVAL, span->first, span->begin,
+		                "empty span");
+	return scan_elements(text, text + span->begin, text + span->end, flags,
+	                     out, span->first, 0, span->n, &count, &close, err);
+}
+
+/* Counts commas in [p, end), 16 bytes at a time with SSE2, else 8. */
+static size_t count_commas(const char *p, const char *end)
+{
+	size_t n = 0;
+
+#if defined(__SSE2__)
+	const __m128i comma = _mm_set1_epi8(',');
+	while (end - p >= 16) {
+		__m128i x = _mm_loadu_si128((const __m128i *)(const void *)p);
+		n += (size_t)popcount64(
+		    (uint64_t)_mm_movemask_epi8(_mm_cmpeq_epi8(x, comma)));
+		p += 16;
+	}
+#endif
+	while (end - p >= 8) {
+		n +=
+		    (size_t)popcount64(zero_bytes(load8(p) ^ (NUM_ONES * ',')));
+		p += 8;
+	}
+	for (; p < end; p++)
+		n += *p == ',';
+	return n;
+}
+
+int proto_num_array_count(const char *text, size_t len, size_t *n, size_t *end,
+                          proto_num_err *err)
+{
+	const char *e = text + len, *body, *p, *q;
+	size_t commas = 0;
+
+	*n = 0;
+	*end = 0;
+	body = p = array_open(text, e, err);
+	if (!p)
+		return PROTO_NUM_ETYPE;
+		/* 16 (SSE2) or 8 bytes at a time until a byte that ends or
+		 * breaks the scan. */
+#if defined(__SSE2__)
+	{
+		const __m128i close = _mm_set1_epi8(']');
+		const __m128i quote = _mm_set1_epi8('"');
+		const __m128i open = _mm_set1_epi8('[');
+		const __m128i brace = _mm_set1_epi8('{');
+		const __m128i comma = _mm_set1_epi8(',');
+		while (e - p >= 16) {
+			__m128i x =
+			    _mm_loadu_si128((const __m128i *)(const void *)p);
+			__m128i stop = _mm_or_si128(
+			    _mm_or_si128(_mm_cmpeq_epi8(x, close),
+			                 _mm_cmpeq_epi8(x, quote)),
+			    _mm_or_si128(_mm_cmpeq_epi8(x, open),
+			                 _mm_cmpeq_epi8(x, brace)));
+			if (_mm_movemask_epi8(stop))
+				break;
+			commas +=
+			    (size_t)popcount64((uint64_t)_mm_movemask_epi8(
+			        _mm_cmpeq_epi8(x, comma)));
+			p += 16;
+		}
+	}
+#endif
+	while (e - p >= 8) {
+		uint64_t x = load8(p);
+		if (zero_bytes(x ^ (NUM_ONES * ']')) |
+		    zero_bytes(x ^ (NUM_ONES * '"')) |
+		    zero_bytes(x ^ (NUM_ONES * '[')) |
+		    zero_bytes(x ^ (NUM_ONES * '{')))
+			break;
+		commas += (size_t)popcount64(zero_bytes(x ^ (NUM_ONES * ',')));
+		p += 8;
+	}
+	for (; p < e; p++) {
+		switch (*p) {
+		case ',': commas++; break;
+		case ']':
+			if (commas == 0) {
+				for (q = body; q < p && is_ws(*q); q++)
+					;
+				*n = q < p ? 1 : 0;
+			} else {
+				*n = commas + 1;
+			}
+			*end = (size_t)(p + 1 - text);
+			return PROTO_NUM_OK;
+		case '"':
+			return arr_fail(err, PROTO_NUM_ETYPE, commas,
+			                (size_t)(p - text),
+			                "a string, not a number");
+		case '[':
+			return arr_fail(err, PROTO_NUM_ETYPE, commas,
+			                (size_t)(p - text),
+			                "an array, not a number");
+		case '{':
+			return arr_fail(err, PROTO_NUM_ETYPE, commas,
+			                (size_t)(p - text),
+			                "an object, not a number");
+		default: break;
+		}
+	}
+	return arr_fail(err, PROTO_NUM_EINVAL, commas, (size_t)(p - text),
+	                "unterminated array");
+}
+
+size_t proto_num_array_split(const char *text, size_t end, size_t n,
+                             proto_num_span *spans, size_t nspans)
+{
+	const char *body = text, *close, *cur, *cut, *lim = text + end;
+	size_t k, i, used = 0, first = 0, bytes, cnt;
+
+	if (nspans == 0 || n == 0 || end == 0)
+		return 0;
+	while (body < lim && *body != '[')
+		body++;
+	body++;
+	close = lim - 1; /* the ']' */
+	k = nspans < n ? nspans : n;
+	bytes = (size_t)(close - body);
+	cur = body;
+	for (i = 1; i <= k; i++) {
+		if (i == k) {
+			cut = close;
+		} else {
+			const char *target = body + bytes / k * i;
+			if (target < cur)
+				target = cur;
+			cut = memchr(target, ',', (size_t)(close - target));
+			if (!cut)
+				cut = close;
+		}
+		cnt = count_commas(cur, cut) + 1;
+		if (first + cnt > n) /* the caller's n was not this array's */
+			cnt = n - first;
+		spans[used].begin = (size_t)(cur - text);
+		spans[used].end = (size_t)(cut - text);
+		spans[used].first = first;
+		spans[used].n = cnt;
+		used++;
+		first += cnt;
+		if (cut == close || first == n)
+			break;
+		cur = cut + 1;
+	}
+	return used;
 }
 
 const char *proto_num_strerror(int status)

@@ -1,9 +1,10 @@
-/* Correctly rounded JSON number parsing (daemon/proto/numparse.c) against the C
- * library: glibc's strtod, which rounds correctly (to nearest, ties to even)
- * for every input, must give the same double bit for bit on 10^7 random decimal
- * strings of 1-20 digits with exponents, on random doubles as printf and
- * proto_num_fmt print them, and on the hard cases: subnormals, the ends of the
- * normal range, every power of ten from 1e-400 to 1e400, the 2^53 neighbours,
+/* Correctly rounded JSON number parsing and the numeric-array scanner
+ * (daemon/proto/numparse.c) against the C library: glibc's strtod, which
+ * rounds correctly (to nearest, ties to even) for every input, must give
+ * the same double bit for bit on 10^7 random decimal strings of 1-20
+ * digits with exponents, on random doubles as printf and proto_num_fmt
+ * print them, and on the hard cases: subnormals, the ends of the normal
+ * range, every power of ten from 1e-400 to 1e400, the 2^53 neighbours,
  * exact halfway points between doubles (printed exactly from long double)
  * and just either side of them, 19- and 20-digit mantissas, and long
  * inputs up to 10^4 digits. Strict JSON syntax (RFC 8259 sec. 6) for the
@@ -487,6 +488,327 @@ static void test_stop(void **state)
 	}
 }
 
+/* ---- arrays ------------------------------------------------------------ */
+
+/* Runs the scanner on an exact-size copy of text: count, whole parse and
+ * (when nspans > 0) the spans of a split, which must agree. */
+static int scan(const char *text, unsigned flags, double *out, size_t cap,
+                size_t *n, size_t *end, proto_num_err *err)
+{
+	size_t len = strlen(text);
+	char *b = malloc(len ? len : 1);
+	int st;
+
+	assert_non_null(b);
+	memcpy(b, text, len);
+	st = proto_num_array_parse(b, len, flags, out, cap, n, end, err);
+	free(b);
+	return st;
+}
+
+static void test_array_basic(void **state)
+{
+	double out[8];
+	size_t n, end, cn, cend;
+	proto_num_err err;
+	const char *t = " [ 1 ,\t2.5\r\n, -3e2,0 ] , \"x\"";
+	(void)state;
+	assert_int_equal(scan(t, 0, out, 8, &n, &end, &err), PROTO_NUM_OK);
+	assert_int_equal(n, 4);
+	assert_int_equal(end, 22); /* just past the ']' */
+	assert_true(out[0] == 1 && out[1] == 2.5 && out[2] == -300 &&
+	            out[3] == 0);
+	assert_int_equal(proto_num_array_count(t, strlen(t), &cn, &cend, &err),
+	                 PROTO_NUM_OK);
+	assert_int_equal(cn, 4);
+	assert_int_equal(cend, 22);
+	assert_int_equal(scan("[]", 0, out, 0, &n, &end, &err), PROTO_NUM_OK);
+	assert_int_equal(n, 0);
+	assert_int_equal(end, 2);
+	assert_int_equal(scan("[ \n ]", 0, out, 8, &n, &end, &err),
+	                 PROTO_NUM_OK);
+	assert_int_equal(n, 0);
+	assert_int_equal(proto_num_array_count("[ ]", 3, &cn, &cend, &err),
+	                 PROTO_NUM_OK);
+	assert_int_equal(cn, 0);
+	assert_int_equal(proto_num_array_count("[7]", 3, &cn, &cend, &err),
+	                 PROTO_NUM_OK);
+	assert_int_equal(cn, 1);
+	assert_int_equal(
+	    scan("[null,1,null]", PROTO_NUM_NULLS, out, 8, &n, &end, &err),
+	    PROTO_NUM_OK);
+	assert_int_equal(n, 3);
+	assert_true(isnan(out[0]) && out[1] == 1 && isnan(out[2]));
+}
+
+/* Each malformed array: status, element index, byte offset. */
+static void test_array_errors(void **state)
+{
+	static const struct {
+		const char *text;
+		unsigned flags;
+		int status;
+		size_t index, offset;
+	} rows[] = {
+	    {"[1,2,]", 0, PROTO_NUM_EINVAL, 2, 5},
+	    {"[1 2]", 0, PROTO_NUM_EINVAL, 0, 3},
+	    {"[1,,2]", 0, PROTO_NUM_EINVAL, 1, 3},
+	    {"[,1]", 0, PROTO_NUM_EINVAL, 0, 1},
+	    {"[1,\"a\"]", 0, PROTO_NUM_ETYPE, 1, 3},
+	    {"[1,[2]]", 0, PROTO_NUM_ETYPE, 1, 3},
+	    {"[{}]", 0, PROTO_NUM_ETYPE, 0, 1},
+	    {"[0,true]", 0, PROTO_NUM_ETYPE, 1, 3},
+	    {"[false]", 0, PROTO_NUM_ETYPE, 0, 1},
+	    {"[1,null]", 0, PROTO_NUM_ETYPE, 1, 3},
+	    {"[1,nul]", PROTO_NUM_NULLS, PROTO_NUM_EINVAL, 1, 3},
+	    {"[1,2", 0, PROTO_NUM_EINVAL, 1, 4},
+	    {"[", 0, PROTO_NUM_EINVAL, 0, 1},
+	    {"[01]", 0, PROTO_NUM_EINVAL, 0, 2},
+	    {"[5,1e400]", 0, PROTO_NUM_ERANGE, 1, 3},
+	    {"[5,-1e-400]", 0, PROTO_NUM_ERANGE, 1, 3},
+	    {"[-]", 0, PROTO_NUM_EINVAL, 0, 2},
+	    {"[1.5.3]", 0, PROTO_NUM_EINVAL, 0, 4},
+	    {"[12abc]", 0, PROTO_NUM_EINVAL, 0, 3},
+	    {"[+1]", 0, PROTO_NUM_EINVAL, 0, 1},
+	    {"[.5]", 0, PROTO_NUM_EINVAL, 0, 1},
+	    {"[NaN]", 0, PROTO_NUM_EINVAL, 0, 1},
+	    {"1,2", 0, PROTO_NUM_ETYPE, 0, 0},
+	    {"  {\"a\":1}", 0, PROTO_NUM_ETYPE, 0, 2},
+	    {"", 0, PROTO_NUM_ETYPE, 0, 0},
+	    {"[1,2,3,4,5,6,7,8,9,x]", 0, PROTO_NUM_EINVAL, 9, 19},
+	};
+	double out[16];
+	(void)state;
+	for (size_t i = 0; i < sizeof rows / sizeof rows[0]; i++) {
+		size_t n = 9, end = 9;
+		proto_num_err err;
+		memset(&err, 0, sizeof err);
+		int st =
+		    scan(rows[i].text, rows[i].flags, out, 16, &n, &end, &err);
+		if (st != rows[i].status || err.status != st ||
+		    err.index != rows[i].index ||
+		    err.offset != rows[i].offset || !err.why || n != 0 ||
+		    end != 0)
+			fail_msg("%s: status %d element %zu offset %zu (%s); "
+			         "want %d, %zu, %zu",
+			         rows[i].text, st, err.index, err.offset,
+			         err.why ? err.why : "-", rows[i].status,
+			         rows[i].index, rows[i].offset);
+	}
+	/* the counting pass sees strings and nesting, not bad numbers */
+	{
+		size_t n, end;
+		proto_num_err err;
+		assert_int_equal(
+		    proto_num_array_count("[1,\"]\"]", 7, &n, &end, &err),
+		    PROTO_NUM_ETYPE);
+		assert_int_equal(err.index, 1);
+		assert_int_equal(
+		    proto_num_array_count("[1,2,{}]", 8, &n, &end, &err),
+		    PROTO_NUM_ETYPE);
+		assert_int_equal(err.index, 2);
+		assert_int_equal(err.offset, 5);
+		assert_int_equal(
+		    proto_num_array_count("[1,2", 4, &n, &end, &err),
+		    PROTO_NUM_EINVAL);
+		assert_int_equal(
+		    proto_num_array_count("[1,x]", 5, &n, &end, &err),
+		    PROTO_NUM_OK);
+		assert_int_equal(n, 2);
+	}
+	/* more elements than the buffer: ESIZE at index cap */
+	{
+		size_t n, end;
+		proto_num_err err;
+		assert_int_equal(scan("[1,2,3]", 0, out, 2, &n, &end, &err),
+		                 PROTO_NUM_ESIZE);
+		assert_int_equal(err.index, 2);
+		assert_int_equal(err.offset, 5);
+		assert_true(out[0] == 1 && out[1] == 2);
+	}
+	assert_string_equal(proto_num_strerror(PROTO_NUM_ESIZE),
+	                    "more elements than the buffer holds");
+	assert_string_equal(proto_num_strerror(99), "unknown status");
+}
+
+/* Writes a random array of k numbers (random doubles as %.17g and
+ * proto_num_fmt print them, short decimals, nulls) with random
+ * whitespace into buf; the values strtod gives go to want. */
+static size_t random_array(uint64_t *s, char *buf, size_t size, size_t k,
+                           double *want, int nulls)
+{
+	static const char *ws[] = {"", "", "", " ", "\n", "\t ", "\r\n  "};
+	size_t len = 0, i;
+
+	len +=
+	    (size_t)snprintf(buf + len, size - len, "%s[", ws[num_rand(s) % 7]);
+	for (i = 0; i < k; i++) {
+		char num[PROTO_NUM_FMT_MAX + 16];
+		double v = num_rand_finite(s);
+		switch (num_rand(s) % 5) {
+		case 0: snprintf(num, sizeof num, "%.17g", v); break;
+		case 1: proto_num_fmt(num, v); break;
+		case 2:
+			snprintf(num, sizeof num, "%d.%02d",
+			         (int)(num_rand(s) % 7000),
+			         (int)(num_rand(s) % 100));
+			break;
+		case 3:
+			if (nulls) {
+				memcpy(num, "null", 5);
+				break;
+			}
+			/* fall through */
+		default:
+			snprintf(num, sizeof num, "%d",
+			         (int)(num_rand(s) % 200000) - 100000);
+			break;
+		}
+		want[i] = strcmp(num, "null") ? strtod(num, NULL) : NAN;
+		len += (size_t)snprintf(buf + len, size - len, "%s%s%s%s",
+		                        i ? "," : "", ws[num_rand(s) % 7], num,
+		                        ws[num_rand(s) % 7]);
+	}
+	len += (size_t)snprintf(buf + len, size - len, "]");
+	return len;
+}
+
+static int same(double a, double b)
+{
+	return num_bits(a) == num_bits(b) || (isnan(a) && isnan(b));
+}
+
+/* Random arrays: the count, the whole parse and every split into spans
+ * parsed span by span give the same elements, bit for bit as strtod. */
+static void test_array_random(void **state)
+{
+	uint64_t s = num_seed(26);
+	size_t cap = 6000, bufsize = cap * 40 + 64;
+	char *buf = malloc(bufsize), *exact;
+	double *want = malloc(cap * sizeof *want);
+	double *got = malloc(cap * sizeof *got);
+	double *got2 = malloc(cap * sizeof *got2);
+	proto_num_span spans[24];
+	long rounds = num_iters() / 50000 + 20, r;
+	(void)state;
+	assert_true(buf && want && got && got2);
+	for (r = 0; r < rounds; r++) {
+		size_t k = (size_t)(num_rand(&s) % (r % 4 == 0 ? cap : 40));
+		int nulls = (int)(num_rand(&s) & 1);
+		size_t len = random_array(&s, buf, bufsize, k, want, nulls);
+		size_t n, end, cn, cend, ns, i, j, covered;
+		proto_num_err err;
+		exact = malloc(len);
+		assert_non_null(exact);
+		memcpy(exact, buf, len);
+		assert_int_equal(
+		    proto_num_array_count(exact, len, &cn, &cend, &err),
+		    PROTO_NUM_OK);
+		assert_int_equal(proto_num_array_parse(
+		                     exact, len, nulls ? PROTO_NUM_NULLS : 0,
+		                     got, cap, &n, &end, &err),
+		                 PROTO_NUM_OK);
+		assert_int_equal(n, k);
+		assert_int_equal(cn, k);
+		assert_int_equal(end, len);
+		assert_int_equal(cend, len);
+		for (i = 0; i < k; i++)
+			if (!same(got[i], want[i]))
+				fail_msg("element %zu: %.17g, strtod %.17g", i,
+				         got[i], want[i]);
+		ns = proto_num_array_split(exact, end, n, spans,
+		                           1 + num_rand(&s) % 24);
+		assert_true(k == 0 ? ns == 0 : ns >= 1);
+		memset(got2, 0, k * sizeof *got2);
+		for (j = 0, covered = 0; j < ns; j++) {
+			assert_int_equal(spans[j].first, covered);
+			assert_true(spans[j].n > 0);
+			assert_true(exact[spans[j].end] == ',' ||
+			            exact[spans[j].end] == ']');
+			if (j + 1 < ns)
+				assert_int_equal(spans[j + 1].begin,
+				                 spans[j].end + 1);
+			assert_int_equal(proto_num_array_parse_span(
+			                     exact, &spans[j],
+			                     nulls ? PROTO_NUM_NULLS : 0, got2,
+			                     &err),
+			                 PROTO_NUM_OK);
+			covered += spans[j].n;
+		}
+		assert_int_equal(covered, k);
+		for (i = 0; i < k; i++)
+			if (!same(got2[i], want[i]))
+				fail_msg(
+				    "span element %zu: %.17g, strtod %.17g", i,
+				    got2[i], want[i]);
+		free(exact);
+	}
+	free(buf);
+	free(want);
+	free(got);
+	free(got2);
+}
+
+/* A bad element found in a span is named by its index in the whole array
+ * and its offset in the whole text, and a span that does not hold the
+ * elements it says is refused. */
+static void test_array_span_errors(void **state)
+{
+	char text[4096];
+	size_t len = 0, i, n, end, ns, j;
+	proto_num_span spans[8];
+	double out[600];
+	proto_num_err err;
+	int found = 0;
+	(void)state;
+	len += (size_t)snprintf(text, sizeof text, "[");
+	for (i = 0; i < 500; i++)
+		len += (size_t)snprintf(text + len, sizeof text - len, "%s%zu",
+		                        i ? "," : "", i == 417 ? 0 : i + 1000);
+	len += (size_t)snprintf(text + len, sizeof text - len, "]");
+	/* element 417 becomes "1e999" in place of "0" */
+	{
+		char *z = strstr(text, ",0,");
+		assert_non_null(z);
+		memmove(z + 6, z + 2, len - (size_t)(z + 2 - text) + 1);
+		memcpy(z + 1, "1e999", 5);
+		len += 4;
+	}
+	assert_int_equal(proto_num_array_count(text, len, &n, &end, &err),
+	                 PROTO_NUM_OK);
+	assert_int_equal(n, 500);
+	ns = proto_num_array_split(text, end, n, spans, 8);
+	assert_int_equal(ns, 8);
+	for (j = 0; j < ns; j++) {
+		int st =
+		    proto_num_array_parse_span(text, &spans[j], 0, out, &err);
+		if (st != PROTO_NUM_OK) {
+			assert_int_equal(st, PROTO_NUM_ERANGE);
+			assert_int_equal(err.index, 417);
+			assert_memory_equal(text + err.offset, "1e999", 5);
+			found++;
+		}
+	}
+	assert_int_equal(found, 1);
+	/* a span claiming one element too many or too few */
+	spans[0].n++;
+	assert_int_equal(
+	    proto_num_array_parse_span(text, &spans[0], 0, out, &err),
+	    PROTO_NUM_EINVAL);
+	spans[0].n -= 2;
+	assert_int_equal(
+	    proto_num_array_parse_span(text, &spans[0], 0, out, &err),
+	    PROTO_NUM_EINVAL);
+	assert_int_equal(proto_num_array_split(text, end, n, spans, 0), 0);
+	assert_int_equal(proto_num_array_split("[]", 2, 0, spans, 4), 0);
+	/* more spans asked than elements: one element each */
+	assert_int_equal(proto_num_array_split("[1,2,3]", 7, 3, spans, 8), 3);
+	for (j = 0; j < 3; j++) {
+		assert_int_equal(spans[j].n, 1);
+		assert_int_equal(spans[j].first, j);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -498,6 +820,10 @@ int main(void)
 	    cmocka_unit_test(test_long_mantissas),
 	    cmocka_unit_test(test_random_decimals),
 	    cmocka_unit_test(test_random_doubles),
+	    cmocka_unit_test(test_array_basic),
+	    cmocka_unit_test(test_array_errors),
+	    cmocka_unit_test(test_array_random),
+	    cmocka_unit_test(test_array_span_errors),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -50,27 +50,31 @@ static inline uint64_t load8(const char *p)
 	return v;
 }
 
-/* 1 when all 8 bytes of v are ASCII digits (Lemire 2021, sec. 4). */
-static inline int is_eight_digits(uint64_t v)
-{
-	return ((v & UINT64_C(0xF0F0F0F0F0F0F0F0)) |
-	        (((v + UINT64_C(0x0606060606060606)) &
-	          UINT64_C(0xF0F0F0F0F0F0F0F0)) >>
-	         4)) == UINT64_C(0x3333333333333333);
-}
-
-/* The value of 8 ASCII digits, first digit in the lowest byte, by three
- * multiplications (Lemire 2021, sec. 4). */
+/* The value of 8 digits given as byte values 0..9, first digit in the
+ * lowest byte, by three multiplications (Lemire 2021, sec. 4). */
 static inline uint32_t eight_digits(uint64_t v)
 {
 	const uint64_t mask = UINT64_C(0x000000FF000000FF);
 	const uint64_t mul1 = UINT64_C(0x000F424000000064); /* 100, 10^6 */
 	const uint64_t mul2 = UINT64_C(0x0000271000000001); /* 1, 10^4 */
 
-	v -= UINT64_C(0x3030303030303030);
 	v = (v * 10) + (v >> 8);
 	v = (((v & mask) * mul1) + (((v >> 16) & mask) * mul2)) >> 32;
 	return (uint32_t)v;
+}
+
+static inline int ctz64(uint64_t v)
+{
+#if defined(__GNUC__) || defined(__clang__)
+	return __builtin_ctzll(v);
+#else
+	int n = 0;
+	while (!(v & 1)) {
+		v >>= 1;
+		n++;
+	}
+	return n;
+#endif
 }
 
 /* High bit set in each byte of v that is zero, and only there. */
@@ -243,20 +247,39 @@ static double num_fallback(const num_text *t)
 	return v;
 }
 
-/* Reads digits into *w (8 at a time while 8 bytes remain); returns the
- * first byte that is not a digit. w wraps when there are more than 19
+/* Reads digits into *w; returns the first byte that is not a digit. While
+ * 8 bytes remain, one 8-byte load takes up to 8 digits: d = x - '0' in
+ * every byte is the digit where the byte is one, and the high bit of d
+ * or of d + 0x76 is set exactly where it is not, up to and including the
+ * first non-digit (a borrow or carry only reaches the bytes after it); a
+ * run of n < 8 digits is shifted to the top of the word, so that the bytes
+ * below count as leading zeros. w wraps when there are more than 19
  * significant digits; the caller recounts then. */
 static inline const char *read_digits(const char *p, const char *end,
                                       uint64_t *w)
 {
-	uint64_t x, acc = *w;
+	static const uint64_t pow10[8] = {1,     10,     100,     1000,
+	                                  10000, 100000, 1000000, 10000000};
+	uint64_t x, d, nd, acc = *w;
+	int n;
 
 	while (end - p >= 8) {
 		x = load8(p);
-		if (!is_eight_digits(x))
-			break;
-		acc = acc * 100000000u + eight_digits(x);
-		p += 8;
+		d = x - UINT64_C(0x3030303030303030);
+		nd = (d | (d + UINT64_C(0x7676767676767676))) &
+		     UINT64_C(0x8080808080808080);
+		if (nd == 0) {
+			acc = acc * 100000000u + eight_digits(d);
+			p += 8;
+			continue;
+		}
+		n = ctz64(nd) >> 3;
+		if (n) {
+			acc = acc * pow10[n] + eight_digits(d << (8 * (8 - n)));
+			p += n;
+		}
+		*w = acc;
+		return p;
 	}
 	while (p < end && is_digit(*p)) {
 		acc = acc * 10 + (uint64_t)(*p - '0');

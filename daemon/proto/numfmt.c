@@ -3,9 +3,10 @@
  * correctly rounded fixed significant digits by one 126-bit product with
  * an exact snprintf fallback for the undecidable few. The digit search
  * follows the paper's algorithm and its Java reference implementation
- * (the JDK's DoubleToDecimal since JDK 19); names of the paper's
- * quantities (c, q, k, h, g, vb, vbl, vbr, s, t) are kept so the two can
- * be read side by side. Tables: numtab.c (cmake/gen-numtab). */
+ * (DoubleToDecimal, in the JDK since about JDK 19: from memory), with one
+ * change for the smallest subnormals (see schubfach()); the paper's names
+ * (c, q, k, h, g, vb, vbl, vbr, s, t) are kept so the two can be read
+ * side by side. Tables: numtab.c (cmake/gen-numtab). */
 #include <stdint.h>
 #include <stdio.h>
 #include <string.h>

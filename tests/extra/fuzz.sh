@@ -1,6 +1,7 @@
 #!/bin/sh
 # Fuzz smoke for tests/run: builds the libFuzzer targets (request handler,
-# line framer, LAS reader, WITS parser) and runs each for
+# line framer, LAS reader, WITS parser, number parser and formatter) and
+# runs each for
 # RW_FUZZ_SECONDS (default 30) on its seed corpus. A longer run is
 #   tests/fuzz/run 3600
 # Usage: tests/extra/fuzz.sh REPO_TOP. Exits non-zero on any finding.

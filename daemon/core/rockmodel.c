@@ -475,8 +475,9 @@ int rw_rm_eval(const rw_rm_spec *spec, double phi, double sw, double clay,
 	ph[1].v_ms = sqrt(spec->k_hc_pa / spec->rho_hc_kgm3);
 	sat[0] = sw;
 	sat[1] = 1.0 - sw;
+	/* Brie's gas is phase 1, the hydrocarbon: its liquid is the brine */
 	if (spec->fluid_mix == RW_RM_FLUID_BRIE)
-		st = rw_fluid_mix_brie(2, ph, sat, 0, spec->brie_e, &fl);
+		st = rw_fluid_mix_brie(2, ph, sat, 1, spec->brie_e, &fl);
 	else if (spec->fluid_mix == RW_RM_FLUID_VOIGT)
 		st = rw_fluid_mix_voigt(2, ph, sat, &fl);
 	else

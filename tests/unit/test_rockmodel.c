@@ -282,6 +282,23 @@ static void test_fluid_effects(void **state)
 	s.brie_e = 1.0;
 	rw_rm_eval(&s, 0.25, 0.9, 0.0, 20e6, NULL, &br, &w);
 	assert_rel(br.vp_ms, v90.vp_ms, 1e-14);
+	/* Brie et al. 1995 with e = 3: K_fl = (K_brine - K_gas) Sw^3 + K_gas
+	 * (the liquid is the brine, 1 - S_gas = Sw); the saturated rock
+	 * must be the Gassmann rock of that fluid. */
+	{
+		double kfl = (2.8e9 - 0.06e9) * 0.5 * 0.5 * 0.5 + 0.06e9;
+		rw_rm_spec e = s;
+		rw_rm_sat want;
+
+		s.brie_e = 3.0;
+		rw_rm_eval(&s, 0.25, 0.5, 0.0, 20e6, NULL, &br, &w);
+		e.fluid_mix = RW_RM_FLUID_WOOD;
+		e.k_brine_pa = e.k_hc_pa = kfl;
+		e.rho_brine_kgm3 = e.rho_hc_kgm3 = 0.5 * 1030.0 + 0.5 * 200.0;
+		rw_rm_eval(&e, 0.25, 0.5, 0.0, 20e6, NULL, &want, &w);
+		assert_rel(br.k_sat_pa, want.k_sat_pa, 1e-12);
+		assert_rel(br.vp_ms, want.vp_ms, 1e-12);
+	}
 	/* density is linear in Sw whatever the mixing */
 	assert_rel(g90.rho_kgm3,
 	           0.75 * QZ_RHO + 0.25 * (0.9 * 1030.0 + 0.1 * 200.0), 1e-14);

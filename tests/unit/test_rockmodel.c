@@ -312,6 +312,37 @@ static void test_fluid_effects(void **state)
 	                 RW_EDOM);
 }
 
+/* rw_rm_eval_parts reports the solid of rw_rm_dry and the Wood 1955
+ * fluid (1/K = Sw/K_brine + (1 - Sw)/K_gas, density linear), and the
+ * same rock as rw_rm_eval; NaN parts on error. */
+static void test_eval_parts(void **state)
+{
+	rw_rm_spec s;
+	rw_rm_sat a, b;
+	rw_rm_parts p;
+	double kd, mud, ks, mus, rhos;
+	unsigned w;
+
+	(void)state;
+	sand_spec(&s, RW_RM_STIFF_SAND);
+	assert_int_equal(
+	    rw_rm_eval_parts(&s, 0.22, 0.3, 0.2, 15e6, NULL, &a, &p, &w),
+	    RW_OK);
+	rw_rm_eval(&s, 0.22, 0.3, 0.2, 15e6, NULL, &b, &w);
+	assert_rel(a.vp_ms, b.vp_ms, 0.0);
+	assert_rel(a.lambda_rho, b.lambda_rho, 0.0);
+	rw_rm_dry(&s, 0.22, 0.2, 15e6, NULL, &kd, &mud, &ks, &mus, &rhos, &w);
+	assert_rel(p.k_s_pa, ks, 0.0);
+	assert_rel(p.mu_s_pa, mus, 0.0);
+	assert_rel(p.rho_s_kgm3, rhos, 0.0);
+	assert_rel(p.k_fl_pa, 1.0 / (0.3 / 2.8e9 + 0.7 / 0.06e9), 1e-14);
+	assert_rel(p.rho_fl_kgm3, 0.3 * 1030.0 + 0.7 * 200.0, 1e-14);
+	assert_int_equal(
+	    rw_rm_eval_parts(&s, 0.22, 1.5, 0.2, 15e6, NULL, &a, &p, &w),
+	    RW_EDOM);
+	assert_true(isnan(p.k_s_pa) && isnan(p.k_fl_pa) && isnan(a.vp_ms));
+}
+
 /* The limits the physics fixes, over every model through rw_rm_dry:
  * at zero porosity each model defined there returns the solid (Hertz-
  * Mindlin and Walton describe a pack, contact cement a rock near
@@ -580,6 +611,7 @@ int main(void)
 	    cmocka_unit_test(test_clay_and_bound),
 	    cmocka_unit_test(test_all_models_limits),
 	    cmocka_unit_test(test_fluid_effects),
+	    cmocka_unit_test(test_eval_parts),
 	    cmocka_unit_test(test_spec_check),
 	    cmocka_unit_test(test_names),
 	    cmocka_unit_test(test_template),

@@ -597,7 +597,7 @@ static int model_check(proto_call *c, const proto_decl *d, const void *args,
 		proto_warn(c, coord_given ? "coordination" : "phi_c",
 		           "coordination number %.4g is outside [%g, %g], the "
 		           "range of mechanically stable sphere packs: every "
-		           "sample is flagged model_range",
+		           "sample is flagged model_outside_range",
 		           m->coord, RW_RM_COORD_MIN, RW_RM_COORD_MAX);
 	if ((uses & U_SHAPE) && m->pore_shape == RW_RM_SHAPE_PENNY &&
 	    s->aspect > RW_RM_PENNY_ASPECT_MAX)
@@ -605,7 +605,7 @@ static int model_check(proto_call *c, const proto_decl *d, const void *args,
 		    c, "aspect",
 		    "penny cracks of aspect ratio %.4g are not thin (the "
 		    "thin-crack forms need <= %g): use pore_shape "
-		    "spheroid; every sample is flagged model_range",
+		    "spheroid; every sample is flagged model_outside_range",
 		    s->aspect, RW_RM_PENNY_ASPECT_MAX);
 	return 0;
 }
@@ -888,7 +888,7 @@ static const proto_method m_model = {
         "fluid (brine and hydrocarbon mixed at sw) saturates it by "
         "Gassmann 1951. Porosity, sw, clay, p_eff and the fluid members "
         "broadcast along one sample dimension. Inputs outside a model's "
-        "range are flagged model_range (protocol-docs/rockmodels.md). "
+        "range are flagged model_outside_range (protocol-docs/rockmodels.md). "
         "Screening estimates: models describe idealised rocks.",
     .params = &model_decl,
     .outputs = model_outputs,
@@ -1427,13 +1427,13 @@ static int tpl_body(proto_call *c, void *args)
 	if (proto_check_size(c, nodes, nodes))
 		return -1;
 	if (!isnan(m->phi_max) && r.phi[r.n_phi - 1] > m->phi_max)
-		proto_warn(c, "porosity",
-		           "the axis reaches %.4g, above %.4g, the highest "
-		           "porosity the %s model describes: nodes there are "
-		           "continued past the model (flagged model_range) or "
-		           "null",
-		           r.phi[r.n_phi - 1], m->phi_max,
-		           model_names[m->model]);
+		proto_warn(
+		    c, "porosity",
+		    "the axis reaches %.4g, above %.4g, the highest "
+		    "porosity the %s model describes: nodes there are "
+		    "continued past the model (flagged model_outside_range) or "
+		    "null",
+		    r.phi[r.n_phi - 1], m->phi_max, model_names[m->model]);
 	sample_fluids(m, 0, &spec, &fqc);
 	r.fluid_qc = fqc;
 	r.nodes = proto_alloc(c, nodes * sizeof *r.nodes);
@@ -1893,7 +1893,8 @@ static int inv_check(proto_call *c, void *dst)
 		    c, "porosity_max",
 		    "%.4g is above %.4g, the highest porosity the %s "
 		    "model describes: estimates there are continued past "
-		    "the model (flagged model_range) or kept out by the "
+		    "the model (flagged model_outside_range) or kept out by "
+		    "the "
 		    "model's failure",
 		    a->hi[RW_RM_PAR_PHI], m->phi_max, model_names[m->model]);
 	return 0;
@@ -2394,7 +2395,7 @@ static int pfit_body(proto_call *c, void *args)
 		proto_warn(c, "at",
 		           "%zu of %zu pressures lie outside the measured %.4g "
 		           "to %.4g MPa: those predictions are extrapolated "
-		           "(flagged model_range)",
+		           "(flagged model_outside_range)",
 		           n_extrap, na, f.law.p_lo_pa / 1e6,
 		           f.law.p_hi_pa / 1e6);
 	if (!s && f.dof == 0)
@@ -2484,7 +2485,7 @@ static const proto_output pfit_outputs[] = {
      .type = PO_CUSTOM,
      .dim = D_REQ,
      .schema = "{\"$ref\": \"#/components/schemas/qc\"}",
-     .desc = "QC flags of each prediction (with at; model_range: "
+     .desc = "QC flags of each prediction (with at; model_outside_range: "
              "extrapolated)"},
     {0},
 };

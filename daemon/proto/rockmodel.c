@@ -1246,6 +1246,13 @@ static double node_cost(int model)
 	}
 }
 
+static void sat_nan(rw_rm_sat *s)
+{
+	s->k_dry_pa = s->mu_dry_pa = s->k_sat_pa = s->rho_kgm3 = NAN;
+	s->vp_ms = s->vs_ms = s->ai = s->si = s->vpvs = s->nu = NAN;
+	s->lambda_rho = s->mu_rho = NAN;
+}
+
 typedef struct tpl_run {
 	const tpl_args *a;
 	const rw_rm_spec *spec;
@@ -1287,8 +1294,7 @@ static void tpl_chunk(void *arg, size_t chunk)
 			if (r->fluid_qc & (QC_LOG_MISSING | QC_FLUID_FAILED |
 			                   QC_INPUT_INVALID)) {
 				/* no fluid: every node is null */
-				rw_rm_eval(r->spec, -1.0, 0, 0, 0, NULL,
-				           &r->nodes[at], NULL);
+				sat_nan(&r->nodes[at]);
 				r->qc[at] = r->fluid_qc;
 				r->warn[at] = NAN;
 				continue;
@@ -1355,6 +1361,43 @@ static void write_lines(proto_call *c, const tpl_run *r, int iso_phi,
 	}
 }
 
+/* The path of the first array among the inputs a template uses (the
+ * fluids, and pressure and temperature when a fluid is described by
+ * phases), or NULL. An unused session default may be an array. */
+static const char *one_model_array(proto_call *c, const rm_model *m)
+{
+	const proto_fluid *fl[2] = {&m->brine, &m->hydrocarbon};
+
+	for (int q = 0; q < 2; q++) {
+		const proto_fluid *f = fl[q];
+		const char *pre = f->hdr.path;
+		const struct {
+			const proto_vec *v;
+			const char *name;
+		} vs[] = {
+		    {&f->k, "k"},
+		    {&f->rho, "rho"},
+		    {&f->brine.salinity, "brine.salinity"},
+		    {&f->gas.gravity, "gas.gravity"},
+		    {&f->oil.api, "oil.api"},
+		    {&f->oil.gor, "oil.gor"},
+		    {&f->oil.gas_gravity, "oil.gas_gravity"},
+		    {&f->saturation.brine, "saturation.brine"},
+		    {&f->saturation.gas, "saturation.gas"},
+		    {&f->saturation.oil, "saturation.oil"},
+		    {&f->brie_exponent, "brie_exponent"},
+		};
+		for (size_t k = 0; k < sizeof vs / sizeof vs[0]; k++)
+			if (vs[k].v->present && vs[k].v->is_array)
+				return proto_path(c, pre, vs[k].name, "");
+	}
+	if (m->by_phases && m->pressure.is_array)
+		return "pressure";
+	if (m->by_phases && m->temperature.is_array)
+		return "temperature";
+	return NULL;
+}
+
 static const double *default_axis(proto_call *c, double lo, double hi, size_t n)
 {
 	double *v = proto_alloc_doubles(c, n);
@@ -1376,12 +1419,15 @@ static int tpl_body(proto_call *c, void *args)
 	uint64_t fqc = 0;
 	int up = rw_rm_model_uses_pressure(m->model);
 
-	if (c->group[0].any_array)
-		return proto_fail(
-		    c, PROTO_INVALID_PARAMS, c->group[0].from,
-		    "must be a single number: rock.template draws "
-		    "one model (its axes are porosity, sw and "
-		    "clay or p_eff)");
+	{
+		const char *arr = one_model_array(c, m);
+		if (arr)
+			return proto_fail(c, PROTO_INVALID_PARAMS, arr,
+			                  "must be a single number: "
+			                  "rock.template draws one model (its "
+			                  "axes are porosity, sw and clay or "
+			                  "p_eff)");
+	}
 	memset(&r, 0, sizeof r);
 	r.a = a;
 	r.spec = &spec;

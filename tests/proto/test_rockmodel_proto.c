@@ -846,6 +846,48 @@ static void test_template_errors(void **state)
 	}
 }
 
+/* A template is one model: an array in a fluid it uses is refused, an
+ * unused session default array (a pressure profile, with explicit
+ * fluids) is let pass, a used one is refused; a fluid that cannot be
+ * computed (Batzle & Wang 1992 far outside its range) nulls every node. */
+static void test_template_session(void **state)
+{
+	cJSON *r;
+	(void)state;
+	r = call(REQ("session.set", "{\"pressure\":[20,21,22]}"));
+	result_of(r);
+	cJSON_Delete(r);
+	r = call(TEMPLATE("{\"model\":\"krief\",\"porosity_axis\":[0.1,0.2],"
+	                  "\"sw_axis\":[0,1]," FL "}"));
+	result_of(r);
+	cJSON_Delete(r);
+	expect_invalid(TEMPLATE("{\"model\":\"krief\",\"brine\":{\"brine\":{"
+	                        "\"salinity\":5000}},\"hydrocarbon\":{\"k\":"
+	                        "0.06,\"rho\":0.2},\"temperature\":60}"),
+	               "pressure", "one model");
+	r = call(REQ("session.reset", "{}"));
+	cJSON_Delete(r);
+	expect_invalid(TEMPLATE("{\"model\":\"krief\",\"brine\":{\"brine\":{"
+	                        "\"salinity\":[5000,6000]}},\"hydrocarbon\":{"
+	                        "\"k\":0.06,\"rho\":0.2},\"temperature\":60,"
+	                        "\"pressure\":20}"),
+	               "brine.brine.salinity", "one model");
+	r = call(
+	    TEMPLATE("{\"model\":\"krief\",\"porosity_axis\":[0.1,0.2],"
+	             "\"sw_axis\":[0,1],\"brine\":{\"brine\":{"
+	             "\"salinity\":5000}},\"hydrocarbon\":{\"k\":0.06,"
+	             "\"rho\":0.2},\"temperature\":1000,\"pressure\":20}"));
+	{
+		const cJSON *res = result_of(r);
+		const cJSON *row = cJSON_GetArrayItem(member(res, "ai"), 0);
+		const cJSON *q = cJSON_GetArrayItem(member(res, "qc"), 0);
+		assert_true(cJSON_IsNull(cJSON_GetArrayItem(row, 1)));
+		assert_true(cJSON_GetArrayItem(q, 1)->valuedouble > 0);
+		assert_true(cJSON_IsNull(member(res, "k_fluid_brine")));
+	}
+	cJSON_Delete(r);
+}
+
 /* ---- rock.invert -------------------------------------------------------- */
 
 /* Forward-models AI and Vp/Vs of the soft sand at (phi[i], sw[i]) through
@@ -1230,6 +1272,7 @@ int main(void)
 	    cmocka_unit_test(test_template_nodes),
 	    cmocka_unit_test(test_template_defaults),
 	    cmocka_unit_test(test_template_errors),
+	    cmocka_unit_test(test_template_session),
 	    cmocka_unit_test(test_invert_exact_and_ambiguity),
 	    cmocka_unit_test(test_invert_recovery),
 	    cmocka_unit_test(test_invert_three_and_flags),

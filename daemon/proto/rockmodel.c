@@ -1833,7 +1833,7 @@ static const proto_field inv_fields[] = {
      .dflt = 0.2, .lo = 0, .hi = 1},
     {PROTO_NUMS(inv_args, max_iter, PK_NONE, SC | PF_INT | PF_LO | PF_HI,
                 "iterations per start (default 100)"),
-     .dflt = 100, .lo = 1, .hi = 10000},
+     .dflt = 100, .lo = 1, .hi = 1000},
     {0},
 };
 #undef SC
@@ -1952,6 +1952,18 @@ static const proto_decl inv_decl = {
     .size = sizeof(inv_args),
     .check = inv_check,
 };
+
+/* The work of an inversion: each sample is a fit from every start and
+ * at every profile node, for the --max-work limit. */
+static int inv_prepare(proto_call *c, void *args, proto_shape *sh)
+{
+	const inv_args *a = args;
+	size_t fits = (size_t)a->starts.v[0] + (size_t)a->profile.v[0];
+	if (sh->n > SIZE_MAX / fits)
+		return proto_fail(c, PROTO_LIMIT_EXCEEDED, NULL,
+		                  "the request's size overflows");
+	return proto_check_size(c, sh->n, sh->n * fits);
+}
 
 static int inv_ws_init(const void *args, void *ws)
 {
@@ -2245,6 +2257,7 @@ static const proto_method m_invert = {
         "rockmodels.md).",
     .params = &inv_decl,
     .outputs = inv_outputs,
+    .prepare = inv_prepare,
     .kernel = inv_kernel,
     .row_size = sizeof(inv_row),
     .qc_offset = offsetof(inv_row, qc),

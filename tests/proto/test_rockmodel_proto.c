@@ -1172,6 +1172,38 @@ static void test_invert_errors(void **state)
 	    "observations.k_dry", "unknown parameter");
 }
 
+/* --max-work counts the fits of an inversion: samples x (starts +
+ * profile nodes); 2 x (3 + 11) = 28 exceeds 20, 2 x (3 + 0) = 6 does not. */
+static void test_invert_work_limit(void **state)
+{
+	proto_limits lim;
+	proto_ctx *ctx;
+	proto_session *s;
+	proto_buf b;
+	const char *line =
+	    INVERT("{\"model\":\"krief\",\"observations\":{\"ai\":[7000,"
+	           "7100],\"vpvs\":[1.8,1.7]},\"sigma_rel\":{\"ai\":0.02,"
+	           "\"vpvs\":0.02}," FL "}");
+	const char *line0 =
+	    INVERT("{\"model\":\"krief\",\"profile\":0,\"observations\":{"
+	           "\"ai\":[7000,7100],\"vpvs\":[1.8,1.7]},\"sigma_rel\":{"
+	           "\"ai\":0.02,\"vpvs\":0.02}," FL "}");
+	(void)state;
+	proto_limits_default(&lim);
+	lim.max_work = 20;
+	ctx = proto_ctx_new(&lim);
+	s = proto_session_new(ctx);
+	proto_buf_init(&b);
+	rw_proto_handle(s, line, strlen(line), &b);
+	assert_non_null(strstr(b.data, "-32001"));
+	b.len = 0;
+	rw_proto_handle(s, line0, strlen(line0), &b);
+	assert_non_null(strstr(b.data, "\"result\""));
+	proto_buf_free(&b);
+	proto_session_free(s);
+	proto_ctx_free(ctx);
+}
+
 /* ---- rock.pressure_fit -------------------------------------------------- */
 
 /* An exact law M = 18 - 12 exp(-P/9) GPa at six pressures is recovered;
@@ -1277,6 +1309,7 @@ int main(void)
 	    cmocka_unit_test(test_invert_recovery),
 	    cmocka_unit_test(test_invert_three_and_flags),
 	    cmocka_unit_test(test_invert_errors),
+	    cmocka_unit_test(test_invert_work_limit),
 	    cmocka_unit_test(test_pressure_fit),
 	    cmocka_unit_test(test_pressure_fit_errors),
 	};

@@ -446,21 +446,30 @@ out:
 	return st;
 }
 
-int rw_rm_eval(const rw_rm_spec *spec, double phi, double sw, double clay,
-               double p_eff_pa, rw_rm_ws *ws, rw_rm_sat *out, unsigned *warn)
+static void parts_nan(rw_rm_parts *p)
 {
-	double kd, mud, ks, rhos;
+	if (p)
+		p->k_s_pa = p->mu_s_pa = p->rho_s_kgm3 = p->k_fl_pa =
+		    p->rho_fl_kgm3 = NAN;
+}
+
+int rw_rm_eval_parts(const rw_rm_spec *spec, double phi, double sw, double clay,
+                     double p_eff_pa, rw_rm_ws *ws, rw_rm_sat *out,
+                     rw_rm_parts *parts, unsigned *warn)
+{
+	double kd, mud, ks, mus, rhos;
 	rw_fluid_phase ph[2], fl;
 	double sat[2];
 	unsigned w1 = 0, w2 = 0;
 	int st;
 
 	warn_set(warn, 0);
+	parts_nan(parts);
 	if (!isfinite(sw) || sw < 0.0 || sw > 1.0) {
 		sat_nan(out);
 		return RW_EDOM;
 	}
-	st = rw_rm_dry(spec, phi, clay, p_eff_pa, ws, &kd, &mud, &ks, NULL,
+	st = rw_rm_dry(spec, phi, clay, p_eff_pa, ws, &kd, &mud, &ks, &mus,
 	               &rhos, &w1);
 	if (st != RW_OK) {
 		warn_set(warn, w1);
@@ -475,8 +484,9 @@ int rw_rm_eval(const rw_rm_spec *spec, double phi, double sw, double clay,
 	ph[1].v_ms = sqrt(spec->k_hc_pa / spec->rho_hc_kgm3);
 	sat[0] = sw;
 	sat[1] = 1.0 - sw;
+	/* Brie's gas is phase 1, the hydrocarbon: its liquid is the brine */
 	if (spec->fluid_mix == RW_RM_FLUID_BRIE)
-		st = rw_fluid_mix_brie(2, ph, sat, 0, spec->brie_e, &fl);
+		st = rw_fluid_mix_brie(2, ph, sat, 1, spec->brie_e, &fl);
 	else if (spec->fluid_mix == RW_RM_FLUID_VOIGT)
 		st = rw_fluid_mix_voigt(2, ph, sat, &fl);
 	else
@@ -487,7 +497,21 @@ int rw_rm_eval(const rw_rm_spec *spec, double phi, double sw, double clay,
 	else
 		sat_nan(out);
 	warn_set(warn, w1 | w2);
+	if (st == RW_OK && parts) {
+		parts->k_s_pa = ks;
+		parts->mu_s_pa = mus;
+		parts->rho_s_kgm3 = rhos;
+		parts->k_fl_pa = fl.k_pa;
+		parts->rho_fl_kgm3 = fl.rho_kgm3;
+	}
 	return st;
+}
+
+int rw_rm_eval(const rw_rm_spec *spec, double phi, double sw, double clay,
+               double p_eff_pa, rw_rm_ws *ws, rw_rm_sat *out, unsigned *warn)
+{
+	return rw_rm_eval_parts(spec, phi, sw, clay, p_eff_pa, ws, out, NULL,
+	                        warn);
 }
 
 /* ---- templates -------------------------------------------------------- */

@@ -133,18 +133,24 @@ const proto_qc_info proto_qc_legend[] = {
     {QC_MODEL_RANGE, "model_outside_range", QC_RANGE,
      "a rock-model input is outside the model's range of validity "
      "(porosity above critical, aspect ratio, coordination number, "
-     "pressure, a dilute-limit concentration exceeded; rockmodels.md "
-     "lists each range and its source); the value is computed"},
+     "pressure, a dilute-limit concentration exceeded, cement above 10 %; "
+     "values kept) or the model has no value there (outputs null); in "
+     "rock.invert also: the model was undefined at some trial points, "
+     "and rock.pressure_fit: a prediction outside the measured pressures "
+     "(rockmodels.md)"},
     {QC_MODEL_BOUND, "model_above_bound", QC_IMPLAUSIBLE,
      "the model's dry frame is stiffer than the Hashin-Shtrikman upper "
-     "bound of mineral and empty pores: the model is used where it does "
-     "not hold; the value is kept so the break is visible"},
+     "bound of mineral and empty pores (or than the mineral itself): the "
+     "model is used where it does not hold; the value is kept so the "
+     "break is visible"},
     {QC_NOT_CONVERGED, "not_converged", QC_IMPOSSIBLE,
-     "an iteration (self-consistent, DEM, inversion) did not converge; "
-     "outputs are null"},
+     "an iteration (self-consistent, DEM) did not converge: outputs are "
+     "null; in rock.invert no start converged and the estimate is the "
+     "best point reached"},
     {QC_NO_SHEAR, "no_shear_rigidity", QC_INPUT,
-     "the frame has no shear rigidity (vs = 0, a suspension): vp/vs and "
-     "Poisson's ratio are null"},
+     "the frame has no shear rigidity (vs = 0, a suspension; the "
+     "self-consistent solid no longer percolates): vp/vs is null, "
+     "Poisson's ratio 0.5"},
     {QC_INV_NONUNIQUE, "inversion_nonunique", QC_RANGE,
      "the observations do not fix the answer: a range of saturations "
      "(typically any gas saturation from a few percent up) fits as well "

@@ -507,7 +507,8 @@ int rw_rm_model_uses_pressure(int model);
 /* Pore-fluid mixing of brine and hydrocarbon by water saturation. */
 enum {
 	RW_RM_FLUID_WOOD = 0,  /* uniform saturation, Wood 1955 */
-	RW_RM_FLUID_BRIE = 1,  /* patchy, Brie et al. 1995, exponent brie_e */
+	RW_RM_FLUID_BRIE = 1,  /* patchy, Brie et al. 1995, exponent brie_e;
+	                        * the hydrocarbon is the gas phase */
 	RW_RM_FLUID_VOIGT = 2, /* patchy upper bound */
 };
 
@@ -592,6 +593,19 @@ int rw_rm_dry(const rw_rm_spec *spec, double phi, double clay, double p_eff_pa,
  * sw outside [0, 1]. Outputs NaN on error. */
 int rw_rm_eval(const rw_rm_spec *spec, double phi, double sw, double clay,
                double p_eff_pa, rw_rm_ws *ws, rw_rm_sat *out, unsigned *warn);
+
+/* The solid and the pore fluid behind a saturated rock. */
+typedef struct rw_rm_parts {
+	double k_s_pa, mu_s_pa, rho_s_kgm3; /* host mineral mixed with clay */
+	double k_fl_pa, rho_fl_kgm3;        /* brine and hydrocarbon at sw */
+} rw_rm_parts;
+
+/* rw_rm_eval that also reports the solid and the pore fluid it used
+ * (parts may be NULL; its members NaN on error). Arguments, warnings and
+ * errors as rw_rm_eval. */
+int rw_rm_eval_parts(const rw_rm_spec *spec, double phi, double sw, double clay,
+                     double p_eff_pa, rw_rm_ws *ws, rw_rm_sat *out,
+                     rw_rm_parts *parts, unsigned *warn);
 
 /* ---- templates -------------------------------------------------------- */
 

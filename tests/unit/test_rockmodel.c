@@ -282,6 +282,23 @@ static void test_fluid_effects(void **state)
 	s.brie_e = 1.0;
 	rw_rm_eval(&s, 0.25, 0.9, 0.0, 20e6, NULL, &br, &w);
 	assert_rel(br.vp_ms, v90.vp_ms, 1e-14);
+	/* Brie et al. 1995 with e = 3: K_fl = (K_brine - K_gas) Sw^3 + K_gas
+	 * (the liquid is the brine, 1 - S_gas = Sw); the saturated rock
+	 * must be the Gassmann rock of that fluid. */
+	{
+		double kfl = (2.8e9 - 0.06e9) * 0.5 * 0.5 * 0.5 + 0.06e9;
+		rw_rm_spec e = s;
+		rw_rm_sat want;
+
+		s.brie_e = 3.0;
+		rw_rm_eval(&s, 0.25, 0.5, 0.0, 20e6, NULL, &br, &w);
+		e.fluid_mix = RW_RM_FLUID_WOOD;
+		e.k_brine_pa = e.k_hc_pa = kfl;
+		e.rho_brine_kgm3 = e.rho_hc_kgm3 = 0.5 * 1030.0 + 0.5 * 200.0;
+		rw_rm_eval(&e, 0.25, 0.5, 0.0, 20e6, NULL, &want, &w);
+		assert_rel(br.k_sat_pa, want.k_sat_pa, 1e-12);
+		assert_rel(br.vp_ms, want.vp_ms, 1e-12);
+	}
 	/* density is linear in Sw whatever the mixing */
 	assert_rel(g90.rho_kgm3,
 	           0.75 * QZ_RHO + 0.25 * (0.9 * 1030.0 + 0.1 * 200.0), 1e-14);
@@ -293,6 +310,37 @@ static void test_fluid_effects(void **state)
 	                 RW_EDOM);
 	assert_int_equal(rw_rm_eval(&s, 0.25, 0.5, 0.0, -1.0, NULL, &b, &w),
 	                 RW_EDOM);
+}
+
+/* rw_rm_eval_parts reports the solid of rw_rm_dry and the Wood 1955
+ * fluid (1/K = Sw/K_brine + (1 - Sw)/K_gas, density linear), and the
+ * same rock as rw_rm_eval; NaN parts on error. */
+static void test_eval_parts(void **state)
+{
+	rw_rm_spec s;
+	rw_rm_sat a, b;
+	rw_rm_parts p;
+	double kd, mud, ks, mus, rhos;
+	unsigned w;
+
+	(void)state;
+	sand_spec(&s, RW_RM_STIFF_SAND);
+	assert_int_equal(
+	    rw_rm_eval_parts(&s, 0.22, 0.3, 0.2, 15e6, NULL, &a, &p, &w),
+	    RW_OK);
+	rw_rm_eval(&s, 0.22, 0.3, 0.2, 15e6, NULL, &b, &w);
+	assert_rel(a.vp_ms, b.vp_ms, 0.0);
+	assert_rel(a.lambda_rho, b.lambda_rho, 0.0);
+	rw_rm_dry(&s, 0.22, 0.2, 15e6, NULL, &kd, &mud, &ks, &mus, &rhos, &w);
+	assert_rel(p.k_s_pa, ks, 0.0);
+	assert_rel(p.mu_s_pa, mus, 0.0);
+	assert_rel(p.rho_s_kgm3, rhos, 0.0);
+	assert_rel(p.k_fl_pa, 1.0 / (0.3 / 2.8e9 + 0.7 / 0.06e9), 1e-14);
+	assert_rel(p.rho_fl_kgm3, 0.3 * 1030.0 + 0.7 * 200.0, 1e-14);
+	assert_int_equal(
+	    rw_rm_eval_parts(&s, 0.22, 1.5, 0.2, 15e6, NULL, &a, &p, &w),
+	    RW_EDOM);
+	assert_true(isnan(p.k_s_pa) && isnan(p.k_fl_pa) && isnan(a.vp_ms));
 }
 
 /* The limits the physics fixes, over every model through rw_rm_dry:
@@ -563,6 +611,7 @@ int main(void)
 	    cmocka_unit_test(test_clay_and_bound),
 	    cmocka_unit_test(test_all_models_limits),
 	    cmocka_unit_test(test_fluid_effects),
+	    cmocka_unit_test(test_eval_parts),
 	    cmocka_unit_test(test_spec_check),
 	    cmocka_unit_test(test_names),
 	    cmocka_unit_test(test_template),

@@ -403,18 +403,21 @@ static int set(proto_call *c)
 		if (strchr(m->string, '.')) {
 			scope = proto_method_find(m->string);
 			if (!scope ||
-			    scope->flags & (PM_SESSION | PM_RAW_PARAMS))
-				return proto_fail(
+			    scope->flags & (PM_SESSION | PM_RAW_PARAMS)) {
+				proto_fail(
 				    c, PROTO_INVALID_PARAMS, m->string,
-				    "no method of that name takes parameters; "
-				    "per-method defaults are {\"method\": "
-				    "{\"param\": value}}");
-			if (!cJSON_IsObject(m) || !m->child)
-				return proto_fail(
-				    c, PROTO_INVALID_PARAMS, m->string,
-				    "must be a non-empty object of %s's "
-				    "parameters",
-				    scope->name);
+				    "no method of that name takes "
+				    "parameters; per-method defaults are "
+				    "{\"method\": {\"param\": value}}");
+				goto fail;
+			}
+			if (!cJSON_IsObject(m) || !m->child) {
+				proto_fail(c, PROTO_INVALID_PARAMS, m->string,
+				           "must be a non-empty object of %s's "
+				           "parameters",
+				           scope->name);
+				goto fail;
+			}
 			first = m->child;
 			only = NULL;
 		}

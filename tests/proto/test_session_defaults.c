@@ -180,6 +180,25 @@ static void test_defaults_by_meaning(void **state)
 	assert_int_equal(h_code(r), 0);
 	assert_true(fabs(h_result(r, "k")->valuedouble - 0.3) < 1e-15);
 	cJSON_Delete(r);
+	/* a bad scope after good defaults: refused naming it, nothing of the
+	 * request kept (and, under the sanitizers, nothing leaked) */
+	assert_int_equal(
+	    code_of(&h,
+	            REQ("session.set", "{\"rho\":[2.4,2.5],\"nu\":0.25,"
+	                               "\"qidc.x\":{}}"),
+	            param, sizeof param),
+	    -32602);
+	assert_string_equal(param, "qidc.x");
+	assert_int_equal(
+	    code_of(
+	        &h,
+	        REQ("session.set", "{\"rho\":[2.4,2.5],\"elastic.convert\":3}"),
+	        param, sizeof param),
+	    -32602);
+	assert_string_equal(param, "elastic.convert");
+	r = h_call(&h, REQ("session.get", "{}"));
+	assert_null(cJSON_GetObjectItem(h_result(r, "defaults"), "rho"));
+	cJSON_Delete(r);
 	/* a value no method takes, and a string only impedance takes */
 	assert_int_equal(
 	    code_of(&h, REQ("session.set", "{\"kk\":1}"), param, sizeof param),

@@ -727,9 +727,10 @@ static const proto_output td_outputs[] = {
      .schema = S_NUMS,
      .desc = "drift at each checkshot"},
     {.name = "qc",
-     .type = PO_FLAGS,
-     .dim = D_SAMPLE,
-     .desc = "QC flags per log sample"},
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
+     .schema = S_QC,
+     .desc = "QC flags per log sample (always returned)"},
     {.name = "resample_n",
      .type = PO_COUNT,
      .dim = D_REQ,
@@ -1233,17 +1234,17 @@ static const char *const up_block_only[] = {
     "depth",         "vp",   "vs", "rho", "boundaries", "threshold", "curve",
     "min_thickness", "mean", NULL};
 static const proto_rule up_rules[] = {
+    {PR_ONLY, "method=backus", 0, up_backus_only,
+     "not a parameter of the Backus average"},
+    {PR_ONLY, "method=block", 0, up_block_only, "not a parameter of blocking"},
     {PR_EXACTLY, "method=backus", 1, up_win,
      "give the Backus window as a length (window) or from the dominant "
      "frequency (frequency, with backus_number)"},
     {PR_REQUIRES, "backus_number", 0, up_bn,
      "backus_number sets the window from the dominant frequency: give "
      "frequency too"},
-    {PR_ONLY, "method=backus", 0, up_backus_only,
-     "not a parameter of the Backus average"},
     {PR_EXACTLY, "method=block", 1, up_bounds,
      "give the blocks by their boundaries or a detection threshold"},
-    {PR_ONLY, "method=block", 0, up_block_only, "not a parameter of blocking"},
     {PR_END},
 };
 
@@ -1351,7 +1352,7 @@ static int up_block(proto_call *c, const up_args *a, const double *z,
 	unsigned *w = proto_alloc(c, n * sizeof *w);
 	uint64_t *qc = proto_alloc(c, n * sizeof *qc);
 	const double *src[3] = {vp, vs, rho};
-	const int kinds[3] = {a->mean.vp, a->mean.vs, a->mean.rho};
+	int kinds[3] = {a->mean.vp, a->mean.vs, a->mean.rho};
 	static const char *const bn[3] = {"block_vp", "block_vs", "block_rho"};
 	static const char *const sn[3] = {"vp", "vs", "rho"};
 	static const proto_kind kk[3] = {PK_VELOCITY, PK_VELOCITY, PK_DENSITY};
@@ -1360,10 +1361,9 @@ static int up_block(proto_call *c, const up_args *a, const double *z,
 	if (!y || !w || !qc)
 		return oom(c);
 	if (!a->mean.hdr.present) {
-		/* the defaults of the declaration */
-		mean_args *m = (mean_args *)&a->mean;
-		m->vp = m->vs = RW_SEIS_MEAN_HARMONIC;
-		m->rho = RW_SEIS_MEAN_ARITHMETIC;
+		/* the declaration's defaults (an absent object has none) */
+		kinds[0] = kinds[1] = RW_SEIS_MEAN_HARMONIC;
+		kinds[2] = RW_SEIS_MEAN_ARITHMETIC;
 	}
 	if (a->boundaries.present) {
 		nb = a->boundaries.n;
@@ -1518,9 +1518,10 @@ static const proto_output up_outputs[] = {
     UP_OUT("vp", PK_VELOCITY, is_block, "blocked vp at the samples"),
     UP_OUT("vs", PK_VELOCITY, is_block, "blocked vs at the samples"),
     {.name = "qc",
-     .type = PO_FLAGS,
-     .dim = D_SAMPLE,
-     .desc = "QC flags per log sample"},
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
+     .schema = S_QC,
+     .desc = "QC flags per log sample (always returned)"},
     {0},
 };
 
@@ -1985,8 +1986,8 @@ static const proto_output synth_outputs[] = {
     OUT("reflectivity", PK_NONE, S_GRID,
         "the reflectivity on the axis (real part), shaped as traces"),
     {.name = "qc",
-     .type = PO_FLAGS,
-     .dim = D_CELL,
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
      .schema = S_QCGRID,
      .desc = "QC flags per trace sample, shaped as traces"},
     {0},

@@ -1816,10 +1816,10 @@ static int synth_body(proto_call *c, void *args)
 		for (size_t i = 0; i < n; i++)
 			vs[i] = NAN; /* not read at normal incidence */
 	else if (a->vs.present)
+		/* as given: vs = 0 is a fluid layer (velocities() would null
+		 * it), a negative vs the core's medium check refuses */
 		for (size_t i = 0; i < n; i++)
-			vs[i] = isnan(proto_at(&a->vs, i))
-			            ? NAN
-			            : proto_at(&a->vs, i);
+			vs[i] = proto_at(&a->vs, i);
 	/* the time-depth relation */
 	if (a->twt.present) {
 		tw = expand(c, &a->twt, n);

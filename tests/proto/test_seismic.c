@@ -741,6 +741,18 @@ static void test_synthetic_nulls(void **state)
 	near(num(k, "traces", 0, 20), num(r, "traces", 0, 20), 1e-15);
 	cJSON_Delete(k);
 	cJSON_Delete(r);
+	/* vs = 0 is a fluid layer, not a null: a sea floor reflects at an
+	 * angle (Zoeppritz's fluid/solid case) */
+	r = ok_call(h, REQ("seismic.synthetic",
+	                   "{\"depth\":[0,10,20],\"vp\":[1500,2500,2500],"
+	                   "\"vs\":[0,1200,1200],\"rho\":[1.0,2.2,2.2],"
+	                   "\"angle\":[10],\"wavelet\":{\"frequency\":30,"
+	                   "\"length\":20}}"));
+	for (int k2 = 0; k2 < len(r, "time"); k2++) {
+		assert_false(isnan(num(r, "traces", 0, k2)));
+		assert_false(qc(r, "qc", 0, k2) & B_NULL_NEAR);
+	}
+	cJSON_Delete(r);
 	/* post-critical interfaces of a linearisation are flagged */
 	r = ok_call(h,
 	            REQ("seismic.synthetic",

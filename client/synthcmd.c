@@ -242,6 +242,7 @@ void cli_usage_synthetic(FILE *f)
 	    "  --vrep V           replacement velocity in m/s above the log\n"
 	    "  --curve IN=MNEM    which curve feeds IN: depth dtp vp dts vs "
 	    "rhob\n"
+	    "                     (MNEM none: no curve, e.g. dts=none)\n"
 	    "  --input las|csv    input format (default: csv for *.csv)\n"
 	    "  --null VALUE       missing value of a CSV input (-999.25)\n"
 	    "  --csv OUT          the traces: TIME, DEPTH, one column per "

@@ -286,6 +286,20 @@ static int td_build(proto_call *c, const double *z, size_t n,
 	if (st != RW_OK)
 		return proto_fail(c, PROTO_INVALID_PARAMS, son,
 		                  "the sonic gives no time-depth relation");
+	/* absurd sonic values (a velocity of 1e300 m/s) give times that do
+	 * not rise or overflow: refused here, with the sample */
+	for (size_t i = 0; i < n; i++)
+		if (!isfinite(s->twt_sonic[i]) ||
+		    (i && !(s->twt_sonic[i] > s->twt_sonic[i - 1])))
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, son,
+			    "element %zu gives a two-way time that %s: the "
+			    "sonic there is not a rock's (check its value and "
+			    "unit)",
+			    i,
+			    isfinite(s->twt_sonic[i])
+			        ? "does not rise with depth"
+			        : "overflows");
 	s->td.z_m = z;
 	s->td.twt_s = s->twt_sonic;
 	s->td.n = n;
@@ -1870,6 +1884,15 @@ static int synth_body(proto_call *c, void *args)
 		ax.n = (size_t)m + 1;
 	}
 	nt = ax.n;
+	if (!rw_seis_synthetic_workspace(nt, wo.n, max_th, a->stretch))
+		return proto_fail(
+		    c, PROTO_INVALID_PARAMS,
+		    a->wavelet.w.kind == WK_SAMPLES ? "wavelet.samples"
+		                                    : "wavelet.length",
+		    "the wavelet (%zu samples%s) is too long for a trace: with "
+		    "its reach on both sides it must stay within %u samples",
+		    wo.n, a->stretch ? ", stretched at the largest angle" : "",
+		    RW_SEIS_MAX_WAVELET);
 	/* the work: coefficients, then convolutions of the wavelet */
 	work = (double)na * ((double)n + (double)nt * (double)wo.n);
 	if (proto_check_size(c, n,

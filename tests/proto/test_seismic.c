@@ -236,6 +236,15 @@ static void test_td_errors(void **state)
 	h_expect_invalid(h, TD("{\"depth\":[0,1,1],\"vp\":2000}"), "depth");
 	h_expect_invalid(h, TD("{\"depth\":[0,1],\"vp\":[2000,2000,1]}"), "vp");
 	h_expect_invalid(h, TD("{\"depth\":[0,1],\"vp\":[null,-1]}"), "vp");
+	/* values no rock has: the times would not rise, or overflow */
+	h_expect_invalid(h,
+	                 TD("{\"depth\":[1500,1510],\"dtp\":1e-300,"
+	                    "\"datum\":{\"depth\":0,\"vrep\":2100}}"),
+	                 "dtp");
+	h_expect_invalid(h,
+	                 TD("{\"depth\":[0,1,2,3],\"vp\":[2000,1e-300,2000,"
+	                    "2000]}"),
+	                 "vp");
 	h_expect_invalid(
 	    h, TD("{\"depth\":[0,1],\"vp\":2000,\"datum\":{\"depth\":5}}"),
 	    "datum.depth");
@@ -838,6 +847,16 @@ static void test_synthetic_errors(void **state)
 	                 "convolution");
 	h_expect_invalid(h, SY(WL ",\"method\":\"aki_richards_ps\""), "method");
 	h_expect_invalid(h, SY(WL ",\"axis\":{\"n\":0}"), "axis.n");
+	/* the longest wavelet there is, but no room for its reach */
+	h_expect_invalid(h,
+	                 SY(",\"wavelet\":{\"frequency\":30,\"length\":"
+	                    "32768}"),
+	                 "wavelet.length");
+	h_expect_invalid(h,
+	                 SY(",\"vs\":1000,\"angle\":[0,60],\"stretch\":"
+	                    "true,\"wavelet\":{\"frequency\":30,"
+	                    "\"length\":20000}"),
+	                 "wavelet.length");
 	h_expect_invalid(h, SY(WL ",\"nulls\":\"zero\""), "nulls");
 	h_expect_invalid(h,
 	                 REQ("seismic.synthetic",

@@ -77,6 +77,9 @@ int cli_cmd_send(const cli_opts *o, int argc, char **argv);
  * (client/feed.c); argv holds the subcommand's arguments. */
 int cli_cmd_log(const cli_opts *o, int argc, char **argv);
 int cli_cmd_feed(const cli_opts *o, int argc, char **argv);
+/* `rockwire synthetic FILE` (client/synthcmd.c). */
+int cli_cmd_synthetic(const cli_opts *o, int argc, char **argv);
+void cli_usage_synthetic(FILE *f);
 /* Full help of the subcommands, for `COMMAND --help` (and the first
  * lines, for usage errors). */
 void cli_usage_log(FILE *f);

@@ -165,18 +165,24 @@ const proto_qc_info proto_qc_legend[] = {
      "two separate solutions fit the observations; the second is "
      "returned beside the first"},
     {QC_SEIS_FILLED, "log_filled", QC_PREDICTED,
-     "a log value here was not measured: a null sonic bridged by "
-     "interpolation, the last value held below the log, or the "
-     "replacement velocity above it"},
+     "a value here is filled in, not measured: a null sonic bridged by "
+     "interpolation, the last sonic held below the log, the replacement "
+     "velocity above it, the checkshot drift held beyond the checkshots' "
+     "span, or (upscaling) nulls in the averaging window left out and "
+     "the rest reweighted"},
     {QC_SEIS_NULL_NEAR, "null_within_wavelet", QC_INPUT,
-     "a null interface lies within the wavelet's reach of this trace "
-     "sample: its amplitude misses that interface (null, or kept when "
-     "asked)"},
+     "a null interface lies within the wavelet's reach (its samples at "
+     "or above 1% of its peak) of this trace sample: its amplitude "
+     "misses that interface (null, or kept when asked)"},
     {QC_SEIS_OUTSIDE, "outside_log", QC_INPUT,
-     "the sample lies outside the log or the curve's range: null"},
+     "the sample lies outside the log's depth or time span: a resampled "
+     "value or a block value is null there; a trace sample there sees no "
+     "interface of the log (only wavelet tails); an upscaling window is "
+     "cut to the log"},
     {QC_SEIS_FIT, "fit_poor", QC_RANGE,
-     "the AVO fit has no degrees of freedom (no uncertainty) or is "
-     "nearly singular over the angles used"},
+     "the AVO fit is poorly determined: no residual degree of freedom "
+     "(no uncertainty), nearly singular over the angles used, or too few "
+     "usable angles (then null)"},
     {QC_PRES_CAUTION, "pressure_screening_only", QC_INPUT,
      "a pressure or stress estimate: a screening estimate only, never the "
      "sole basis for mud-weight, casing or well-control decisions "

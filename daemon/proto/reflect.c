@@ -16,6 +16,7 @@
 #include "proto/table.h"
 #include "rockwire/aniso.h"
 #include "rockwire/reflect.h"
+#include "rockwire/seismic.h"
 #include "rockwire/status.h"
 
 #ifndef M_PI_2
@@ -38,11 +39,13 @@ enum {
 	M_GRAY_LMR,
 	M_GRAY_KMR,
 	M_SMITH_GIDLOW,
+	M_AKI_RICHARDS_PS, /* the linearised PS coefficient (seismic.h) */
 	M_COUNT
 };
 static const char *const method_names[] = {
-    "zoeppritz", "aki_richards", "shuey2",   "shuey3",       "hilterman",
-    "fatti",     "gray_lmr",     "gray_kmr", "smith_gidlow", NULL};
+    "zoeppritz",    "aki_richards",    "shuey2",   "shuey3",
+    "hilterman",    "fatti",           "gray_lmr", "gray_kmr",
+    "smith_gidlow", "aki_richards_ps", NULL};
 
 typedef int (*lin_fn)(const rw_reflect_medium *, const rw_reflect_medium *,
                       double, double *);
@@ -56,6 +59,7 @@ static const lin_fn method_fns[M_COUNT] = {
     rw_reflect_gray_lmr,
     rw_reflect_gray_kmr,
     rw_reflect_smith_gidlow,
+    rw_seis_ps_aki_richards,
 };
 
 /* An isotropic medium of an interface. */
@@ -343,12 +347,23 @@ HAS(M_FATTI, i_fa, iface_args)
 HAS(M_GRAY_LMR, i_gl, iface_args)
 HAS(M_GRAY_KMR, i_gk, iface_args)
 HAS(M_SMITH_GIDLOW, i_sg, iface_args)
+HAS(M_AKI_RICHARDS_PS, i_ps, iface_args)
 
 #define LIN(id, nm, d_, w)                                                     \
 	{                                                                      \
 		.name = "rpp_" nm, .type = PO_NUM, .dim = d_,                  \
 		.offset = offsetof(angle_row, lin) + (id) * sizeof(double),    \
 		.when = w, .desc = "PP reflectivity, " nm                      \
+	}
+/* The linearised PS coefficient beside the exact rps. */
+#define PS_OUT(d_, w)                                                          \
+	{                                                                      \
+		.name = "rps_aki_richards", .type = PO_NUM, .dim = d_,         \
+		.offset = offsetof(angle_row, lin) +                           \
+		          M_AKI_RICHARDS_PS * sizeof(double),                  \
+		.when = w,                                                     \
+		.desc = "PS reflectivity linearised (Aki & Richards 1980), "   \
+		        "the sign convention of the exact rps"                 \
 	}
 #define ZZ16(d_, w)                                                            \
 	{.name = "rpp_re",                                                     \
@@ -477,6 +492,7 @@ static const proto_output iface_outputs[] = {
     LIN(M_GRAY_LMR, "gray_lmr", D_CELL, i_gl),
     LIN(M_GRAY_KMR, "gray_kmr", D_CELL, i_gk),
     LIN(M_SMITH_GIDLOW, "smith_gidlow", D_CELL, i_sg),
+    PS_OUT(D_CELL, i_ps),
     {.name = "qc",
      .type = PO_FLAGS,
      .dim = D_CELL,
@@ -683,6 +699,12 @@ HAS(M_FATTI, s_fa, series_args)
 HAS(M_GRAY_LMR, s_gl, series_args)
 HAS(M_GRAY_KMR, s_gk, series_args)
 HAS(M_SMITH_GIDLOW, s_sg, series_args)
+HAS(M_AKI_RICHARDS_PS, s_ps, series_args)
+/* The exact rps of a series only beside its linearised form. */
+static int s_zz_ps(const void *a)
+{
+	return s_zz(a) && s_ps(a);
+}
 
 static const proto_output series_outputs[] = {
     {.name = "n_interfaces",
@@ -734,6 +756,20 @@ static const proto_output series_outputs[] = {
     LIN(M_GRAY_LMR, "gray_lmr", D_CELL, s_gl),
     LIN(M_GRAY_KMR, "gray_kmr", D_CELL, s_gk),
     LIN(M_SMITH_GIDLOW, "smith_gidlow", D_CELL, s_sg),
+    {.name = "rps_re",
+     .type = PO_NUM,
+     .dim = D_CELL,
+     .when = s_zz_ps,
+     .offset = offsetof(angle_row, zz) + 4 * sizeof(double),
+     .desc = "exact Rps, real part (with zoeppritz and aki_richards_ps)"},
+    {.name = "rps_im",
+     .type = PO_NUM,
+     .dim = D_CELL,
+     .when = s_zz_ps,
+     .offset = offsetof(angle_row, zz) + 5 * sizeof(double),
+     .desc = "exact Rps, imaginary part (with zoeppritz and "
+             "aki_richards_ps)"},
+    PS_OUT(D_CELL, s_ps),
     {.name = "qc",
      .type = PO_FLAGS,
      .dim = D_CELL,

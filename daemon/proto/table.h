@@ -16,5 +16,6 @@ extern const proto_method *const proto_rock_empirical_methods[];
 extern const proto_method *const proto_reflect_methods[];
 extern const proto_method *const proto_log_methods[];
 extern const proto_method *const proto_rockmodel_methods[];
+extern const proto_method *const proto_seismic_methods[];
 
 #endif

@@ -1002,6 +1002,85 @@ static void test_vti_errors(void **state)
 #undef VU
 }
 
+/* The linearised PS coefficient (method aki_richards_ps) beside the exact
+ * rps. Facts the check rests on (Aki & Richards 1980, sec. 5.2.6, eq.
+ * 5.46 is the first-order form of the exact solution): no conversion at
+ * normal incidence, agreement with the exact coefficient to first order
+ * in the contrasts (halving every contrast roughly halves the relative
+ * difference), no value for a fluid (no S wave) or past the P critical
+ * angle. */
+static void test_ps_aki_richards(void **state)
+{
+	harness *h = *state;
+	double prev = 0;
+
+	for (int k = 0; k < 2; k++) {
+		char line[512];
+		double f = k ? 0.5 : 1.0; /* contrast scale */
+		cJSON *r;
+		snprintf(
+		    line, sizeof line,
+		    REQ("reflect.interface",
+		        "{\"upper\":{\"vp\":3000,\"vs\":1500,\"rho\":2.3},"
+		        "\"lower\":{\"vp\":%.6f,\"vs\":%.6f,\"rho\":%.6f},"
+		        "\"angle\":[0,10,20,30],\"methods\":[\"zoeppritz\","
+		        "\"aki_richards_ps\"]}"),
+		    3000 * (1 + 0.06 * f), 1500 * (1 + 0.08 * f),
+		    2.3 * (1 + 0.04 * f));
+		r = ok_call(h, line);
+		assert_true(fabs(num(r, "rps_aki_richards", 0, -1)) < 1e-15);
+		for (int j = 1; j < 4; j++) {
+			double ex = num(r, "rps_re", j, -1);
+			double li = num(r, "rps_aki_richards", j, -1);
+			double rel = fabs(li - ex) / fabs(ex);
+			/* same sign, within 5% at these contrasts (first order)
+			 */
+			assert_true(ex * li > 0);
+			assert_true(rel < 0.05);
+			if (j == 3 && k == 1)
+				assert_true(rel < 0.7 * prev);
+			if (j == 3)
+				prev = rel;
+		}
+		cJSON_Delete(r);
+	}
+	/* a fluid below: no PS; past critical: none either */
+	{
+		cJSON *r = ok_call(
+		    h, REQ("reflect.interface",
+		           "{\"upper\":{\"vp\":2000,\"vs\":900,\"rho\":2.2},"
+		           "\"lower\":{\"vp\":[1500,4000],\"vs\":[0,2000],"
+		           "\"rho\":[1.0,2.5]},\"angle\":[20,40],"
+		           "\"methods\":\"aki_richards_ps\"}"));
+		assert_true(is_null(r, "rps_aki_richards", 0, 0));
+		assert_true(flags(r, "qc", 0, 0) & B_UNDEFINED);
+		assert_false(is_null(r, "rps_aki_richards", 1, 0));
+		assert_true(is_null(r, "rps_aki_richards", 1, 1));
+		assert_true(flags(r, "qc", 1, 1) & B_POSTCRIT);
+		assert_null(h_result(r, "rps_re"));
+		cJSON_Delete(r);
+	}
+	/* series: the exact rps appears beside the linearised one */
+	{
+		cJSON *r = ok_call(
+		    h,
+		    REQ("reflect.series",
+		        "{\"vp\":[3000,3100],\"vs\":[1500,1560],\"rho\":[2.3,"
+		        "2.35],\"angle\":[10],\"methods\":[\"zoeppritz\","
+		        "\"aki_richards_ps\"]}"));
+		double ex = num(r, "rps_re", 0, 0);
+		double li = num(r, "rps_aki_richards", 0, 0);
+		assert_true(fabs(li - ex) < 0.03 * fabs(ex));
+		cJSON_Delete(r);
+		r = ok_call(h, REQ("reflect.series",
+		                   "{\"vp\":[3000,3100],\"vs\":[1500,1560],"
+		                   "\"rho\":[2.3,2.35],\"angle\":[10]}"));
+		assert_null(h_result(r, "rps_re"));
+		assert_null(h_result(r, "rps_aki_richards"));
+		cJSON_Delete(r);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -1024,6 +1103,7 @@ int main(void)
 	    T(test_impedance_errors),
 	    T(test_vti),
 	    T(test_vti_errors),
+	    T(test_ps_aki_richards),
 #undef T
 	};
 	gsl_set_error_handler_off();

@@ -586,8 +586,9 @@ class Client:
 
     def call(self, method, params=None, /, **kw):
         """Calls method with params (a dict, sent as it is) and/or keyword
-        parameters (None means not given); returns the result, or raises RpcError (InvalidParams naming the
-        parameter and the reason, ...)."""
+        parameters (None means not given); returns the result, or raises
+        RpcError (InvalidParams naming the parameter and the reason,
+        ...)."""
         p = dict(params or {})
         p.update(self._fix_names(kw))
         rid = self._new_id()

@@ -6,6 +6,7 @@
 #include <string.h>
 
 #include "cli.h"
+#include "plot.h"
 #include "rpc.h"
 
 #ifndef RW_VERSION
@@ -29,6 +30,8 @@ static void usage(FILE *f)
 	    "        a LAS 2.0 / 3.0 or CSV well log through log.process\n"
 	    "  feed --map CODE=INPUT ... [--connect HOST:PORT] ...\n"
 	    "        a WITS level 0 stream (stdin or TCP) through log.process\n"
+	    "  plot KIND INPUT -o OUT.png|svg|pdf ...\n"
+	    "        pictures: avo, ig, cross, tracks, sweep\n"
 	    "\n"
 	    "Options:\n"
 	    "  --socket PATH    the daemon's socket (default\n"
@@ -95,7 +98,8 @@ int main(int argc, char **argv)
 	    {"version", no_argument, NULL, 'V'},
 	    {NULL, 0, NULL, 0},
 	};
-	static const char *const commands[] = {"call", "send", "log", "feed"};
+	static const char *const commands[] = {"call", "send", "log", "feed",
+	                                       "plot"};
 	static const char *const gopts[] = {
 	    "--socket",   "--spawn", "--daemon", "--timeout",
 	    "--max-line", "--help",  "--version"};
@@ -176,12 +180,19 @@ int main(int argc, char **argv)
 		}
 		return cli_cmd_feed(&o, argc, argv);
 	}
+	if (strcmp(cmd, "plot") == 0) {
+		if (help) {
+			cli_usage_plot(stdout);
+			return CLI_EXIT_OK;
+		}
+		return cli_cmd_plot(&o, argc, argv);
+	}
 	if (strcmp(cmd, "help") == 0) {
 		usage(stdout);
 		return CLI_EXIT_OK;
 	}
 	{
-		const char *s = cli__suggest(cmd, commands, 4);
+		const char *s = cli__suggest(cmd, commands, 5);
 		fprintf(stderr, "rockwire: unknown command '%s'%s%s%s\n", cmd,
 		        s ? "; did you mean " : "", s ? s : "", s ? "?" : "");
 		if (!s)

@@ -946,6 +946,7 @@ typedef struct popts {
 
 static void base_layout(canvas *cv, double legend_w)
 {
+	legend_w = fmin(legend_w, cv->w * 0.3);
 	cv->px0 = 78;
 	cv->py0 = 44;
 	cv->px1 = cv->w - legend_w - 24;
@@ -1641,7 +1642,7 @@ static int qc_worst(const qclegend *L, double f)
  * takes its first slice). Draws iso-porosity and iso-saturation lines
  * of attributes xn, yn. */
 static int draw_template(canvas *cv, const char *path, const char *xn,
-                         const char *yn, char *note, size_t nsize)
+                         const char *yn, int draw, char *note, size_t nsize)
 {
 	answers A;
 	const cJSON *r = NULL, *gx, *gy;
@@ -1704,6 +1705,23 @@ static int draw_template(canvas *cv, const char *path, const char *xn,
 		        path, xn, nphi, nsw);
 		goto out;
 	}
+	if (!draw) {
+		/* widen the crossplot's ranges to the template's nodes */
+		for (size_t i = 0; i < nphi * nsw; i++) {
+			size_t a = order ? i / nphi : i / nsw;
+			size_t b = order ? i % nphi : i % nsw;
+			const cJSON *vx = cJSON_GetArrayItem(
+			    cJSON_GetArrayItem(gx, (int)a), (int)b);
+			const cJSON *vy = cJSON_GetArrayItem(
+			    cJSON_GetArrayItem(gy, (int)a), (int)b);
+			if (cJSON_IsNumber(vx) && cJSON_IsNumber(vy)) {
+				range_of(&vx->valuedouble, 1, &cv->x0, &cv->x1);
+				range_of(&vy->valuedouble, 1, &cv->y0, &cv->y1);
+			}
+		}
+		rc = 0;
+		goto out;
+	}
 	clip_area(cv);
 	cairo_set_line_width(cv->cr, 1);
 	set_rgb(cv, c_tmpl);
@@ -1712,7 +1730,7 @@ static int draw_template(canvas *cv, const char *path, const char *xn,
 		size_t nl = pass ? nsw : nphi, np = pass ? nphi : nsw;
 		for (size_t l = 0; l < nl; l++) {
 			int pen = 0;
-			double lx = NAN, ly = NAN;
+			double lx = NAN, ly = NAN, fx = NAN, fy = NAN;
 			for (size_t p = 0; p < np; p++) {
 				size_t ip = pass ? p : l, is = pass ? l : p;
 				const cJSON *rx = cJSON_GetArrayItem(
@@ -1730,6 +1748,8 @@ static int draw_template(canvas *cv, const char *path, const char *xn,
 				}
 				lx = map_x(cv, vx->valuedouble);
 				ly = map_y(cv, vy->valuedouble);
+				if (!pen)
+					fx = lx, fy = ly;
 				if (pen)
 					cairo_line_to(cv->cr, lx, ly);
 				else
@@ -1742,7 +1762,13 @@ static int draw_template(canvas *cv, const char *path, const char *xn,
 				snprintf(t, sizeof t, "%s %.2g",
 				         pass ? "sw" : "phi",
 				         pass ? sw[l] : phi[l]);
-				text(cv, lx + 3, ly - 2, 8, 0, 0, c_trend, t);
+				if (pass) /* iso-saturation: at its high phi end
+				           */
+					text(cv, lx + 3, ly - 2, 8, 0, 0,
+					     c_trend, t);
+				else /* iso-porosity: at its sw = first end */
+					text(cv, fx - 3, fy + 10, 8, 2, 0,
+					     c_trend, t);
 				set_rgb(cv, c_tmpl);
 			}
 		}
@@ -1799,12 +1825,17 @@ static int plot_cross(canvas *cv, const popts *po, const cli_opts *o, table *T,
 	cv->y0 = INFINITY, cv->y1 = -INFINITY;
 	range_of(T->col[ix], T->nrow, &cv->x0, &cv->x1);
 	range_of(T->col[iy], T->nrow, &cv->y0, &cv->y1);
+	if (po->tmpl && draw_template(cv, po->tmpl, T->name[ix], T->name[iy], 0,
+	                              tnote, sizeof tnote)) {
+		free(sel);
+		return CLI_EXIT_INPUT;
+	}
 	pad_range(&cv->x0, &cv->x1, 0.05);
 	pad_range(&cv->y0, &cv->y1, 0.05);
 	label_unit(lx, sizeof lx, T->name[ix], T->unit[ix]);
 	label_unit(ly, sizeof ly, T->name[iy], T->unit[iy]);
 	axes(cv, lx, ly, 7, 6);
-	if (po->tmpl && draw_template(cv, po->tmpl, T->name[ix], T->name[iy],
+	if (po->tmpl && draw_template(cv, po->tmpl, T->name[ix], T->name[iy], 1,
 	                              tnote, sizeof tnote)) {
 		free(sel);
 		return CLI_EXIT_INPUT;
@@ -1939,9 +1970,9 @@ static int plot_tracks(canvas *cv, const popts *po, const cli_opts *o, table *T,
 	cv->py0 = 44 + 16 * 4 + 10;
 	cv->py1 = cv->h - 34 - 18;
 	{
-		double strip = 18.0 * QC_NCLASS + 8, right = 200;
+		double strip = 18.0 * QC_NCLASS + 8, right = 160;
 		tw = (cv->w - cv->px0 - strip - right - 16 - 8.0 * nt) / nt;
-		if (tw < 40) {
+		if (tw < 30) {
 			fprintf(stderr,
 			        WHO ": %zu tracks do not fit in %g px; "
 			            "widen --size\n",

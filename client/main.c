@@ -6,6 +6,7 @@
 #include <string.h>
 
 #include "cli.h"
+#include "plot.h"
 #include "rpc.h"
 
 #ifndef RW_VERSION
@@ -31,6 +32,8 @@ static void usage(FILE *f)
 	    "        a WITS level 0 stream (stdin or TCP) through log.process\n"
 	    "  synthetic FILE [--angles 0:30:5] [--segy OUT.sgy] ...\n"
 	    "        synthetic traces of a well log as CSV and SEG-Y\n"
+	    "  plot KIND INPUT -o OUT.png|svg|pdf ...\n"
+	    "        pictures: avo, ig, cross, tracks, sweep\n"
 	    "\n"
 	    "Options:\n"
 	    "  --socket PATH    the daemon's socket (default\n"
@@ -97,8 +100,8 @@ int main(int argc, char **argv)
 	    {"version", no_argument, NULL, 'V'},
 	    {NULL, 0, NULL, 0},
 	};
-	static const char *const commands[] = {"call", "send", "log", "feed",
-	                                       "synthetic"};
+	static const char *const commands[] = {"call", "send",      "log",
+	                                       "feed", "synthetic", "plot"};
 	static const char *const gopts[] = {
 	    "--socket",   "--spawn", "--daemon", "--timeout",
 	    "--max-line", "--help",  "--version"};
@@ -186,12 +189,20 @@ int main(int argc, char **argv)
 		}
 		return cli_cmd_synthetic(&o, argc, argv);
 	}
+	if (strcmp(cmd, "plot") == 0) {
+		if (help) {
+			cli_usage_plot(stdout);
+			return CLI_EXIT_OK;
+		}
+		return cli_cmd_plot(&o, argc, argv);
+	}
 	if (strcmp(cmd, "help") == 0) {
 		usage(stdout);
 		return CLI_EXIT_OK;
 	}
 	{
-		const char *s = cli__suggest(cmd, commands, 5);
+		const char *s = cli__suggest(
+		    cmd, commands, sizeof commands / sizeof *commands);
 		fprintf(stderr, "rockwire: unknown command '%s'%s%s%s\n", cmd,
 		        s ? "; did you mean " : "", s ? s : "", s ? "?" : "");
 		if (!s)

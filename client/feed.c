@@ -91,7 +91,7 @@ typedef struct feed {
 	cJSON *columns; /* CSV column names, from the probe */
 	cJSON *col_units;
 	cli_units units;
-	const char *qc[32];
+	const char *qc[CLI_QC_BITS];
 	const cJSON *discover;
 	/* counts */
 	unsigned long samples_sent, answered, refused, no_depth_records,

@@ -52,7 +52,7 @@ void cli__fmt_cell(char *buf, double v, int digits)
 		cli__fmt_num(buf, v, 0, NULL);
 }
 
-void cli__qc_names(unsigned long long flags, const char *const qc[32],
+void cli__qc_names(unsigned long long flags, const char *const qc[CLI_QC_BITS],
                    char *buf, size_t size)
 {
 	size_t used = 0;
@@ -66,7 +66,7 @@ void cli__qc_names(unsigned long long flags, const char *const qc[32],
 		int w;
 		if (!(flags >> b & 1u))
 			continue;
-		if (b < 32 && qc && qc[b])
+		if (qc && qc[b])
 			w = snprintf(buf + used, size - used, "%s%s",
 			             used ? "|" : "", qc[b]);
 		else

@@ -15,15 +15,18 @@
 
 enum { CLI_FMT_JSON = 0, CLI_FMT_TABLE = 1, CLI_FMT_CSV = 2 };
 
+/* QC flags are 64-bit (the daemon uses bits 0-52: exact JSON numbers). */
+#define CLI_QC_BITS 64
+
 typedef struct cli_fmt {
-	int format;            /* CLI_FMT_* */
-	int qc_names;          /* print QC bit sets as flag names */
-	int all_columns;       /* keep all-zero imaginary/phase members */
-	int digits;            /* significant digits in tables (0: 7) */
-	int pretty;            /* indented JSON */
-	const char *qc[32];    /* flag names by bit index, or NULL */
-	const cJSON *discover; /* rpc.discover result, or NULL */
-	const char *method;    /* for the axes of 2-D results */
+	int format;                  /* CLI_FMT_* */
+	int qc_names;                /* print QC bit sets as flag names */
+	int all_columns;             /* keep all-zero imaginary/phase members */
+	int digits;                  /* significant digits in tables (0: 7) */
+	int pretty;                  /* indented JSON */
+	const char *qc[CLI_QC_BITS]; /* flag names by bit index, or NULL */
+	const cJSON *discover;       /* rpc.discover result, or NULL */
+	const char *method;          /* for the axes of 2-D results */
 } cli_fmt;
 
 /* Prints result to f as fmt says. Returns 0, or -1 on a write error. */
@@ -33,7 +36,7 @@ int cli__print_result(FILE *f, const cJSON *result, const cli_fmt *fmt);
 int cli__result_has_matrix(const cJSON *result);
 /* Writes the names of the bits set in flags, joined by '|', into buf
  * ("clean" for 0; "bit N" for a bit with no name). */
-void cli__qc_names(unsigned long long flags, const char *const qc[32],
+void cli__qc_names(unsigned long long flags, const char *const qc[CLI_QC_BITS],
                    char *buf, size_t size);
 /* Formats v for a table (digits significant digits; integral values as
  * integers) or, with digits 0, as the shortest text that reads back

@@ -149,7 +149,7 @@ typedef struct logrun {
 	char *base;     /* params JSON without the braces */
 	size_t ncurves;
 	cli_units units;
-	const char *qc[32];
+	const char *qc[CLI_QC_BITS];
 	char notes[4096]; /* mapping notes for ~Other and stderr */
 	/* depth selection, in the depth curve's unit */
 	int have_top, have_base;
@@ -176,7 +176,7 @@ typedef struct logrun {
 	int out_uniform;
 	/* QC counts and statistics */
 	stat1 *in_stat, out_stat[MAX_OUT];
-	flagstat flag[32];
+	flagstat flag[CLI_QC_BITS];
 	unsigned long long samples, flagged, queued;
 	double bs_bad; /* an implausible bit size seen in the curve */
 	int failed;
@@ -811,7 +811,7 @@ static void build_note(logrun *L, const cJSON *res)
 	                        : "no fluid substitution");
 	note_wrap(L, lead, buf);
 	used = (size_t)snprintf(buf, sizeof buf, "QC bits:");
-	for (int b = 0; b < 32 && used < sizeof buf; b++)
+	for (int b = 0; b < CLI_QC_BITS && used < sizeof buf; b++)
 		if (L->qc[b])
 			used += (size_t)snprintf(buf + used, sizeof buf - used,
 			                         " %d=%s", b, L->qc[b]);
@@ -927,9 +927,9 @@ static void stat_add(stat1 *s, double v)
 }
 
 /* Depth intervals of each QC flag, for the summary file. */
-static void flags_add(logrun *L, uint32_t f, double depth)
+static void flags_add(logrun *L, uint64_t f, double depth)
 {
-	for (int b = 0; b < 32; b++) {
+	for (int b = 0; b < CLI_QC_BITS; b++) {
 		flagstat *fs = &L->flag[b];
 		int on = (f >> b) & 1u;
 		if (on) {
@@ -981,7 +981,7 @@ static int write_rows(logrun *L, const slot *s, const cJSON *res)
 	}
 	for (size_t j = 0; j < s->nrows; j++) {
 		const double *row = s->rows + j * nc;
-		uint32_t flags = 0;
+		uint64_t flags = 0;
 		if (L->col[bit] >= 0) {
 			double b =
 			    row[L->col[bit]] * L->scale[bit] + L->offset[bit];
@@ -1002,7 +1002,7 @@ static int write_rows(logrun *L, const slot *s, const cJSON *res)
 				v = cJSON_IsNumber(e) ? e->valuedouble : NAN;
 				it[k] = e ? e->next : NULL;
 				if (is_qc && !isnan(v)) {
-					flags = (uint32_t)v;
+					flags = (uint64_t)v;
 					L->flagged += flags != 0;
 				} else if (!isnan(v)) {
 					v = (v - L->out_offset[k]) /
@@ -1159,7 +1159,7 @@ static int write_summary(logrun *L, FILE *f, int json)
 	else
 		fprintf(f, "\n%-4s %-26s %10s  depth intervals (%s)\n", "bit",
 		        "flag", "samples", du);
-	for (int b = 0, first = 1; b < 32; b++) {
+	for (int b = 0, first = 1; b < CLI_QC_BITS; b++) {
 		flagstat *fs = &L->flag[b];
 		if (!fs->count)
 			continue;
@@ -1805,7 +1805,7 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 		        "QC summary: %llu samples, %llu clean, %llu "
 		        "flagged\n",
 		        L.samples, L.samples - L.flagged, L.flagged);
-		for (int b = 0; b < 32; b++)
+		for (int b = 0; b < CLI_QC_BITS; b++)
 			if (L.flag[b].count)
 				fprintf(stderr, "  bit %2d %-28s %llu\n", b,
 				        L.qc[b] ? L.qc[b] : "?",
@@ -1845,7 +1845,7 @@ out:
 		free(L.slots[k].rows);
 	for (size_t k = 0; k < L.nout; k++)
 		free(L.out_key[k]);
-	for (int b = 0; b < 32; b++)
+	for (int b = 0; b < CLI_QC_BITS; b++)
 		free(L.flag[b].run);
 	free(L.in_stat);
 	cli__buf_free(&L.wbuf);

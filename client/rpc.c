@@ -546,45 +546,24 @@ void cli__explain_error(FILE *f, const char *who, const cJSON *discover,
 		        param->valuestring);
 }
 
-void cli__qc_legend(const cJSON *info, const char *names[32])
+void cli__qc_legend(const cJSON *info, const char *names[CLI_QC_BITS])
 {
 	const cJSON *q,
 	    *fl = cJSON_GetObjectItemCaseSensitive(info, "qc_flags");
-	int bit_is_mask = 0;
 
-	for (int b = 0; b < 32; b++)
+	for (int b = 0; b < CLI_QC_BITS; b++)
 		names[b] = NULL;
-	/* A lone "bit" member held the mask in older daemons: it is a mask
-	 * when any value is above 31. */
-	cJSON_ArrayForEach(q, fl)
-	{
-		const cJSON *b = cJSON_GetObjectItemCaseSensitive(q, "bit");
-		if (cJSON_IsNumber(b) && b->valuedouble > 31)
-			bit_is_mask = 1;
-	}
 	cJSON_ArrayForEach(q, fl)
 	{
 		const cJSON *nm = cJSON_GetObjectItemCaseSensitive(q, "name");
-		const cJSON *mask = cJSON_GetObjectItemCaseSensitive(q, "mask");
 		const cJSON *idx = cJSON_GetObjectItemCaseSensitive(q, "index");
-		const cJSON *bit = cJSON_GetObjectItemCaseSensitive(q, "bit");
-		int b = -1;
-		if (!cJSON_IsString(nm))
+		int b;
+		if (!cJSON_IsString(nm) || !cJSON_IsNumber(idx) ||
+		    idx->valuedouble < 0 || idx->valuedouble >= CLI_QC_BITS ||
+		    idx->valuedouble != (int)idx->valuedouble)
 			continue;
-		if (!cJSON_IsNumber(mask) && cJSON_IsNumber(bit) && bit_is_mask)
-			mask = bit;
-		if (!cJSON_IsNumber(idx) && cJSON_IsNumber(bit) && !bit_is_mask)
-			idx = bit;
-		if (cJSON_IsNumber(mask)) {
-			double m = mask->valuedouble;
-			for (int k = 0; k < 32; k++)
-				if (m == (double)(1u << k))
-					b = k;
-		} else if (cJSON_IsNumber(idx) && idx->valuedouble >= 0 &&
-		           idx->valuedouble < 32) {
-			b = (int)idx->valuedouble;
-		}
-		if (b >= 0 && !names[b])
+		b = (int)idx->valuedouble;
+		if (!names[b])
 			names[b] = nm->valuestring;
 	}
 }

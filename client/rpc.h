@@ -11,6 +11,7 @@
 #include <cjson/cJSON.h>
 
 #include "cli.h"
+#include "format.h"
 
 /* Parses line[0..len) with a length bound (cJSON_ParseWithLengthOpts,
  * nothing but blanks after the value) and checks it is a JSON-RPC 2.0
@@ -78,7 +79,7 @@ void cli__explain_error(FILE *f, const char *who, const cJSON *discover,
  * flag's name, or NULL. Accepts the legend with a "mask" (1, 2, 4, ...)
  * or an "index" (0..31) per flag, and the older single "bit" holding
  * the mask. names[] entries point into info (valid while it lives). */
-void cli__qc_legend(const cJSON *info, const char *names[32]);
+void cli__qc_legend(const cJSON *info, const char *names[CLI_QC_BITS]);
 
 /* Parses a --timeout value in seconds (fractions allowed, 0..1 year) into
  * milliseconds. 0 or -1. */

@@ -80,6 +80,14 @@ try:
          "input_missing" in res["qc_names"][1].split("|") and
          res["qc"][1] & (1 << MISSING),
          "json --qc names adds qc_names beside qc: %r" % res["qc_names"])
+    # bits above 31 are named too (a bit size of 5 m: implausible)
+    rc, out, err = run("call", "log.process", "dtp=[100]", "dts=[180]",
+                       "rhob=[2.3]", "caliper=[0.22]", "bit_size=5",
+                       "--qc", "names")
+    res = json.loads(out)
+    t.ok(rc == 0 and res["qc"][0] >= 2 ** 32 and
+         "bit_size_implausible" in res["qc_names"][0].split("|"),
+         "flags above bit 31 by name: %r" % res.get("qc_names"))
 
     # 2-D results labelled by their axes: reflect.series is
     # [angle][interface]; with depth the interfaces are their depths.

@@ -191,11 +191,12 @@ int proto_check_size(proto_call *c, size_t samples, size_t work)
 		                  "request; split the request",
 		                  samples, lim->max_samples);
 	if (lim->max_work && work > lim->max_work)
-		return proto_fail(c, PROTO_LIMIT_EXCEEDED, NULL,
-		                  "%zu evaluations (samples x angles x draws) "
-		                  "exceed the limit of %zu per request; split "
-		                  "the request",
-		                  work, lim->max_work);
+		return proto_fail(
+		    c, PROTO_LIMIT_EXCEEDED, NULL,
+		    "%zu evaluations (samples or grid nodes, x "
+		    "angles, x draws or fits) exceed the limit of "
+		    "%zu per request; split the request",
+		    work, lim->max_work);
 	return 0;
 }
 

@@ -609,9 +609,38 @@ static size_t longest_array(const cJSON *v)
 	return best;
 }
 
+/* True when a distribution object (uncertainty) is anywhere in v. */
+static int has_dist(const cJSON *v, int depth)
+{
+	const cJSON *e;
+
+	if (depth > 16)
+		return 0;
+	if (cJSON_IsObject(v) &&
+	    cJSON_IsString(cJSON_GetObjectItemCaseSensitive(v, "dist")))
+		return 1;
+	cJSON_ArrayForEach(
+	    e, v) if (cJSON_IsObject(e) ||
+	              cJSON_IsArray(e)) if (has_dist(e, depth + 1)) return 1;
+	return 0;
+}
+
+/* The nodes of a grid axis: an array's length, or an object's n. */
+static size_t axis_len(const cJSON *v)
+{
+	const cJSON *n = cJSON_GetObjectItemCaseSensitive(v, "n");
+
+	if (cJSON_IsArray(v))
+		return (size_t)cJSON_GetArraySize(v);
+	if (cJSON_IsNumber(n) && n->valuedouble >= 1 && n->valuedouble < 1e15)
+		return (size_t)n->valuedouble;
+	return 1;
+}
+
 /* Work of one request: the product over broadcast groups of the longest
  * array given for the group (nested objects count for group 0), times
- * the method's cost per evaluation. */
+ * the nodes of every grid axis (PF_AXIS), times the draws when an input
+ * is a distribution, times the method's cost per evaluation. */
 static size_t request_cost(proto_session *s, const cJSON *req)
 {
 	const cJSON *method = cJSON_GetObjectItemCaseSensitive(req, "method");
@@ -628,13 +657,27 @@ static size_t request_cost(proto_session *s, const cJSON *req)
 	for (const proto_field *f = m->params->fields; f->name; f++) {
 		const cJSON *v =
 		    cJSON_GetObjectItemCaseSensitive(params, f->name);
-		size_t n = v ? longest_array(v) : proto__session_len(s, m, f);
+		size_t n;
 		int g = f->type == PT_NUMS ? f->group : 0;
+		if (f->flags & PF_AXIS) {
+			if (v)
+				work *= (double)axis_len(v);
+			continue;
+		}
+		n = v ? longest_array(v) : proto__session_len(s, m, f);
 		if (g < PROTO_MAX_GROUPS && n > len[g])
 			len[g] = n;
 	}
 	for (int g = 0; g < PROTO_MAX_GROUPS; g++)
 		work *= (double)len[g];
+	if (has_dist(params, 0)) {
+		const cJSON *u =
+		    cJSON_GetObjectItemCaseSensitive(params, "uncertainty");
+		const cJSON *d = cJSON_GetObjectItemCaseSensitive(u, "draws");
+		work *= cJSON_IsNumber(d) && d->valuedouble >= 1
+		            ? d->valuedouble
+		            : PROTO_DRAWS_DEFAULT;
+	}
 	work *= m->cost > 0 ? m->cost : 1.0;
 	return work >= (double)SIZE_MAX ? SIZE_MAX : (size_t)work;
 }

@@ -218,6 +218,9 @@ typedef struct proto_enumset {
 #define PF_FRACTION 0x0100u /* in [0, 1]; out of range hints at percent */
 #define PF_INT      0x0200u /* PT_NUMS: integer values */
 #define PF_ARRAY    0x0400u /* PT_NUMS: must be an array */
+#define PF_AXIS                                                                \
+	0x0800u /* PT_CUSTOM: a grid axis (an array, or an object with n);     \
+	           its length multiplies the work estimate */
 
 typedef struct proto_decl proto_decl;
 typedef struct proto_custom proto_custom;
@@ -341,6 +344,8 @@ extern const proto_decl proto_qc_ranges_decl;
 void proto_qc_ranges_default(proto_qc_ranges *r);
 
 extern const proto_decl proto_uncertainty_decl;
+/* Draws when `uncertainty.draws` is not given. */
+#define PROTO_DRAWS_DEFAULT 1000
 /* The core distribution of sample i of d (dist.c): RW_OK or RW_EDOM. */
 struct rw_dist;
 int proto__dist_at(const proto_dist *d, size_t i, struct rw_dist *out);

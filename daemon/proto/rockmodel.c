@@ -1153,18 +1153,18 @@ typedef struct tpl_args {
 
 static const proto_field tpl_fields[] = {
     MODEL_FIELDS(tpl_args),
-    {PROTO_FIELD(tpl_args, porosity_axis, PT_CUSTOM, 0,
+    {PROTO_FIELD(tpl_args, porosity_axis, PT_CUSTOM, PF_AXIS,
                  "porosity axis: increasing values in [0, 1) or {from, to, "
                  "n} (default 0 to min(phi_max, 0.4) in 21 nodes)"),
      .custom = &cu_porosity},
-    {PROTO_FIELD(tpl_args, sw_axis, PT_CUSTOM, 0,
+    {PROTO_FIELD(tpl_args, sw_axis, PT_CUSTOM, PF_AXIS,
                  "water-saturation axis (default 0 to 1 in 11 nodes)"),
      .custom = &cu_sw},
-    {PROTO_FIELD(tpl_args, clay_axis, PT_CUSTOM, 0,
+    {PROTO_FIELD(tpl_args, clay_axis, PT_CUSTOM, PF_AXIS,
                  "clay fractions of the solid as the third axis (instead "
                  "of one clay)"),
      .custom = &cu_clay},
-    {PROTO_FIELD(tpl_args, p_eff_axis, PT_CUSTOM, 0,
+    {PROTO_FIELD(tpl_args, p_eff_axis, PT_CUSTOM, PF_AXIS,
                  "effective pressures as the third axis (instead of one "
                  "p_eff)"),
      .custom = &cu_p_eff},

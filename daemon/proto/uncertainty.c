@@ -26,7 +26,6 @@
 
 #define MAX_INPUTS 64
 #define MAX_PCT    16
-#define DRAWS_DFLT 1000
 #define DRAWS_MAX  1000000
 /* Numbers an uncertain request may hold at once (draws x samples x
  * outputs): 2^27 doubles, 1 GiB. */
@@ -92,7 +91,7 @@ static const proto_field unc_fields[] = {
                 PF_SCALAR | PF_INT | PF_DFLT | PF_LO | PF_HI,
                 "number of draws (default 1000); draws x samples count "
                 "against --max-work"),
-     .dflt = DRAWS_DFLT, .lo = 2, .hi = DRAWS_MAX},
+     .dflt = PROTO_DRAWS_DEFAULT, .lo = 2, .hi = DRAWS_MAX},
     {PROTO_NUMS(unc_args, seed, PK_NONE,
                 PF_SCALAR | PF_INT | PF_DFLT | PF_LO | PF_HI,
                 "seed of the draws (default 1): the same seed gives the "

@@ -419,6 +419,31 @@ static void test_cost(void **state)
 	assert_int_equal(h_code(r), 0);
 	cJSON_Delete(r);
 	assert_int_equal(rw_proto_cost(h->s, inherit, strlen(inherit)), 5);
+	/* a short line can be heavy: 5000 draws x 1 sample (elastic.convert,
+	 * cost 1), the default 1000 draws, and a 50 x 40 template grid x
+	 * rock.template's cost of 20 per node */
+	{
+		const char *unc =
+		    "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+		    "\"elastic.convert\",\"params\":{\"rho\":{\"dist\":"
+		    "\"normal\",\"mean\":2.3,\"sd\":0.1},\"vp\":3000,"
+		    "\"vs\":1500,\"uncertainty\":{\"draws\":5000}}}";
+		const char *unc_d =
+		    "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+		    "\"elastic.convert\",\"params\":{\"rho\":{\"dist\":"
+		    "\"normal\",\"mean\":2.3,\"sd\":0.1},\"vp\":3000,"
+		    "\"vs\":1500}}";
+		const char *tpl =
+		    "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+		    "\"rock.template\",\"params\":{\"model\":\"soft_sand\","
+		    "\"porosity_axis\":{\"from\":0,\"to\":0.4,\"n\":50},"
+		    "\"sw_axis\":{\"from\":0,\"to\":1,\"n\":40}}}";
+		assert_int_equal(rw_proto_cost(h->s, unc, strlen(unc)), 5000);
+		assert_int_equal(rw_proto_cost(h->s, unc_d, strlen(unc_d)),
+		                 1000);
+		assert_int_equal(rw_proto_cost(h->s, tpl, strlen(tpl)),
+		                 50 * 40 * 20);
+	}
 }
 
 int main(void)

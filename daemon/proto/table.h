@@ -15,5 +15,6 @@ extern const proto_method *const proto_rock_methods[];
 extern const proto_method *const proto_rock_empirical_methods[];
 extern const proto_method *const proto_reflect_methods[];
 extern const proto_method *const proto_log_methods[];
+extern const proto_method *const proto_pressure_methods[];
 
 #endif

@@ -1,7 +1,7 @@
 /* The pressure family through the protocol: pressure.overburden,
- * pressure.hydrostatic, pressure.trend, pressure.pore, pressure.fracture
- * and rock.strength. Each physics check names the reference it compares
- * with: an exact integral, facts of the
+ * pressure.hydrostatic, pressure.trend, pressure.pore, pressure.fracture,
+ * rock.strength, and log.process with `pressures`. Each physics check
+ * names the reference it compares with: an exact integral, facts of the
  * trade (fresh-water gradient, the mud-weight factor), the published
  * formulas in their own units, or the core's own step functions where the
  * check is that the protocol wires them (the core is tested against
@@ -967,6 +967,240 @@ static void test_strength(void **state)
 	               "vs", "needs vp");
 }
 
+/* ---- log.process
+ * ------------------------------------------------------------- */
+
+#define LOGP(extra)                                                            \
+	"{\"depth\":[900,1000,1100,1200],\"dtp\":[125,122,150,140],"           \
+	"\"dts\":[230,225,280,260],\"rhob\":[2.25,2.3,2.2,2.33],"              \
+	"\"gr\":[100,105,110,40],\"gr_clean\":30,\"gr_shale\":120,"            \
+	"\"caliper\":[0.22,0.30,0.22,0.22],\"bit_size\":0.216,"                \
+	"\"pressures\":{\"depth_is\":\"tvd\",\"column\":{\"air_gap\":25,"      \
+	"\"water_depth\":100},\"trend\":{\"dt_ma\":60,\"dt_ml\":180,"          \
+	"\"c\":6e-4,\"top\":500,\"base\":1000}" extra "}}"
+
+static void test_log_matches_methods(void **state)
+{
+	/* log.process with pressures gives what the stand-alone methods give
+	 * on the same samples: the overburden of the densities it uses (a
+	 * washed-out one held), Eaton on its slowness, Eaton 1969 on its
+	 * Poisson's ratio. */
+	cJSON *lg = call(req("log.process", LOGP("")));
+	const cJSON *L = result_of(lg), *P;
+	cJSON *ob, *po, *fr;
+	char nu[256], pp[256], sv[256];
+	double v[3][4];
+
+	(void)state;
+	ob =
+	    call(req("pressure.overburden",
+	             "{\"tvd\":[900,1000,1100,1200],\"rhob\":[2.25,null,2.2,"
+	             "2.33],\"column\":{\"air_gap\":25,\"water_depth\":100}}"));
+	for (int i = 0; i < 4; i++)
+		assert_rel(num_at(L, "sv", i), num_at(result_of(ob), "sv", i),
+		           1e-14);
+	/* the washed-out density (caliper 0.30 over 0.216) was held */
+	assert_true(flags(L, "pressure_detail", 1) & D_DOUBTFUL);
+	assert_true(flags(L, "qc", 1) & EXTRAP);
+	for (int i = 0; i < 4; i++) {
+		v[0][i] = num_at(L, "sv", i);
+		v[1][i] = num_at(L, "pp", i);
+		v[2][i] = num_at(L, "nu", i);
+	}
+	po = call(req("pressure.pore",
+	              "{\"tvd\":[900,1000,1100,1200],\"dtp\":[125,122,150,"
+	              "140],\"sv\":%s,\"gr\":[100,105,110,40],\"gr_clean\":30,"
+	              "\"gr_shale\":120,\"column\":{\"air_gap\":25,"
+	              "\"water_depth\":100},\"trend\":{\"dt_ma\":60,"
+	              "\"dt_ml\":180,\"c\":6e-4,\"top\":500,\"base\":1000}}",
+	              arr(sv, sizeof sv, v[0], 4)));
+	P = result_of(po);
+	for (int i = 0; i < 4; i++) {
+		assert_rel(num_at(L, "pp", i), num_at(P, "pp", i), 1e-13);
+		assert_rel(num_at(L, "ph", i), num_at(P, "ph", i), 1e-13);
+		assert_rel(num_at(L, "dt_normal", i), num_at(P, "dt_normal", i),
+		           1e-13);
+	}
+	/* the sand (gr 40) is not shale; below the trend's span extrapolated */
+	assert_true(flags(L, "qc", 3) & NOTSH);
+	assert_true(flags(L, "pressure_detail", 2) & D_TR_EXTRA);
+	fr = call(req("pressure.fracture",
+	              "{\"tvd\":[900,1000,1100,1200],\"sv\":%s,\"pp\":%s,"
+	              "\"nu\":%s,\"column\":{\"air_gap\":25,"
+	              "\"water_depth\":100}}",
+	              arr(sv, sizeof sv, v[0], 4), arr(pp, sizeof pp, v[1], 4),
+	              arr(nu, sizeof nu, v[2], 4)));
+	for (int i = 0; i < 4; i++) {
+		assert_rel(num_at(L, "shmin", i),
+		           num_at(result_of(fr), "shmin", i), 1e-13);
+		assert_rel(num_at(L, "shmin_emw", i),
+		           num_at(result_of(fr), "shmin_emw", i), 1e-13);
+	}
+	caution_on_all(L, 4);
+	cJSON_Delete(lg);
+	cJSON_Delete(ob);
+	cJSON_Delete(po);
+	cJSON_Delete(fr);
+}
+
+static void test_log_blocks_equal_whole(void **state)
+{
+	/* Two blocks carried by the state token equal one request. */
+	char tok[256];
+	cJSON *whole = call(req("log.process", LOGP(""))), *a, *b;
+
+	(void)state;
+	a = call(req("log.process",
+	             "{\"depth\":[900,1000],\"dtp\":[125,122],\"dts\":[230,"
+	             "225],\"rhob\":[2.25,2.3],\"gr\":[100,105],\"gr_clean\":"
+	             "30,\"gr_shale\":120,\"caliper\":[0.22,0.30],"
+	             "\"bit_size\":0.216,\"pressures\":{\"depth_is\":\"tvd\","
+	             "\"column\":{\"air_gap\":25,\"water_depth\":100},"
+	             "\"trend\":{\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4,"
+	             "\"top\":500,\"base\":1000}}}"));
+	token_of(result_of(a), "pressure_state", tok, sizeof tok);
+	b = call(req("log.process",
+	             "{\"depth\":[1100,1200],\"dtp\":[150,140],\"dts\":[280,"
+	             "260],\"rhob\":[2.2,2.33],\"gr\":[110,40],\"gr_clean\":"
+	             "30,\"gr_shale\":120,\"caliper\":[0.22,0.22],"
+	             "\"bit_size\":0.216,\"pressures\":{\"depth_is\":\"tvd\","
+	             "\"column\":{\"air_gap\":25,\"water_depth\":100},"
+	             "\"trend\":{\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4,"
+	             "\"top\":500,\"base\":1000},\"state\":\"%s\"}}",
+	             tok));
+	static const char *const keys[] = {
+	    "sv", "ph", "pp", "shmin", "sv_emw", "pp_emw", "pressure_detail",
+	    "qc"};
+	for (size_t k = 0; k < sizeof keys / sizeof *keys; k++)
+		for (int i = 0; i < 4; i++)
+			assert_true(
+			    num_at(result_of(i < 2 ? a : b), keys[k], i % 2) ==
+			    num_at(result_of(whole), keys[k], i));
+	cJSON_Delete(whole);
+	cJSON_Delete(a);
+	cJSON_Delete(b);
+}
+
+static void test_log_md_and_fit(void **state)
+{
+	cJSON *r;
+	const cJSON *res;
+
+	(void)state;
+	/* md with a tvd curve: the pressures follow the TVD */
+	r = call(req("log.process",
+	             "{\"depth\":[1000,1100],\"tvd\":[950,1030],\"dtp\":[120,"
+	             "118],\"dts\":[220,215],\"rhob\":2.3,\"pressures\":{"
+	             "\"depth_is\":\"md\",\"pore\":\"none\",\"fracture\":"
+	             "\"none\",\"column\":{\"shallow\":{\"rho_ml\":2.3,"
+	             "\"a\":0}}}}"));
+	res = result_of(r);
+	assert_rel(num_at(res, "sv", 1), 2300 * G0 * 1030 * 1e-6, 1e-13);
+	assert_null(cJSON_GetObjectItemCaseSensitive(res, "pp"));
+	assert_null(cJSON_GetObjectItemCaseSensitive(res, "shmin"));
+	cJSON_Delete(r);
+	/* a trend fitted on the request's shale samples */
+	r = call(req("log.process",
+	             "{\"depth\":[600,700,800,900,1000,1100],\"dtp\":[150,144,"
+	             "139,134,130,126],\"dts\":[300,290,280,270,262,255],"
+	             "\"rhob\":2.2,\"pressures\":{\"depth_is\":\"tvd\","
+	             "\"trend_fit\":{\"intervals\":[{\"top\":500,"
+	             "\"base\":1200}]}}}"));
+	res = result_of(r);
+	assert_int_equal(
+	    num(cJSON_GetObjectItemCaseSensitive(res, "pressure_fit"),
+	        "n_used"),
+	    6);
+	assert_true(num_at(res, "pp_sigma_trend", 0) >= 0);
+	cJSON_Delete(r);
+	/* without pressures nothing of the family is written */
+	r = call(req("log.process", "{\"dtp\":120,\"dts\":220,\"rhob\":2.3}"));
+	res = result_of(r);
+	assert_null(cJSON_GetObjectItemCaseSensitive(res, "sv"));
+	assert_null(cJSON_GetObjectItemCaseSensitive(res, "pressure_state"));
+	assert_null(cJSON_GetObjectItemCaseSensitive(res, "pressure_detail"));
+	cJSON_Delete(r);
+}
+
+static void test_log_errors(void **state)
+{
+	(void)state;
+	expect_invalid(req("log.process",
+	                   "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	                   "\"rhob\":2.3,\"pressures\":{\"pore\":\"none\","
+	                   "\"fracture\":\"none\"}}"),
+	               "pressures.depth_is", "required");
+	expect_invalid(req("log.process",
+	                   "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	                   "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"md\","
+	                   "\"pore\":\"none\",\"fracture\":\"none\"}}"),
+	               "tvd", "deviation survey");
+	expect_invalid(
+	    req("log.process",
+	        "{\"dtp\":120,\"dts\":220,\"rhob\":2.3,\"pressures\":{"
+	        "\"depth_is\":\"tvd\",\"pore\":\"none\","
+	        "\"fracture\":\"none\"}}"),
+	    "depth", "required by pressures");
+	expect_invalid(
+	    req("log.process",
+	        "{\"depth\":1000,\"tvd\":990,\"dtp\":120,\"dts\":220,"
+	        "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"tvd\","
+	        "\"pore\":\"none\",\"fracture\":\"none\"}}"),
+	    "tvd", "not used");
+	expect_invalid(
+	    req("log.process",
+	        "{\"depth\":1000,\"tvd\":990,\"dtp\":120,\"dts\":220,"
+	        "\"rhob\":2.3}"),
+	    "tvd", "serves pressures");
+	expect_invalid(req("log.process",
+	                   "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	                   "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"tvd\","
+	                   "\"pore\":\"none\"}}"),
+	               "pressures.fracture", "needs the pore pressure");
+	expect_invalid(
+	    req("log.process",
+	        "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	        "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"tvd\"}}"),
+	    "pressures.trend", "Eaton needs");
+	expect_invalid(req("log.process",
+	                   "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	                   "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"tvd\","
+	                   "\"pore\":\"none\",\"fracture\":\"none\","
+	                   "\"column\":{\"water_depth\":800}}}"),
+	               "pressures.column.shallow", "deep water");
+	expect_invalid(req("log.process",
+	                   "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	                   "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"tvd\","
+	                   "\"fracture\":\"matthews_kelly\",\"trend\":{"
+	                   "\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4}}}"),
+	               "pressures.ki", "matrix-stress");
+	expect_invalid(
+	    req("log.process",
+	        "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	        "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"tvd\","
+	        "\"fracture\":\"poroelastic\",\"eps_h\":0.001,"
+	        "\"trend\":{\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4}}}"),
+	    "pressures.e_static_from", "tectonic strain");
+	expect_invalid(req("log.process",
+	                   "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	                   "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"tvd\","
+	                   "\"state\":\"rwp1.x\",\"trend_fit\":{\"intervals\":"
+	                   "[{\"top\":500,\"base\":1200}]}}}"),
+	               "pressures.trend_fit", "fit it once");
+	expect_invalid(req("log.process",
+	                   "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	                   "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"tvd\","
+	                   "\"pore\":\"none\",\"fracture\":\"none\","
+	                   "\"state\":\"rwp1.x\"}}"),
+	               "pressures.state", "not a state token");
+	expect_invalid(req("log.process",
+	                   "{\"depth\":1000,\"dtp\":120,\"dts\":220,"
+	                   "\"rhob\":2.3,\"pressures\":{\"depth_is\":\"tvd\","
+	                   "\"pore\":\"none\",\"fracture\":\"none\","
+	                   "\"bogus\":1}}"),
+	               "pressures.bogus", "unknown parameter");
+}
+
 int main(void)
 {
 	gsl_set_error_handler_off();
@@ -991,6 +1225,10 @@ int main(void)
 	    cmocka_unit_test(test_fracture_between_pp_and_sv),
 	    cmocka_unit_test(test_fracture_poroelastic_strain),
 	    cmocka_unit_test(test_strength),
+	    cmocka_unit_test(test_log_matches_methods),
+	    cmocka_unit_test(test_log_blocks_equal_whole),
+	    cmocka_unit_test(test_log_md_and_fit),
+	    cmocka_unit_test(test_log_errors),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }

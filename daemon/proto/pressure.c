@@ -239,13 +239,17 @@ static int cov_parse(proto_call *c, const cJSON *v, const char *path, void *dst)
 		i++;
 	}
 	for (i = 0; i < 3; i++) {
-		for (j = 0; j < 3; j++)
-			if (!(cv->v[i][j] == cv->v[j][i] ||
-			      (isnan(cv->v[i][j]) && isnan(cv->v[j][i]))))
+		for (j = 0; j < i; j++) {
+			double x = cv->v[i][j], y = cv->v[j][i];
+			/* symmetric to rounding (1e-9 of the larger) */
+			if (isnan(x) != isnan(y) ||
+			    fabs(x - y) > 1e-9 * fmax(fabs(x), fabs(y)))
 				return proto_fail(c, PROTO_INVALID_PARAMS, path,
 				                  "not symmetric: [%d][%d] and "
 				                  "[%d][%d] differ",
 				                  i, j, j, i);
+			cv->v[i][j] = cv->v[j][i] = 0.5 * (x + y);
+		}
 		if (cv->v[i][i] < 0)
 			return proto_fail(c, PROTO_INVALID_PARAMS, path,
 			                  "a variance (diagonal element %d) is "
@@ -1180,6 +1184,12 @@ void proto__pres_frac(const pres_setup *s, double z, double nu_dyn, double ki,
 		o->detail |= RW_PRES_WARN_PP_AT_SV;
 		goto done;
 	}
+	if (o->pp < 0) {
+		/* a negative pore pressure (e.g. Eaton on a fast non-shale):
+		 * reported as it is, no stress from it */
+		o->detail |= RW_PRES_WARN_PP_BELOW_HYDRO;
+		goto done;
+	}
 	switch (s->frac) {
 	case PRES_FRAC_EATON:
 		st = rw_pres_frac_eaton(o->sv, o->pp, nu, &o->shmin, &w);
@@ -1252,11 +1262,14 @@ void proto__pres_write_trend(proto_call *c, const char *key,
 			for (int j = 0; j < 3; j++) {
 				if (j)
 					buf[used++] = ',';
-				used += exact(buf + used, sizeof buf - used,
-				              t->form == RW_PRES_TREND_LOGLIN &&
-				                      (i == 0 || j == 0)
-				                  ? NAN
-				                  : t->cov[i][j]);
+				/* symmetric exactly (the fit's is to rounding)
+				 */
+				used += exact(
+				    buf + used, sizeof buf - used,
+				    t->form == RW_PRES_TREND_LOGLIN &&
+				            (i == 0 || j == 0)
+				        ? NAN
+				        : 0.5 * (t->cov[i][j] + t->cov[j][i]));
 			}
 			buf[used++] = ']';
 		}

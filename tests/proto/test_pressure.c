@@ -767,6 +767,22 @@ static void test_pore_errors(void **state)
 	                   "\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4,"
 	                   "\"covariance_si\":[[1,0,0],[0,1,0]]}}"),
 	               "trend.covariance_si", "3 x 3");
+	/* a covariance symmetric to rounding is taken, one that is not is
+	 * refused */
+	cJSON *rc =
+	    call(req("pressure.pore",
+	             "{\"tvd\":1000,\"dtp\":100,\"sv\":20,\"trend\":{"
+	             "\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4,"
+	             "\"covariance_si\":[[4e-12,1e-12,3e-11],[1e-12,"
+	             "2e-12,1e-11],[3.0000000000001e-11,1e-11,1e-9]]}}"));
+	assert_true(num_at(result_of(rc), "pp_sigma_trend", 0) > 0);
+	cJSON_Delete(rc);
+	expect_invalid(req("pressure.pore",
+	                   "{\"tvd\":1000,\"dtp\":100,\"sv\":20,\"trend\":{"
+	                   "\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4,"
+	                   "\"covariance_si\":[[4e-12,1e-12,3e-11],[1e-12,"
+	                   "2e-12,1e-11],[3.1e-11,1e-11,1e-9]]}}"),
+	               "trend.covariance_si", "not symmetric");
 	expect_invalid(req("pressure.pore",
 	                   "{\"tvd\":1000,\"dtp\":100,\"sv\":20,\"state\":"
 	                   "\"x\",\"trend\":{\"dt_ma\":60,\"dt_ml\":180,"
@@ -888,6 +904,14 @@ static void test_fracture_poroelastic_strain(void **state)
 	                   "\"pp\":35,\"nu\":0.3,\"eps_h\":0.02,"
 	                   "\"e_static\":10}"),
 	               "eps_h", NULL);
+	/* a negative pore pressure (Eaton on a fast non-shale): no stress
+	 * from it, flagged as a contradiction, not as a bad input */
+	cJSON *r3 = call(req("pressure.fracture",
+	                     "{\"tvd\":3000,\"sv\":68,\"pp\":-3,\"nu\":0.3}"));
+	assert_true(isnan(num_at(result_of(r3), "shmin", 0)));
+	assert_true(flags(result_of(r3), "qc", 0) & INCONS);
+	assert_false(flags(result_of(r3), "qc", 0) & 1ull);
+	cJSON_Delete(r3);
 	/* pp above sv: reported as a contradiction, no value */
 	cJSON *r2 = call(req("pressure.fracture",
 	                     "{\"tvd\":3000,\"sv\":68,\"pp\":70,\"nu\":0.3}"));

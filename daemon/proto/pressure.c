@@ -1050,7 +1050,10 @@ int proto__pres_integrate(proto_call *c, pres_setup *s, int do_obg, int do_hyd,
 				if (s->law_default && s->st.law_used &&
 				    !(w & RW_PRES_WARN_ABOVE_MUDLINE))
 					o->detail |= PRES_D_LAW_DEFAULT;
-				if (rho && isnan(rho[i]))
+				/* a null density below the mudline: missing
+				 * (above it there is no formation to log) */
+				if (rho && isnan(rho[i]) &&
+				    !(w & RW_PRES_WARN_ABOVE_MUDLINE))
 					o->qc |= QC_LOG_MISSING;
 			} else if (st == RW_EINVAL) {
 				o->detail |= PRES_D_NOT_DOWNWARD;

@@ -14,7 +14,15 @@
  * reported; --reconnect tries again with a growing pause; an idle timeout
  * reports a feed that has gone quiet. At most FEED_INFLIGHT samples are in
  * flight and input is not read while the pipe is full, so memory stays
- * bounded however long the feed runs. */
+ * bounded however long the feed runs.
+ *
+ * With pressures (--set pressures.depth_is=tvd ...) the answers depend on
+ * every sample before them (the running overburden and brine integrals):
+ * each answer returns the state token the next sample's request carries,
+ * so one request is on the wire at a time and the others wait in the
+ * queue; a replay of a log equals the batch (`rockwire log`) sample by
+ * sample. The pressure caution is printed at start-up, and the last state
+ * at the end, to restart from it. */
 #include <errno.h>
 #include <math.h>
 #include <netdb.h>
@@ -39,7 +47,7 @@
 #define FEED_INFLIGHT 64
 #define MAX_MAP       32
 #define READ_CHUNK    4096
-#define N_IN          14
+#define N_IN          15
 /* Samples one read can complete on top of FEED_INFLIGHT: a record takes
  * at least 13 bytes ("&&\n0108 1\n!!\n"). */
 #define QCAP (FEED_INFLIGHT + READ_CHUNK / 13 + 2)
@@ -59,6 +67,7 @@ static const struct {
     {"bit_size", "length"},   {"gr", "gamma_ray"},
     {"vsh", "fraction"},      {"porosity", "fraction"},
     {"pressure", "pressure"}, {"temperature", "temperature"},
+    {"tvd", "length"},
 };
 
 typedef struct mapent {
@@ -99,6 +108,13 @@ typedef struct feed {
 	    held_dropped, other_text;
 	int broken;
 	const char *source;
+	/* pressures: the state carried from answer to request */
+	int pres, wire, tvd_in;
+	double qval[QCAP][N_IN];
+	unsigned char qhave[QCAP][N_IN];
+	char *token;
+	double last_tvd, last_sv;
+	char sv_unit[24], depth_unit[24];
 } feed;
 
 static volatile sig_atomic_t stop_signal;
@@ -164,7 +180,7 @@ static int add_map(feed *f, const char *arg, const char *from,
 		fprintf(stderr,
 		        WHO ": %s%s%.0lu: unknown input '%s'%s%s%s; inputs: "
 		            "depth dtp dts vp vs rhob drho caliper bit_size gr "
-		            "vsh porosity pressure temperature\n",
+		            "vsh porosity pressure temperature tvd\n",
 		        from, line ? " line " : "", line, input,
 		        s ? " (did you mean " : "", s ? s : "", s ? "?)" : "");
 		return -1;
@@ -260,10 +276,27 @@ static int map_units(feed *f)
 
 /* ---- requests ------------------------------------------------------------ */
 
-/* Queues one log.process request for the assembled sample: every input
- * sent as a one-element array, [null] when this sample lacks it, so the
- * daemon flags it missing rather than refusing the sample. */
-static int send_sample(feed *f, int probe)
+/* The parameters as text without their braces, for the requests. */
+static int set_base(feed *f)
+{
+	char *s = cJSON_PrintUnformatted(f->params);
+	size_t n;
+
+	if (!s)
+		return -1;
+	n = strlen(s);
+	memmove(s, s + 1, n - 2);
+	s[n - 2] = '\0';
+	cJSON_free(f->base);
+	f->base = s;
+	return 0;
+}
+
+/* Writes the log.process request of one sample: every input sent as a
+ * one-element array, [null] when this sample lacks it, so the daemon
+ * flags it missing rather than refusing the sample. */
+static int write_sample(feed *f, unsigned long id, const double *val,
+                        const unsigned char *have, int probe)
 {
 	char head[128], num[48];
 	int first = 1;
@@ -271,7 +304,7 @@ static int send_sample(feed *f, int probe)
 	snprintf(head, sizeof head,
 	         "{\"jsonrpc\":\"2.0\",\"id\":%lu,\"method\":\"log.process\","
 	         "\"params\":{",
-	         f->next_id);
+	         id);
 	if (cli__buf_puts(&f->wbuf, head))
 		return -1;
 	if (*f->base) {
@@ -286,17 +319,43 @@ static int send_sample(feed *f, int probe)
 		snprintf(head, sizeof head, "%s\"%s\":[", first ? "" : ",",
 		         feed_inputs[in].name);
 		first = 0;
-		n = cli__fmt_num(num, !probe && f->have[in] ? f->val[in] : NAN,
-		                 0, NULL);
+		n = cli__fmt_num(num, !probe && have[in] ? val[in] : NAN, 0,
+		                 NULL);
 		if (cli__buf_puts(&f->wbuf, head) ||
 		    cli__buf_put(&f->wbuf, num, n) ||
 		    cli__buf_put(&f->wbuf, "]", 1))
 			return -1;
 	}
-	if (cli__buf_puts(&f->wbuf, "}}\n"))
-		return -1;
+	return cli__buf_puts(&f->wbuf, "}}\n");
+}
+
+/* Pressures: writes the head of the queue when nothing is on the wire.
+ * Its request carries the state the previous answer returned. */
+static int pump(feed *f)
+{
+	if (!f->pres || f->wire || !f->inflight)
+		return 0;
+	f->wire = 1;
+	return write_sample(f, f->qid[f->qhead], f->qval[f->qhead],
+	                    f->qhave[f->qhead], 0);
+}
+
+/* Queues the assembled sample (or, for the probe, only writes it). */
+static int send_sample(feed *f, int probe)
+{
+	unsigned char have[N_IN];
+	size_t k = (f->qhead + f->inflight) % QCAP;
+
+	for (int in = 0; in < N_IN; in++)
+		have[in] = (unsigned char)f->have[in];
+	if (probe || !f->pres) {
+		if (write_sample(f, f->next_id, f->val, have, probe))
+			return -1;
+	} else {
+		memcpy(f->qval[k], f->val, sizeof f->qval[k]);
+		memcpy(f->qhave[k], have, sizeof f->qhave[k]);
+	}
 	if (!probe) {
-		size_t k = (f->qhead + f->inflight) % QCAP;
 		f->qid[k] = f->next_id;
 		f->qdepth[k] = f->val[0];
 		f->inflight++;
@@ -305,7 +364,42 @@ static int send_sample(feed *f, int probe)
 		f->any = 0;
 	}
 	f->next_id++;
-	return 0;
+	return probe ? 0 : pump(f);
+}
+
+/* Pressures: takes the state of an answer for the next request (the
+ * restart values were for the first one only). */
+static int take_state(feed *f, const cJSON *res, size_t slot)
+{
+	const cJSON *st =
+	    cJSON_GetObjectItemCaseSensitive(res, "pressure_state");
+	const cJSON *tok = cJSON_GetObjectItemCaseSensitive(st, "token");
+	const cJSON *sv = cJSON_GetObjectItemCaseSensitive(res, "sv");
+	cJSON *pr = cJSON_GetObjectItemCaseSensitive(f->params, "pressures");
+	char *t;
+
+	if (cJSON_IsArray(sv))
+		sv = cJSON_GetArrayItem(sv, 0);
+	if (!cJSON_IsString(tok) || !cJSON_IsObject(pr))
+		return 0;
+	if (f->token && strcmp(f->token, tok->valuestring) == 0)
+		return 0;
+	t = strdup(tok->valuestring);
+	if (!t)
+		return -1;
+	free(f->token);
+	f->token = t;
+	if (cJSON_IsNumber(sv)) {
+		f->last_sv = sv->valuedouble;
+		f->last_tvd = f->tvd_in >= 0 && f->qhave[slot][f->tvd_in]
+		                  ? f->qval[slot][f->tvd_in]
+		                  : f->qval[slot][0];
+	}
+	cJSON_DeleteItemFromObjectCaseSensitive(pr, "resume");
+	cJSON_DeleteItemFromObjectCaseSensitive(pr, "state");
+	if (!cJSON_AddStringToObject(pr, "state", f->token))
+		return -1;
+	return set_base(f);
 }
 
 static void on_record(void *ctx, const cli_wits_item *items, size_t n)
@@ -481,6 +575,7 @@ static int on_line(void *ctx, char *line, size_t len)
 	const cJSON *err;
 	char why[160];
 	double depth;
+	size_t slot;
 
 	if (!f->inflight) {
 		fprintf(stderr, WHO ": an answer no sample asked for\n");
@@ -488,8 +583,10 @@ static int on_line(void *ctx, char *line, size_t len)
 	}
 	want = cJSON_CreateNumber((double)f->qid[f->qhead]);
 	depth = f->qdepth[f->qhead];
+	slot = f->qhead;
 	f->qhead = (f->qhead + 1) % QCAP;
 	f->inflight--;
+	f->wire = 0;
 	r = want ? cli__rpc_parse(line, len, want, why, sizeof why) : NULL;
 	cJSON_Delete(want);
 	if (!r) {
@@ -506,6 +603,11 @@ static int on_line(void *ctx, char *line, size_t len)
 		print_refused(f, err, depth);
 	} else {
 		f->answered++;
+		if (f->pres && take_state(f, res, slot)) {
+			cJSON_Delete(r);
+			fprintf(stderr, WHO ": out of memory\n");
+			return -1;
+		}
 		shape(f, res);
 		if (f->csv) {
 			print_csv_row(f, res, depth);
@@ -523,6 +625,10 @@ static int on_line(void *ctx, char *line, size_t len)
 	if (fflush(stdout) || ferror(stdout)) {
 		fprintf(stderr, WHO ": cannot write the output: %s\n",
 		        strerror(errno));
+		return -1;
+	}
+	if (pump(f)) {
+		fprintf(stderr, WHO ": out of memory\n");
 		return -1;
 	}
 	return 0;
@@ -558,15 +664,57 @@ static int probe(feed *f, cli_conn *c)
 		return CLI_EXIT_RPC_ERROR;
 	}
 	res = cJSON_GetObjectItemCaseSensitive(r, "result");
+	if (f->pres) {
+		const cJSON *pc =
+		    cJSON_GetObjectItemCaseSensitive(res, "pressure_caution");
+		const cJSON *pr =
+		    cJSON_GetObjectItemCaseSensitive(f->params, "pressures");
+		const cJSON *di =
+		    cJSON_GetObjectItemCaseSensitive(pr, "depth_is");
+		fprintf(stderr, WHO ": pressures: %s\n",
+		        cJSON_IsString(pc) ? pc->valuestring
+		                           : "screening estimates only");
+		if (cJSON_IsString(di) && strcmp(di->valuestring, "md") == 0)
+			fprintf(
+			    stderr, WHO
+			    ": pressures: the depth item is measured "
+			    "depth; they follow the tvd item (true vertical "
+			    "depth below the datum)\n");
+		else
+			fprintf(
+			    stderr, WHO
+			    ": pressures: the depth item is taken as "
+			    "true vertical depth below the datum "
+			    "(pressures.depth_is tvd); a measured depth would "
+			    "make every pressure wrong\n");
+		fprintf(stderr,
+		        WHO
+		        ": pressures: %s; one sample on the wire at a time, "
+		        "each carrying the state of the answer before it\n",
+		        cJSON_GetObjectItemCaseSensitive(pr, "state")
+		            ? "continuing from the state token given"
+		        : cJSON_GetObjectItemCaseSensitive(pr, "resume")
+		            ? "restarting from the resume values given (the "
+		              "answers are flagged resumed)"
+		            : "the running integrals start at the mudline");
+	}
 	shape(f, res);
 	f->columns = cJSON_CreateArray();
 	f->col_units =
 	    cJSON_Duplicate(cJSON_GetObjectItemCaseSensitive(res, "units"), 1);
 	cJSON_ArrayForEach(m, res)
 	{
-		if (cJSON_IsObject(m) || cJSON_IsArray(m))
+		if (cJSON_IsObject(m) || cJSON_IsArray(m) ||
+		    strcmp(m->string, "pressure_caution") == 0)
 			continue;
 		cJSON_AddItemToArray(f->columns, cJSON_CreateString(m->string));
+	}
+	if (f->pres && f->csv) {
+		/* the caution heads the CSV, as in rockwire log's CSV files */
+		const cJSON *pc =
+		    cJSON_GetObjectItemCaseSensitive(res, "pressure_caution");
+		printf("# %s\n# %s\n", caution,
+		       cJSON_IsString(pc) ? pc->valuestring : "");
 	}
 	cJSON_Delete(r);
 	return 0;
@@ -637,8 +785,8 @@ void cli_usage_feed(FILE *f)
 	    "                    item) feeds INPUT (depth dtp dts vp vs rhob\n"
 	    "                    drho caliper bit_size gr vsh porosity "
 	    "pressure\n"
-	    "                    temperature), its values in UNIT (default: "
-	    "the\n"
+	    "                    temperature tvd), its values in UNIT "
+	    "(default: the\n"
 	    "                    input's default unit, e.g. depth m, dtp "
 	    "us/ft).\n"
 	    "                    There is no built-in map: a feed's items "
@@ -664,6 +812,18 @@ void cli_usage_feed(FILE *f)
 	    "carry\n"
 	    "                    a unit; units.* choose output units only)\n"
 	    "  --qc names        add qc_names to each NDJSON line\n"
+	    "\n"
+	    "Pressures (--set pressures.depth_is=tvd|md and the rest of\n"
+	    "log.process's pressures object, e.g. pressures.trend): each "
+	    "answer\n"
+	    "returns the state of the running integrals, which the next\n"
+	    "sample's request carries, so samples go one at a time. The depth\n"
+	    "must be declared: tvd (the depth item is TVD below the datum) or\n"
+	    "md with a tvd item mapped. A restart resumes from the state "
+	    "token\n"
+	    "printed at the end (--set pressures.state=TOKEN) or from known\n"
+	    "values (--set pressures.resume.tvd=2450m --set\n"
+	    "pressures.resume.sv=48.2MPa; flagged resumed).\n"
 	    "\n"
 	    "A record with the depth item completes a sample: its mapped "
 	    "items\n"
@@ -712,6 +872,15 @@ static void summary(feed *f, const cli_wits_parser *wp)
 	if (f->any)
 		fprintf(stderr, "feed: values after the last depth item were "
 		                "not sent (no depth completed them)\n");
+	if (f->pres && f->token)
+		fprintf(
+		    stderr,
+		    "feed: pressures: the last state, after TVD %.10g "
+		    "(sv %.10g): restart with --set pressures.state=%s (the "
+		    "same column and pore water), or from known values with "
+		    "--set pressures.resume.tvd=... --set "
+		    "pressures.resume.sv=...\n",
+		    f->last_tvd, f->last_sv, f->token);
 	fprintf(stderr, "feed: %s\n", caution);
 }
 
@@ -901,16 +1070,12 @@ int cli_cmd_feed(const cli_opts *o, int argc, char **argv)
 			f.send[bit] = 0;
 		}
 	}
-	{
-		char *s = cJSON_PrintUnformatted(f.params);
-		size_t n;
-		if (!s)
-			goto out;
-		n = strlen(s);
-		memmove(s, s + 1, n - 2);
-		s[n - 2] = '\0';
-		f.base = s;
-	}
+	f.pres = cJSON_IsObject(
+	    cJSON_GetObjectItemCaseSensitive(f.params, "pressures"));
+	f.tvd_in = f.send[input_index("tvd")] ? input_index("tvd") : -1;
+	f.last_tvd = f.last_sv = NAN;
+	if (set_base(&f))
+		goto out;
 	/* Start-up: the caution and the map in use. */
 	fprintf(stderr, WHO ": %s\n", caution);
 	fprintf(stderr, WHO ": WITS map:");
@@ -1091,6 +1256,7 @@ out:
 	cJSON_Delete(f.sources);
 	cJSON_Delete(f.columns);
 	cJSON_Delete(f.col_units);
+	free(f.token);
 	cJSON_Delete(info);
 	cJSON_Delete(disc);
 	return rc;

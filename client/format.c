@@ -215,10 +215,17 @@ static void cell_text(const cli_fmt *fmt, const member *m, const cJSON *e,
 			              fmt->qc, buf, size);
 		else {
 			char num[48];
-			cli__fmt_cell(num, e->valuedouble,
-			              csv           ? 0
-			              : fmt->digits ? fmt->digits
-			                            : 7);
+			/* a QC set is an integer below 2^53: all its digits */
+			if (m && m->is_qc && e->valuedouble >= 0 &&
+			    e->valuedouble < 9007199254740992.0 &&
+			    e->valuedouble == floor(e->valuedouble))
+				snprintf(num, sizeof num, "%.0f",
+				         e->valuedouble);
+			else
+				cli__fmt_cell(num, e->valuedouble,
+				              csv           ? 0
+				              : fmt->digits ? fmt->digits
+				                            : 7);
 			snprintf(buf, size, "%s", num);
 		}
 	} else if (cJSON_IsString(e))

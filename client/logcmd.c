@@ -9,7 +9,14 @@
  * used where a curve or --set gives none, and the output says so; output
  * units are a separate choice. The output goes to a temporary file that
  * follows the umask and is renamed into place only when complete (and
- * removed on SIGINT or SIGTERM). */
+ * removed on SIGINT or SIGTERM).
+ *
+ * With pressures (--set pressures.depth_is=tvd ...) the overburden and
+ * brine integrals run down the whole log: blocks go one at a time, each
+ * request carrying the state token the answer before it returned, so the
+ * curves equal those of one request over the whole file (and a feed
+ * replay of it). A trend to fit (pressures.trend_fit) is fitted first,
+ * over the whole file, with pressure.trend, and given to every block. */
 #include <ctype.h>
 #include <errno.h>
 #include <math.h>
@@ -76,6 +83,7 @@ static const input_def inputs[] = {
     {"porosity", "fraction", "porosity", {"PHIT", "PHIE", "POR"}},
     {"pressure", "pressure", "pore pressure", {NULL}},
     {"temperature", "temperature", "temperature", {NULL}},
+    {"tvd", "length", "true vertical depth", {"TVD"}},
 };
 #define N_INPUTS (sizeof inputs / sizeof inputs[0])
 
@@ -107,7 +115,19 @@ static const struct {
     {"fluid_in_place_rho", "density of the fluid in place"},
     {"fluid_new_k", "bulk modulus of the new fluid"},
     {"fluid_new_rho", "density of the new fluid"},
+    {"sv", "overburden (vertical stress), screening estimate"},
+    {"sv_emw", "overburden as equivalent mud weight"},
+    {"ph", "hydrostatic pore pressure"},
+    {"ph_emw", "hydrostatic as equivalent mud weight"},
+    {"dt_normal", "normal compaction trend slowness"},
+    {"pp", "pore pressure, screening estimate (shale only)"},
+    {"pp_emw", "pore pressure as equivalent mud weight"},
+    {"pp_sigma_trend", "pore-pressure std. error from the trend alone"},
+    {"shmin", "minimum horizontal stress (fracture closure)"},
+    {"shmin_emw", "fracture gradient (closure) as equivalent mud weight"},
+    {"shmax", "maximum horizontal stress"},
     {"qc", "QC flag bits (0 clean; legend in ~Other)"},
+    {"pressure_detail", "pressure detail bits (legend in ~Other)"},
 };
 
 /* Per-curve statistics for the QC summary. */
@@ -144,7 +164,10 @@ typedef struct logrun {
 	size_t block, inflight_max;
 	int col[N_INPUTS]; /* curve index per input, -1 none */
 	double scale[N_INPUTS], offset[N_INPUTS];
-	cJSON *params;  /* sent with every block, besides the curves */
+	cJSON *params; /* sent with every block, besides the curves */
+	int pres;      /* pressures asked: blocks carry the state */
+	char *ptoken;  /* the state token of the last answer */
+	char pnote[2048];
 	cJSON *sources; /* where each parameter came from */
 	char *base;     /* params JSON without the braces */
 	size_t ncurves;
@@ -352,7 +375,7 @@ static int map_curves(logrun *L, char **maps, size_t nmaps)
 			        WHO ": --curve: unknown input '%s'%s%s%s; "
 			            "inputs: depth dtp dts vp vs rhob "
 			            "drho caliper bit_size gr vsh "
-			            "porosity pressure temperature\n",
+			            "porosity pressure temperature tvd\n",
 			        name, s ? " (did you mean " : "", s ? s : "",
 			        s ? "?)" : "");
 			return -1;
@@ -445,6 +468,17 @@ static int map_curves(logrun *L, char **maps, size_t nmaps)
 			     strcmp(inputs[i].name, "pressure") == 0 ||
 			     strcmp(inputs[i].name, "temperature") == 0))
 				L->col[i] = -1;
+	/* A TVD curve serves the pressures when the depth is measured
+	 * depth (pressures.depth_is md). */
+	{
+		const cJSON *di = cJSON_GetObjectItemCaseSensitive(
+		    cJSON_GetObjectItemCaseSensitive(L->params, "pressures"),
+		    "depth_is");
+		int tv = find_input("tvd");
+		if (!expl[tv] &&
+		    !(cJSON_IsString(di) && strcmp(di->valuestring, "md") == 0))
+			L->col[tv] = -1;
+	}
 	for (size_t i = 0; i < N_INPUTS; i++)
 		if (L->col[i] >= 0 && cJSON_GetObjectItemCaseSensitive(
 		                          L->params, inputs[i].name)) {
@@ -595,6 +629,43 @@ static int use_header(logrun *L)
 }
 
 /* ---- requests ------------------------------------------------------------ */
+
+/* The parameters as text without their braces (the curves follow). */
+static int set_base(logrun *L)
+{
+	char *s = cJSON_PrintUnformatted(L->params);
+	size_t n;
+
+	if (!s)
+		return -1;
+	n = strlen(s);
+	memmove(s, s + 1, n - 2);
+	s[n - 2] = '\0';
+	cJSON_free(L->base);
+	L->base = s;
+	return 0;
+}
+
+/* Pressures: the next block carries the state of this answer (and the
+ * restart values, for the first block only, are dropped). 0 or -1. */
+static int take_state(logrun *L, const cJSON *res)
+{
+	const cJSON *tok = cJSON_GetObjectItemCaseSensitive(
+	    cJSON_GetObjectItemCaseSensitive(res, "pressure_state"), "token");
+	cJSON *pr = cJSON_GetObjectItemCaseSensitive(L->params, "pressures");
+
+	if (!cJSON_IsString(tok) || !cJSON_IsObject(pr))
+		return 0;
+	free(L->ptoken);
+	L->ptoken = strdup(tok->valuestring);
+	if (!L->ptoken)
+		return -1;
+	cJSON_DeleteItemFromObjectCaseSensitive(pr, "resume");
+	cJSON_DeleteItemFromObjectCaseSensitive(pr, "state");
+	if (!cJSON_AddStringToObject(pr, "state", L->ptoken))
+		return -1;
+	return set_base(L);
+}
 
 /* Appends one block request to the write buffer. */
 static int queue_block(logrun *L, slot *s)
@@ -810,6 +881,61 @@ static void build_note(logrun *L, const cJSON *res)
 	                          "the _SUB curves"
 	                        : "no fluid substitution");
 	note_wrap(L, lead, buf);
+	if (L->pres) {
+		const cJSON *pc =
+		    cJSON_GetObjectItemCaseSensitive(res, "pressure_caution");
+		const cJSON *tr =
+		    cJSON_GetObjectItemCaseSensitive(res, "pressure_trend");
+		const cJSON *pr =
+		    cJSON_GetObjectItemCaseSensitive(L->params, "pressures");
+		const cJSON *m = cli__method_doc(L->discover, "log.process");
+		const cJSON *dd = cJSON_GetObjectItemCaseSensitive(
+		    cJSON_GetObjectItemCaseSensitive(
+		        cJSON_GetObjectItemCaseSensitive(
+		            cJSON_GetObjectItemCaseSensitive(
+		                cJSON_GetObjectItemCaseSensitive(m, "result"),
+		                "schema"),
+		            "properties"),
+		        "pressure_detail"),
+		    "description");
+		char *t =
+		    cJSON_IsObject(tr) ? cJSON_PrintUnformatted(tr) : NULL;
+		const cJSON *pore =
+		    cJSON_GetObjectItemCaseSensitive(pr, "pore");
+		const cJSON *frac =
+		    cJSON_GetObjectItemCaseSensitive(pr, "fracture");
+		note_wrap(L, lead,
+		          cJSON_IsString(pc) ? pc->valuestring
+		                             : "Pressures: screening estimates "
+		                               "only.");
+		snprintf(
+		    buf, sizeof buf,
+		    "Pressures (pressure.md): overburden SV from the density "
+		    "over TVD with the column above the log; hydrostatic PH; "
+		    "pore pressure PP by %s; fracture closure SHMIN by %s; "
+		    "_EMW curves are p / (g TVD), referred to the depth "
+		    "datum. Samples outside shale, extrapolated trends and "
+		    "contradictions are flagged in QC and PRESSURE_DETAIL, "
+		    "never clipped. None of them sees unloading, lateral "
+		    "transfer, centroid or hydrocarbon-column effects, or "
+		    "tectonic stress unless strains are given.",
+		    cJSON_IsString(pore) ? pore->valuestring : "eaton",
+		    cJSON_IsString(frac) ? frac->valuestring : "eaton");
+		note_wrap(L, lead, buf);
+		if (L->pnote[0])
+			note_wrap(L, lead, L->pnote);
+		else if (t) {
+			snprintf(
+			    buf, sizeof buf,
+			    "Compaction trend as given: %s (slowness us/ft, c "
+			    "1/m, depths m).",
+			    t);
+			note_wrap(L, lead, buf);
+		}
+		cJSON_free(t);
+		if (cJSON_IsString(dd))
+			note_wrap(L, lead, dd->valuestring);
+	}
 	used = (size_t)snprintf(buf, sizeof buf, "QC bits:");
 	for (int b = 0; b < CLI_QC_BITS && used < sizeof buf; b++)
 		if (L->qc[b])
@@ -1002,7 +1128,11 @@ static int write_rows(logrun *L, const slot *s, const cJSON *res)
 				v = cJSON_IsNumber(e) ? e->valuedouble : NAN;
 				it[k] = e ? e->next : NULL;
 				if (is_qc && !isnan(v)) {
-					flags = (uint64_t)v;
+					/* 64-bit sets, bits 0-52: exact
+					 * in a double, never past 2^53 */
+					flags = v >= 0 && v < 9007199254740992.0
+					            ? (uint64_t)v
+					            : 0;
 					L->flagged += flags != 0;
 				} else if (!isnan(v)) {
 					v = (v - L->out_offset[k]) /
@@ -1074,6 +1204,10 @@ static int on_line(void *ctx, char *line, size_t len)
 	}
 	if (!L->have_cols && start_output(L, res))
 		goto out;
+	if (L->pres && take_state(L, res)) {
+		fprintf(stderr, WHO ": out of memory\n");
+		goto out;
+	}
 	if (write_rows(L, s, res)) {
 		if (!L->failed)
 			fprintf(stderr, WHO ": cannot write the output: %s\n",
@@ -1317,7 +1451,7 @@ void cli_usage_log(FILE *f)
 	    "                    inputs: depth dtp dts vp vs rhob drho "
 	    "caliper\n"
 	    "                    bit_size gr vsh porosity pressure "
-	    "temperature\n"
+	    "temperature tvd\n"
 	    "  --set NAME=VALUE  a log.process parameter (JSON, else a "
 	    "string;\n"
 	    "                    dotted names nest). A number may carry a "
@@ -1365,6 +1499,13 @@ void cli_usage_log(FILE *f)
 	    "of fluid substitution. Without a bit size the washout check is\n"
 	    "skipped with a warning.\n"
 	    "\n"
+	    "Pressures: --set pressures.depth_is=tvd (or md with a TVD curve,\n"
+	    "tvd TVD) and the rest of log.process's pressures object add the\n"
+	    "overburden, hydrostatic, pore-pressure and fracture-gradient\n"
+	    "curves. Blocks then go one at a time, each carrying the state of\n"
+	    "the running integrals; pressures.trend_fit is fitted once over\n"
+	    "the whole file with pressure.trend first (FILE, not stdin).\n"
+	    "\n"
 	    "Every output carries the caution: screening estimates only, not "
 	    "a\n"
 	    "substitute for qualified review, local regulations and licensed\n"
@@ -1373,6 +1514,237 @@ void cli_usage_log(FILE *f)
 	    "Exit codes: 0 ok, 1 the daemon refused a block, 2 usage, 3 no\n"
 	    "daemon, 4 I/O failure, 5 malformed input (the message names the\n"
 	    "line), 6 timeout; a signal ends it with that signal.\n");
+}
+
+/* The QC legend of bits 32-63 (cli__qc_legend knows 0-31): names by the
+ * "index" of each flag of service.info. */
+static void qc_legend_hi(const cJSON *info, const char *names[64])
+{
+	const cJSON *q;
+
+	for (int b = 32; b < 64; b++)
+		names[b] = NULL;
+	cJSON_ArrayForEach(q,
+	                   cJSON_GetObjectItemCaseSensitive(info, "qc_flags"))
+	{
+		const cJSON *nm = cJSON_GetObjectItemCaseSensitive(q, "name");
+		const cJSON *ix = cJSON_GetObjectItemCaseSensitive(q, "index");
+		if (cJSON_IsString(nm) && cJSON_IsNumber(ix) &&
+		    ix->valuedouble >= 32 && ix->valuedouble < 64)
+			names[(int)ix->valuedouble] = nm->valuestring;
+	}
+}
+
+/* Pressures with pressures.trend_fit: fits the trend once over the whole
+ * file with pressure.trend (a block-by-block fit would change from block
+ * to block) and gives the result to every block as pressures.trend. Reads
+ * the file a first time for the samples inside the intervals (and
+ * --top/--base). 0, or a CLI_EXIT_* code with a message. */
+static int prefit(logrun *L, cli_conn *c, long long deadline)
+{
+	cJSON *pr = cJSON_GetObjectItemCaseSensitive(L->params, "pressures");
+	cJSON *fit = cJSON_GetObjectItemCaseSensitive(pr, "trend_fit");
+	const cJSON *ivs = cJSON_GetObjectItemCaseSensitive(fit, "intervals");
+	const cJSON *di = cJSON_GetObjectItemCaseSensitive(pr, "depth_is");
+	static const char *const names[] = {"dtp",     "vp",       "vsh", "gr",
+	                                    "caliper", "bit_size", NULL};
+	int zin = cJSON_IsString(di) && strcmp(di->valuestring, "md") == 0
+	              ? find_input("tvd")
+	              : 0;
+	cJSON *q = NULL, *arrs[7] = {NULL}, *resp = NULL, *iv;
+	cli_las_reader *r = NULL;
+	FILE *in = NULL;
+	double *rows = NULL;
+	size_t n = 0, used = 0;
+	int rc = CLI_EXIT_IO, st;
+	const cJSON *res, *err, *tr, *fs;
+
+	if (!cJSON_IsObject(fit))
+		return 0;
+	if (L->in == stdin) {
+		fprintf(stderr,
+		        WHO ": pressures.trend_fit reads the file twice (the "
+		            "trend is fitted over the whole log first): give a "
+		            "file, not stdin, or give pressures.trend\n");
+		return CLI_EXIT_USAGE;
+	}
+	if (L->col[zin] < 0) {
+		fprintf(stderr, WHO ": pressures: no %s curve\n",
+		        zin ? "TVD (--curve tvd=MNEM)" : "depth");
+		return CLI_EXIT_USAGE;
+	}
+	if (!cJSON_IsArray(ivs)) {
+		fprintf(stderr, WHO ": pressures.trend_fit.intervals must be "
+		                    "an array of {top, base}\n");
+		return CLI_EXIT_USAGE;
+	}
+	in = fopen(L->path, "rb");
+	r = cli_las_reader_new();
+	rows = malloc(L->block * L->ncurves * sizeof *rows);
+	q = cJSON_CreateObject();
+	for (int k = 0; k < 7; k++)
+		arrs[k] = cJSON_CreateArray();
+	if (!in || !r || !rows || !q) {
+		fprintf(stderr, WHO ": %s: %s\n", L->path,
+		        in ? "out of memory" : strerror(errno));
+		goto out;
+	}
+	if (cli_las_is_csv(L->r))
+		cli_las_set_csv(r, cli_las_null(L->r));
+	cli_las_set_order_check(r, !L->allow_unsorted);
+	if (cli_las_read(r, in) != CLI_LAS_HEADER)
+		goto bad;
+	for (;;) {
+		cli_las_set_block(r, rows, L->block);
+		st = cli_las_read(r, in);
+		if (st == CLI_LAS_ERR)
+			goto bad;
+		n = cli_las_rows(r);
+		if (!n)
+			break;
+		n = select_rows(L, rows, n);
+		for (size_t j = 0; j < n; j++) {
+			const double *row = rows + j * L->ncurves;
+			double z =
+			    row[L->col[zin]] * L->scale[zin] + L->offset[zin];
+			int inside = 0;
+			cJSON_ArrayForEach(iv, ivs)
+			{
+				const cJSON *t =
+				    cJSON_GetObjectItemCaseSensitive(iv, "top");
+				const cJSON *b =
+				    cJSON_GetObjectItemCaseSensitive(iv,
+				                                     "base");
+				if (cJSON_IsNumber(t) && cJSON_IsNumber(b) &&
+				    z >= t->valuedouble && z <= b->valuedouble)
+					inside = 1;
+			}
+			if (!inside)
+				continue;
+			cJSON_AddItemToArray(arrs[6], cJSON_CreateNumber(z));
+			for (int k = 0; names[k]; k++) {
+				int ix = find_input(names[k]);
+				double v;
+				if (L->col[ix] < 0)
+					continue;
+				v = row[L->col[ix]];
+				cJSON_AddItemToArray(
+				    arrs[k], isnan(v) ? cJSON_CreateNull()
+				                      : cJSON_CreateNumber(
+				                            v * L->scale[ix] +
+				                            L->offset[ix]));
+			}
+			used++;
+		}
+		if (L->past_range)
+			break;
+	}
+	L->past_range = 0;
+	if (!used) {
+		fprintf(stderr,
+		        WHO ": pressures.trend_fit: no sample of %s lies in "
+		            "its intervals\n",
+		        L->path);
+		rc = CLI_EXIT_USAGE;
+		goto out;
+	}
+	cJSON_AddItemToObject(q, "tvd", arrs[6]);
+	arrs[6] = NULL;
+	for (int k = 0; names[k]; k++) {
+		int ix = find_input(names[k]);
+		if (L->col[ix] < 0)
+			continue;
+		cJSON_AddItemToObject(q, names[k], arrs[k]);
+		arrs[k] = NULL;
+	}
+	{
+		/* the request's selector and rules, as log.process has them */
+		static const char *const top[] = {
+		    "gr_clean", "gr_shale", "bit_size", "washout_limit", NULL};
+		static const char *const sub[] = {"column", "vsh_min", NULL};
+		for (int k = 0; top[k]; k++) {
+			const cJSON *v =
+			    cJSON_GetObjectItemCaseSensitive(L->params, top[k]);
+			if (v && !cJSON_GetObjectItemCaseSensitive(q, top[k]))
+				cJSON_AddItemToObject(q, top[k],
+				                      cJSON_Duplicate(v, 1));
+		}
+		for (int k = 0; sub[k]; k++) {
+			const cJSON *v =
+			    cJSON_GetObjectItemCaseSensitive(pr, sub[k]);
+			if (v)
+				cJSON_AddItemToObject(q, sub[k],
+				                      cJSON_Duplicate(v, 1));
+		}
+		cJSON_ArrayForEach(iv, fit)
+		{
+			cJSON_AddItemToObject(q, iv->string,
+			                      cJSON_Duplicate(iv, 1));
+		}
+		if (cJSON_GetObjectItemCaseSensitive(q, "caliper") &&
+		    !cJSON_GetObjectItemCaseSensitive(q, "bit_size"))
+			cJSON_DeleteItemFromObjectCaseSensitive(q, "caliper");
+		if (!cJSON_GetObjectItemCaseSensitive(q, "caliper"))
+			cJSON_DeleteItemFromObjectCaseSensitive(q, "bit_size");
+		if (!cJSON_GetObjectItemCaseSensitive(q, "gr")) {
+			cJSON_DeleteItemFromObjectCaseSensitive(q, "gr_clean");
+			cJSON_DeleteItemFromObjectCaseSensitive(q, "gr_shale");
+		}
+		if (!cJSON_GetObjectItemCaseSensitive(q, "caliper"))
+			cJSON_DeleteItemFromObjectCaseSensitive(
+			    q, "washout_limit");
+	}
+	rc = cli__roundtrip(c, WHO, "pressure.trend", q, 3, deadline, &resp);
+	if (rc)
+		goto out;
+	res = cJSON_GetObjectItemCaseSensitive(resp, "result");
+	err = cJSON_GetObjectItemCaseSensitive(resp, "error");
+	if (err || !cJSON_IsObject(res)) {
+		cli__print_error(stderr,
+		                 WHO ": pressures.trend_fit: pressure.trend "
+		                     "refused the fit",
+		                 err);
+		rc = CLI_EXIT_RPC_ERROR;
+		goto out;
+	}
+	tr = cJSON_GetObjectItemCaseSensitive(res, "trend");
+	fs = cJSON_GetObjectItemCaseSensitive(res, "fit");
+	{
+		char *t = cJSON_PrintUnformatted(tr);
+		char *f = cJSON_PrintUnformatted(fs);
+		snprintf(
+		    L->pnote, sizeof L->pnote,
+		    "Compaction trend fitted over the whole file by "
+		    "pressure.trend on %zu samples inside "
+		    "pressures.trend_fit's intervals (the shale among them, "
+		    "washouts left out), then given to every block: %s; "
+		    "fit %s (slowness us/ft, c 1/m, depths m).",
+		    used, t ? t : "?", f ? f : "?");
+		notef(L,
+		      "pressures: trend fitted with pressure.trend over the "
+		      "%zu samples inside the intervals (n_used: those that "
+		      "pass the shale selector, not washed out): %s",
+		      used, f ? f : "?");
+		cJSON_free(t);
+		cJSON_free(f);
+	}
+	cJSON_DeleteItemFromObjectCaseSensitive(pr, "trend_fit");
+	cJSON_AddItemToObject(pr, "trend", cJSON_Duplicate(tr, 1));
+	rc = 0;
+	goto out;
+bad:
+	fprintf(stderr, WHO ": %s: %s\n", L->path, cli_las_error(r));
+	rc = CLI_EXIT_INPUT;
+out:
+	for (int k = 0; k < 7; k++)
+		cJSON_Delete(arrs[k]);
+	cJSON_Delete(q);
+	cJSON_Delete(resp);
+	cli_las_reader_free(r);
+	free(rows);
+	if (in)
+		fclose(in);
+	return rc;
 }
 
 /* A depth option "1550", "1550m", "5085ft" in the depth curve's unit. */
@@ -1599,6 +1971,7 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 		goto out;
 	}
 	cli__qc_legend(info, L.qc);
+	qc_legend_hi(info, L.qc);
 	if (cli__build_params(WHO, sets, nsets, pjson, &L.units, disc,
 	                      &L.params, &L.sources)) {
 		rc = CLI_EXIT_USAGE;
@@ -1625,17 +1998,21 @@ int cli_cmd_log(const cli_opts *o, int argc, char **argv)
 		L.top_d = L.base_d;
 		L.base_d = t;
 	}
-	{
-		char *s = cJSON_PrintUnformatted(L.params);
-		size_t n;
-		if (!s)
+	L.pres = cJSON_IsObject(
+	    cJSON_GetObjectItemCaseSensitive(L.params, "pressures"));
+	if (L.pres) {
+		rc = prefit(&L, &c, deadline);
+		if (rc)
 			goto out;
-		n = strlen(s);
-		/* Strip the braces: the curves are appended after. */
-		memmove(s, s + 1, n - 2);
-		s[n - 2] = '\0';
-		L.base = s;
+		rc = CLI_EXIT_IO;
+		if (L.inflight_max > 1)
+			notef(&L, "pressures: blocks go one at a time, each "
+			          "carrying the state of the running integrals "
+			          "from the answer before it");
+		L.inflight_max = 1;
 	}
+	if (set_base(&L))
+		goto out;
 	L.in_stat = calloc(L.ncurves, sizeof *L.in_stat);
 	if (!L.in_stat)
 		goto out;
@@ -1850,6 +2227,7 @@ out:
 	free(L.in_stat);
 	cli__buf_free(&L.wbuf);
 	cJSON_free(L.base);
+	free(L.ptoken);
 	cJSON_Delete(L.params);
 	cJSON_Delete(L.sources);
 	cJSON_Delete(info);

@@ -376,6 +376,46 @@ static const struct {
     {".temperature", "temperature"},
 };
 
+/* The kind of a nested parameter ("pressures.column.water_depth") by
+ * walking the schema's object properties from the top-level parameter
+ * down; NULL when the schema does not say. */
+static const char *nested_kind(const cJSON *discover, const cJSON *params,
+                               const char *path)
+{
+	const char *dot = strchr(path, '.');
+	const cJSON *p, *node = NULL, *k;
+	char seg[128];
+	size_t n = (size_t)(dot - path);
+
+	if (!dot || n >= sizeof seg)
+		return NULL;
+	memcpy(seg, path, n);
+	seg[n] = '\0';
+	cJSON_ArrayForEach(p, params)
+	{
+		const cJSON *nm = cJSON_GetObjectItemCaseSensitive(p, "name");
+		if (cJSON_IsString(nm) && strcmp(nm->valuestring, seg) == 0)
+			node = cJSON_GetObjectItemCaseSensitive(p, "schema");
+	}
+	while (node && dot) {
+		const char *next;
+		node = cli__schema_deref(discover, node);
+		path = dot + 1;
+		next = strchr(path, '.');
+		n = next ? (size_t)(next - path) : strlen(path);
+		if (n >= sizeof seg)
+			return NULL;
+		memcpy(seg, path, n);
+		seg[n] = '\0';
+		node = cJSON_GetObjectItemCaseSensitive(
+		    cJSON_GetObjectItemCaseSensitive(node, "properties"), seg);
+		dot = next;
+	}
+	node = cli__schema_deref(discover, node);
+	k = cJSON_GetObjectItemCaseSensitive(node, "x-kind");
+	return cJSON_IsString(k) ? k->valuestring : NULL;
+}
+
 const char *cli__param_kind(const cJSON *discover, const char *path)
 {
 	const char *last = strrchr(path, '.');
@@ -398,6 +438,11 @@ const char *cli__param_kind(const cJSON *discover, const char *path)
 			if (cJSON_IsString(nm) && cJSON_IsString(k) &&
 			    strcmp(nm->valuestring, path) == 0)
 				return k->valuestring;
+		}
+		if (last) {
+			const char *nk = nested_kind(discover, params, path);
+			if (nk)
+				return nk;
 		}
 	}
 	for (size_t i = 0; i < sizeof param_kinds / sizeof *param_kinds; i++) {

@@ -4,15 +4,19 @@
  * against bit size, gamma ray or shale volume. Missing shear velocity or
  * density may be predicted by published empirical relations (flagged as
  * predicted, never passed off as measured), and with a fluid scenario the
- * Gassmann-substituted curves are added beside the measured ones. All
- * physics is in the core: elastic.h, empirical.h, fluid.h, mineral.h and
- * rock.h. */
+ * Gassmann-substituted curves are added beside the measured ones. With
+ * the `pressures` option the overburden, hydrostatic, pore-pressure and
+ * fracture-gradient curves are added too, through the pressure family's
+ * chain (pres.h), whose running integrals continue from one request to
+ * the next by a state token. All physics is in the core: elastic.h,
+ * empirical.h, fluid.h, mineral.h, rock.h and pressure.h. */
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
 
 #include "proto/desc.h"
 #include "proto/internal.h"
+#include "proto/pres.h"
 #include "proto/table.h"
 #include "rockwire/elastic.h"
 #include "rockwire/empirical.h"
@@ -54,9 +58,13 @@ typedef struct log_args {
 	proto_vec pressure_gradient, temperature_gradient;
 	proto_vec surface_pressure, surface_temperature;
 	proto_qc_ranges qc;
+	proto_vec tvd;
+	proto_pres_log pressures;
 	/* derived */
 	int subst, need_pt, have_vsh, washout, insitu;
 	double rock_sum;
+	struct log_row *pre; /* pressures: rows computed by prepare */
+	pres_setup *pset;
 } log_args;
 
 #define S(m, k_, text)                                                         \
@@ -154,6 +162,14 @@ static const proto_field log_fields[] = {
             "temperature at depth 0 (with temperature_gradient)")},
     {PROTO_FIELD(log_args, qc, PT_OBJ, 0, "plausibility ranges"),
      .sub = &proto_qc_ranges_decl},
+    S(tvd, PK_LENGTH,
+      "true vertical depth below the datum of each sample, for the "
+      "pressures when depth is measured depth (pressures.depth_is md)"),
+    {PROTO_FIELD(log_args, pressures, PT_OBJ, 0,
+                 "add the overburden, hydrostatic, pore-pressure and "
+                 "fracture-gradient curves (screening estimates only; "
+                 "pressure.md)"),
+     .sub = &proto_pres_log_decl},
     {0},
 };
 #undef S
@@ -358,6 +374,27 @@ static int log_check(proto_call *c, void *dst)
 	}
 	if (!a->qc.hdr.present)
 		proto_qc_ranges_default(&a->qc);
+	if (a->pressures.hdr.present) {
+		const proto_pres_log *p = &a->pressures;
+		if (p->depth_is == PRES_DEPTH_TVD && !a->depth.present)
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, "depth",
+			    "required by pressures: the depth of "
+			    "each sample (TVD, as depth_is says)");
+		if (p->depth_is == PRES_DEPTH_MD && !a->tvd.present)
+			return proto_fail(
+			    c, PROTO_INVALID_PARAMS, "tvd",
+			    "required by pressures with depth_is md: the true "
+			    "vertical depth of each sample (from the well's "
+			    "deviation survey); pressures are integrated over "
+			    "TVD, never over measured depth");
+		if (p->depth_is == PRES_DEPTH_TVD &&
+		    unused(c, &a->tvd, 0, "tvd",
+		           "pressures.depth_is is tvd: the depth is the TVD"))
+			return -1;
+	} else if (unused(c, &a->tvd, 0, "tvd", "it serves pressures")) {
+		return -1;
+	}
 	return 0;
 }
 
@@ -374,7 +411,9 @@ typedef struct log_row {
 	double vp, vs, rho, k, mu, lambda, e, nu, ai, si, vpvs, vsh;
 	double vp_sub, vs_sub, rho_sub, k_sub, ai_sub, si_sub, vpvs_sub, nu_sub;
 	double k_fl_in_place, rho_fl_in_place, k_fl_new, rho_fl_new;
-	uint64_t qc;
+	double sv, sv_emw, ph, ph_emw, dt_normal, pp, pp_emw, pp_sigma;
+	double shmin, shmin_emw, shmax;
+	uint64_t qc, pdetail;
 } log_row;
 
 /* Velocity from a velocity or a slowness vector (exactly one present or
@@ -426,11 +465,8 @@ static void lith_at(const log_args *a, size_t i, double vsh,
 	}
 }
 
-static int log_kernel(const void *args, size_t i, void *row, uint64_t *qc,
-                      void *ws)
+static int log_sample(const log_args *a, size_t i, log_row *r, uint64_t *qc)
 {
-	const log_args *a = args;
-	log_row *r = row;
 	uint64_t fl = 0;
 	unsigned why = 0, warn = 0;
 	double v_p = vel(&a->vp, &a->dtp, i), v_s = vel(&a->vs, &a->dts, i);
@@ -439,7 +475,6 @@ static int log_kernel(const void *args, size_t i, void *row, uint64_t *qc,
 	int bad_rho = 0, vsp_block = 0;
 	rw_elastic e;
 
-	(void)ws;
 	if (a->drho.present) {
 		double d = proto_at(&a->drho, i);
 		if (isnan(d))
@@ -592,6 +627,228 @@ static int log_kernel(const void *args, size_t i, void *row, uint64_t *qc,
 	return 0;
 }
 
+static int log_kernel(const void *args, size_t i, void *row, uint64_t *qc,
+                      void *ws)
+{
+	const log_args *a = args;
+
+	(void)ws;
+	if (a->pre) {
+		/* pressures: prepare computed the whole row in depth order */
+		memcpy(row, &a->pre[i], sizeof a->pre[i]);
+		return 0;
+	}
+	return log_sample(a, i, row, qc);
+}
+
+/* ---- pressures ----------------------------------------------------------
+ * The overburden and brine integrals run down the log in order, so the
+ * whole request is computed here, before the driver's kernels (which
+ * only copy the rows): first every sample's elastic set and QC (split
+ * across the worker threads when large, as the driver would), then the
+ * pressure chain in depth order. */
+
+#define PRES_PARALLEL_WORK 16384.0
+
+typedef struct pres_job {
+	const log_args *a;
+	log_row *rows;
+	size_t n, chunk;
+} pres_job;
+
+static void pres_rows(void *arg, size_t k)
+{
+	pres_job *j = arg;
+	size_t lo = k * j->chunk, hi = lo + j->chunk;
+
+	if (hi > j->n)
+		hi = j->n;
+	for (size_t i = lo; i < hi; i++) {
+		log_row *r = &j->rows[i];
+		double *d = (double *)(void *)r;
+		/* every member before qc is a double output: NaN, as the
+		 * driver clears a row */
+		for (size_t m = 0; m < offsetof(log_row, qc) / sizeof *d; m++)
+			d[m] = NAN;
+		r->qc = r->pdetail = 0;
+		log_sample(j->a, i, r, &r->qc);
+	}
+}
+
+static int log_prepare(proto_call *c, void *args, proto_shape *sh)
+{
+	log_args *a = args;
+	const proto_pres_log *p = &a->pressures;
+	size_t n = sh->n, nb = n ? n : 1;
+	pres_job job = {a, NULL, n, n ? n : 1};
+	pres_setup *s;
+	pres_sample *out;
+	double *z, *rho, *dt;
+	unsigned char *doubt, *excl;
+	int hyd = 1;
+
+	if (!p->hdr.present)
+		return 0;
+	job.rows = proto_alloc(c, nb * sizeof *job.rows);
+	s = proto_alloc(c, sizeof *s);
+	out = proto_alloc(c, nb * sizeof *out);
+	z = proto_alloc_doubles(c, nb);
+	rho = proto_alloc_doubles(c, nb);
+	dt = proto_alloc_doubles(c, nb);
+	doubt = proto_alloc(c, nb);
+	excl = proto_alloc(c, nb);
+	if (!job.rows || !s || !out || !z || !rho || !dt || !doubt || !excl)
+		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
+		                  "out of memory for the pressures");
+	if ((double)n * 3 > PRES_PARALLEL_WORK && n > 64) {
+		job.chunk = (n + 63) / 64;
+		proto__parallel(c->ctx, (n + job.chunk - 1) / job.chunk,
+		                pres_rows, &job);
+	} else {
+		pres_rows(&job, 0);
+	}
+	proto__pres_setup_init(s);
+	if (proto__pres_column(c, &p->column, "pressures.column", 1, s) ||
+	    proto__pres_water(c, &p->pore_water, "pressures.pore_water", s))
+		return -1;
+	for (size_t i = 0; i < n; i++) {
+		const log_row *r = &job.rows[i];
+		z[i] = proto_at(
+		    p->depth_is == PRES_DEPTH_MD ? &a->tvd : &a->depth, i);
+		rho[i] = r->rho;
+		doubt[i] = p->density == PRES_RHO_HOLD &&
+		           (r->qc & (QC_DRHO_HIGH | QC_WASHOUT)) &&
+		           !(r->qc & QC_RHO_PREDICTED);
+		dt[i] = r->vp > 0 ? 1 / r->vp : NAN;
+		excl[i] = (r->qc & QC_WASHOUT) != 0;
+		proto__pres_sample_clear(&out[i]);
+	}
+	s->vsh_min = a->have_vsh ? p->vsh_min.v[0] : NAN;
+	if (!a->have_vsh && p->pore != PRES_PORE_NONE)
+		proto_warn(c, "pressures",
+		           "no shale selector (vsh or gr): every sample is "
+		           "taken as shale; the pore pressure means nothing "
+		           "outside shale");
+	s->pore = p->pore;
+	s->exponent = p->exponent.v[0];
+	s->frac = p->fracture;
+	s->alpha = p->alpha.v[0];
+	s->eps_h = p->eps_h.v[0];
+	s->eps_hmax = p->eps_hmax.v[0];
+	if (p->nu_static.hdr.present) {
+		s->nu_a = p->nu_static.a.v[0];
+		s->nu_b = p->nu_static.b.v[0];
+	}
+	if (p->pore == PRES_PORE_BOWERS &&
+	    proto__pres_bowers(c, &p->bowers, "pressures.bowers", s))
+		return -1;
+	if (p->trend.hdr.present &&
+	    proto__pres_trend_given(c, &p->trend, "pressures.trend", s))
+		return -1;
+	if (p->trend_fit.hdr.present) {
+		double *vsh = NULL;
+		if (a->have_vsh) {
+			vsh = proto_alloc_doubles(c, nb);
+			if (!vsh)
+				return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
+				                  "out of memory");
+			for (size_t i = 0; i < n; i++)
+				vsh[i] = job.rows[i].vsh;
+		}
+		if (proto__pres_trend_fit(c, &p->trend_fit,
+		                          "pressures.trend_fit", n, z, dt, vsh,
+		                          excl, s))
+			return -1;
+	}
+	if (proto__pres_start(c, p->state, "pressures.state", &p->resume,
+	                      "pressures.resume", 1, hyd, s) ||
+	    proto__pres_integrate(c, s, 1, hyd, n, z, rho, doubt, out))
+		return -1;
+	for (size_t i = 0; i < n; i++) {
+		log_row *r = &job.rows[i];
+		pres_sample *o = &out[i];
+		double es = NAN, g = s->col.g_ms2, gr;
+		proto__pres_pore(s, z[i], dt[i], r->vp, r->vsh, o);
+		if (s->frac == PRES_FRAC_POROELASTIC &&
+		    (s->eps_h != 0 || s->eps_hmax != 0))
+			proto__pres_es(&p->e_static_from, r->vp, r->e, &es,
+			               &o->detail);
+		proto__pres_frac(s, z[i], r->nu,
+		                 p->ki.present ? p->ki.v[0] : NAN, es, o);
+		r->sv = o->sv * 1e-6;
+		r->ph = o->ph * 1e-6;
+		r->dt_normal = o->dt_n;
+		r->pp = o->pp * 1e-6;
+		r->pp_sigma = o->pp_sigma * 1e-6;
+		r->shmin = o->shmin * 1e-6;
+		r->shmax = o->shmax * 1e-6;
+		rw_pres_emw(o->sv, z[i], g, &r->sv_emw, &gr);
+		rw_pres_emw(o->ph, z[i], g, &r->ph_emw, &gr);
+		rw_pres_emw(o->pp, z[i], g, &r->pp_emw, &gr);
+		rw_pres_emw(o->shmin, z[i], g, &r->shmin_emw, &gr);
+		r->qc |= o->qc | proto__pres_qc(o->detail);
+		r->pdetail = o->detail;
+	}
+	a->pre = job.rows;
+	a->pset = s;
+	return 0;
+}
+
+static int has_pres(const void *a)
+{
+	return ((const log_args *)a)->pressures.hdr.present;
+}
+static int has_pp(const void *a)
+{
+	const log_args *l = a;
+	return l->pressures.hdr.present && l->pressures.pore != PRES_PORE_NONE;
+}
+static int has_eaton(const void *a)
+{
+	const log_args *l = a;
+	return l->pressures.hdr.present && l->pressures.pore == PRES_PORE_EATON;
+}
+static int has_pp_sigma(const void *a)
+{
+	const log_args *l = a;
+	return has_eaton(a) && l->pset->trend_has_cov;
+}
+static int has_fit(const void *a)
+{
+	const log_args *l = a;
+	return l->pressures.hdr.present && l->pset->trend_fitted;
+}
+static int has_frac(const void *a)
+{
+	const log_args *l = a;
+	return l->pressures.hdr.present &&
+	       l->pressures.fracture != PRES_FRAC_NONE;
+}
+static int has_shmax(const void *a)
+{
+	const log_args *l = a;
+	return l->pressures.hdr.present &&
+	       l->pressures.fracture == PRES_FRAC_POROELASTIC;
+}
+static void write_pstate(proto_call *c, const char *key, const void *args)
+{
+	proto__pres_write_state(c, key, ((const log_args *)args)->pset);
+}
+static void write_ptrend(proto_call *c, const char *key, const void *args)
+{
+	proto__pres_write_trend(c, key, ((const log_args *)args)->pset);
+}
+static void write_pfit(proto_call *c, const char *key, const void *args)
+{
+	const pres_setup *s = ((const log_args *)args)->pset;
+	const rw_pres_trend *t = &s->trend;
+
+	proto_w_obj_begin(c, key);
+	proto_w_int(c, "n_used", (long long)t->n_used);
+	proto_w_num(c, "rms", PK_SLOWNESS, t->rms_sm);
+	proto_w_obj_end(c);
+}
+
 static int has_depth(const void *a)
 {
 	return ((const log_args *)a)->depth.present;
@@ -672,10 +929,35 @@ static const proto_output log_outputs[] = {
       "bulk modulus of the new fluid"),
     O("fluid_new_rho", rho_fl_new, PK_DENSITY, has_subst,
       "density of the new fluid"),
+    O("sv", sv, PK_PRESSURE, has_pres, "overburden (vertical stress)"),
+    O("sv_emw", sv_emw, PK_MUD_WEIGHT, has_pres,
+      "overburden as an equivalent mud weight"),
+    O("ph", ph, PK_PRESSURE, has_pres, "hydrostatic pore pressure"),
+    O("ph_emw", ph_emw, PK_MUD_WEIGHT, has_pres,
+      "hydrostatic as an equivalent mud weight"),
+    O("dt_normal", dt_normal, PK_SLOWNESS, has_eaton,
+      "normal compaction trend slowness"),
+    O("pp", pp, PK_PRESSURE, has_pp,
+      "pore pressure (reported, not clipped; shale only)"),
+    O("pp_emw", pp_emw, PK_MUD_WEIGHT, has_pp,
+      "pore pressure as an equivalent mud weight"),
+    O("pp_sigma_trend", pp_sigma, PK_PRESSURE, has_pp_sigma,
+      "standard error of pp from the trend alone (first order)"),
+    O("shmin", shmin, PK_PRESSURE, has_frac,
+      "minimum horizontal stress (fracture closure estimate)"),
+    O("shmin_emw", shmin_emw, PK_MUD_WEIGHT, has_frac,
+      "minimum horizontal stress as an equivalent mud weight"),
+    O("shmax", shmax, PK_PRESSURE, has_shmax,
+      "maximum horizontal stress (poroelastic)"),
     {.name = "qc",
      .type = PO_FLAGS,
      .offset = offsetof(log_row, qc),
      .desc = "QC flags per sample"},
+    {.name = "pressure_detail",
+     .type = PO_FLAGS,
+     .offset = offsetof(log_row, pdetail),
+     .when = has_pres,
+     .desc = proto_pres_detail_desc},
     {.name = "vs_predicted_by",
      .type = PO_CUSTOM,
      .dim = D_REQ,
@@ -694,6 +976,36 @@ static const proto_output log_outputs[] = {
      .write = write_subst,
      .schema = NULLSTR,
      .desc = "\"gassmann\" when substituted curves are given, or null"},
+    {.name = "pressure_trend",
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
+     .when = has_eaton,
+     .write = write_ptrend,
+     .schema = PRES_SCHEMA_TREND,
+     .desc = "the compaction trend the pore pressure used (given or "
+             "fitted)"},
+    {.name = "pressure_fit",
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
+     .when = has_fit,
+     .write = write_pfit,
+     .schema = "{\"type\": \"object\"}",
+     .desc = "samples used and rms residual of a trend fitted here"},
+    {.name = "pressure_state",
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
+     .when = has_pres,
+     .write = write_pstate,
+     .schema = PRES_SCHEMA_STATE,
+     .desc = "the running pressure integrals after the last sample: give "
+             "its token as pressures.state with the next samples"},
+    {.name = "pressure_caution",
+     .type = PO_CUSTOM,
+     .dim = D_REQ,
+     .when = has_pres,
+     .write = proto__pres_write_caution,
+     .schema = "{\"type\": \"string\"}",
+     .desc = "screening estimates only (the pressure family's caution)"},
     {0},
 };
 #undef O
@@ -708,11 +1020,14 @@ static const proto_method m_process = {
         "sample (scalars). Slowness or velocity, density, and the QC "
         "curves (drho, caliper with bit size, gr or vsh); missing shear or "
         "density may be predicted (flagged predicted); with fluid_in_place "
-        "and fluid_new the Gassmann-substituted curves are added. Screening "
-        "estimates only: never the sole basis for drilling or well-control "
-        "decisions. See logs.md.",
+        "and fluid_new the Gassmann-substituted curves are added; with "
+        "pressures, the overburden, hydrostatic, pore-pressure and "
+        "fracture-gradient curves (pressure.md). Screening estimates only: "
+        "never the sole basis for drilling or well-control decisions. See "
+        "logs.md.",
     .params = &log_decl,
     .outputs = log_outputs,
+    .prepare = log_prepare,
     .kernel = log_kernel,
     .row_size = sizeof(log_row),
     .qc_offset = offsetof(log_row, qc),

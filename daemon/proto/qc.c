@@ -184,23 +184,31 @@ const proto_qc_info proto_qc_legend[] = {
      "(no uncertainty), nearly singular over the angles used, or too few "
      "usable angles (then null)"},
     {QC_PRES_CAUTION, "pressure_screening_only", QC_INPUT,
-     "a pressure or stress estimate: a screening estimate only, never the "
-     "sole basis for mud-weight, casing or well-control decisions "
-     "(pressure.md says what each method cannot see)"},
+     "set on every sample of every pressure, stress and strength answer: "
+     "a screening estimate only, never the sole basis for mud-weight, "
+     "casing or well-control decisions (pressure.md says what each "
+     "method cannot see)"},
     {QC_PRES_EXTRAPOLATED, "pressure_extrapolated", QC_RANGE,
-     "the estimate leans on an extrapolation: a compaction trend beyond "
-     "the depths it was fitted on, the shallow-density law above the "
-     "first density sample, or a relation outside its data"},
+     "the estimate leans on an assumption or an extrapolation: the "
+     "shallow-density law over this step, the default (shelf) law anywhere "
+     "above, a density held over a gap or a doubtful one not used, a "
+     "compaction trend beyond the depths it was fitted on or given without "
+     "them, or the brine correlation outside its fit (pressure_detail "
+     "says which)"},
     {QC_PRES_NOT_SHALE, "not_shale", QC_RANGE,
-     "the sample is not in the shale the method needs (Eaton and Bowers "
-     "read shale compaction): the value is outside its basis"},
+     "the sample fails the shale selector (vsh below vsh_min, or vsh "
+     "missing): Eaton and Bowers read shale compaction, so the pore "
+     "pressure here is outside their basis; it is computed all the same"},
     {QC_PRES_INCONSISTENT, "pressure_inconsistent", QC_IMPLAUSIBLE,
-     "the estimate contradicts its frame: pore pressure above the "
-     "overburden or below hydrostatic, or a fracture gradient outside "
-     "pore pressure and overburden; reported, not clipped"},
+     "the estimate contradicts its frame: pore pressure below hydrostatic "
+     "or at the overburden, a fracture gradient outside pore pressure and "
+     "overburden, the overburden below hydrostatic, a velocity below "
+     "Bowers' v0, a trend faster than any matrix, a static modulus above "
+     "the dynamic one; reported, never clipped"},
     {QC_STRENGTH_RANGE, "strength_extrapolated", QC_RANGE,
-     "a strength correlation used outside its lithology or calibration "
-     "range (pressure.md names each one's source and range)"},
+     "a strength or static-modulus correlation used outside its "
+     "calibration span, or on the other lithology than it was fitted on "
+     "(pressure.md names each one's source, rock and span)"},
     {0, NULL, QC_INPUT, NULL},
 };
 

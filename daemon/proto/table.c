@@ -8,10 +8,11 @@
 #include "proto/table.h"
 
 static const proto_method *const *const families[] = {
-    proto_service_methods, proto_session_methods,        proto_elastic_methods,
-    proto_thomsen_methods, proto_fluid_methods,          proto_mineral_methods,
-    proto_rock_methods,    proto_rock_empirical_methods, proto_reflect_methods,
-    proto_log_methods,     proto_rockmodel_methods,      proto_seismic_methods,
+    proto_service_methods,  proto_session_methods,        proto_elastic_methods,
+    proto_thomsen_methods,  proto_fluid_methods,          proto_mineral_methods,
+    proto_rock_methods,     proto_rock_empirical_methods, proto_reflect_methods,
+    proto_log_methods,      proto_rockmodel_methods,      proto_seismic_methods,
+    proto_pressure_methods,
 };
 
 const proto_method *proto_method_at(size_t i)

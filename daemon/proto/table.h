@@ -17,5 +17,6 @@ extern const proto_method *const proto_reflect_methods[];
 extern const proto_method *const proto_log_methods[];
 extern const proto_method *const proto_rockmodel_methods[];
 extern const proto_method *const proto_seismic_methods[];
+extern const proto_method *const proto_pressure_methods[];
 
 #endif

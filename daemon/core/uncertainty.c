@@ -5,6 +5,7 @@
  * See include/rockwire/uncertainty.h for the contracts and sources. */
 #include <float.h>
 #include <math.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -285,10 +286,24 @@ int rw_unc_summary(const double *x, size_t stride, size_t n, double *work,
 		return RW_OK;
 	}
 	gsl_sort(work, 1, m);
-	*mean = gsl_stats_mean(work, 1, m);
-	*sd = m > 1 ? gsl_stats_sd_m(work, 1, m, *mean) : NAN;
+	return rw_unc_summary_sorted(work, m, pct, npct, mean, sd, q);
+}
+
+int rw_unc_summary_sorted(const double *x, size_t n, const double *pct,
+                          size_t npct, double *mean, double *sd, double *q)
+{
+	if (!mean || !sd || (n && !x) || (npct && (!pct || !q)))
+		return RW_EINVAL;
+	if (n == 0) {
+		*mean = *sd = NAN;
+		for (size_t k = 0; k < npct; k++)
+			q[k] = NAN;
+		return RW_OK;
+	}
+	*mean = gsl_stats_mean(x, 1, n);
+	*sd = n > 1 ? gsl_stats_sd_m(x, 1, n, *mean) : NAN;
 	for (size_t k = 0; k < npct; k++)
-		q[k] = gsl_stats_quantile_from_sorted_data(work, 1, m,
+		q[k] = gsl_stats_quantile_from_sorted_data(x, 1, n,
 		                                           pct[k] / 100.0);
 	return RW_OK;
 }
@@ -313,4 +328,123 @@ double rw_unc_spearman(const double *x, size_t sx, const double *y, size_t sy,
 	if (m < 3 || const_a || const_b)
 		return NAN;
 	return gsl_stats_spearman(a, 1, b, 1, m, w);
+}
+
+/* The bit pattern of v as an unsigned key in the order of the values
+ * (IEEE 754 binary64: flip every bit of a negative, the sign bit of a
+ * positive), with -0 as +0. */
+static uint64_t sort_key(double v)
+{
+	uint64_t u;
+
+	if (v == 0)
+		v = 0; /* -0 */
+	memcpy(&u, &v, sizeof u);
+	return u >> 63 ? ~u : u ^ ((uint64_t)1 << 63);
+}
+
+int rw_unc_argsort(const double *x, size_t sx, size_t n, size_t *perm,
+                   uint64_t *work)
+{
+	enum { BITS = 11, RADIX = 1 << BITS };
+	uint64_t *ka = work, *kb = work + n, *ib = work + 2 * n;
+	size_t count[RADIX];
+
+	for (size_t i = 0; i < n; i++) {
+		if (!isfinite(x[i * sx]))
+			return RW_EDOM;
+		ka[i] = sort_key(x[i * sx]);
+		perm[i] = i;
+	}
+	/* LSD radix sort, 11 bits a pass (6 passes cover 64 bits), stable;
+	 * a pass where every key has the same digit is skipped. */
+	for (int shift = 0; shift < 64; shift += BITS) {
+		size_t sum = 0;
+		memset(count, 0, sizeof count);
+		for (size_t i = 0; i < n; i++)
+			count[(ka[i] >> shift) & (RADIX - 1)]++;
+		if (n && count[(ka[0] >> shift) & (RADIX - 1)] == n)
+			continue;
+		for (size_t d = 0; d < RADIX; d++) {
+			size_t c = count[d];
+			count[d] = sum;
+			sum += c;
+		}
+		for (size_t i = 0; i < n; i++) {
+			size_t to = count[(ka[i] >> shift) & (RADIX - 1)]++;
+			kb[to] = ka[i];
+			ib[to] = perm[i];
+		}
+		memcpy(ka, kb, n * sizeof *ka);
+		for (size_t i = 0; i < n; i++)
+			perm[i] = (size_t)ib[i];
+	}
+	return RW_OK;
+}
+
+size_t rw_unc_ranks_sorted(const double *x, size_t sx, const size_t *perm,
+                           size_t n, const size_t *pos, double *r)
+{
+	size_t m = 0, k = 0;
+
+	while (k < n) {
+		size_t first = m, j;
+		double v = x[perm[k] * sx];
+		/* the run of values equal to v, kept ones counted */
+		for (j = k; j < n && x[perm[j] * sx] == v; j++)
+			if (!pos || pos[perm[j]] != SIZE_MAX)
+				m++;
+		for (size_t t = k; t < j; t++) {
+			size_t d = perm[t];
+			if (pos && pos[d] == SIZE_MAX)
+				continue;
+			/* ranks first+1 .. m: their mean */
+			r[pos ? pos[d] : d] = 0.5 * (double)(first + 1 + m);
+		}
+		k = j;
+	}
+	return m;
+}
+
+void rw_unc_ranks_of_sorted(const double *sorted, const size_t *perm, size_t n,
+                            double *r)
+{
+	for (size_t k = 0; k < n;) {
+		size_t t = k + 1;
+		double mean;
+		while (t < n && sorted[t] == sorted[k])
+			t++;
+		mean = 0.5 * (double)(k + 1 + t); /* ranks k+1 .. t */
+		for (; k < t; k++)
+			r[perm[k]] = mean;
+	}
+}
+
+int rw_unc_ranks(const double *x, size_t sx, size_t n, double *r, size_t *perm,
+                 uint64_t *work)
+{
+	int rc = rw_unc_argsort(x, sx, n, perm, work);
+
+	if (rc != RW_OK)
+		return rc;
+	rw_unc_ranks_sorted(x, sx, perm, n, NULL, r);
+	return RW_OK;
+}
+
+double rw_unc_rank_correlation(const double *a, const double *b, size_t n)
+{
+	/* mean ranks keep the mean of ranks 1..n: (n + 1) / 2 */
+	double c = 0.5 * (double)(n + 1), sab = 0, saa = 0, sbb = 0;
+
+	if (n < 3)
+		return NAN;
+	for (size_t i = 0; i < n; i++) {
+		double x = a[i] - c, y = b[i] - c;
+		sab += x * y;
+		saa += x * x;
+		sbb += y * y;
+	}
+	if (!(saa > 0) || !(sbb > 0))
+		return NAN;
+	return sab / sqrt(saa * sbb);
 }

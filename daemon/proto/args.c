@@ -233,6 +233,8 @@ static int parse_nums(proto_call *c, const proto_field *f, const char *path,
 	out->n = n;
 	out->present = 1;
 	out->is_array = cJSON_IsArray(v) ? 1 : 0;
+	if (f->flags & PF_LIST)
+		return 0;
 	return proto_join(c, f->group, n, out->is_array, path);
 }
 
@@ -256,6 +258,8 @@ int proto__vec_accept(proto_call *c, const proto_field *f, const char *path,
 	out->present = 1;
 	out->inherited = 1;
 	out->is_array = is_array ? 1 : 0;
+	if (f->flags & PF_LIST)
+		return 0;
 	return proto_join(c, f->group, n, is_array, path);
 }
 

@@ -218,6 +218,9 @@ typedef struct proto_enumset {
 #define PF_FRACTION 0x0100u /* in [0, 1]; out of range hints at percent */
 #define PF_INT      0x0200u /* PT_NUMS: integer values */
 #define PF_ARRAY    0x0400u /* PT_NUMS: must be an array */
+#define PF_LIST                                                                \
+	0x1000u /* PT_NUMS: a list of its own length (e.g. percentiles),       \
+	           not broadcast with the samples */
 #define PF_AXIS                                                                \
 	0x0800u /* PT_CUSTOM: a grid axis (an array, or an object with n);     \
 	           its length multiplies the work estimate */

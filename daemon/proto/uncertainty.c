@@ -105,7 +105,7 @@ static const proto_field unc_fields[] = {
      .dflt_choice = SAMPLING_LHS,
      .desc = "latin_hypercube (default; McKay et al. 1979) or monte_carlo"},
     {PROTO_NUMS(unc_args, percentiles, PK_NONE,
-                PF_LO | PF_HI | PF_LO_OPEN | PF_HI_OPEN,
+                PF_LIST | PF_LO | PF_HI | PF_LO_OPEN | PF_HI_OPEN,
                 "percentiles to report, in percent (default 10, 50, 90)"),
      .lo = 0, .hi = 100},
     {PROTO_FIELD(unc_args, correlations, PT_OBJ, 0,
@@ -572,21 +572,39 @@ static void run_draws(void *arg, size_t chunk)
 	const proto_shape *sh = r->sh;
 	size_t n = sh->n, lo = chunk * ca->per, hi = lo + ca->per;
 	unsigned char *rows = NULL, *cells[2] = {NULL, NULL};
+	unsigned char *blank = NULL, *cblank[2] = {NULL, NULL};
 	void *ws = NULL;
 
 	if (hi > r->draws)
 		hi = r->draws;
 	rows = calloc(n ? n : 1, m->row_size);
+	blank = calloc(1, m->row_size);
 	for (int k = 0; k < 2; k++)
-		if (m->cells[k].kernel)
+		if (m->cells[k].kernel) {
 			cells[k] =
 			    calloc(n * sh->m[k] + 1, m->cells[k].row_size);
+			cblank[k] = calloc(1, m->cells[k].row_size);
+		}
 	if (m->ws_size)
 		ws = calloc(1, m->ws_size);
-	if (!rows || (m->cells[0].kernel && !cells[0]) ||
-	    (m->cells[1].kernel && !cells[1]) || (m->ws_size && !ws)) {
+	if (!rows || !blank ||
+	    (m->cells[0].kernel && (!cells[0] || !cblank[0])) ||
+	    (m->cells[1].kernel && (!cells[1] || !cblank[1])) ||
+	    (m->ws_size && !ws)) {
 		r->failed = 1;
 		goto out;
+	}
+	/* A row before its kernel runs: numeric outputs NaN, strings NULL,
+	 * flags 0; copied in, not rebuilt, for every sample of every draw. */
+	for (const proto_output *o = m->outputs; o->name; o++) {
+		const double nan = NAN;
+		int k = o->dim - D_CELL;
+		if (o->type != PO_NUM)
+			continue;
+		if (o->dim == D_SAMPLE)
+			memcpy(blank + o->offset, &nan, sizeof nan);
+		else if (k >= 0 && k < 2 && cblank[k])
+			memcpy(cblank[k] + o->offset, &nan, sizeof nan);
 	}
 	for (size_t d = lo; d < hi; d++) {
 		const void *a = r->dargs[d];
@@ -596,19 +614,7 @@ static void run_draws(void *arg, size_t chunk)
 		}
 		for (size_t i = 0; a && i < n; i++) {
 			unsigned char *row = rows + i * m->row_size;
-			const double nan = NAN;
-			const char *none = NULL;
-			for (const proto_output *o = m->outputs; o->name; o++) {
-				if (o->dim != D_SAMPLE)
-					continue;
-				if (o->type == PO_NUM)
-					memcpy(row + o->offset, &nan,
-					       sizeof nan);
-				else if (o->type == PO_STR)
-					memcpy(row + o->offset, &none,
-					       sizeof none);
-			}
-			*(uint64_t *)(row + m->qc_offset) = 0;
+			memcpy(row, blank, m->row_size);
 			m->kernel(a, i, row, (uint64_t *)(row + m->qc_offset),
 			          ws);
 			for (int k = 0; k < 2; k++) {
@@ -619,14 +625,7 @@ static void run_draws(void *arg, size_t chunk)
 					unsigned char *cr =
 					    cells[k] +
 					    (i * sh->m[k] + j) * cs->row_size;
-					for (const proto_output *o = m->outputs;
-					     o->name; o++)
-						if (o->dim == D_CELL + k &&
-						    o->type == PO_NUM)
-							memcpy(cr + o->offset,
-							       &nan,
-							       sizeof nan);
-					*(uint64_t *)(cr + cs->qc_offset) = 0;
+					memcpy(cr, cblank[k], cs->row_size);
 					cs->kernel(
 					    a, i, j, row, cr,
 					    (uint64_t *)(cr + cs->qc_offset),
@@ -679,6 +678,9 @@ static void run_draws(void *arg, size_t chunk)
 	}
 out:
 	free(rows);
+	free(blank);
+	free(cblank[0]);
+	free(cblank[1]);
 	free(cells[0]);
 	free(cells[1]);
 	free(ws);
@@ -692,6 +694,10 @@ typedef struct stats {
 	size_t *valid; /* per sample: draws used */
 	double **num;  /* per numeric output: (2 + npct) x (n x cells) */
 	double **sens; /* per numeric output: inputs x (n x cells) */
+	/* ranks of the draws of each input that is one value for the
+	 * request (NULL with a non-finite draw, or without sensitivities) */
+	double *in_rank[MAX_INPUTS];
+	size_t *in_perm[MAX_INPUTS]; /* and their sorts */
 	/* categorical outputs: the values seen and their probabilities */
 	const char **cat[8];
 	size_t ncat[8];
@@ -707,42 +713,95 @@ typedef struct stat_arg {
 	stats *st;
 } stat_arg;
 
+/* One sort of each output at each sample (and cell) serves its
+ * percentiles and its ranks; each input is sorted once per sample (once
+ * for the request when it is one value): Spearman's correlation is then
+ * Pearson's of the ranks. Draws where the output is not finite drop out
+ * of both. */
 static void stat_sample(void *arg, size_t i)
 {
 	stat_arg *sa = arg;
 	unc_run *r = sa->r;
 	stats *st = sa->st;
-	size_t nd = r->draws, n = r->sh->n;
-	double *work = malloc(4 * nd * sizeof *work), q[MAX_PCT];
+	size_t nd = r->draws, n = r->sh->n, nin = r->w->n;
+	size_t nw = (4 + 2 * nin) * nd, nz = (5 + nin) * nd;
+	double *dw = malloc(nw * sizeof *dw), q[MAX_PCT];
+	size_t *zw = malloc(nz * sizeof *zw);
+	uint64_t *kw = malloc(3 * nd * sizeof *kw);
+	double *yv, *sorted, *ry, *rx, *rin;
+	size_t *perm, *pos, *pin;
+	const double *rank_of[MAX_INPUTS];
+	const size_t *perm_of[MAX_INPUTS];
+	int sens = 0;
 
-	if (!work) {
+	if (!dw || !zw || !kw) {
+		free(dw);
+		free(zw);
+		free(kw);
 		r->failed = 1;
 		return;
+	}
+	yv = dw, sorted = dw + nd, ry = dw + 2 * nd, rx = dw + 3 * nd;
+	rin = dw + 4 * nd;
+	perm = zw, pos = zw + nd, pin = zw + 2 * nd;
+	for (size_t j = 0; j < r->n_num; j++)
+		sens |= st->sens[j] != NULL;
+	for (size_t k = 0; sens && k < nin; k++) {
+		const unc_input *in = &r->w->in[k];
+		if (in->len == 1) {
+			rank_of[k] = st->in_rank[k];
+			perm_of[k] = st->in_perm[k];
+			continue;
+		}
+		if (rw_unc_argsort(in->draws + i, in->len, nd, pin + k * nd,
+		                   kw) != RW_OK) {
+			rank_of[k] = NULL, perm_of[k] = NULL;
+			continue;
+		}
+		rw_unc_ranks_sorted(in->draws + i, in->len, pin + k * nd, nd,
+		                    NULL, rin + k * nd);
+		rank_of[k] = rin + k * nd, perm_of[k] = pin + k * nd;
 	}
 	for (size_t j = 0; j < r->n_num; j++) {
 		size_t nc = r->cells[j], cells = n * nc;
 		for (size_t c = 0; c < nc; c++) {
-			const double *x = r->num_v[j] + (i * nc + c) * nd;
-			double mean, sd;
-			size_t e = i * nc + c;
-			rw_unc_summary(x, 1, nd, work, st->pct, st->npct, &mean,
-			               &sd, q, NULL);
-			st->num[j][e] = mean;
-			st->num[j][cells + e] = sd;
+			const double *y = r->num_v[j] + (i * nc + c) * nd;
+			size_t e = i * nc + c, m = 0;
+			for (size_t d = 0; d < nd; d++)
+				if (isfinite(y[d])) {
+					pos[d] = m;
+					yv[m++] = y[d];
+				} else {
+					pos[d] = SIZE_MAX;
+				}
+			rw_unc_argsort(yv, 1, m, perm, kw);
+			for (size_t k = 0; k < m; k++)
+				sorted[k] = yv[perm[k]];
+			rw_unc_summary_sorted(sorted, m, st->pct, st->npct,
+			                      &st->num[j][e],
+			                      &st->num[j][cells + e], q);
 			for (size_t k = 0; k < st->npct; k++)
 				st->num[j][(2 + k) * cells + e] = q[k];
-		}
-		if (st->sens[j])
-			for (size_t k = 0; k < r->w->n; k++) {
+			if (!st->sens[j])
+				continue;
+			rw_unc_ranks_of_sorted(sorted, perm, m, ry);
+			for (size_t k = 0; k < nin; k++) {
 				const unc_input *in = &r->w->in[k];
-				size_t s = in->len > 1 ? i : 0;
-				for (size_t c = 0; c < nc; c++)
-					st->sens[j][k * cells + i * nc + c] =
-					    rw_unc_spearman(
-					        in->draws + s, in->len,
-					        r->num_v[j] + (i * nc + c) * nd,
-					        1, nd, work);
+				const double *xr = rank_of[k];
+				double v = NAN;
+				if (xr && m < nd) {
+					/* the input's ranks among the
+					 * draws kept */
+					rw_unc_ranks_sorted(
+					    in->draws + (in->len > 1 ? i : 0),
+					    in->len, perm_of[k], nd, pos, rx);
+					xr = rx;
+				}
+				if (xr)
+					v = rw_unc_rank_correlation(xr, ry, m);
+				st->sens[j][k * cells + e] = v;
 			}
+		}
 	}
 	for (size_t j = 0; j < r->n_str; j++)
 		for (size_t k = 0; k < st->ncat[j]; k++) {
@@ -774,7 +833,9 @@ static void stat_sample(void *arg, size_t i)
 				    used ? (double)hits[b] / (double)used : NAN;
 		}
 	}
-	free(work);
+	free(dw);
+	free(zw);
+	free(kw);
 }
 
 /* ---- writing ------------------------------------------------------------ */
@@ -1173,6 +1234,26 @@ int proto__run_uncertain(proto_call *c, void *args, const proto_shape *sh)
 		if (!st.fl_union[j] || !st.fl_p[j])
 			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
 			                  "out of memory");
+	}
+	for (size_t k = 0; u.sensitivities && k < w->n; k++) {
+		uint64_t *kw;
+		if (w->in[k].len != 1)
+			continue;
+		st.in_perm[k] = proto_alloc(c, (nd + 1) * sizeof(size_t));
+		st.in_rank[k] = proto_alloc_doubles(c, nd + 1);
+		kw = malloc(3 * nd * sizeof *kw);
+		if (!st.in_perm[k] || !st.in_rank[k] || !kw) {
+			free(kw);
+			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
+			                  "out of memory");
+		}
+		if (rw_unc_argsort(w->in[k].draws, 1, nd, st.in_perm[k], kw) ==
+		    RW_OK)
+			rw_unc_ranks_sorted(w->in[k].draws, 1, st.in_perm[k],
+			                    nd, NULL, st.in_rank[k]);
+		else
+			st.in_rank[k] = NULL, st.in_perm[k] = NULL;
+		free(kw);
 	}
 	{
 		stat_arg sa = {&r, &st};

@@ -93,12 +93,54 @@ int rw_unc_summary(const double *x, size_t stride, size_t n, double *work,
                    const double *pct, size_t npct, double *mean, double *sd,
                    double *q, size_t *n_valid);
 
+/* rw_unc_summary of n finite values already sorted ascending (no copy,
+ * no sort). */
+int rw_unc_summary_sorted(const double *x, size_t n, const double *pct,
+                          size_t npct, double *mean, double *sd, double *q);
+
 /* Spearman rank correlation of x[i * sx] and y[i * sy], i < n, over the
  * pairs where both are finite (ties get their mean rank); NaN with fewer
  * than 3 such pairs or when either side is constant. work holds 4 n
  * doubles. */
 double rw_unc_spearman(const double *x, size_t sx, const double *y, size_t sy,
                        size_t n, double *work);
+
+/* Sorts n values: perm[k] is the index of the k-th smallest of x[i * sx]
+ * (stable; -0 sorts as +0). An LSD radix sort on the values' bit
+ * patterns, O(n): an uncertain answer sorts every output at every sample
+ * (percentiles, ranks), and this is several times faster there than a
+ * comparison sort. work holds 3 n 64-bit words. Returns RW_OK, or RW_EDOM
+ * when a value is not finite (perm is then unset). */
+int rw_unc_argsort(const double *x, size_t sx, size_t n, size_t *perm,
+                   uint64_t *work);
+
+/* Ranks (1 to m; ties, equal values, get their mean rank, as in
+ * rw_unc_spearman) from a sort perm of x[i * sx], i < n. With pos NULL,
+ * r[i] is the rank of x[i * sx] among all n (m = n). Otherwise only the
+ * values with pos[i] != SIZE_MAX are ranked, among themselves, into
+ * r[pos[i]] (a compaction: pairs dropped elsewhere drop here too). Returns
+ * m, the count ranked. Spearman's correlation is Pearson's of the ranks,
+ * so many correlations with one variable need one sort of it. */
+size_t rw_unc_ranks_sorted(const double *x, size_t sx, const size_t *perm,
+                           size_t n, const size_t *pos, double *r);
+
+/* The same ranks when the values are at hand sorted: sorted[k] is the
+ * k-th smallest, at index perm[k]; r[perm[k]] gets its rank (one
+ * sequential pass). */
+void rw_unc_ranks_of_sorted(const double *sorted, const size_t *perm, size_t n,
+                            double *r);
+
+/* rw_unc_argsort then rw_unc_ranks_sorted over all n: ranks of x into r.
+ * perm holds n indices, work 3 n 64-bit words. RW_EDOM when a value is
+ * not finite. */
+int rw_unc_ranks(const double *x, size_t sx, size_t n, double *r, size_t *perm,
+                 uint64_t *work);
+
+/* Pearson's correlation of two rank vectors a[0..n), b[0..n) (from
+ * rw_unc_ranks or rw_unc_ranks_sorted: their mean is (n + 1) / 2), in one
+ * pass: Spearman's correlation of the ranked variables. NaN when n < 3 or
+ * either is constant. */
+double rw_unc_rank_correlation(const double *a, const double *b, size_t n);
 
 #ifdef __cplusplus
 }

@@ -73,6 +73,16 @@ static void test_linear(void **state)
 	        ->valuedouble,
 	    4000);
 	cJSON_Delete(r);
+	/* percentiles are a list of their own, not broadcast with the
+	 * samples: 2 samples, 3 percentiles */
+	r = h_call(&h, REQ("elastic.convert",
+	                   "{\"rho\":[2.3,2.4],\"vp\":{\"dist\":\"normal\","
+	                   "\"mean\":3000,\"sd\":100},\"vs\":1500,"
+	                   "\"fields\":[\"vp\"],\"uncertainty\":{\"draws\":"
+	                   "200,\"percentiles\":[5,50,95]}}"));
+	assert_int_equal(h_code(r), 0);
+	assert_int_equal(cJSON_GetArraySize(stat_of(r, "vp", "p95")), 2);
+	cJSON_Delete(r);
 	h_free(&h);
 }
 

@@ -15,6 +15,8 @@
 
 #include <cmocka.h>
 #include <gsl/gsl_errno.h>
+#include <gsl/gsl_rng.h>
+#include <gsl/gsl_sort.h>
 
 #include "rockwire/uncertainty.h"
 
@@ -183,6 +185,87 @@ static void test_statistics(void **state)
 	assert_true(isnan(rw_unc_spearman(a, 1, k, 1, 6, w)));
 }
 
+/* The fast path (sort once, ranks, then Pearson's correlation of the
+ * ranks) equals GSL's gsl_stats_spearman (through rw_unc_spearman) on
+ * random data with ties, strided input included, and with pairs dropped
+ * (a NaN output) by the compaction; the radix sort orders values as
+ * gsl_sort_index does (negatives, -0 and +0, subnormals, huge values);
+ * ranks of {3, 1, 3, 2} are {3.5, 1, 3.5, 2} (mean ranks for ties, the
+ * textbook definition). */
+static void test_ranks_fast_path(void **state)
+{
+	enum { N = 500 };
+	static double x[2 * N], y[N], rx[N], ry[N], w[4 * N], v[N];
+	static size_t perm[N], gp[N], pos[N];
+	static uint64_t kw[3 * N];
+	double t[4] = {3, 1, 3, 2}, rt[4], bad[3] = {1, NAN, 2};
+	double odd[8] = {-0.0, 0.0, -1e-310, 1e-310, -1e308, 1e308, -2, 2};
+	gsl_rng *g = gsl_rng_alloc(gsl_rng_mt19937);
+	size_t m = 0;
+
+	(void)state;
+	for (int i = 0; i < N; i++) {
+		x[2 * i] = floor(gsl_rng_uniform(g) * 40) - 20; /* ties */
+		x[2 * i + 1] = -1;
+		y[i] = x[2 * i] * 0.3 + gsl_rng_uniform(g) * 10;
+		v[i] = (gsl_rng_uniform(g) - 0.5) *
+		       pow(10, floor(gsl_rng_uniform(g) * 600) - 300);
+	}
+	assert_int_equal(rw_unc_ranks(x, 2, N, rx, perm, kw), RW_OK);
+	assert_int_equal(rw_unc_ranks(y, 1, N, ry, perm, kw), RW_OK);
+	close_to(rw_unc_rank_correlation(rx, ry, N),
+	         rw_unc_spearman(x, 2, y, 1, N, w), 1e-12);
+	/* the sort against GSL's (a comparison sort: same order of values) */
+	assert_int_equal(rw_unc_argsort(v, 1, N, perm, kw), RW_OK);
+	gsl_sort_index(gp, v, 1, N);
+	for (int i = 0; i < N; i++)
+		close_to(v[perm[i]], v[gp[i]], 0);
+	assert_int_equal(rw_unc_argsort(odd, 1, 8, perm, kw), RW_OK);
+	close_to(odd[perm[0]], -1e308, 0);
+	close_to(odd[perm[7]], 1e308, 0);
+	close_to(odd[perm[2]], -1e-310, 0);
+	assert_true(odd[perm[3]] == 0 && odd[perm[4]] == 0 && perm[3] == 0 &&
+	            perm[4] == 1); /* -0 = +0, stable */
+	/* drop every 7th pair (as a NaN output would) */
+	for (int i = 0; i < N; i++) {
+		pos[i] = i % 7 ? m++ : SIZE_MAX;
+		if (i % 7 == 0)
+			y[i] = NAN;
+	}
+	{
+		static double yc[N], rxc[N], ryc[N];
+		size_t k = 0;
+		for (int i = 0; i < N; i++)
+			if (pos[i] != SIZE_MAX)
+				yc[k++] = y[i];
+		assert_int_equal(rw_unc_ranks(yc, 1, m, ryc, perm, kw), RW_OK);
+		assert_int_equal(rw_unc_argsort(x, 2, N, perm, kw), RW_OK);
+		assert_int_equal(rw_unc_ranks_sorted(x, 2, perm, N, pos, rxc),
+		                 m);
+		close_to(rw_unc_rank_correlation(rxc, ryc, m),
+		         rw_unc_spearman(x, 2, y, 1, N, w), 1e-12);
+	}
+	{
+		/* ranks of the sorted values equal ranks of the values */
+		static double sv[N], r2[N];
+		assert_int_equal(rw_unc_ranks(x, 2, N, ry, perm, kw), RW_OK);
+		assert_int_equal(rw_unc_argsort(x, 2, N, perm, kw), RW_OK);
+		for (int i = 0; i < N; i++)
+			sv[i] = x[2 * perm[i]];
+		rw_unc_ranks_of_sorted(sv, perm, N, r2);
+		for (int i = 0; i < N; i++)
+			close_to(r2[i], ry[i], 0);
+	}
+	assert_int_equal(rw_unc_ranks(t, 1, 4, rt, perm, kw), RW_OK);
+	close_to(rt[0], 3.5, 0);
+	close_to(rt[1], 1, 0);
+	close_to(rt[2], 3.5, 0);
+	close_to(rt[3], 2, 0);
+	assert_int_equal(rw_unc_ranks(bad, 1, 3, rt, perm, kw), RW_EDOM);
+	assert_true(isnan(rw_unc_rank_correlation(rt, rt, 2)));
+	gsl_rng_free(g);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -191,6 +274,7 @@ int main(void)
 	    cmocka_unit_test(test_draws),
 	    cmocka_unit_test(test_cholesky_and_copula),
 	    cmocka_unit_test(test_statistics),
+	    cmocka_unit_test(test_ranks_fast_path),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

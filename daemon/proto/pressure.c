@@ -1153,6 +1153,14 @@ void proto__pres_pore(const pres_setup *s, double z, double dt, double vp,
 			o->detail |= w;
 	}
 done:
+	/* a slowness far faster than the trend (a tight streak, a seal) can
+	 * drive Eaton's or Bowers' pore pressure below zero absolute: not a
+	 * pressure at all, so null, flagged pressure_inconsistent (its
+	 * warning bit says pp below hydrostatic) */
+	if (o->pp < 0) {
+		o->pp = o->pp_sigma = o->sigma_eff = NAN;
+		o->detail |= RW_PRES_WARN_PP_BELOW_HYDRO;
+	}
 	o->qc |= proto__pres_qc(o->detail);
 }
 

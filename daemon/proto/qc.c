@@ -204,7 +204,8 @@ const proto_qc_info proto_qc_legend[] = {
      "or at the overburden, a fracture gradient outside pore pressure and "
      "overburden, the overburden below hydrostatic, a velocity below "
      "Bowers' v0, a trend faster than any matrix, a static modulus above "
-     "the dynamic one; reported, never clipped"},
+     "the dynamic one; reported, never clipped (but a pore pressure "
+     "below zero absolute is no pressure: null)"},
     {QC_STRENGTH_RANGE, "strength_extrapolated", QC_RANGE,
      "a strength or static-modulus correlation used outside its "
      "calibration span, or on the other lithology than it was fitted on "

@@ -609,21 +609,33 @@ static void test_eaton_on_trend_is_hydrostatic(void **state)
 		assert_true(flags(res, "qc", i) & EXTRAP);
 	}
 	cJSON_Delete(r);
-	/* below the trend: pp below hydrostatic, reported and flagged */
+	/* below the trend: pp below hydrostatic (8.6 MPa against 11.8),
+	 * reported and flagged */
 	r = call(req("pressure.pore",
-	             "{\"tvd\":1200,\"dtp\":80,\"sv\":25,\"trend\":{"
+	             "{\"tvd\":1200,\"dtp\":110,\"sv\":25,\"trend\":{"
 	             "\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4}}"));
 	res = result_of(r);
 	assert_true(num_at(res, "pp", 0) < num_at(res, "ph", 0));
 	assert_true(flags(res, "qc", 0) & INCONS);
 	assert_true(flags(res, "pressure_detail", 0) & D_BELOW_PH);
 	cJSON_Delete(r);
+	/* far faster than the trend (a tight streak): Eaton's formula
+	 * gives pp = 25 - (25 - 11.8) (121 / 40)^3, below zero absolute;
+	 * that is no pressure: null, flagged, the effective stress too */
+	r = call(req("pressure.pore",
+	             "{\"tvd\":1200,\"dtp\":40,\"sv\":25,\"trend\":{"
+	             "\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4}}"));
+	res = result_of(r);
+	assert_true(isnan(num_at(res, "pp", 0)));
+	assert_true(isnan(num_at(res, "sigma_eff", 0)));
+	assert_true(flags(res, "qc", 0) & INCONS);
+	cJSON_Delete(r);
 }
 
 static void test_eaton_shale_selector(void **state)
 {
 	cJSON *r = call(req("pressure.pore",
-	                    "{\"tvd\":[1000,1010],\"dtp\":[120,100],"
+	                    "{\"tvd\":[1000,1010],\"dtp\":[120,115],"
 	                    "\"sv\":[21,21.2],\"gr\":[110,35],\"gr_clean\":30,"
 	                    "\"gr_shale\":120,\"trend\":{\"dt_ma\":60,"
 	                    "\"dt_ml\":180,\"c\":6e-4}}"));
@@ -771,7 +783,7 @@ static void test_pore_errors(void **state)
 	 * refused */
 	cJSON *rc =
 	    call(req("pressure.pore",
-	             "{\"tvd\":1000,\"dtp\":100,\"sv\":20,\"trend\":{"
+	             "{\"tvd\":1000,\"dtp\":120,\"sv\":20,\"trend\":{"
 	             "\"dt_ma\":60,\"dt_ml\":180,\"c\":6e-4,"
 	             "\"covariance_si\":[[4e-12,1e-12,3e-11],[1e-12,"
 	             "2e-12,1e-11],[3.0000000000001e-11,1e-11,1e-9]]}}"));

@@ -31,7 +31,8 @@ static double urand(uint64_t *s, double lo, double hi)
 }
 
 /* The least-squares intercept and gradient of an exact two-term gather
- * return its A and B (the brief's check), and the three-term fit of an
+ * return its A and B (a fit of exact data must return the data's
+ * coefficients), and the three-term fit of an
  * exact three-term gather returns A, B, C; the residual is zero to
  * rounding. Amplitudes from rw_reflect_shuey2/3 of an interface, whose
  * terms rw_reflect_shuey_terms gives (Shuey 1985). */

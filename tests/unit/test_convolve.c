@@ -111,7 +111,7 @@ static void test_boxes(void **state)
 	free(work);
 }
 
-/* Direct and FFT agree to 1e-12 (the brief's bound; measured ~1e-14 on
+/* Direct and FFT agree to 1e-12 (the same sum both ways; measured ~1e-14 on
  * these O(1) random series) over a table of shapes, including a wavelet
  * longer than the series, single samples and time zero at either end. */
 static void test_fft_vs_direct(void **state)

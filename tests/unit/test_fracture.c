@@ -30,7 +30,7 @@ static void test_eaton_bounds(void **state)
 	unsigned w;
 
 	(void)state;
-	/* brief: for 0 < nu < 0.5 the Eaton 1969 fracture gradient lies
+	/* for 0 < nu < 0.5 the Eaton 1969 fracture gradient lies
 	 * strictly between pore pressure and overburden */
 	for (sv = 10 * MPA; sv < 250 * MPA; sv *= 1.6)
 		for (pp = 0.0; pp < sv; pp += 0.17 * sv)

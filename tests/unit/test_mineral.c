@@ -27,7 +27,8 @@ static void assert_rel(double got, double want, double tol)
  * (stability of an isotropic solid: K > 0, mu > 0); density between 1000
  * and 8000 kg/m^3 (rock-forming minerals; common practice); moduli below
  * 1000 GPa (diamond's K is about 440 GPa, handbook, from memory). The
- * minerals the brief requires are present. */
+ * minerals the rock families name (quartz, calcite, dolomite, the clays,
+ * feldspars, ...) are present. */
 static void test_table(void **state)
 {
 	static const char *need[] = {

@@ -311,7 +311,7 @@ static void test_random_bits(void **state)
 	              n, hist[17], hist[16], n - hist[17] - hist[16]);
 }
 
-/* The brief's form of the minimality check, on a subset: the first N in
+/* Minimality checked the direct way, on a subset: the first N in
  * 1..17 for which %.Ng reads back is never fewer digits than ours. */
 static void test_printf_scan(void **state)
 {

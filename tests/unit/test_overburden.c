@@ -172,7 +172,7 @@ static void test_shallow_trend(void **state)
 	gsl_integration_workspace_free(w);
 }
 
-/* Constant density integrates exactly (brief; Sv = rho g h for a uniform
+/* Constant density integrates exactly (Sv = rho g h for a uniform
  * column), on land and offshore, on irregular samples. */
 static void test_constant_density(void **state)
 {
@@ -339,7 +339,7 @@ static double urand(uint64_t *s, double lo, double hi)
 
 #define NLOG 4000
 
-/* The streaming overburden equals the batch one (brief: to rounding; here
+/* The streaming overburden equals the batch one (at least to rounding; here
  * exactly, as both run the same step), and a resume at any sample with
  * the batch's (z, sv, rho) continues exactly. */
 static void test_stream_batch_resume(void **state)
@@ -429,8 +429,8 @@ static void test_hydro_const(void **state)
 	(void)state;
 	rw_pres_column_init(&c);
 	c.air_gap_m = 10.0;
-	/* land: fresh water from ground level, 9.80665 kPa/m (brief: 9.81
-	 * kPa/m, common practice) */
+	/* land: fresh water from ground level, 9.80665 kPa/m (9.81 kPa/m,
+	 * common practice) */
 	assert_int_equal(
 	    rw_pres_hydro_const(&c, 1010.0, RW_PRES_RHO_FRESH, &p, &w), RW_OK);
 	near(p, 9.80665e6, 1e-6);

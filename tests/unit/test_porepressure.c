@@ -41,8 +41,8 @@ static void test_eaton(void **state)
 	near(pp, 44.64 * MPA, 1e-6);
 	near(sig, 15.36 * MPA, 1e-6);
 	assert_int_equal(w, 0);
-	/* brief: slowness on the trend returns hydrostatic, for any
-	 * exponent, overburden and hydrostatic */
+	/* slowness on the trend returns hydrostatic (Eaton 1975: the ratio is
+	 * 1), for any exponent, overburden and hydrostatic */
 	for (sv = 5 * MPA; sv < 200 * MPA; sv *= 1.7)
 		for (ph = 0.0; ph <= sv; ph += 0.23 * sv)
 			for (dt = 50 * US_FT; dt < 200 * US_FT; dt *= 1.3) {

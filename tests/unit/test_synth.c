@@ -132,9 +132,9 @@ static double expect(const double *w, const double *h, size_t n, size_t i0,
 }
 
 /* A single reflection spike returns the wavelet shifted to the right time
- * (the brief's check), scaled by the normal-incidence coefficient
- * (Z2 - Z1) / (Z2 + Z1) (Aki & Richards 1980, the normal-incidence
- * limit); on a sample and between samples; direct and FFT. */
+ * (convolution with a delta: a fact of linear filtering), scaled by the
+ * normal-incidence coefficient (Z2 - Z1) / (Z2 + Z1) (Aki & Richards 1980, the
+ * normal-incidence limit); on a sample and between samples; direct and FFT. */
 static void test_single_spike(void **state)
 {
 	double ang[1] = {0.0}, r0;
@@ -169,7 +169,8 @@ static void test_single_spike(void **state)
 }
 
 /* FFT and direct agree to 1e-12 on a random log and a gather with the
- * stretch (the brief's bound for the two paths). */
+ * stretch (both paths compute the same sum; 1e-12 leaves room for the
+ * FFT's rounding, measured near 1e-14). */
 static void test_fft_vs_direct_gather(void **state)
 {
 	double ang[5] = {0.0, 0.1, 0.3, 0.5, 0.7}, a[5 * NT];

@@ -23,7 +23,7 @@ static double z[N], v[N], t[N], t2[N];
 static unsigned warn[N];
 
 /* Constant velocity from a datum at the first sample: t = 2 z / v
- * exactly (the brief's closed form), to rounding (1e-14 relative, with
+ * exactly (travel time at constant speed), to rounding (1e-14 relative, with
  * compensated sums over 2000 steps), from velocity or slowness input. */
 static void test_constant_velocity(void **state)
 {

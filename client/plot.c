@@ -813,6 +813,14 @@ static void answers_free(answers *A)
 /* The answers to draw: those named by ids (in that order), else every
  * result for which fits() holds. Fills sel[] (at most max) and returns
  * the count, or -1 with a message. */
+/* An answer computed under uncertainty: its outputs are statistics
+ * ({mean, sd, pNN}), which the plots do not draw. */
+static int uncertain(const cJSON *r)
+{
+	return cJSON_IsObject(
+	    cJSON_GetObjectItemCaseSensitive(r, "uncertainty"));
+}
+
 static int pick(const answers *A, char **ids, size_t nids,
                 int (*fits)(const cJSON *), const char *what,
                 const answer **sel, size_t max)
@@ -847,6 +855,15 @@ static int pick(const answers *A, char **ids, size_t nids,
 				                 hit->error);
 				return -1;
 			}
+			if (uncertain(hit->result)) {
+				fprintf(stderr,
+				        WHO ": --id %s: an answer under "
+				            "uncertainty holds statistics, not "
+				            "curves; plot the same request "
+				            "without distributions\n",
+				        ids[k]);
+				return -1;
+			}
 			if (!fits(hit->result)) {
 				fprintf(stderr,
 				        WHO
@@ -859,7 +876,8 @@ static int pick(const answers *A, char **ids, size_t nids,
 		return (int)n;
 	}
 	for (size_t i = 0; i < A->n && n < max; i++)
-		if (A->a[i].result && fits(A->a[i].result))
+		if (A->a[i].result && !uncertain(A->a[i].result) &&
+		    fits(A->a[i].result))
 			sel[n++] = &A->a[i];
 	if (n == 0) {
 		fprintf(stderr, WHO ": %s: no answer with %s%s\n", A->src, what,

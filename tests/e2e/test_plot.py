@@ -280,6 +280,22 @@ try:
     t.ok(rc == 5 and "errors" in err, "only error answers: " + err)
     rc, out, err = plot("cross", LAS, "-o", out_png, "--template", AVO)
     t.ok(rc == 5 and "rock.template" in err, "not a template: " + err)
+    # an answer under uncertainty holds statistics: skipped when picking,
+    # refused by name with --id
+    line = rwtest.req("reflect.interface", {
+        "upper": {"vp": 2900, "vs": 1350, "rho": 2.45},
+        "lower": {"vp": {"dist": "normal", "mean": 2800, "sd": 80},
+                  "vs": 1700, "rho": 2.05},
+        "angle": [0, 30], "uncertainty": {"draws": 50}}, id="unc")
+    rc, unc, err = rwtest.stdio([line])
+    with open(AVO, "rb") as f:
+        mixed = f.read() + unc.encode()
+    rc, out, err = plot("ig", "-", "-o", out_png, stdin=mixed)
+    t.ok(rc == 0, "ig skips an answer under uncertainty: " + err[-200:])
+    rc, out, err = plot("ig", "-", "-o", out_png, "--id", "unc",
+                        stdin=mixed)
+    t.ok(rc == 5 and "under uncertainty" in err,
+         "--id of an uncertain answer refused by name: " + err[-200:])
     rc, out, err = plot("tracks", LAS, "-o", out_png, "--size", "10x10")
     t.ok(rc == 2 and "--size" in err, "bad size: " + err)
     t.ok(not [f for f in os.listdir(tmp) if ".part" in f],

@@ -260,10 +260,14 @@ static void csv_field(FILE *f, const char *s)
 static void head_text(const char *name, const char *unit, char *buf,
                       size_t size)
 {
+	int n;
 	if (unit && *unit)
-		snprintf(buf, size, "%s[%s]", name, unit);
+		n = snprintf(buf, size, "%s[%s]", name, unit);
 	else
-		snprintf(buf, size, "%s", name);
+		n = snprintf(buf, size, "%s", name);
+	/* A heading longer than the column keeps its start and says so. */
+	if (n >= 0 && (size_t)n >= size && size > 4)
+		memcpy(buf + size - 4, "...", 4);
 }
 
 /* ---- axes of matrices ------------------------------------------------ */

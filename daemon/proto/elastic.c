@@ -149,7 +149,7 @@ static const proto_rule convert_rules[] = {
     {PR_EXACTLY, NULL, 2, quantities,
      "give rho and exactly two of vp, vs, k, mu, lambda, e, nu, m, ai, si, "
      "vpvs, dtp, dts"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl convert_decl = {

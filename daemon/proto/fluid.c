@@ -303,7 +303,7 @@ static const proto_rule fluid_rules[] = {
      "required: an explicit fluid needs both k and rho"},
     {PR_FORBIDS, "k", 0, by_phases,
      "give either k and rho, or a description by phases, not both"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int fluid_check(proto_call *c, void *dst)

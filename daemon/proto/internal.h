@@ -278,6 +278,13 @@ typedef struct proto_rule {
 	const char *why;          /* the error's reason */
 } proto_rule;
 
+/* The sentinel closing a rule table (designated, so no field is left
+ * implicitly zero in a warning compiler's eyes). */
+#define PR_LAST                                                                \
+	{                                                                      \
+		.kind = PR_END                                                 \
+	}
+
 struct proto_decl {
 	const char *name; /* schema component name ("" for method params) */
 	const proto_field *fields; /* terminated by name NULL */

@@ -207,7 +207,7 @@ static const proto_rule log_rules[] = {
     {PR_REQUIRES, "vs_predict=greenberg_castagna_insitu", 0, insitu_needs,
      "greenberg_castagna_insitu needs fluid_in_place, porosity and "
      "mineral: it takes the rock to brine by Gassmann"},
-    {PR_END},
+    PR_LAST,
 };
 
 /* A parameter given in the request that the request does not use is an

@@ -93,7 +93,7 @@ static const proto_rule constituent_rules[] = {
     {PR_ALL_OR_NONE, NULL, 0, kmurho,
      "required: give mineral, or all of k, mu and rho"},
     {PR_EXACTLY, NULL, 1, one_source, "give mineral, or all of k, mu and rho"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int constituent_check(proto_call *c, void *dst)
@@ -196,7 +196,7 @@ static const proto_rule mineral_rules[] = {
      "required: the mineral bulk modulus k (with rho), a name, or "
      "constituents"},
     {PR_FORBIDS, "k", 0, method_only, "only used with constituents"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int mineral_from_string(proto_call *c, const char *s, const char *path,

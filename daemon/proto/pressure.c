@@ -189,7 +189,7 @@ static const proto_field water_fields[] = {
 static const char *const water_one[] = {"density", "gradient", "brine", NULL};
 static const proto_rule water_rules[] = {
     {PR_AT_MOST, NULL, 1, water_one, "give one of density, gradient and brine"},
-    {PR_END},
+    PR_LAST,
 };
 
 const proto_decl proto_pres_water_decl = {
@@ -315,7 +315,7 @@ static const proto_rule trend_rules[] = {
      "the exponential form needs dt_ma, its deep limit"},
     {PR_FORBIDS, "form=loglinear", 0, ma,
      "the loglinear form has no matrix limit: leave dt_ma out"},
-    {PR_END},
+    PR_LAST,
 };
 
 const proto_decl proto_pres_trend_decl = {
@@ -426,7 +426,7 @@ static const proto_rule bowers_rules[] = {
     {PR_REQUIRES, "v_max", 0, unl_from,
      "the unloading branch needs unloading_from, the depth where the "
      "velocity reversal begins"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int bowers_check(proto_call *c, void *dst)
@@ -1573,7 +1573,7 @@ static const proto_field obg_fields[] = {
 
 static const proto_rule obg_rules[] = {
     {PR_AT_MOST, NULL, 1, resume_state, "give resume or state, not both"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl obg_decl = {
@@ -1886,7 +1886,7 @@ static const proto_rule trend_m_rules[] = {
     SHALE_RULES,
     {PR_ALL_OR_NONE, NULL, 0, cal_bit,
      "the washout check needs caliper and bit_size together"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int trend_check(proto_call *c, void *dst)
@@ -2185,7 +2185,7 @@ static const proto_rule pore_rules[] = {
      "method bowers needs bowers {a, a_units, b} (and the unloading "
      "parameters where unloading occurs)"},
     {PR_AT_MOST, NULL, 1, resume_state, "give resume or state, not both"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int pore_check(proto_call *c, void *dst)
@@ -2517,7 +2517,7 @@ static const proto_rule frac_rules[] = {
      "alpha, e_static and the strains serve the poroelastic method"},
     {PR_FORBIDS, "method=matthews_kelly", 0, poro_only,
      "alpha, e_static and the strains serve the poroelastic method"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int frac_check(proto_call *c, void *dst)
@@ -2796,7 +2796,7 @@ static const proto_rule log_rules[] = {
     {PR_FORBIDS, "fracture=none", 0, l_frac_all,
      "not used with fracture \"none\""},
     {PR_AT_MOST, NULL, 1, resume_state, "give resume or state, not both"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int log_check(proto_call *c, void *dst)

@@ -915,7 +915,7 @@ static const char *const angle_chi[] = {"angle", "chi", NULL};
 static const proto_rule imp_rules[] = {
     {PR_AT_LEAST, NULL, 1, angle_chi,
      "give angle (for EI), chi (for EEI) or both"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl imp_decl = {

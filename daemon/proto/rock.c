@@ -94,7 +94,7 @@ static const proto_rule subst_rules[] = {
      "required: the fluid in place when vp, vs and rho were measured"},
     {PR_FORBIDS, "k_dry", 0, fip,
      "a dry frame holds no fluid: give the saturating fluid as fluid_new"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int subst_check(proto_call *c, void *dst)

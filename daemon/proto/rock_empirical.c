@@ -256,7 +256,7 @@ static const proto_rule emp_rules[] = {
     ONLY("wyllie_porosity", tav_phi_in),
     ONLY("raymer", tav_need),
     ONLY("raymer_porosity", tav_phi_in),
-    {PR_END},
+    PR_LAST,
 };
 #undef ONLY
 #undef NEEDS

@@ -216,7 +216,7 @@ static const proto_rule solid_rules[] = {
     {PR_AT_LEAST, NULL, 1, solid_source,
      "required: a name from mineral.list, {k, mu, rho} or constituents"},
     {PR_FORBIDS, "k", 0, solid_method, "only used with constituents"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl solid_decl = {
@@ -1192,7 +1192,7 @@ static const proto_rule tpl_rules[] = {
      "give one p_eff or a p_eff_axis, not both"},
     {PR_AT_MOST, NULL, 1, ax_both,
      "a template has one third axis: clay_axis or p_eff_axis"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl tpl_decl;
@@ -1730,7 +1730,7 @@ static const proto_rule obs_rules[] = {
     {PR_AT_LEAST, NULL, 2, obs_names,
      "give two or three observed attributes (e.g. ai and vpvs)"},
     {PR_AT_MOST, NULL, 3, obs_names, "at most three observed attributes"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl obs_decl = {
@@ -2288,7 +2288,7 @@ static const char *const pfit_quantities[] = {"modulus", "velocity", NULL};
 static const proto_rule pfit_sigma_rules[] = {
     {PR_AT_MOST, NULL, 1, pfit_quantities,
      "give the uncertainty of the measured quantity only"},
-    {PR_END},
+    PR_LAST,
 };
 static const proto_decl pfit_sigma_decl = {
     .name = "pressureFitSigma",
@@ -2330,7 +2330,7 @@ static const proto_field pfit_fields[] = {
 static const proto_rule pfit_rules[] = {
     {PR_EXACTLY, NULL, 1, pfit_quantities,
      "give the measured modulus or the measured velocity (one of them)"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int pfit_check(proto_call *c, void *dst)

@@ -189,7 +189,7 @@ static const char *const cs_times[] = {"twt", "owt", NULL};
 static const proto_rule cs_rules[] = {
     {PR_EXACTLY, NULL, 1, cs_times,
      "give the checkshot times as twt (two-way) or owt (one-way)"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl cs_decl = {
@@ -565,7 +565,7 @@ static const char *const sonic_pair[] = {"vp", "dtp", NULL};
 static const proto_rule td_rules[] = {
     {PR_EXACTLY, NULL, 1, sonic_pair,
      "give the sonic as vp (velocity) or dtp (slowness)"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl td_decl = {
@@ -1063,7 +1063,7 @@ static const proto_field wavelet_fields[] = {
     {0},
 };
 
-static const proto_rule wavelet_rules[] = {WAV_RULES(wv), {PR_END}};
+static const proto_rule wavelet_rules[] = {WAV_RULES(wv), PR_LAST};
 
 static const proto_decl wavelet_decl = {
     .name = "",
@@ -1259,7 +1259,7 @@ static const proto_rule up_rules[] = {
      "frequency too"},
     {PR_EXACTLY, "method=block", 1, up_bounds,
      "give the blocks by their boundaries or a detection threshold"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl up_decl = {
@@ -1604,7 +1604,7 @@ static const proto_field synth_wavelet_fields[] = {
     {0},
 };
 
-static const proto_rule synth_wavelet_rules[] = {WAV_RULES(sw), {PR_END}};
+static const proto_rule synth_wavelet_rules[] = {WAV_RULES(sw), PR_LAST};
 
 static const proto_decl synth_wavelet_decl = {
     .name = "seismicWavelet",
@@ -1707,7 +1707,7 @@ static const proto_rule synth_rules[] = {
     {PR_FORBIDS, "twt", 0, td_given,
      "twt gives the time-depth relation already: drop datum and "
      "checkshots, or twt"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl synth_decl = {

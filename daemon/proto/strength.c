@@ -142,7 +142,7 @@ static const proto_rule str_rules[] = {
     {PR_AT_MOST, NULL, 1, dtp_vp, "give dtp or vp, not both"},
     {PR_AT_MOST, NULL, 1, vs_edyn, "give vs or e_dyn, not both"},
     {PR_AT_MOST, NULL, 1, es_two, "give e_static or e_static_from, not both"},
-    {PR_END},
+    PR_LAST,
 };
 
 static const proto_decl str_decl;

@@ -61,7 +61,7 @@ static const proto_rule thomsen_rules[] = {
      "give all five of c11, c13, c33, c44, c66"},
     {PR_ALL_OR_NONE, NULL, 0, thom,
      "give all five of vp0, vs0, epsilon, delta, gamma"},
-    {PR_END},
+    PR_LAST,
 };
 
 static int thomsen_check(proto_call *c, void *dst)

@@ -14,9 +14,23 @@ import shutil
 import subprocess
 import tempfile
 
-from rwtest import BUILD, SRC, Checks, req, stdio
+from rwtest import BUILD, SRC, Checks, req, sanitized, stdio
 
 t = Checks()
+
+
+def build_compiler():
+    """The build's C compiler, and the sanitizer flags a program linking
+    its (then instrumented) library needs too."""
+    cc = "cc"
+    with open(os.path.join(BUILD, "CMakeCache.txt")) as f:
+        for line in f:
+            if line.startswith("CMAKE_C_COMPILER:"):
+                cc = line.split("=", 1)[1].strip()
+    return [cc] + (["-fsanitize=address,undefined"] if sanitized() else [])
+
+
+CC = build_compiler()
 tmp = tempfile.mkdtemp(prefix="rw-install-")
 try:
     prefix = os.path.join(tmp, "prefix")
@@ -54,7 +68,7 @@ try:
          "link line (%s)" % flags.stdout.strip())
     exe = os.path.join(tmp, "example")
     src = os.path.join(SRC, "tests", "e2e", "install_example.c")
-    c = subprocess.run(["cc", "-std=c11", "-Wall", "-Werror", src, "-o", exe]
+    c = subprocess.run(CC + ["-std=c11", "-Wall", "-Werror", src, "-o", exe]
                        + flags.stdout.split(), capture_output=True,
                        text=True)
     t.ok(c.returncode == 0, "example builds against the installed tree: %s"
@@ -84,7 +98,7 @@ try:
     sflags = subprocess.run(["pkg-config", "--cflags", "--libs", "--static",
                              "rockwire"], capture_output=True, text=True,
                             env=env)
-    c = subprocess.run(["cc", "-std=c11", src, "-o", exe + "-static",
+    c = subprocess.run(CC + ["-std=c11", src, "-o", exe + "-static",
                         "-Wl,-Bstatic"] + [f for f in sflags.stdout.split()
                                            if f == "-lrockwire" or
                                            f.startswith("-L") or

@@ -47,9 +47,10 @@ static int teardown(void **state)
 	return 0;
 }
 
-static uint32_t qc(const cJSON *r, int i)
+/* QC flags are 64-bit (bits 0-52, exact in a double). */
+static uint64_t qc(const cJSON *r, int i)
 {
-	return (uint32_t)h_num(r, "qc", i);
+	return (uint64_t)h_num(r, "qc", i);
 }
 
 static void test_elastic_set(void **state)

@@ -230,6 +230,28 @@ static void solve_others(rw_elastic_qty a, double va, rw_elastic_qty b,
 	}
 }
 
+/* The member of out that holds quantity q. */
+static double *qty_field(rw_elastic *out, rw_elastic_qty q)
+{
+	switch (q) {
+	case RW_Q_VP: return &out->vp;
+	case RW_Q_VS: return &out->vs;
+	case RW_Q_K: return &out->k;
+	case RW_Q_MU: return &out->mu;
+	case RW_Q_LAMBDA: return &out->lambda;
+	case RW_Q_E: return &out->e;
+	case RW_Q_NU: return &out->nu;
+	case RW_Q_M: return &out->m;
+	case RW_Q_AI: return &out->ai;
+	case RW_Q_SI: return &out->si;
+	case RW_Q_VPVS: return &out->vpvs;
+	case RW_Q_DTP: return &out->dtp;
+	case RW_Q_DTS:
+	case RW_Q_COUNT: break;
+	}
+	return &out->dts;
+}
+
 int rw_elastic_from_pair(double rho, rw_elastic_qty a, double va,
                          rw_elastic_qty b, double vb, rw_elastic *out,
                          unsigned *why)
@@ -284,5 +306,21 @@ int rw_elastic_from_pair(double rho, rw_elastic_qty a, double va,
 		fill_nan(out);
 		return RW_EDOM;
 	}
-	return rw_elastic_from_moduli(rho, m, mu, out, why);
+	if (rw_elastic_from_moduli(rho, m, mu, out, why) != RW_OK)
+		return RW_EDOM;
+	/* The two given quantities come back as given, not as the last bit
+	 * of a round trip through the moduli (vp -> m -> sqrt(m / rho)),
+	 * and the velocity quantities follow a given velocity exactly. */
+	if (a == RW_Q_VP || b == RW_Q_VP)
+		out->vp = a == RW_Q_VP ? va : vb;
+	if (a == RW_Q_VS || b == RW_Q_VS)
+		out->vs = a == RW_Q_VS ? va : vb;
+	out->ai = rho * out->vp;
+	out->si = rho * out->vs;
+	out->vpvs = out->vp / out->vs;
+	out->dtp = 1.0 / out->vp;
+	out->dts = 1.0 / out->vs;
+	*qty_field(out, a) = va;
+	*qty_field(out, b) = vb;
+	return RW_OK;
 }

@@ -700,10 +700,12 @@ int proto_decl_parse(proto_call *c, const proto_decl *d, const cJSON *obj,
 			const char *full = proto_path(c, path, m->string, "");
 			if (i < 0) {
 				const char *names[64], *near;
-				/* "units" and "fields" are accepted at the top
-				 * of every method and handled by the driver. */
+				/* "units", "digits" and "fields" are accepted
+				 * at the top of every method and handled by the
+				 * driver. */
 				if (!*path &&
 				    (strcmp(m->string, "units") == 0 ||
+				     strcmp(m->string, "digits") == 0 ||
 				     strcmp(m->string, "fields") == 0 ||
 				     strcmp(m->string, "uncertainty") == 0))
 					continue;

@@ -47,11 +47,16 @@ char *proto_strdup(proto_call *c, const char *s)
 const char *proto_path(proto_call *c, const char *prefix, const char *name,
                        const char *suffix)
 {
-	size_t n = strlen(prefix) + strlen(name) + strlen(suffix) + 1;
-	char *s = proto_alloc(c, n);
-	if (s)
-		snprintf(s, n, "%s%s%s", prefix, name, suffix);
-	return s ? s : "";
+	/* Built for every parameter read, error or not: copies, not
+	 * snprintf, which cost a tenth of a small request. */
+	size_t a = strlen(prefix), b = strlen(name), d = strlen(suffix);
+	char *s = proto_alloc(c, a + b + d + 1);
+	if (!s)
+		return "";
+	memcpy(s, prefix, a);
+	memcpy(s + a, name, b);
+	memcpy(s + a + b, suffix, d + 1);
+	return s;
 }
 
 int proto__call_keep_json(proto_call *c, cJSON *tree)

@@ -342,6 +342,7 @@ static void run_method(proto_session *s, const proto_method *m,
 	c.params = params;
 	c.out = out;
 	c.units = s->units;
+	c.digits = s->digits;
 	c.inherit = proto__session_inherit;
 
 	proto_buf_append(out, "{\"jsonrpc\":\"2.0\",\"id\":", 22);
@@ -353,6 +354,9 @@ static void run_method(proto_session *s, const proto_method *m,
 	} else if (!proto__units_apply(
 	               &c, cJSON_GetObjectItemCaseSensitive(params, "units"),
 	               "units", &c.units) &&
+	           !proto__digits_apply(
+	               &c, cJSON_GetObjectItemCaseSensitive(params, "digits"),
+	               "digits", &c.digits) &&
 	           !proto__run_method(&c) && !c.err_code && !out->oom) {
 		assert(c.depth == 0 && c.skip_depth == 0);
 		proto_buf_append(out, "}", 1);

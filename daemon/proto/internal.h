@@ -499,6 +499,7 @@ struct proto_call {
 	int skip_depth; /* > 0 while a deselected member is open */
 	proto_unit_note *unit_notes;
 	size_t n_unit_notes, cap_unit_notes;
+	int digits; /* significant digits of numbers out; 0: shortest exact */
 	const char *const *fields; /* `fields`: members to write, or NULL */
 	size_t n_fields;
 	/* warnings for the result */
@@ -522,6 +523,7 @@ struct proto_call {
 struct proto_session {
 	proto_ctx *ctx;
 	proto_units units;
+	int digits;                    /* of numbers out; 0: shortest exact */
 	struct sess_default *defaults; /* list, newest first */
 	size_t bytes;                  /* held by the defaults */
 };
@@ -621,6 +623,11 @@ typedef struct proto_counters {
 } proto_counters;
 void proto__counters(proto_ctx *ctx, proto_counters *out);
 /* Applies a `units` object onto u (errors name `path`). 0 or -1. */
+/* Reads `digits` (NULL: absent, *digits unchanged): 0 for the shortest
+ * text that reads back to the same double, 1..17 significant digits
+ * (writer.c). 0 or -1 after proto_fail naming path. */
+int proto__digits_apply(proto_call *c, const cJSON *v, const char *path,
+                        int *digits);
 int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
                        proto_units *u);
 /* Frees the call's arena. */

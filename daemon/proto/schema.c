@@ -387,6 +387,10 @@ static cJSON *method_doc(const proto_method *m, cJSON *components)
 			cJSON_AddStringToObject(p, "name", "units");
 			cJSON_AddItemToObject(p, "schema", ref("unitsIn"));
 			cJSON_AddItemToArray(params, p);
+			p = cJSON_CreateObject();
+			cJSON_AddStringToObject(p, "name", "digits");
+			cJSON_AddItemToObject(p, "schema", ref("digits"));
+			cJSON_AddItemToArray(params, p);
 		}
 		for (const proto_output *out = m->outputs; out && out->name;
 		     out++)

@@ -373,6 +373,7 @@ static int set(proto_call *c)
 	proto_session *s = c->session;
 	const cJSON *m, *e;
 	proto_units units = s->units;
+	int digits = s->digits;
 	pending *todo;
 	size_t n = 0, cap = 0;
 
@@ -381,7 +382,10 @@ static int set(proto_call *c)
 		                  "give at least one default to set");
 	if (proto__units_apply(
 	        c, cJSON_GetObjectItemCaseSensitive(c->params, "units"),
-	        "units", &units))
+	        "units", &units) ||
+	    proto__digits_apply(
+	        c, cJSON_GetObjectItemCaseSensitive(c->params, "digits"),
+	        "digits", &digits))
 		return -1;
 	cJSON_ArrayForEach(m, c->params)
 	{
@@ -398,7 +402,8 @@ static int set(proto_call *c)
 	{
 		const proto_method *scope = NULL;
 		const cJSON *first = m, *only = m;
-		if (strcmp(m->string, "units") == 0)
+		if (strcmp(m->string, "units") == 0 ||
+		    strcmp(m->string, "digits") == 0)
 			continue;
 		if (strchr(m->string, '.')) {
 			scope = proto_method_find(m->string);
@@ -447,6 +452,8 @@ static int set(proto_call *c)
 	}
 	s->units = units;
 	c->units = units;
+	s->digits = digits;
+	c->digits = digits;
 	return 0;
 fail:
 	for (size_t i = 0; i < n; i++)
@@ -480,6 +487,7 @@ static void write_session(proto_call *c)
 		proto_w_str(c, proto_kind_name((proto_kind)k),
 		            proto_unit_name(&s->units, (proto_kind)k));
 	proto_w_obj_end(c);
+	proto_w_int(c, "digits", s->digits);
 	/* Numbers are shown in the session's units. */
 	c->units = s->units;
 	proto_w_obj_begin(c, "defaults");
@@ -528,7 +536,9 @@ static int reset(proto_call *c, void *args)
 	(void)args;
 	clear(s);
 	proto_units_default(&s->units);
+	s->digits = 0;
 	c->units = s->units;
+	c->digits = 0;
 	write_session(c);
 	return 0;
 }
@@ -543,8 +553,8 @@ static const proto_decl no_params = {"",   no_fields, NULL, sizeof(proto_hdr),
 
 static const proto_method m_set = {
     .name = "session.set",
-    .summary = "Set per-connection units and parameter defaults that later "
-               "requests on the connection inherit.",
+    .summary = "Set per-connection units, digits and parameter defaults "
+               "that later requests on the connection inherit.",
     .description =
         "Accepts units and any parameter that some method accepts, checked "
         "against that method's declaration. A default reaches only "
@@ -564,7 +574,9 @@ static const proto_method m_set = {
     .flags = PM_SESSION | PM_RAW_PARAMS | PM_NO_FIELDS | PM_NO_UNCERTAINTY,
     .openrpc_params =
         "[{\"name\": \"units\", \"schema\": {\"$ref\": "
-        "\"#/components/schemas/unitsIn\"}}, {\"name\": \"defaults\", "
+        "\"#/components/schemas/unitsIn\"}}, {\"name\": \"digits\", "
+        "\"schema\": {\"$ref\": \"#/components/schemas/digits\"}}, "
+        "{\"name\": \"defaults\", "
         "\"description\": \"any parameter some method takes, by name "
         "(rho, porosity, mineral, fluid_in_place, ...), or an object of "
         "one method's parameters under the method's name\", \"schema\": "

@@ -63,6 +63,8 @@ const char *rw_elastic_qty_name(rw_elastic_qty q);
 
 /* Computes the full set from density rho (kg/m^3) and the values of two
  * quantities a and b (SI). The pair must pass rw_elastic_pair_check.
+ * The two given quantities are returned exactly as given (and a given
+ * velocity's impedance, slowness and vp/vs follow from it directly).
  * *why (may be NULL) receives RW_ELASTIC_BAD_* bits when the sample is
  * impossible.
  * errors: RW_EINVAL for a pair that is not accepted; RW_EDOM when the

@@ -189,12 +189,21 @@ t.ok(p.returncode == 3 and os.path.exists(notsock),
 # --- SIGTERM with requests in flight ---------------------------------------
 c = d.connect()
 n = 3000
-c.sendall(("\n".join(req("elastic.convert", {"rho": 2.3, "vp": [3000] * 50,
-                                             "vs": 1500}, id=i)
-                     for i in range(n)) + "\n").encode())
+# Answers are read from a thread while the requests go out: the daemon
+# stops reading a connection whose answers are not being read
+# (back-pressure), so a sendall of everything could wait on our reading.
+blob = ("\n".join(req("elastic.convert", {"rho": 2.3, "vp": [3000] * 50,
+                                        "vs": 1500}, id=i)
+                for i in range(n)) + "\n").encode()
+got = {}
+reader = threading.Thread(
+    target=lambda: got.update(rs=read_lines(c, n + 1, timeout=30)))
+reader.start()
+c.sendall(blob)  # returns once the daemon has taken every byte
 time.sleep(0.2)  # the daemon has read the requests
 d.proc.send_signal(signal.SIGTERM)
-rs = read_lines(c, n + 1, timeout=30)
+reader.join()
+rs = got.get("rs", [])
 ids = [json.loads(x)["id"] for x in rs]
 t.ok(ids == list(range(n)), "every request sent before SIGTERM is answered "
      "(%d of %d)" % (len(ids), n))

@@ -136,9 +136,10 @@ static void test_qc_flags(void **state)
 	/* Thresholds are parameters (in the request's units). */
 	r = h_call(&H, REQ("{\"dtp\":100,\"dts\":180,\"rhob\":2.3,"
 	                   "\"drho\":0.06,\"drho_limit\":0.1,"
-	                   "\"caliper\":9.5,\"bit_size\":8.5,"
+	                   "\"caliper\":0.8,\"bit_size\":0.7,"
 	                   "\"washout_limit\":0.05,"
 	                   "\"units\":{\"length\":\"ft\"}}"));
+	/* 0.7 ft is an 8.4 in bit; 0.8 ft of hole is 14 % over gauge. */
 	assert_int_equal(qc(r, 0), B_WASHOUT);
 	cJSON_Delete(r);
 	/* Plausibility ranges through qc. */

@@ -76,6 +76,22 @@ static void buf_json_string(proto_buf *b, const char *s)
 	const unsigned char *p = (const unsigned char *)s;
 	char esc[7];
 
+	const unsigned char *q = p;
+
+	while (*q >= 0x20 && *q != '"' && *q != '\\')
+		q++;
+	if (!*q) {
+		/* nothing to escape (names, units, most text): one copy */
+		size_t n = (size_t)(q - p);
+		if (proto_buf_reserve(b, n + 2))
+			return;
+		b->data[b->len] = '"';
+		memcpy(b->data + b->len + 1, s, n);
+		b->data[b->len + n + 1] = '"';
+		b->len += n + 2;
+		b->data[b->len] = '\0';
+		return;
+	}
 	proto_buf_append(b, "\"", 1);
 	for (; *p; p++) {
 		const unsigned char *q = p;

@@ -469,6 +469,7 @@ typedef struct proto_method {
 
 typedef struct proto_unit_note {
 	const char *path;
+	uint32_t hash; /* of path (FNV-1a), compared before the text */
 	proto_kind kind;
 } proto_unit_note;
 

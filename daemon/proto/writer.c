@@ -176,8 +176,14 @@ static void note_unit(proto_call *c, const char *key, proto_kind k)
 	}
 	if (!path[0])
 		return;
+	/* FNV-1a (Fowler, Noll, Vo): every number written asks, so the
+	 * notes are told apart by hash before any strcmp. */
+	uint32_t h = 2166136261u;
+	for (const unsigned char *q = (const unsigned char *)path; *q; q++)
+		h = (h ^ *q) * 16777619u;
 	for (size_t i = 0; i < c->n_unit_notes; i++)
-		if (strcmp(c->unit_notes[i].path, path) == 0)
+		if (c->unit_notes[i].hash == h &&
+		    strcmp(c->unit_notes[i].path, path) == 0)
 			return;
 	if (c->n_unit_notes == c->cap_unit_notes) {
 		size_t cap = c->cap_unit_notes ? 2 * c->cap_unit_notes : 32;
@@ -197,6 +203,7 @@ static void note_unit(proto_call *c, const char *key, proto_kind k)
 		return;
 	}
 	c->unit_notes[c->n_unit_notes].path = copy;
+	c->unit_notes[c->n_unit_notes].hash = h;
 	c->unit_notes[c->n_unit_notes].kind = k;
 	c->n_unit_notes++;
 }

@@ -164,6 +164,10 @@ def reflect_series(p):
     bad = (a1 <= 0) | (a2 <= 0) | (r1 <= 0) | (r2 <= 0) | (b1 < 0) | (
         b2 < 0) | (3 * a1 ** 2 <= 4 * b1 ** 2) | (3 * a2 ** 2 <= 4 * b2 ** 2)
     qci = np.where(bad, 1 << 16, 0)
+    # no_critical_p (bit 19): vp below not above vp above; no_critical_s
+    # (bit 20): vs below not above vp above (qc-flags.md)
+    qci = qci | np.where(~bad & (a2 <= a1), 1 << 19, 0) | np.where(
+        ~bad & (b2 <= a1), 1 << 20, 0)
     rre = np.empty((ang.size, ni))
     rim = np.empty((ang.size, ni))
     qc = np.empty((ang.size, ni), dtype=np.int64)

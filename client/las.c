@@ -28,6 +28,7 @@
 #include <strings.h>
 
 #include "las.h"
+#include "proto/numparse.h"
 
 #define MAX_HEADER_LINES 16384u /* kept header lines */
 #define WRAP_LINE_MAX    80u    /* LAS 2.0 wrapped-line length */
@@ -335,15 +336,30 @@ static int is_blank(int c)
 }
 
 /* Parses s (NUL-terminated, trimmed) as a finite decimal number: digits,
- * sign, '.', exponent only (no hex, inf or nan). 1 on success. */
+ * sign, '.', exponent only (no hex, inf or nan). 1 on success.
+ * Text in JSON's number form (nearly every LAS value: "2.4482",
+ * "-999.25", "1.5e-3") is read by proto_num_parse (rwnum, correctly
+ * rounded: the double strtod gives, bit for bit); the other forms the
+ * rule allows (".5", "5.", "+1", "007", "1E+03") by strtod as before.
+ * Either way an overflow is refused and an underflow reads as zero. */
 static int parse_num(const char *s, double *out)
 {
 	const char *p;
 	char *end;
 	double v;
+	size_t used, len = strlen(s);
+	int st;
 
-	if (!*s)
+	if (!len)
 		return 0;
+	st = proto_num_parse(s, len, &v, &used);
+	if (used == len &&
+	    (st == PROTO_NUM_OK || (st == PROTO_NUM_ERANGE && v == 0))) {
+		*out = v;
+		return 1;
+	}
+	if (st == PROTO_NUM_ERANGE && used == len)
+		return 0; /* beyond the double range */
 	for (p = s; *p; p++)
 		if (!isdigit((unsigned char)*p) && *p != '+' && *p != '-' &&
 		    *p != '.' && *p != 'e' && *p != 'E')

@@ -341,13 +341,14 @@ static int is_blank(int c)
  * "-999.25", "1.5e-3") is read by proto_num_parse (rwnum, correctly
  * rounded: the double strtod gives, bit for bit); the other forms the
  * rule allows (".5", "5.", "+1", "007", "1E+03") by strtod as before.
- * Either way an overflow is refused and an underflow reads as zero. */
-static int parse_num(const char *s, double *out)
+ * Either way an overflow is refused and an underflow reads as zero.
+ * parse_numn: the same for the len bytes at s, with s[len] == '\0'. */
+static int parse_numn(const char *s, size_t len, double *out)
 {
 	const char *p;
 	char *end;
 	double v;
-	size_t used, len = strlen(s);
+	size_t used;
 	int st;
 
 	if (!len)
@@ -370,6 +371,11 @@ static int parse_num(const char *s, double *out)
 		return 0;
 	*out = v;
 	return 1;
+}
+
+static int parse_num(const char *s, double *out)
+{
+	return parse_numn(s, strlen(s), out);
 }
 
 /* Copies [b, e) into *dst as a NUL-terminated string with surrounding
@@ -920,7 +926,8 @@ static int data_line(cli_las_reader *r, char *s, size_t n)
 		while (p < end && !is_blank((unsigned char)*p))
 			p++;
 		*p = '\0'; /* s has room: the buffer holds MAX_LINE + 1 */
-		if (ntok < room && !parse_num(tok, &r->acc[r->nacc + ntok]))
+		if (ntok < room && !parse_numn(tok, (size_t)(p - tok),
+		                               &r->acc[r->nacc + ntok]))
 			return fail(r, r->lineno,
 			            "value %zu ('%.32s') is not "
 			            "a number",
@@ -1232,20 +1239,28 @@ int cli_las_feed(cli_las_reader *r, const void *buf, size_t len, size_t *used)
 		}
 		if (i == len)
 			break;
-		if (b[i] == '\n') {
-			r->lineno++;
-			r->pending = 1;
-		} else if (b[i] == '\0') {
+		/* The rest of this line at once: the checks of a byte at a
+		 * time (a NUL, then the length, at the first byte that
+		 * offends) on the span up to the next newline. */
+		const unsigned char *nl = memchr(b + i, '\n', len - i);
+		size_t seg = (size_t)((nl ? nl : b + len) - (b + i));
+		const unsigned char *z = memchr(b + i, '\0', seg);
+		size_t room = CLI_LAS_MAX_LINE - r->linelen;
+		if (z && (size_t)(z - (b + i)) <= room)
 			return fail(r, r->lineno + 1, "NUL byte");
-		} else if (r->linelen >= CLI_LAS_MAX_LINE) {
+		if (seg > room)
 			return fail(r, r->lineno + 1,
 			            "line longer than %u "
 			            "bytes",
 			            CLI_LAS_MAX_LINE);
-		} else {
-			r->line[r->linelen++] = (char)b[i];
+		memcpy(r->line + r->linelen, b + i, seg);
+		r->linelen += seg;
+		i += seg;
+		if (nl) {
+			r->lineno++;
+			r->pending = 1;
+			i++;
 		}
-		i++;
 	}
 	*used = i;
 	r->bytes += i;

@@ -207,6 +207,7 @@ typedef struct logrun {
 	/* QC counts and statistics */
 	stat1 *in_stat, out_stat[MAX_OUT];
 	flagstat flag[CLI_QC_BITS];
+	uint64_t flag_open; /* bit b: flag[b].open */
 	unsigned long long samples, flagged, queued;
 	double bs_bad; /* an implausible bit size seen in the curve */
 	int failed;
@@ -1073,9 +1074,19 @@ static void stat_add(stat1 *s, double v)
 /* Depth intervals of each QC flag, for the summary file. */
 static void flags_add(logrun *L, uint64_t f, double depth)
 {
-	for (int b = 0; b < CLI_QC_BITS; b++) {
+	/* only the flags set now or in a run still open change */
+	uint64_t todo = f | L->flag_open;
+
+	for (int b = 0; todo && b < CLI_QC_BITS; b++) {
 		flagstat *fs = &L->flag[b];
 		int on = (f >> b) & 1u;
+		if (!((todo >> b) & 1u))
+			continue;
+		todo &= ~((uint64_t)1 << b);
+		if (on)
+			L->flag_open |= (uint64_t)1 << b;
+		else
+			L->flag_open &= ~((uint64_t)1 << b);
 		if (on) {
 			fs->count++;
 			if (!fs->open) {

@@ -46,10 +46,9 @@ void cli__fmt_cell(char *buf, double v, int digits)
 		snprintf(buf, 40, "%.0f", v);
 		return;
 	}
-	if (digits > 0)
-		snprintf(buf, 40, "%.*g", digits, v);
-	else
-		cli__fmt_num(buf, v, 0, NULL);
+	/* %.<digits>g's text (cli__fmt_num: rwnum's digits, printf's
+	 * layout), or the shortest that reads back */
+	cli__fmt_num(buf, v, digits > 0 ? digits : 0, NULL);
 }
 
 void cli__qc_names(unsigned long long flags, const char *const qc[CLI_QC_BITS],

@@ -28,6 +28,7 @@
 #include <strings.h>
 
 #include "las.h"
+#include "proto/numparse.h"
 
 #define MAX_HEADER_LINES 16384u /* kept header lines */
 #define WRAP_LINE_MAX    80u    /* LAS 2.0 wrapped-line length */
@@ -335,15 +336,31 @@ static int is_blank(int c)
 }
 
 /* Parses s (NUL-terminated, trimmed) as a finite decimal number: digits,
- * sign, '.', exponent only (no hex, inf or nan). 1 on success. */
-static int parse_num(const char *s, double *out)
+ * sign, '.', exponent only (no hex, inf or nan). 1 on success.
+ * Text in JSON's number form (nearly every LAS value: "2.4482",
+ * "-999.25", "1.5e-3") is read by proto_num_parse (rwnum, correctly
+ * rounded: the double strtod gives, bit for bit); the other forms the
+ * rule allows (".5", "5.", "+1", "007", "1E+03") by strtod as before.
+ * Either way an overflow is refused and an underflow reads as zero.
+ * parse_numn: the same for the len bytes at s, with s[len] == '\0'. */
+static int parse_numn(const char *s, size_t len, double *out)
 {
 	const char *p;
 	char *end;
 	double v;
+	size_t used;
+	int st;
 
-	if (!*s)
+	if (!len)
 		return 0;
+	st = proto_num_parse(s, len, &v, &used);
+	if (used == len &&
+	    (st == PROTO_NUM_OK || (st == PROTO_NUM_ERANGE && v == 0))) {
+		*out = v;
+		return 1;
+	}
+	if (st == PROTO_NUM_ERANGE && used == len)
+		return 0; /* beyond the double range */
 	for (p = s; *p; p++)
 		if (!isdigit((unsigned char)*p) && *p != '+' && *p != '-' &&
 		    *p != '.' && *p != 'e' && *p != 'E')
@@ -354,6 +371,11 @@ static int parse_num(const char *s, double *out)
 		return 0;
 	*out = v;
 	return 1;
+}
+
+static int parse_num(const char *s, double *out)
+{
+	return parse_numn(s, strlen(s), out);
 }
 
 /* Copies [b, e) into *dst as a NUL-terminated string with surrounding
@@ -904,7 +926,8 @@ static int data_line(cli_las_reader *r, char *s, size_t n)
 		while (p < end && !is_blank((unsigned char)*p))
 			p++;
 		*p = '\0'; /* s has room: the buffer holds MAX_LINE + 1 */
-		if (ntok < room && !parse_num(tok, &r->acc[r->nacc + ntok]))
+		if (ntok < room && !parse_numn(tok, (size_t)(p - tok),
+		                               &r->acc[r->nacc + ntok]))
 			return fail(r, r->lineno,
 			            "value %zu ('%.32s') is not "
 			            "a number",
@@ -1216,20 +1239,28 @@ int cli_las_feed(cli_las_reader *r, const void *buf, size_t len, size_t *used)
 		}
 		if (i == len)
 			break;
-		if (b[i] == '\n') {
-			r->lineno++;
-			r->pending = 1;
-		} else if (b[i] == '\0') {
+		/* The rest of this line at once: the checks of a byte at a
+		 * time (a NUL, then the length, at the first byte that
+		 * offends) on the span up to the next newline. */
+		const unsigned char *nl = memchr(b + i, '\n', len - i);
+		size_t seg = (size_t)((nl ? nl : b + len) - (b + i));
+		const unsigned char *z = memchr(b + i, '\0', seg);
+		size_t room = CLI_LAS_MAX_LINE - r->linelen;
+		if (z && (size_t)(z - (b + i)) <= room)
 			return fail(r, r->lineno + 1, "NUL byte");
-		} else if (r->linelen >= CLI_LAS_MAX_LINE) {
+		if (seg > room)
 			return fail(r, r->lineno + 1,
 			            "line longer than %u "
 			            "bytes",
 			            CLI_LAS_MAX_LINE);
-		} else {
-			r->line[r->linelen++] = (char)b[i];
+		memcpy(r->line + r->linelen, b + i, seg);
+		r->linelen += seg;
+		i += seg;
+		if (nl) {
+			r->lineno++;
+			r->pending = 1;
+			i++;
 		}
-		i++;
 	}
 	*used = i;
 	r->bytes += i;

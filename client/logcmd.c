@@ -36,6 +36,8 @@
 #include "cli.h"
 #include "las.h"
 #include "logio.h"
+#include "proto/numfmt.h"
+#include "proto/numparse.h"
 #include "rpc.h"
 #include "units.h"
 
@@ -183,6 +185,11 @@ typedef struct logrun {
 	size_t head, count;
 	unsigned long next_id;
 	cli_buf wbuf;
+	cli_numcols cols; /* the numeric arrays of the answer being written */
+	double *scratch;  /* arrays cJSON had to read (rarely used) */
+	size_t scratch_cap;
+	char *rowbuf; /* one output row of text */
+	size_t rowcap;
 	/* output columns, from the first response */
 	int have_cols;
 	size_t nout;
@@ -200,6 +207,7 @@ typedef struct logrun {
 	/* QC counts and statistics */
 	stat1 *in_stat, out_stat[MAX_OUT];
 	flagstat flag[CLI_QC_BITS];
+	uint64_t flag_open; /* bit b: flag[b].open */
 	unsigned long long samples, flagged, queued;
 	double bs_bad; /* an implausible bit size seen in the curve */
 	int failed;
@@ -670,7 +678,7 @@ static int take_state(logrun *L, const cJSON *res)
 /* Appends one block request to the write buffer. */
 static int queue_block(logrun *L, slot *s)
 {
-	char num[48], head[96];
+	char head[96];
 	int first = 1;
 
 	snprintf(head, sizeof head,
@@ -692,17 +700,28 @@ static int queue_block(logrun *L, slot *s)
 		first = 0;
 		if (cli__buf_puts(&L->wbuf, head))
 			return -1;
+		/* The numbers go straight into the buffer, shortest
+		 * round-trip text: the daemon reads back exactly the
+		 * doubles converted here. */
+		const double *col = s->rows + (size_t)L->col[i];
+		const double sc = L->scale[i], off = L->offset[i];
+		char *w = cli__buf_reserve(&L->wbuf,
+		                           s->nrows * (PROTO_NUM_FMT_MAX + 1));
+		if (!w)
+			return -1;
 		for (size_t j = 0; j < s->nrows; j++) {
-			double v = s->rows[j * L->ncurves + (size_t)L->col[i]];
-			size_t n;
-			if (!isnan(v))
-				v = v * L->scale[i] + L->offset[i];
-			n = cli__fmt_num(num + 1, v, 0, NULL);
-			num[0] = ',';
-			if (cli__buf_put(&L->wbuf, j ? num : num + 1,
-			                 j ? n + 1 : n))
-				return -1;
+			double v = col[j * L->ncurves];
+			if (j)
+				*w++ = ',';
+			if (isnan(v)) {
+				memcpy(w, "null", 4);
+				w += 4;
+				continue;
+			}
+			w += proto_num_fmt(w, v * sc + off);
 		}
+		*w = '\0';
+		L->wbuf.len = (size_t)(w - L->wbuf.data);
 		if (cli__buf_put(&L->wbuf, "]", 1))
 			return -1;
 	}
@@ -1055,9 +1074,19 @@ static void stat_add(stat1 *s, double v)
 /* Depth intervals of each QC flag, for the summary file. */
 static void flags_add(logrun *L, uint64_t f, double depth)
 {
-	for (int b = 0; b < CLI_QC_BITS; b++) {
+	/* only the flags set now or in a run still open change */
+	uint64_t todo = f | L->flag_open;
+
+	for (int b = 0; todo && b < CLI_QC_BITS; b++) {
 		flagstat *fs = &L->flag[b];
 		int on = (f >> b) & 1u;
+		if (!((todo >> b) & 1u))
+			continue;
+		todo &= ~((uint64_t)1 << b);
+		if (on)
+			L->flag_open |= (uint64_t)1 << b;
+		else
+			L->flag_open &= ~((uint64_t)1 << b);
 		if (on) {
 			fs->count++;
 			if (!fs->open) {
@@ -1080,21 +1109,43 @@ static void flags_add(logrun *L, uint64_t f, double depth)
 	}
 }
 
+/* Appends one value's text at w (cli__fmt_num: `digits` significant
+ * digits, 0 for the shortest round-trip, NaN and infinities as the null
+ * text). Returns the end. */
+static char *put_value(char *w, double v, int digits, const char *nulltxt)
+{
+	return w + cli__fmt_num(w, v, digits, nulltxt);
+}
+
 static int write_rows(logrun *L, const slot *s, const cJSON *res)
 {
-	const cJSON *it[MAX_OUT];
+	const double *val[MAX_OUT];
 	double null_v = cli_las_null(L->r);
-	char nulltxt[48], num[48];
-	size_t nc = L->ncurves;
+	char nulltxt[48];
+	size_t nc = L->ncurves, width;
 	char sep = L->csv ? ',' : cli_las_delimiter(L->r);
 	int bit = find_input("bit_size");
+	size_t qc_k = L->nout;
 
 	if (cli_las_is_csv(L->r) && !L->csv)
 		null_v = -999.25;
 	cli__fmt_num(nulltxt, null_v, 0, NULL);
+	if (L->csv)
+		nulltxt[0] = '\0';
+	/* the values of each computed curve: read straight from the answer
+	 * (cli__rpc_parse_cols), or from its cJSON array when it was not a
+	 * plain numeric array */
 	for (size_t k = 0; k < L->nout; k++) {
-		const cJSON *colv =
-		    cJSON_GetObjectItemCaseSensitive(res, L->out_key[k]);
+		size_t n;
+		const cJSON *colv;
+		val[k] = cli__numcols_get(&L->cols, L->out_key[k], &n);
+		if (strcmp(L->out_key[k], "qc") == 0)
+			qc_k = k;
+		if (val[k] && n == s->nrows)
+			continue;
+		colv = val[k] ? NULL
+		              : cJSON_GetObjectItemCaseSensitive(res,
+		                                                 L->out_key[k]);
 		if (!cJSON_IsArray(colv) ||
 		    (size_t)cJSON_GetArraySize(colv) != s->nrows) {
 			fprintf(stderr,
@@ -1103,11 +1154,33 @@ static int write_rows(logrun *L, const slot *s, const cJSON *res)
 			        s->first, L->out_key[k]);
 			return -1;
 		}
-		it[k] = colv->child;
+		if (L->scratch_cap < (k + 1) * s->nrows) {
+			double *t =
+			    realloc(L->scratch, MAX_OUT * s->nrows * sizeof *t);
+			if (!t)
+				return -1;
+			L->scratch = t;
+			L->scratch_cap = MAX_OUT * s->nrows;
+		}
+		double *d = L->scratch + k * s->nrows;
+		const cJSON *e = colv->child;
+		for (size_t j = 0; j < s->nrows; j++, e = e->next)
+			d[j] = cJSON_IsNumber(e) ? e->valuedouble : NAN;
+		val[k] = d;
+	}
+	/* one row of text at a time, one fwrite per row */
+	width = (nc + L->nout) * (PROTO_NUM_FMT_MAX + 1); /* >= 40 each */
+	if (L->rowcap < width + 2) {
+		char *t = realloc(L->rowbuf, width + 2);
+		if (!t)
+			return -1;
+		L->rowbuf = t;
+		L->rowcap = width + 2;
 	}
 	for (size_t j = 0; j < s->nrows; j++) {
 		const double *row = s->rows + j * nc;
 		uint64_t flags = 0;
+		char *w = L->rowbuf;
 		if (L->col[bit] >= 0) {
 			double b =
 			    row[L->col[bit]] * L->scale[bit] + L->offset[bit];
@@ -1115,42 +1188,36 @@ static int write_rows(logrun *L, const slot *s, const cJSON *res)
 			    isnan(L->bs_bad))
 				L->bs_bad = row[0];
 		}
-		for (size_t c = 0; c < nc + L->nout; c++) {
-			double v;
-			int digits = 0;
-			if (c < nc) {
-				v = row[c];
-				stat_add(&L->in_stat[c], v);
-			} else {
-				size_t k = c - nc;
-				const cJSON *e = it[k];
-				int is_qc = strcmp(L->out_key[k], "qc") == 0;
-				v = cJSON_IsNumber(e) ? e->valuedouble : NAN;
-				it[k] = e ? e->next : NULL;
-				if (is_qc && !isnan(v)) {
-					/* 64-bit sets, bits 0-52: exact
-					 * in a double, never past 2^53 */
-					flags = v >= 0 && v < 9007199254740992.0
-					            ? (uint64_t)v
-					            : 0;
-					L->flagged += flags != 0;
-				} else if (!isnan(v)) {
-					v = (v - L->out_offset[k]) /
-					    L->out_scale[k];
-					digits = L->digits;
-				}
-				stat_add(&L->out_stat[k], v);
-			}
-			size_t n =
-			    cli__fmt_num(num, v, digits, L->csv ? "" : nulltxt);
-			if (c && fputc(sep, L->out) == EOF)
-				return -1;
-			if (fwrite(num, 1, n, L->out) != n)
-				return -1;
+		for (size_t c = 0; c < nc; c++) {
+			stat_add(&L->in_stat[c], row[c]);
+			if (c)
+				*w++ = sep;
+			w = put_value(w, row[c], 0, nulltxt);
 		}
-		flags_add(L, flags, row[0]);
-		if (fputc('\n', L->out) == EOF)
+		for (size_t k = 0; k < L->nout; k++) {
+			double v = val[k][j];
+			int digits = 0;
+			if (k == qc_k && !isnan(v)) {
+				/* 64-bit sets, bits 0-52: exact in a double,
+				 * never past 2^53 */
+				flags = v >= 0 && v < 9007199254740992.0
+				            ? (uint64_t)v
+				            : 0;
+				L->flagged += flags != 0;
+			} else if (!isnan(v)) {
+				v = (v - L->out_offset[k]) / L->out_scale[k];
+				digits = L->digits;
+			}
+			stat_add(&L->out_stat[k], v);
+			if (nc + k)
+				*w++ = sep;
+			w = put_value(w, v, digits, nulltxt);
+		}
+		*w++ = '\n';
+		if (fwrite(L->rowbuf, 1, (size_t)(w - L->rowbuf), L->out) !=
+		    (size_t)(w - L->rowbuf))
 			return -1;
+		flags_add(L, flags, row[0]);
 		if (L->samples + j == 0) {
 			L->first_out = row[0];
 		} else {
@@ -1182,7 +1249,9 @@ static int on_line(void *ctx, char *line, size_t len)
 	}
 	slot *s = &L->slots[L->head];
 	want = cJSON_CreateNumber((double)s->id);
-	r = want ? cli__rpc_parse(line, len, want, why, sizeof why) : NULL;
+	r = want ? cli__rpc_parse_cols(line, len, want, &L->cols, why,
+	                               sizeof why)
+	         : NULL;
 	cJSON_Delete(want);
 	if (!r) {
 		fprintf(stderr, WHO ": invalid answer from the daemon (%s)\n",
@@ -2226,6 +2295,9 @@ out:
 		free(L.flag[b].run);
 	free(L.in_stat);
 	cli__buf_free(&L.wbuf);
+	cli__numcols_free(&L.cols);
+	free(L.scratch);
+	free(L.rowbuf);
 	cJSON_free(L.base);
 	free(L.ptoken);
 	cJSON_Delete(L.params);

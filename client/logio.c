@@ -10,6 +10,7 @@
 #include <unistd.h>
 
 #include "logio.h"
+#include "proto/numfmt.h"
 
 int cli__param_set(cJSON *params, const char *arg, const char *who)
 {
@@ -62,9 +63,95 @@ int cli__param_set(cJSON *params, const char *arg, const char *who)
 	}
 }
 
+/* Lays out JSON number text t (proto_num_fmt*: "-123.45", "3000",
+ * "1.5e-7"; not zero) as printf's %.Pg would print the same digits:
+ * exponent form "1.5e-07" when the decimal exponent X is below -4 or at
+ * least P, else plain; trailing zeros dropped. P 0: 15 for up to 15
+ * significant digits, else 17 (the old %.15g / %.17g choice). Returns the
+ * length written to buf (at most 25 bytes and a NUL). */
+static size_t g_layout(char *buf, const char *t, int P)
+{
+	char dig[32];
+	size_t nd = 0, n = 0;
+	int X = -1, seen_point = 0, lead = 1, e = 0, eneg = 0;
+
+	if (*t == '-')
+		buf[n++] = *t++;
+	for (; *t && *t != 'e'; t++) {
+		if (*t == '.') {
+			seen_point = 1;
+			continue;
+		}
+		if (lead && *t == '0') {
+			if (seen_point)
+				X--; /* 0.00123: each zero after the point */
+			continue;
+		}
+		if (lead && !seen_point)
+			X = -1;
+		lead = 0;
+		if (!seen_point)
+			X++;
+		if (nd < sizeof dig)
+			dig[nd++] = *t;
+	}
+	if (lead) { /* zero */
+		buf[n++] = '0';
+		buf[n] = '\0';
+		return n;
+	}
+	if (*t == 'e') {
+		t++;
+		if (*t == '-') {
+			eneg = 1;
+			t++;
+		}
+		while (*t)
+			e = e * 10 + (*t++ - '0');
+		X += eneg ? -e : e;
+	}
+	while (nd > 1 && dig[nd - 1] == '0')
+		nd--;
+	if (P <= 0)
+		P = nd <= 15 ? 15 : 17;
+	if (X < -4 || X >= P) {
+		int a = X < 0 ? -X : X;
+		buf[n++] = dig[0];
+		if (nd > 1) {
+			buf[n++] = '.';
+			memcpy(buf + n, dig + 1, nd - 1);
+			n += nd - 1;
+		}
+		buf[n++] = 'e';
+		buf[n++] = X < 0 ? '-' : '+';
+		if (a >= 100)
+			buf[n++] = (char)('0' + a / 100);
+		buf[n++] = (char)('0' + a / 10 % 10);
+		buf[n++] = (char)('0' + a % 10);
+	} else if (X < 0) {
+		buf[n++] = '0';
+		buf[n++] = '.';
+		for (int z = -1; z > X; z--)
+			buf[n++] = '0';
+		memcpy(buf + n, dig, nd);
+		n += nd;
+	} else {
+		for (int i = 0; i <= X; i++)
+			buf[n++] = (size_t)i < nd ? dig[i] : '0';
+		if (nd > (size_t)X + 1) {
+			buf[n++] = '.';
+			memcpy(buf + n, dig + X + 1, nd - (size_t)X - 1);
+			n += nd - (size_t)X - 1;
+		}
+	}
+	buf[n] = '\0';
+	return n;
+}
+
 size_t cli__fmt_num(char *buf, double v, int digits, const char *null_text)
 {
-	int n;
+	char tmp[PROTO_NUM_FMT_MAX];
+	size_t n;
 
 	if (!isfinite(v)) {
 		const char *t = null_text ? null_text : "null";
@@ -75,17 +162,43 @@ size_t cli__fmt_num(char *buf, double v, int digits, const char *null_text)
 		buf[len] = '\0';
 		return len;
 	}
-	if (digits > 0) {
-		n = snprintf(buf, 40, "%.*g", digits, v);
-		return (size_t)n;
+	if (v == 0) { /* printf's sign of zero (proto_num_fmt writes 0) */
+		n = signbit(v) ? 2 : 1;
+		memcpy(buf, "-0", 3);
+		if (n == 1)
+			memcpy(buf, "0", 2);
+		return n;
 	}
-	n = snprintf(buf, 40, "%.15g", v);
-	if (strtod(buf, NULL) != v)
-		n = snprintf(buf, 40, "%.17g", v);
-	return (size_t)n;
+	if (digits > 17)
+		digits = 17;
+	/* the shortest digits that read back (digits <= 0) laid out as
+	 * %.15g would (as %.17g when there are 16 or 17: %.15g would not
+	 * read back), or `digits` digits laid out as %.<digits>g */
+	n = digits > 0 ? proto_num_fmt_digits(tmp, v, digits)
+	               : proto_num_fmt(tmp, v);
+	{
+		/* Fast path: plain text ("2.4482", "-999.25", "0.0123",
+		 * "3000") is already what %g prints when its integer part
+		 * has fewer digits than the precision (JSON's layout never
+		 * writes plain text for exponents below -4). */
+		const char *t = tmp + (tmp[0] == '-');
+		size_t i = 0, j;
+		int P = digits > 0 ? digits : 15;
+		while (t[i] >= '0' && t[i] <= '9')
+			i++;
+		j = i;
+		if (t[j] == '.')
+			for (j++; t[j] >= '0' && t[j] <= '9'; j++)
+				;
+		if (t[j] != 'e' && (t[0] == '0' || (int)i <= P)) {
+			memcpy(buf, tmp, n + 1);
+			return n;
+		}
+	}
+	return g_layout(buf, tmp, digits > 0 ? digits : 0);
 }
 
-int cli__buf_put(cli_buf *b, const char *s, size_t n)
+char *cli__buf_reserve(cli_buf *b, size_t n)
 {
 	if (b->off && b->off == b->len)
 		b->off = b->len = 0;
@@ -102,12 +215,21 @@ int cli__buf_put(cli_buf *b, const char *s, size_t n)
 		if (cap != b->cap) {
 			d = realloc(b->data, cap);
 			if (!d)
-				return -1;
+				return NULL;
 			b->data = d;
 			b->cap = cap;
 		}
 	}
-	memcpy(b->data + b->len, s, n);
+	return b->data + b->len;
+}
+
+int cli__buf_put(cli_buf *b, const char *s, size_t n)
+{
+	char *w = cli__buf_reserve(b, n);
+
+	if (!w)
+		return -1;
+	memcpy(w, s, n);
 	b->len += n;
 	b->data[b->len] = '\0';
 	return 0;

@@ -16,9 +16,13 @@
  * messages. 0, or -1 with a message on stderr. */
 int cli__param_set(cJSON *params, const char *arg, const char *who);
 
-/* Formats v as the shortest of %.15g / %.17g that reads back exactly
- * (digits <= 0) or with `digits` significant digits; "null" for NaN when
- * null_text is NULL, else null_text. Returns the length (buf >= 40). */
+/* Formats v as JSON number text (proto_num_fmt, rwnum): the shortest
+ * digits that read back to exactly v (digits <= 0), or v correctly rounded
+ * to `digits` significant digits (1..17; proto_num_fmt_digits), trailing
+ * zeros dropped. Layout: integers below 2^53 as integers, else the shorter
+ * of plain and exponent notation ("1.5e-7", "1e22": no '+', no leading
+ * exponent zeros); -0 as 0. NaN and the infinities give null_text ("null"
+ * when NULL). Returns the length (buf >= 40). */
 size_t cli__fmt_num(char *buf, double v, int digits, const char *null_text);
 
 /* A growable byte buffer. */
@@ -28,6 +32,10 @@ typedef struct cli_buf {
 } cli_buf;
 int cli__buf_put(cli_buf *b, const char *s, size_t n);
 int cli__buf_puts(cli_buf *b, const char *s);
+/* Room for n more bytes (and a NUL) at b->data + b->len: returns that
+ * address, or NULL when out of memory. The caller writes there and adds
+ * what it wrote to b->len. */
+char *cli__buf_reserve(cli_buf *b, size_t n);
 void cli__buf_free(cli_buf *b);
 
 /* Moves bytes both ways once: writes what it can of `out` (non-blocking)

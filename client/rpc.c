@@ -8,6 +8,7 @@
 #include <string.h>
 #include <time.h>
 
+#include "proto/numparse.h"
 #include "rpc.h"
 
 long long cli__now_ms(void)
@@ -121,6 +122,242 @@ cJSON *cli__rpc_parse(const char *line, size_t len, const cJSON *expect_id,
 		return NULL;
 	}
 	return r;
+}
+
+/* ---- answers with long numeric arrays ---------------------------------- */
+
+static const char *skip_ws(const char *p, const char *e)
+{
+	while (p < e && (*p == ' ' || *p == '\t' || *p == '\r' || *p == '\n'))
+		p++;
+	return p;
+}
+
+/* p at '"': past the closing quote, or NULL. *esc set when the string
+ * has a backslash escape. */
+static const char *skip_string(const char *p, const char *e, int *esc)
+{
+	for (p++; p < e; p++) {
+		if (*p == '"')
+			return p + 1;
+		if (*p == '\\') {
+			if (esc)
+				*esc = 1;
+			p++;
+		}
+	}
+	return NULL;
+}
+
+/* Past one JSON value at p (structure only: cJSON checks the rest), or
+ * NULL. */
+static const char *skip_value(const char *p, const char *e)
+{
+	size_t depth = 0;
+
+	if (p >= e)
+		return NULL;
+	if (*p != '{' && *p != '[' && *p != '"') {
+		while (p < e && *p != ',' && *p != '}' && *p != ']' &&
+		       *p != ' ' && *p != '\t' && *p != '\r' && *p != '\n')
+			p++;
+		return p;
+	}
+	while (p < e) {
+		if (*p == '"') {
+			p = skip_string(p, e, NULL);
+			if (!p)
+				return NULL;
+			if (!depth)
+				return p;
+			continue;
+		}
+		if (*p == '{' || *p == '[')
+			depth++;
+		else if ((*p == '}' || *p == ']') && --depth == 0)
+			return p + 1;
+		p++;
+	}
+	return NULL;
+}
+
+static int skel_put(cli_numcols *c, size_t *used, const char *s, size_t n)
+{
+	if (c->skel_cap - *used < n + 1) {
+		size_t cap = c->skel_cap ? c->skel_cap : 4096;
+		char *d;
+		while (cap - *used < n + 1)
+			cap *= 2;
+		d = realloc(c->skel, cap);
+		if (!d)
+			return -1;
+		c->skel = d;
+		c->skel_cap = cap;
+	}
+	memcpy(c->skel + *used, s, n);
+	*used += n;
+	return 0;
+}
+
+/* The array at p as doubles into the pool: 1 with *end past it, 0 when
+ * it is not an array of numbers and nulls (left to cJSON), -1 when out
+ * of memory. */
+static int take_array(cli_numcols *c, const char *p, const char *e, size_t *n,
+                      size_t *end)
+{
+	proto_num_err err;
+	size_t room = c->pool_cap - c->pool_used, cnt, cend;
+	int st =
+	    proto_num_array_parse(p, (size_t)(e - p), PROTO_NUM_NULLS,
+	                          c->pool + c->pool_used, room, n, end, &err);
+	if (st != PROTO_NUM_ESIZE)
+		return st == PROTO_NUM_OK;
+	if (proto_num_array_count(p, (size_t)(e - p), &cnt, &cend, &err))
+		return 0;
+	if (cnt > room) {
+		size_t cap = c->pool_cap ? c->pool_cap : 4096;
+		double *d;
+		while (cap - c->pool_used < cnt)
+			cap *= 2;
+		d = realloc(c->pool, cap * sizeof *d);
+		if (!d)
+			return -1;
+		c->pool = d;
+		c->pool_cap = cap;
+		room = cap - c->pool_used;
+	}
+	return proto_num_array_parse(p, (size_t)(e - p), PROTO_NUM_NULLS,
+	                             c->pool + c->pool_used, room, n, end,
+	                             &err) == PROTO_NUM_OK;
+}
+
+/* Scans the members of the result object at p ('{'), replacing numeric
+ * arrays by "[]" in the skeleton. Returns the end of the object, or
+ * NULL when the text cannot be followed (or out of memory: *oom). */
+static const char *scan_result(cli_numcols *c, const char *line, const char *p,
+                               const char *e, const char **copied, size_t *used,
+                               int *oom)
+{
+	p = skip_ws(p + 1, e);
+	if (p < e && *p == '}')
+		return p + 1;
+	for (;;) {
+		const char *k = p, *ke;
+		int esc = 0;
+		if (p >= e || *p != '"' || !(ke = skip_string(p, e, &esc)))
+			return NULL;
+		p = skip_ws(ke, e);
+		if (p >= e || *p != ':')
+			return NULL;
+		p = skip_ws(p + 1, e);
+		if (p < e && *p == '[' && !esc && c->ncol < CLI_NUMCOLS_MAX) {
+			size_t n, end;
+			int got = take_array(c, p, e, &n, &end);
+			if (got < 0) {
+				*oom = 1;
+				return NULL;
+			}
+			if (got) {
+				cli_numcol *col = &c->col[c->ncol++];
+				col->key = (size_t)(k + 1 - line);
+				col->keylen = (size_t)(ke - k - 2);
+				col->at = c->pool_used;
+				col->n = n;
+				c->pool_used += n;
+				if (skel_put(c, used, *copied,
+				             (size_t)(p - *copied)) ||
+				    skel_put(c, used, "[]", 2)) {
+					*oom = 1;
+					return NULL;
+				}
+				p += end;
+				*copied = p;
+			} else if (!(p = skip_value(p, e)))
+				return NULL;
+		} else if (!(p = skip_value(p, e)))
+			return NULL;
+		p = skip_ws(p, e);
+		if (p < e && *p == '}')
+			return p + 1;
+		if (p >= e || *p != ',')
+			return NULL;
+		p = skip_ws(p + 1, e);
+	}
+}
+
+cJSON *cli__rpc_parse_cols(const char *line, size_t len, const cJSON *expect_id,
+                           cli_numcols *cols, char *why, size_t whylen)
+{
+	const char *p = line, *e = line + len, *copied = line;
+	size_t used = 0;
+	int seen = 0, oom = 0;
+
+	cols->line = line;
+	cols->ncol = 0;
+	cols->pool_used = 0;
+	p = skip_ws(p, e);
+	if (p >= e || *p != '{')
+		goto whole;
+	p = skip_ws(p + 1, e);
+	while (p < e && *p != '}') {
+		const char *k = p, *ke;
+		if (*p != '"' || !(ke = skip_string(p, e, NULL)))
+			goto whole;
+		p = skip_ws(ke, e);
+		if (p >= e || *p != ':')
+			goto whole;
+		p = skip_ws(p + 1, e);
+		if (!seen && ke - k == 8 && memcmp(k, "\"result\"", 8) == 0 &&
+		    p < e && *p == '{') {
+			seen = 1;
+			p = scan_result(cols, line, p, e, &copied, &used, &oom);
+		} else
+			p = skip_value(p, e);
+		if (!p)
+			goto whole;
+		p = skip_ws(p, e);
+		if (p < e && *p == ',')
+			p = skip_ws(p + 1, e);
+		else if (p >= e || *p != '}')
+			goto whole;
+	}
+	if (!cols->ncol)
+		goto whole;
+	if (skel_put(cols, &used, copied, (size_t)(e - copied)))
+		goto whole;
+	return cli__rpc_parse(cols->skel, used, expect_id, why, whylen);
+whole:
+	if (oom) {
+		snprintf(why, whylen, "out of memory");
+		return NULL;
+	}
+	cols->ncol = 0;
+	cols->pool_used = 0;
+	return cli__rpc_parse(line, len, expect_id, why, whylen);
+}
+
+const double *cli__numcols_get(const cli_numcols *cols, const char *key,
+                               size_t *n)
+{
+	size_t kl = strlen(key);
+
+	for (size_t i = 0; i < cols->ncol; i++) {
+		const cli_numcol *c = &cols->col[i];
+		if (c->keylen == kl &&
+		    memcmp(cols->line + c->key, key, kl) == 0) {
+			*n = c->n;
+			return cols->pool + c->at;
+		}
+	}
+	*n = 0;
+	return NULL;
+}
+
+void cli__numcols_free(cli_numcols *cols)
+{
+	free(cols->pool);
+	free(cols->skel);
+	memset(cols, 0, sizeof *cols);
 }
 
 int cli__await(cli_conn *c, const char *who, long id, long long deadline_ms,

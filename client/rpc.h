@@ -22,6 +22,36 @@
  * NULL with the reason in why. */
 cJSON *cli__rpc_parse(const char *line, size_t len, const cJSON *expect_id,
                       char *why, size_t whylen);
+/* Numeric arrays of a result, read straight into doubles. */
+#define CLI_NUMCOLS_MAX 128
+typedef struct cli_numcol {
+	size_t key, keylen; /* the member name: bytes of the line parsed */
+	size_t at, n;       /* its values: pool[at .. at + n) */
+} cli_numcol;
+typedef struct cli_numcols {
+	const char *line; /* the line last parsed (not owned) */
+	cli_numcol col[CLI_NUMCOLS_MAX];
+	size_t ncol;
+	double *pool; /* every array's values; NaN for null */
+	size_t pool_cap, pool_used;
+	char *skel; /* the line with those arrays emptied */
+	size_t skel_cap;
+} cli_numcols;
+/* As cli__rpc_parse, for answers carrying long numeric arrays: each
+ * member of "result" (the first, when repeated) whose value is an array
+ * of numbers and nulls is parsed by proto_num_array_parse into cols (the
+ * same doubles as cJSON's strtod; null as NaN) and is an empty array in
+ * the tree returned; every other array, and a whole line the scan cannot
+ * follow, goes to cJSON as before, so the checks and messages are those
+ * of cli__rpc_parse. cols stays valid until the next call on it (it
+ * points into line); free its buffers with cli__numcols_free. */
+cJSON *cli__rpc_parse_cols(const char *line, size_t len, const cJSON *expect_id,
+                           cli_numcols *cols, char *why, size_t whylen);
+/* The values of result member `key` read by cli__rpc_parse_cols (NULL
+ * when that member was not read so: look in the tree), *n their count. */
+const double *cli__numcols_get(const cli_numcols *cols, const char *key,
+                               size_t *n);
+void cli__numcols_free(cli_numcols *cols);
 /* As cli__rpc_parse for a tree already parsed (one element of a batch
  * answer, say). 0 or -1 with why. */
 int cli__rpc_check(const cJSON *r, const cJSON *expect_id, char *why,

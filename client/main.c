@@ -6,8 +6,15 @@
 #include <string.h>
 
 #include "cli.h"
-#include "plot.h"
 #include "rpc.h"
+
+/* CMake's RW_WITH_PLOT (1 or 0); a build without CMake gets it. */
+#ifndef RW_WITH_PLOT
+#define RW_WITH_PLOT 1
+#endif
+#if RW_WITH_PLOT
+#include "plot.h"
+#endif
 
 #ifndef RW_VERSION
 #define RW_VERSION "0.0.0"
@@ -32,8 +39,12 @@ static void usage(FILE *f)
 	    "        a WITS level 0 stream (stdin or TCP) through log.process\n"
 	    "  synthetic FILE [--angles 0:30:5] [--segy OUT.sgy] ...\n"
 	    "        synthetic traces of a well log as CSV and SEG-Y\n"
+#if RW_WITH_PLOT
 	    "  plot KIND INPUT -o OUT.png|svg|pdf ...\n"
 	    "        pictures: avo, ig, cross, tracks, sweep\n"
+#else
+	    "  plot (not built: cmake -DRW_WITH_PLOT=OFF)\n"
+#endif
 	    "\n"
 	    "Options:\n"
 	    "  --socket PATH    the daemon's socket (default\n"
@@ -190,11 +201,19 @@ int main(int argc, char **argv)
 		return cli_cmd_synthetic(&o, argc, argv);
 	}
 	if (strcmp(cmd, "plot") == 0) {
+#if RW_WITH_PLOT
 		if (help) {
 			cli_usage_plot(stdout);
 			return CLI_EXIT_OK;
 		}
 		return cli_cmd_plot(&o, argc, argv);
+#else
+		fprintf(stderr,
+		        "rockwire: plot: this rockwire was built without "
+		        "pictures (cmake -DRW_WITH_PLOT=OFF); rebuild with "
+		        "-DRW_WITH_PLOT=ON (needs cairo)\n");
+		return CLI_EXIT_USAGE;
+#endif
 	}
 	if (strcmp(cmd, "help") == 0) {
 		usage(stdout);

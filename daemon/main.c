@@ -18,6 +18,33 @@
 #define RW_VERSION "0.0.0"
 #endif
 
+/* The optional parts built in (CMake options RW_WITH_TCP and
+ * RW_WITH_SYSTEMD; service.info's "features" lists the same). */
+static const char features[] = "unix, stdio"
+#if RW_WITH_TCP
+                               ", tcp"
+#endif
+#if RW_WITH_SYSTEMD
+                               ", systemd"
+#endif
+    ;
+static const char left_out[] = ""
+#if !RW_WITH_TCP
+                               "tcp"
+#endif
+#if !RW_WITH_TCP && !RW_WITH_SYSTEMD
+                               ", "
+#endif
+#if !RW_WITH_SYSTEMD
+                               "systemd"
+#endif
+    ;
+#if !RW_WITH_TCP
+static const char no_tcp[] = "this rockwired was built without TCP (cmake "
+                             "-DRW_WITH_TCP=OFF); rebuild with "
+                             "-DRW_WITH_TCP=ON";
+#endif
+
 static void usage(FILE *f)
 {
 	fputs(
@@ -99,14 +126,18 @@ static void usage(FILE *f)
 	    "                       (default: the pool size - 1, at least 1)\n"
 	    "  --help, --version\n",
 	    f);
+	fputs("\n"
+	      "Signals: SIGTERM/SIGINT stop accepting, answer what was read\n"
+	      "and exit 0 (a second one closes at once); SIGHUP reopens the\n"
+	      "log. With NOTIFY_SOCKET set, READY=1 and STOPPING=1 are sent.\n"
+	      "Exit codes: 0 clean shutdown, 2 usage (or a feature this build\n"
+	      "lacks), 3 cannot listen (path busy or a live daemon on it), 4\n"
+	      "runtime failure.\n"
+	      "Logs go to stderr (or --log), one line per event.\n",
+	      f);
+	fprintf(f, "Built in: %s; left out: %s (CMake RW_WITH_* options).\n",
+	        features, *left_out ? left_out : "nothing");
 	fputs(
-	    "\n"
-	    "Signals: SIGTERM/SIGINT stop accepting, answer what was read\n"
-	    "and exit 0 (a second one closes at once); SIGHUP reopens the\n"
-	    "log. With NOTIFY_SOCKET set, READY=1 and STOPPING=1 are sent.\n"
-	    "Exit codes: 0 clean shutdown, 2 usage, 3 cannot listen (path\n"
-	    "busy or a live daemon on it), 4 runtime failure.\n"
-	    "Logs go to stderr (or --log), one line per event.\n"
 	    "\n"
 	    "Screening estimates only: not a substitute for qualified review,\n"
 	    "local regulations and licensed practice; never the sole basis\n"
@@ -273,7 +304,14 @@ int main(int argc, char **argv)
 			cfg.n_listen++;
 			continue;
 		case O_WORLD: cfg.allow_world = 1; continue;
-		case O_REMOTE: cfg.allow_remote = 1; continue;
+		case O_REMOTE:
+#if !RW_WITH_TCP
+			fprintf(stderr, "rockwired: --allow-remote: %s\n",
+			        no_tcp);
+			return 2;
+#endif
+			cfg.allow_remote = 1;
+			continue;
 		case O_LOG:
 			if (!*optarg) {
 				fprintf(stderr, "rockwired: --log: empty "
@@ -283,7 +321,9 @@ int main(int argc, char **argv)
 			cfg.log_path = optarg;
 			continue;
 		case 'h': usage(stdout); return 0;
-		case 'V': printf("rockwired %s\n", RW_VERSION); return 0;
+		case 'V':
+			printf("rockwired %s (%s)\n", RW_VERSION, features);
+			return 0;
 		case O_MODE: {
 			char *end;
 			unsigned long m = strtoul(optarg, &end, 8);
@@ -307,6 +347,14 @@ int main(int argc, char **argv)
 			       : o == O_STALL    ? "--stall-timeout"
 			       : o == O_TCP_IDLE ? "--tcp-idle-timeout"
 			                         : "--drain-timeout";
+#if !RW_WITH_TCP
+			if (o == O_TCP_IDLE) {
+				fprintf(stderr,
+				        "rockwired: --tcp-idle-timeout: %s\n",
+				        no_tcp);
+				return 2;
+			}
+#endif
 			if (parse_seconds(optarg, &secs) < 0) {
 				fprintf(stderr,
 				        "rockwired: %s: '%s' is not a "

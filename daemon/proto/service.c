@@ -10,6 +10,14 @@
 #include "proto/internal.h"
 #include "proto/table.h"
 
+/* The CMake options RW_WITH_TCP and RW_WITH_SYSTEMD define these 1 or 0;
+ * a build without CMake gets everything. */
+#ifndef RW_WITH_TCP
+#define RW_WITH_TCP 1
+#endif
+#ifndef RW_WITH_SYSTEMD
+#define RW_WITH_SYSTEMD 1
+#endif
 #ifndef RW_VERSION
 #define RW_VERSION "0.0.0"
 #endif
@@ -171,6 +179,14 @@ static int info(proto_call *c, void *args)
 	proto_w_str(c, "protocol", "JSON-RPC 2.0, one JSON value per line");
 	proto_w_str(c, "transport", proto_ctx_server_stats(c->ctx)->transport);
 	proto_w_str(c, "caution", proto_caution);
+	/* The daemon's optional parts, as built (CMake RW_WITH_TCP and
+	 * RW_WITH_SYSTEMD; protocol-docs/protocol.md, "service.info"). */
+	proto_w_obj_begin(c, "features");
+	proto_w_bool(c, "unix", 1);
+	proto_w_bool(c, "stdio", 1);
+	proto_w_bool(c, "tcp", RW_WITH_TCP);
+	proto_w_bool(c, "systemd", RW_WITH_SYSTEMD);
+	proto_w_obj_end(c);
 	write_limits(c);
 	write_units(c);
 	proto_w_arr_begin(c, "qc_flags");

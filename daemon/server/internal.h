@@ -397,7 +397,9 @@ int srv__start_listeners(srv *s);
 void srv__listen_resume(srv *s);
 /* 1 for 127.0.0.0/8, ::1 and ::ffff:127.0.0.0/104. */
 struct sockaddr;
+#if RW_WITH_TCP
 int srv__is_loopback(const struct sockaddr *sa);
+#endif
 void srv__close_listeners(srv *s);
 
 /* ---- shutdown.c --------------------------------------------------------- */

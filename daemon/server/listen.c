@@ -3,7 +3,10 @@
  * removed at exit only if it is still ours), loopback TCP (anything else
  * needs --allow-remote), and sockets passed by the service manager. Each
  * accepted socket becomes a connection; past --max-connections it gets
- * one "server busy" line and is closed. */
+ * one "server busy" line and is closed. TCP is compiled only with
+ * RW_WITH_TCP, socket activation only with RW_WITH_SYSTEMD (CMake options
+ * of the same names); without them the daemon refuses, by name, what
+ * would need them. */
 #include <arpa/inet.h>
 #include <errno.h>
 #include <netdb.h>
@@ -19,6 +22,7 @@
 
 #include "server/internal.h"
 
+#if RW_WITH_TCP
 static void peer_name(conn *c)
 {
 	struct sockaddr_storage ss;
@@ -40,6 +44,7 @@ static void peer_name(conn *c)
 	}
 	snprintf(c->name + n, sizeof c->name - n, "(%s:%d)", host, port);
 }
+#endif
 
 /* Answers a refused connection with one -32000 line and closes it once
  * the line is written. */
@@ -87,9 +92,11 @@ static void on_connection(uv_stream_t *server, int status)
 		srv_log("error", "accept: out of memory");
 		return;
 	}
+#if RW_WITH_TCP
 	if (l->kind == LST_TCP)
 		uv_tcp_init(s->loop, &c->in.tcp);
 	else
+#endif
 		uv_pipe_init(s->loop, &c->in.pipe, 0);
 	c->in.h.data = c;
 	srv__conn_ref(c); /* the handle's */
@@ -103,10 +110,12 @@ static void on_connection(uv_stream_t *server, int status)
 		srv__conn_close(c);
 		return;
 	}
+#if RW_WITH_TCP
 	if (l->kind == LST_TCP) {
 		uv_tcp_nodelay(&c->in.tcp, 1);
 		peer_name(c);
 	}
+#endif
 	srv__peer_attach(c);
 	if ((rule = srv__admit(c, why, sizeof why))) {
 		refuse(c, rule, why);
@@ -189,9 +198,11 @@ static srv_listener *listener_new(srv *s, enum srv_lst_kind kind)
 	memset(l, 0, sizeof *l);
 	l->srv = s;
 	l->kind = kind;
+#if RW_WITH_TCP
 	if (kind == LST_TCP)
 		uv_tcp_init(s->loop, &l->h.tcp);
 	else
+#endif
 		uv_pipe_init(s->loop, &l->h.pipe, 0);
 	l->h.h.data = l;
 	l->open = 1;
@@ -248,6 +259,7 @@ static int start_unix(srv *s, const char *path, unsigned mode)
 	return 0;
 }
 
+#if RW_WITH_TCP
 int srv__is_loopback(const struct sockaddr *sa)
 {
 	if (sa->sa_family == AF_INET) {
@@ -370,6 +382,9 @@ bad:
 	        spec);
 	return -1;
 }
+#endif
+
+#if RW_WITH_SYSTEMD
 
 /* Adopts one socket passed by the service manager. */
 static int start_activated(srv *s, int fd)
@@ -406,6 +421,7 @@ static int start_activated(srv *s, int fd)
 			snprintf(l->name, sizeof l->name, "unix:fd%d", fd);
 		rc = uv_pipe_open(&l->h.pipe, fd);
 	} else if (ss.ss_family == AF_INET || ss.ss_family == AF_INET6) {
+#if RW_WITH_TCP
 		int loop = srv__is_loopback((struct sockaddr *)&ss);
 		if (!loop && !s->cfg->allow_remote) {
 			char a[128];
@@ -422,6 +438,14 @@ static int start_activated(srv *s, int fd)
 		rc = uv_tcp_open(&l->h.tcp, fd);
 		if (rc == 0)
 			warn_no_auth(l, loop);
+#else
+		srv_log("error",
+		        "activated fd %d: a TCP socket, but this rockwired "
+		        "was built without TCP (cmake -DRW_WITH_TCP=OFF); pass "
+		        "a Unix socket, or rebuild with -DRW_WITH_TCP=ON",
+		        fd);
+		return -1;
+#endif
 	} else {
 		srv_log("error", "activated fd %d: unsupported address family",
 		        fd);
@@ -438,6 +462,36 @@ static int start_activated(srv *s, int fd)
 	        l->name);
 	return 0;
 }
+#else
+/* Socket activation is not built in: sockets passed for this process
+ * are refused by name rather than left unserved. Returns 0 when none
+ * were, -1 (logged) when they were. */
+static int refuse_activation(void)
+{
+	const char *pid_s = getenv("LISTEN_PID");
+	const char *n_s = getenv("LISTEN_FDS");
+	int ours;
+
+	if (!pid_s && !n_s)
+		return 0;
+	ours = pid_s && strtol(pid_s, NULL, 10) == (long)getpid();
+	unsetenv("LISTEN_PID");
+	unsetenv("LISTEN_FDS");
+	unsetenv("LISTEN_FDNAMES");
+	if (!ours) {
+		srv_log("warning",
+		        "LISTEN_FDS/LISTEN_PID present but not meant for this "
+		        "process; ignored");
+		return 0;
+	}
+	srv_log("error",
+	        "LISTEN_FDS: sockets passed by the service manager, but this "
+	        "rockwired was built without socket activation (cmake "
+	        "-DRW_WITH_SYSTEMD=OFF); give --socket or --listen, or "
+	        "rebuild with -DRW_WITH_SYSTEMD=ON");
+	return -1;
+}
+#endif
 
 static void transport_text(srv *s)
 {
@@ -457,8 +511,10 @@ static void transport_text(srv *s)
 int srv__start_listeners(srv *s)
 {
 	const srv_config *cfg = s->cfg;
-	int fds[SRV_MAX_LISTEN], nfd, ignored, rc;
+	int nfd = 0, rc;
 	char path[sizeof(((struct sockaddr_un *)0)->sun_path)];
+#if RW_WITH_SYSTEMD
+	int fds[SRV_MAX_LISTEN], ignored;
 
 	nfd = srv__listen_fds(fds, SRV_MAX_LISTEN, &ignored);
 	if (ignored)
@@ -469,12 +525,18 @@ int srv__start_listeners(srv *s)
 	for (int i = 0; i < nfd; i++)
 		if (start_activated(s, fds[i]) < 0)
 			return SRV_EXIT_LISTEN;
+#else
+	if (refuse_activation() < 0)
+		return SRV_EXIT_USAGE;
+#endif
 	for (int i = 0; i < cfg->n_listen; i++) {
 		const char *spec = cfg->listen[i];
 		if (strncmp(spec, "unix:", 5) == 0)
 			rc = start_unix(s, spec + 5, cfg->socket_mode);
+#if RW_WITH_TCP
 		else if (strncmp(spec, "tcp:", 4) == 0)
 			rc = start_tcp(s, spec + 4);
+#endif
 		else {
 			srv_log("error",
 			        "--listen %s: expected unix:PATH or "

@@ -45,6 +45,7 @@ static size_t peer_key(conn *c, char *key, size_t size, uid_t *uid,
 		}
 		return (size_t)snprintf(key, size, "unix peer");
 	}
+#if RW_WITH_TCP
 	if (c->kind == CONN_TCP) {
 		struct sockaddr_storage ss;
 		int len = sizeof ss;
@@ -65,6 +66,7 @@ static size_t peer_key(conn *c, char *key, size_t size, uid_t *uid,
 		          sizeof host);
 		return (size_t)snprintf(key, size, "%s", host);
 	}
+#endif
 	return (size_t)snprintf(key, size, "stdio");
 }
 

@@ -5,6 +5,15 @@
 #define RW_SRV_SD_H
 
 #include <sys/socket.h>
+
+/* The CMake options RW_WITH_TCP and RW_WITH_SYSTEMD define these 1 or 0;
+ * a build without CMake gets everything. */
+#ifndef RW_WITH_TCP
+#define RW_WITH_TCP 1
+#endif
+#ifndef RW_WITH_SYSTEMD
+#define RW_WITH_SYSTEMD 1
+#endif
 #include <sys/un.h>
 
 typedef struct srv_notify {
@@ -24,10 +33,31 @@ int srv__listen_fds(int *fds, int max, int *ignored);
 /* Reads and unsets NOTIFY_SOCKET. Returns 1 when notifications will be
  * sent, 0 when there is no such variable, -1 when it is unusable (not an
  * absolute path or '@' name, too long, or no socket). */
+#if RW_WITH_SYSTEMD
 int srv__notify_open(srv_notify *n);
 /* Sends one notification such as "READY=1"; 0, or -1 on failure. A
  * no-op returning 0 when notification is off. */
 int srv__notify_send(srv_notify *n, const char *msg);
 void srv__notify_close(srv_notify *n);
+#else
+/* Built without it (cmake -DRW_WITH_SYSTEMD=OFF): sd.c is not compiled,
+ * notification is always off, and srv_run refuses a NOTIFY_SOCKET by
+ * name (a service manager would otherwise wait for READY=1 in vain). */
+static inline int srv__notify_open(srv_notify *n)
+{
+	n->fd = -1;
+	return 0;
+}
+static inline int srv__notify_send(srv_notify *n, const char *msg)
+{
+	(void)n;
+	(void)msg;
+	return 0;
+}
+static inline void srv__notify_close(srv_notify *n)
+{
+	n->fd = -1;
+}
+#endif
 
 #endif

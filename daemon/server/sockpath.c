@@ -183,6 +183,7 @@ int srv__check_existing(const char *path, const struct stat *st)
 	return 0;
 }
 
+#if RW_WITH_TCP
 /* Parses a decimal port of at most 5 digits; -1 when it is not one. */
 static long parse_port(const char *s)
 {
@@ -196,6 +197,7 @@ static long parse_port(const char *s)
 	}
 	return n ? v : -1;
 }
+#endif
 
 int srv_check_listen_spec(const char *spec, char *err, size_t size)
 {
@@ -215,6 +217,7 @@ int srv_check_listen_spec(const char *spec, char *err, size_t size)
 		return 0;
 	}
 	if (strncmp(spec, "tcp:", 4) == 0) {
+#if RW_WITH_TCP
 		const char *colon = strrchr(spec + 4, ':');
 		long port;
 		if (!colon || colon == spec + 4) {
@@ -232,7 +235,19 @@ int srv_check_listen_spec(const char *spec, char *err, size_t size)
 			return -1;
 		}
 		return 0;
+#else
+		snprintf(err, size,
+		         "'%s': this rockwired was built without TCP (cmake "
+		         "-DRW_WITH_TCP=OFF); use unix:PATH, or rebuild with "
+		         "-DRW_WITH_TCP=ON",
+		         spec);
+		return -1;
+#endif
 	}
+#if RW_WITH_TCP
 	snprintf(err, size, "'%s' is not unix:PATH or tcp:HOST:PORT", spec);
+#else
+	snprintf(err, size, "'%s' is not unix:PATH (built without TCP)", spec);
+#endif
 	return -1;
 }

@@ -58,6 +58,17 @@ int srv_run(const srv_config *cfg)
 		        strerror(errno));
 		return SRV_EXIT_RUNTIME;
 	}
+#if !RW_WITH_SYSTEMD
+	if (getenv("NOTIFY_SOCKET") && *getenv("NOTIFY_SOCKET")) {
+		srv_log(
+		    "error",
+		    "NOTIFY_SOCKET: the service manager waits for a readiness "
+		    "notification, but this rockwired was built without it "
+		    "(cmake -DRW_WITH_SYSTEMD=OFF); use Type=simple, or "
+		    "rebuild with -DRW_WITH_SYSTEMD=ON");
+		return SRV_EXIT_USAGE;
+	}
+#endif
 	s = calloc(1, sizeof *s);
 	if (!s)
 		return SRV_EXIT_RUNTIME;

@@ -73,9 +73,11 @@ static void conn_tick(conn *c, uint64_t now)
 
 	/* TCP connections, which any local user can open, have an idle
 	 * timeout of their own: the shorter of the two that are set. */
+#if RW_WITH_TCP
 	if (c->kind == CONN_TCP && cfg->tcp_idle_timeout_s > 0 &&
 	    (idle_s <= 0 || cfg->tcp_idle_timeout_s < idle_s))
 		idle_s = cfg->tcp_idle_timeout_s;
+#endif
 	idle = (uint64_t)(idle_s * 1000);
 	if (input_tick(c, now, stall))
 		return;

@@ -39,6 +39,21 @@ def sanitized():
         return False
 
 
+def built_with(feature):
+    """True when the build has the optional part `feature` ("tcp",
+    "systemd", "client", "plot": the CMake options RW_WITH_TCP ...), from
+    RW_FEATURES (a comma-separated list ctest sets) or else the build's
+    CMakeCache.txt (an option not found there is ON, its default)."""
+    env = os.environ.get("RW_FEATURES")
+    if env is not None:
+        return feature in env.split(",")
+    try:
+        with open(os.path.join(BUILD, "CMakeCache.txt")) as f:
+            return ("RW_WITH_%s:BOOL=OFF" % feature.upper()) not in f.read()
+    except OSError:
+        return True
+
+
 _counts = {"passed": 0, "failed": 0}
 
 

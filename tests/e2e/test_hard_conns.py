@@ -25,7 +25,8 @@ import sys
 import tempfile
 import time
 
-from rwtest import DAEMON, Daemon, check, finish, run, run_tests, spawn
+from rwtest import (DAEMON, Daemon, built_with, check, finish, run,
+                    run_tests, spawn)
 
 B = 3300000 + (os.getpid() % 100000) * 2
 C = B + 1
@@ -326,7 +327,9 @@ def main():
     if not os.path.exists(DAEMON):
         print("no daemon at", DAEMON)
         return 1
-    tests = [test_tcp_peer_and_idle, test_fd_limit, test_refusal_log_rate]
+    tests = [test_fd_limit, test_refusal_log_rate]
+    if built_with("tcp"):
+        tests.insert(0, test_tcp_peer_and_idle)
     if os.geteuid() == 0:
         tests = [test_per_peer, test_owner_reserve] + tests
     else:

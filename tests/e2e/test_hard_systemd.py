@@ -17,7 +17,7 @@ import sys
 import tempfile
 import time
 
-from rwtest import DAEMON, check, finish, run_tests, spawn
+from rwtest import DAEMON, built_with, check, finish, run_tests, spawn
 PROBE = (b'{"jsonrpc":"2.0","id":"p","method":"elastic.convert",'
          b'"params":{"rho":2.4,"vp":3000,"vs":1500}}\n')
 
@@ -152,6 +152,26 @@ def foreign_pid_case():
     check("foreign pid exit 0", p.wait(15) == 0)
 
 
+def activation_tcp_refused():
+    """A build without TCP (RW_WITH_TCP=OFF) refuses a passed TCP socket
+    by name rather than leave it unserved."""
+    ls = socket.socket(socket.AF_INET, socket.SOCK_STREAM)
+    ls.bind(("127.0.0.1", 0))
+    ls.listen(4)
+    fd = ls.fileno()
+    env = {k: v for k, v in os.environ.items()
+           if k not in ("LISTEN_PID", "LISTEN_FDS", "NOTIFY_SOCKET")}
+    p = spawn(["sh", "-c", 'LISTEN_PID=$$ LISTEN_FDS=1 exec "$0"', DAEMON],
+              env=env, stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL,
+              stderr=subprocess.PIPE, pass_fds=tuple(sorted({fd, 3})),
+              preexec=(lambda: os.dup2(fd, 3)) if fd != 3 else None)
+    err = p.communicate(timeout=15)[1].decode()
+    check("activated tcp without TCP built in: exit 3 naming "
+          "-DRW_WITH_TCP=ON", p.returncode == 3 and "TCP socket" in err and
+          "-DRW_WITH_TCP=ON" in err, (p.returncode, err))
+    ls.close()
+
+
 def main():
     if not os.path.exists(DAEMON):
         print("no daemon at", DAEMON)
@@ -162,7 +182,8 @@ def main():
     cases = [lambda: notify_case(path, path),
              lambda: notify_case(abstract, "\0" + abstract[1:]),
              lambda: activation_case("unix"),
-             lambda: activation_case("tcp"),
+             (lambda: activation_case("tcp")) if built_with("tcp")
+             else activation_tcp_refused,
              foreign_pid_case]
     run_tests(cases)
     return finish()

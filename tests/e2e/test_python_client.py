@@ -205,23 +205,27 @@ try:
         t.ok(rw.call("service.info")["name"] == "rockwire", "unix:PATH")
 finally:
     d.stop()
-s = socket.socket()
-s.bind(("127.0.0.1", 0))
-port = s.getsockname()[1]
-s.close()
-d = rwtest.Daemon("--listen", "tcp:127.0.0.1:%d" % port)
-try:
-    with rockwire.connect("tcp:127.0.0.1:%d" % port) as rw:
-        r = rw.reflect.interface(upper={"vp": 2900, "vs": 1350, "rho": 2.45},
-                                 lower={"vp": 3150, "vs": 1650, "rho": 2.23})
-        t.ok(rw.description.startswith("tcp:") and "class" in r,
-             "connect over TCP")
-    with rockwire.connect(("127.0.0.1", port)) as rw:
-        t.ok(rw.info()["name"] == "rockwire", "a (host, port) tuple")
-finally:
-    d.stop()
-e = raises(rockwire.ConnectError, rockwire.connect, "tcp:127.0.0.1:%d" % port)
-t.ok(isinstance(e, rockwire.ConnectError), "nothing on TCP: ConnectError")
+if rwtest.built_with("tcp"):  # a daemon built with RW_WITH_TCP=ON
+    s = socket.socket()
+    s.bind(("127.0.0.1", 0))
+    port = s.getsockname()[1]
+    s.close()
+    d = rwtest.Daemon("--listen", "tcp:127.0.0.1:%d" % port)
+    try:
+        with rockwire.connect("tcp:127.0.0.1:%d" % port) as rw:
+            r = rw.reflect.interface(
+                upper={"vp": 2900, "vs": 1350, "rho": 2.45},
+                lower={"vp": 3150, "vs": 1650, "rho": 2.23})
+            t.ok(rw.description.startswith("tcp:") and "class" in r,
+                 "connect over TCP")
+        with rockwire.connect(("127.0.0.1", port)) as rw:
+            t.ok(rw.info()["name"] == "rockwire", "a (host, port) tuple")
+    finally:
+        d.stop()
+    e = raises(rockwire.ConnectError, rockwire.connect,
+               "tcp:127.0.0.1:%d" % port)
+    t.ok(isinstance(e, rockwire.ConnectError),
+         "nothing on TCP: ConnectError")
 
 # ---- socket safety, the C client's rules ------------------------------------
 tmp = tempfile.mkdtemp(prefix="rw-py-")

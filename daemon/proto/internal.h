@@ -671,6 +671,8 @@ typedef struct proto_inarr {
  * -1 when out of memory (t is then empty). */
 int proto__inarr_scan(proto_ctx *ctx, const char *line, size_t len,
                       int count_only, proto_inarr *t);
+/* Tests only: nonzero turns the pre-pass off (inarr.c). */
+extern int proto__inarr_off;
 /* After cJSON parsed t->text: placeholders become numeric array nodes. */
 void proto__inarr_attach(cJSON *root, proto_inarr *t);
 void proto__inarr_free(proto_inarr *t);

@@ -210,9 +210,14 @@ size_t proto__inarr_orig_offset(const proto_inarr *t, size_t off)
 	size_t shift = 0;
 
 	for (size_t k = 0; k < t->n; k++) {
-		if (off < t->arr[k].at + t->arr[k].len)
+		const proto_numarr *a = &t->arr[k];
+		/* cJSON parses a placeholder whole; an offset inside one is
+		 * its clamp to the last byte of a line that ends early */
+		if (off > a->at && off < a->at + a->len)
+			return a->orig_at + a->orig_len - 1;
+		if (off < a->at + a->len)
 			break;
-		shift += t->arr[k].orig_len - t->arr[k].len;
+		shift += a->orig_len - a->len;
 	}
 	return off + shift;
 }

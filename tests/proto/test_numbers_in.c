@@ -377,6 +377,11 @@ static void test_errors_identical(void **state)
 	          "10,11,12,13,14,15,16,17],\"vs\":[1,2,3,4,5,6,7,8,9,10,11,"
 	          "12,13,14,15,16,17],}}",
 	     "not valid JSON near byte offset 160"},
+	    /* a line that ends just after a taken array (cJSON names its
+	     * last byte) */
+	    {HEAD "\"elastic.convert\",\"params\":{\"vp\":[1,2,3,4,5,6,7,8,9,"
+	          "10,11,12,13,14,15,16,17]",
+	     "not valid JSON near byte offset 108"},
 	    /* duplicate keys around taken arrays */
 	    {HEAD "\"elastic.convert\",\"params\":{\"vp\":[1,2,3,4,5,6,7,8,9,"
 	          "10,11,12,13,14,15,16,17],\"vp\":[1,2,3,4,5,6,7,8,9,10,11,"

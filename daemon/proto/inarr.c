@@ -99,6 +99,10 @@ static int parse_array(proto_ctx *ctx, const char *text, size_t end, size_t n,
 	return got == n && e == end ? 0 : -1;
 }
 
+/* The bytes the scan stops at; it steps over the others. */
+static const unsigned char structural[256] = {
+    ['"'] = 1, ['['] = 1, [']'] = 1, ['{'] = 1, ['}'] = 1};
+
 int proto__inarr_scan(proto_ctx *ctx, const char *line, size_t len,
                       int count_only, proto_inarr *t)
 {
@@ -106,8 +110,16 @@ int proto__inarr_scan(proto_ctx *ctx, const char *line, size_t len,
 	int depth = 0;
 
 	memset(t, 0, sizeof *t);
-	while (i < len && !proto__inarr_off) {
-		char ch = line[i];
+	/* no '[' at all (scalar requests): nothing to do */
+	if (proto__inarr_off || !memchr(line, '[', len))
+		return 0;
+	while (i < len) {
+		char ch;
+		while (i < len && !structural[(unsigned char)line[i]])
+			i++;
+		if (i >= len)
+			break;
+		ch = line[i];
 		if (ch == '"') {
 			/* skip the string, escapes included */
 			for (i++; i < len && line[i] != '"'; i++)

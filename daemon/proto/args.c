@@ -167,7 +167,7 @@ static int parse_nums(proto_call *c, const proto_field *f, const char *path,
 			                  "must be a single number: it is one "
 			                  "value for the whole request, not an "
 			                  "array");
-		n = (size_t)cJSON_GetArraySize(v);
+		n = proto__arr_size(v);
 		if (n == 0)
 			return proto_fail(
 			    c, PROTO_INVALID_PARAMS, path,
@@ -202,6 +202,17 @@ static int parse_nums(proto_call *c, const proto_field *f, const char *path,
 			    "number out of range: it does not fit "
 			    "in a double");
 		buf[0] = v->valuedouble;
+	} else if (proto__numarr(v)) {
+		/* parsed before cJSON (inarr.c): numbers, NaN for null */
+		memcpy(buf, proto__numarr(v)->v, n * sizeof *buf);
+		if (!(f->flags & PF_NULLS))
+			for (i = 0; i < n; i++)
+				if (isnan(buf[i]))
+					return proto_fail(
+					    c, PROTO_INVALID_PARAMS, path,
+					    "element %zu must be a number, "
+					    "not null",
+					    i);
 	} else {
 		cJSON_ArrayForEach(e, v)
 		{
@@ -302,16 +313,16 @@ static int parse_enumset(proto_call *c, const proto_field *f, const char *path,
                          const cJSON *v, proto_enumset *o)
 {
 	const cJSON *e;
+	proto_arr_iter it;
 	size_t i = 0;
 
 	memset(o, 0, sizeof *o);
-	if (!cJSON_IsString(v) &&
-	    !(cJSON_IsArray(v) && cJSON_GetArraySize(v) > 0))
+	if (!cJSON_IsString(v) && !(cJSON_IsArray(v) && proto__arr_size(v) > 0))
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
 		                  "must be a name or a non-empty array of "
 		                  "names");
-	for (e = cJSON_IsString(v) ? v : v->child; e;
-	     e = cJSON_IsString(v) ? NULL : e->next, i++) {
+	for (e = cJSON_IsString(v) ? v : proto__arr_first(&it, v); e;
+	     e = cJSON_IsString(v) ? NULL : proto__arr_next(&it), i++) {
 		int k;
 		if (!cJSON_IsString(e))
 			return proto_fail(c, PROTO_INVALID_PARAMS, path,
@@ -338,6 +349,7 @@ static int parse_list(proto_call *c, const proto_field *f, const char *path,
                       const cJSON *v, proto_list *o)
 {
 	const cJSON *e;
+	proto_arr_iter it;
 	size_t n, j = 0;
 	unsigned char *items;
 
@@ -345,7 +357,7 @@ static int parse_list(proto_call *c, const proto_field *f, const char *path,
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
 		                  "must be an array of objects, not %s",
 		                  type_name(v));
-	n = (size_t)cJSON_GetArraySize(v);
+	n = proto__arr_size(v);
 	if (n == 0)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
 		                  "empty: give at least one");
@@ -353,7 +365,7 @@ static int parse_list(proto_call *c, const proto_field *f, const char *path,
 	if (!items)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, path,
 		                  "out of memory");
-	cJSON_ArrayForEach(e, v)
+	PROTO_ARR_FOREACH(e, it, v)
 	{
 		char idx[32];
 		snprintf(idx, sizeof idx, "[%zu].", j);

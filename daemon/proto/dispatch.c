@@ -485,6 +485,7 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 	proto_ctx *ctx = s->ctx;
 	const char *end = NULL, *dup;
 	cJSON *root;
+	proto_inarr arrs = {0};
 	char why[256];
 	size_t i, mark = out->len;
 	int code, oom = 0;
@@ -503,6 +504,17 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 		proto_error_line(ctx, out, code, NULL, why);
 		return out->oom ? -1 : 0;
 	}
+	/* large numeric arrays: parsed here, placeholders for cJSON */
+	if (proto__inarr_scan(ctx, line, len, 0, &arrs)) {
+		proto__count_request(ctx, 0);
+		proto_error_line(ctx, out, PROTO_INTERNAL_ERROR, NULL,
+		                 "out of memory reading the request");
+		return out->oom ? -1 : 0;
+	}
+	if (arrs.text) {
+		line = arrs.text;
+		len = arrs.len;
+	}
 	root = cJSON_ParseWithLengthOpts(line, len, &end, 0);
 	if (root) {
 		while (end < line + len && (*end == ' ' || *end == '\t'))
@@ -515,11 +527,13 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 	if (!root) {
 		size_t off = end && end >= line ? (size_t)(end - line) : 0;
 		snprintf(why, sizeof why, "not valid JSON near byte offset %zu",
-		         off);
+		         proto__inarr_orig_offset(&arrs, off));
+		proto__inarr_free(&arrs);
 		proto__count_request(ctx, 0);
 		proto_error_line(ctx, out, PROTO_PARSE_ERROR, NULL, why);
 		return out->oom ? -1 : 0;
 	}
+	proto__inarr_attach(root, &arrs);
 	dup = find_duplicate_key(root, &oom);
 	if (dup || oom) {
 		if (dup)
@@ -534,6 +548,7 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 		                     : PROTO_INTERNAL_ERROR,
 		                 dup, dup ? why : "out of memory");
 		cJSON_Delete(root);
+		proto__inarr_free(&arrs);
 		return out->oom ? -1 : 0;
 	}
 	if (cJSON_IsArray(root)) {
@@ -587,6 +602,7 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 			proto_buf_append(out, "\n", 1);
 	}
 	cJSON_Delete(root);
+	proto__inarr_free(&arrs);
 	return out->oom ? -1 : 0;
 }
 
@@ -598,6 +614,8 @@ static size_t longest_array(const cJSON *v)
 	size_t best = 1;
 	const cJSON *e;
 
+	if (proto__numarr(v))
+		return proto__numarr(v)->n > best ? proto__numarr(v)->n : best;
 	if (cJSON_IsArray(v)) {
 		size_t n = (size_t)cJSON_GetArraySize(v);
 		if (v->child &&
@@ -635,7 +653,7 @@ static size_t axis_len(const cJSON *v)
 	const cJSON *n = cJSON_GetObjectItemCaseSensitive(v, "n");
 
 	if (cJSON_IsArray(v))
-		return (size_t)cJSON_GetArraySize(v);
+		return proto__arr_size(v);
 	if (cJSON_IsNumber(n) && n->valuedouble >= 1 && n->valuedouble < 1e15)
 		return (size_t)n->valuedouble;
 	return 1;
@@ -688,12 +706,23 @@ static size_t request_cost(proto_session *s, const cJSON *req)
 
 size_t rw_proto_cost(proto_session *s, const char *line, size_t len)
 {
-	cJSON *root = cJSON_ParseWithLengthOpts(line, len, NULL, 0);
+	proto_inarr arrs;
+	cJSON *root;
 	size_t work = 0;
 	const cJSON *e;
 
-	if (!root)
+	/* large arrays are only counted: cJSON parses what is left */
+	if (proto__inarr_scan(NULL, line, len, 1, &arrs))
 		return 1;
+	if (arrs.text)
+		root = cJSON_ParseWithLengthOpts(arrs.text, arrs.len, NULL, 0);
+	else
+		root = cJSON_ParseWithLengthOpts(line, len, NULL, 0);
+	if (!root) {
+		proto__inarr_free(&arrs);
+		return 1;
+	}
+	proto__inarr_attach(root, &arrs);
 	if (cJSON_IsArray(root)) {
 		cJSON_ArrayForEach(e, root)
 		{
@@ -704,5 +733,6 @@ size_t rw_proto_cost(proto_session *s, const char *line, size_t len)
 		work = request_cost(s, root);
 	}
 	cJSON_Delete(root);
+	proto__inarr_free(&arrs);
 	return work ? work : 1;
 }

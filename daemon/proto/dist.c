@@ -69,9 +69,9 @@ static int dist_member(proto_call *c, const proto_field *f, const char *path,
 		                  "required for this distribution");
 	if (cJSON_IsNumber(v))
 		len = 1;
-	else if (cJSON_IsArray(v) && cJSON_GetArraySize(v) > 0 &&
+	else if (cJSON_IsArray(v) && proto__arr_size(v) > 0 &&
 	         !(f->flags & PF_SCALAR))
-		len = (size_t)cJSON_GetArraySize(v);
+		len = proto__arr_size(v);
 	else
 		return proto_fail(
 		    c, PROTO_INVALID_PARAMS, full, "must be a number%s",
@@ -91,7 +91,8 @@ static int dist_member(proto_call *c, const proto_field *f, const char *path,
 	if (cJSON_IsNumber(v)) {
 		buf[0] = v->valuedouble;
 	} else {
-		cJSON_ArrayForEach(e, v)
+		proto_arr_iter it;
+		PROTO_ARR_FOREACH(e, it, v)
 		{
 			if (!cJSON_IsNumber(e))
 				return proto_fail(

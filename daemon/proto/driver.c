@@ -33,6 +33,7 @@ static int parse_fields(proto_call *c)
 	const proto_method *m = c->method;
 	const cJSON *f = cJSON_GetObjectItemCaseSensitive(c->params, "fields");
 	const cJSON *e;
+	proto_arr_iter it;
 	const char **list, *names[128];
 	size_t n = 0, nsel = 0, i = 0;
 
@@ -41,18 +42,18 @@ static int parse_fields(proto_call *c)
 	if (m->flags & PM_NO_FIELDS || !m->outputs)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "fields",
 		                  "%s has no outputs to select", m->name);
-	if (!cJSON_IsArray(f) || cJSON_GetArraySize(f) == 0)
+	if (!cJSON_IsArray(f) || proto__arr_size(f) == 0)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "fields",
 		                  "must be a non-empty array of output names");
 	for (const proto_output *o = m->outputs; o->name; o++)
 		if (nsel < 128 && selectable(o))
 			names[nsel++] = o->name;
-	size_t cap = (size_t)cJSON_GetArraySize(f) + 256;
+	size_t cap = proto__arr_size(f) + 256;
 	list = proto_alloc(c, cap * sizeof *list);
 	if (!list)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, "fields",
 		                  "out of memory");
-	cJSON_ArrayForEach(e, f)
+	PROTO_ARR_FOREACH(e, it, f)
 	{
 		size_t k;
 		if (!cJSON_IsString(e))

@@ -649,4 +649,63 @@ const char *proto__suggest(const char *s, const char *const *names, size_t n);
 void proto__parallel(proto_ctx *ctx, size_t nchunks,
                      void (*fn)(void *arg, size_t chunk), void *arg);
 
+/* ---- numeric arrays from the pre-pass (inarr.c) ---------------------------
+ * Large numeric arrays of a request line are parsed into doubles before
+ * cJSON sees the line; in the tree each is an array node without
+ * children (type cJSON_Array | cJSON_IsReference | PROTO_NUMARR_BIT, its
+ * valuestring pointing at a proto_numarr, which cJSON_Delete leaves
+ * alone). Code reading params must not use cJSON_GetArraySize,
+ * cJSON_ArrayForEach or ->child on arrays: proto__arr_size and
+ * PROTO_ARR_FOREACH see both kinds, proto__numarr gives the doubles, and
+ * proto__numarr_restore turns the nodes back into ordinary ones where a
+ * rare path needs them (printing a tree). */
+#define PROTO_NUMARR_BIT 0x1000
+typedef struct proto_numarr {
+	double *v; /* n values, NaN for null; NULL in a count-only scan */
+	size_t n;
+	size_t at, len;           /* the placeholder in the compacted text */
+	size_t orig_at, orig_len; /* the array in the line */
+} proto_numarr;
+typedef struct proto_inarr {
+	proto_numarr *arr;
+	size_t n, cap;
+	char *text; /* the compacted line (NUL-terminated), NULL if none */
+	size_t len;
+} proto_inarr;
+/* Finds the numeric arrays worth taking out of the line (not the line
+ * itself, so a batch stays a batch) and parses them (count_only: counts
+ * them); t->text is then the line with placeholders, or NULL when none
+ * was taken. Large arrays are parsed on ctx's threads (ctx may be NULL).
+ * -1 when out of memory (t is then empty). */
+int proto__inarr_scan(proto_ctx *ctx, const char *line, size_t len,
+                      int count_only, proto_inarr *t);
+/* Tests only: nonzero turns the pre-pass off (inarr.c). */
+extern int proto__inarr_off;
+/* After cJSON parsed t->text: placeholders become numeric array nodes. */
+void proto__inarr_attach(cJSON *root, proto_inarr *t);
+void proto__inarr_free(proto_inarr *t);
+/* A byte offset in t->text as the offset in the original line. */
+size_t proto__inarr_orig_offset(const proto_inarr *t, size_t off);
+/* The doubles of a numeric array node, or NULL for any other node. */
+const proto_numarr *proto__numarr(const cJSON *v);
+/* Elements of an array (either kind) or members of an object; 0 else. */
+size_t proto__arr_size(const cJSON *v);
+/* Iteration over an array of either kind: the elements of a numeric
+ * array are presented one at a time in a scratch number (or null) node
+ * inside the iterator, valid until the next step. */
+typedef struct proto_arr_iter {
+	const proto_numarr *a;
+	const cJSON *e;
+	size_t i;
+	cJSON tmp;
+} proto_arr_iter;
+const cJSON *proto__arr_first(proto_arr_iter *it, const cJSON *v);
+const cJSON *proto__arr_next(proto_arr_iter *it);
+#define PROTO_ARR_FOREACH(e, it, v)                                            \
+	for ((e) = proto__arr_first(&(it), (v)); (e);                          \
+	     (e) = proto__arr_next(&(it)))
+/* Turns every numeric array node under v (v included) into an ordinary
+ * cJSON array; -1 when out of memory. */
+int proto__numarr_restore(cJSON *v);
+
 #endif

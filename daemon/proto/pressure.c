@@ -209,14 +209,14 @@ static int cov_parse(proto_call *c, const cJSON *v, const char *path, void *dst)
 	const cJSON *row, *e;
 	int i = 0, j;
 
-	if (!cJSON_IsArray(v) || cJSON_GetArraySize(v) != 3)
+	if (!cJSON_IsArray(v) || proto__arr_size(v) != 3)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
 		                  "must be a 3 x 3 array (rows of numbers or "
 		                  "null), the covariance of (dt_ma, dt_ml, c) "
 		                  "in SI units as pressure.trend returns it");
 	cJSON_ArrayForEach(row, v)
 	{
-		if (!cJSON_IsArray(row) || cJSON_GetArraySize(row) != 3)
+		if (!cJSON_IsArray(row) || proto__arr_size(row) != 3)
 			return proto_fail(
 			    c, PROTO_INVALID_PARAMS, path,
 			    "row %d must be an array of 3 numbers "

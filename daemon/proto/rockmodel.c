@@ -962,8 +962,9 @@ static int axis_parse(proto_call *c, const axis_kind *k, const cJSON *v,
 	a->given = 1;
 	if (cJSON_IsArray(v)) {
 		const cJSON *e;
+		proto_arr_iter it;
 		size_t i = 0;
-		n = (size_t)cJSON_GetArraySize(v);
+		n = proto__arr_size(v);
 		if (n < k->min_n || n > AXIS_MAX_N)
 			return proto_fail(c, PROTO_INVALID_PARAMS, path,
 			                  "%zu values: an axis has %zu to %d",
@@ -971,7 +972,7 @@ static int axis_parse(proto_call *c, const axis_kind *k, const cJSON *v,
 		if (!(buf = proto_alloc_doubles(c, n)))
 			return proto_fail(c, PROTO_INTERNAL_ERROR, path,
 			                  "out of memory");
-		cJSON_ArrayForEach(e, v)
+		PROTO_ARR_FOREACH(e, it, v)
 		{
 			snprintf(at, sizeof at, "element %zu: ", i);
 			if (axis_value(c, k, path, e, at, &buf[i]))

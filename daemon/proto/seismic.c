@@ -432,7 +432,7 @@ static int curves_parse(proto_call *c, const cJSON *v, const char *path,
 	cJSON_ArrayForEach(m, v)
 	{
 		const char *p = proto_path(c, path, ".", m->string);
-		size_t len = (size_t)cJSON_GetArraySize(m), k = 0;
+		size_t len = proto__arr_size(m), k = 0;
 		const cJSON *e;
 		double *x;
 
@@ -456,20 +456,24 @@ static int curves_parse(proto_call *c, const cJSON *v, const char *path,
 		x = proto_alloc_doubles(c, len);
 		if (!x)
 			return oom(c);
-		cJSON_ArrayForEach(e, m)
-		{
-			if (cJSON_IsNull(e))
-				x[k] = NAN;
-			else if (cJSON_IsNumber(e) && isfinite(e->valuedouble))
-				x[k] = e->valuedouble;
-			else
-				return proto_fail(
-				    c, PROTO_INVALID_PARAMS, p,
-				    "element %zu must be a number "
-				    "or null",
-				    k);
-			k++;
-		}
+		if (proto__numarr(m)) /* numbers, NaN for null */
+			memcpy(x, proto__numarr(m)->v, len * sizeof *x);
+		else
+			cJSON_ArrayForEach(e, m)
+			{
+				if (cJSON_IsNull(e))
+					x[k] = NAN;
+				else if (cJSON_IsNumber(e) &&
+				         isfinite(e->valuedouble))
+					x[k] = e->valuedouble;
+				else
+					return proto_fail(
+					    c, PROTO_INVALID_PARAMS, p,
+					    "element %zu must be a number "
+					    "or null",
+					    k);
+				k++;
+			}
 		if (proto_join(c, 0, len, 1, p))
 			return -1;
 		cs->name[cs->n] = m->string;
@@ -2062,17 +2066,19 @@ static int amp_number(const cJSON *e, double *x)
 static int amp_parse(proto_call *c, const cJSON *v, const char *path, void *dst)
 {
 	amp_grid *g = dst;
-	const cJSON *row, *e;
+	const cJSON *row, *e, *first;
+	proto_arr_iter it, jt;
 	size_t a = 0;
 
-	if (!cJSON_IsArray(v) || !v->child)
+	if (!cJSON_IsArray(v) || !proto__arr_size(v))
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
 		                  "must be an array over the angles: of arrays "
 		                  "over time ([angle][time], as "
 		                  "seismic.synthetic's traces) or of numbers");
-	g->na = (size_t)cJSON_GetArraySize(v);
-	g->nested = cJSON_IsArray(v->child);
-	g->nt = g->nested ? (size_t)cJSON_GetArraySize(v->child) : 1;
+	g->na = proto__arr_size(v);
+	first = proto__arr_first(&it, v);
+	g->nested = cJSON_IsArray(first);
+	g->nt = g->nested ? proto__arr_size(first) : 1;
 	if (g->nt == 0)
 		return proto_fail(c, PROTO_INVALID_PARAMS, path,
 		                  "element 0 is an empty array");
@@ -2081,7 +2087,7 @@ static int amp_parse(proto_call *c, const cJSON *v, const char *path, void *dst)
 	g->v = proto_alloc_doubles(c, g->na * g->nt);
 	if (!g->v)
 		return oom(c);
-	cJSON_ArrayForEach(row, v)
+	PROTO_ARR_FOREACH(row, it, v)
 	{
 		size_t k = 0;
 		if (!g->nested) {
@@ -2094,13 +2100,12 @@ static int amp_parse(proto_call *c, const cJSON *v, const char *path, void *dst)
 			a++;
 			continue;
 		}
-		if (!cJSON_IsArray(row) ||
-		    (size_t)cJSON_GetArraySize(row) != g->nt)
+		if (!cJSON_IsArray(row) || proto__arr_size(row) != g->nt)
 			return proto_fail(c, PROTO_INVALID_PARAMS, path,
 			                  "element %zu must be an array of %zu "
 			                  "amplitudes like element 0",
 			                  a, g->nt);
-		cJSON_ArrayForEach(e, row)
+		PROTO_ARR_FOREACH(e, jt, row)
 		{
 			if (amp_number(e, &g->v[a * g->nt + k]))
 				return proto_fail(

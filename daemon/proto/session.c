@@ -117,6 +117,8 @@ static size_t longest(const cJSON *v)
 	size_t best = 1;
 	const cJSON *e;
 
+	if (proto__numarr(v))
+		return proto__numarr(v)->n;
 	if (cJSON_IsArray(v) && v->child &&
 	    (cJSON_IsNumber(v->child) || cJSON_IsNull(v->child)))
 		best = (size_t)cJSON_GetArraySize(v);
@@ -291,8 +293,9 @@ static sess_default *make_default(proto_call *c, const char *path,
 		return NULL;
 	}
 	if (ft->f->type == PT_NUMS && !cJSON_IsObject(v)) {
-		size_t n = cJSON_IsArray(v) ? (size_t)cJSON_GetArraySize(v) : 1;
+		size_t n = cJSON_IsArray(v) ? proto__arr_size(v) : 1;
 		const cJSON *e;
+		proto_arr_iter it;
 		size_t i = 0;
 		d->v = malloc(n * sizeof *d->v);
 		if (!d->v)
@@ -303,7 +306,7 @@ static sess_default *make_default(proto_call *c, const char *path,
 			d->v[0] =
 			    proto_to_internal(u, ft->f->kind, v->valuedouble);
 		} else {
-			cJSON_ArrayForEach(e, v)
+			PROTO_ARR_FOREACH(e, it, v)
 			{
 				d->v[i++] =
 				    cJSON_IsNumber(e)
@@ -314,6 +317,10 @@ static sess_default *make_default(proto_call *c, const char *path,
 		}
 		d->bytes += n * sizeof *d->v;
 	} else {
+		/* printed as the tree cJSON would have built: large numeric
+		 * arrays inside (a distribution's) become nodes again */
+		if (proto__numarr_restore((cJSON *)v))
+			goto oom;
 		d->json = cJSON_PrintUnformatted(v);
 		if (!d->json)
 			goto oom;

@@ -370,18 +370,19 @@ static int correlations(proto_call *c, unc_run *r, const corr_args *ca,
 {
 	walk *w = r->w;
 	const cJSON *e, *row;
+	proto_arr_iter it, jt;
 	size_t k = 0, i = 0;
 
 	if (!ca->hdr.present)
 		return 0;
-	if (!cJSON_IsArray(ca->inputs) || cJSON_GetArraySize(ca->inputs) < 2 ||
-	    cJSON_GetArraySize(ca->inputs) > MAX_INPUTS)
+	if (!cJSON_IsArray(ca->inputs) || proto__arr_size(ca->inputs) < 2 ||
+	    proto__arr_size(ca->inputs) > MAX_INPUTS)
 		return proto_fail(c, PROTO_INVALID_PARAMS,
 		                  "uncertainty.correlations.inputs",
 		                  "must be an array of 2 to %d names of inputs "
 		                  "given as distributions",
 		                  MAX_INPUTS);
-	cJSON_ArrayForEach(e, ca->inputs)
+	PROTO_ARR_FOREACH(e, it, ca->inputs)
 	{
 		size_t j;
 		if (!cJSON_IsString(e))
@@ -424,20 +425,19 @@ static int correlations(proto_call *c, unc_run *r, const corr_args *ca,
 				    w->in[j].path, w->in[j].len, len);
 		}
 	}
-	if (!cJSON_IsArray(ca->matrix) ||
-	    (size_t)cJSON_GetArraySize(ca->matrix) != k)
+	if (!cJSON_IsArray(ca->matrix) || proto__arr_size(ca->matrix) != k)
 		return proto_fail(c, PROTO_INVALID_PARAMS,
 		                  "uncertainty.correlations.matrix",
 		                  "must be %zu rows of %zu numbers", k, k);
-	cJSON_ArrayForEach(row, ca->matrix)
+	PROTO_ARR_FOREACH(row, it, ca->matrix)
 	{
 		size_t j = 0;
-		if (!cJSON_IsArray(row) || (size_t)cJSON_GetArraySize(row) != k)
+		if (!cJSON_IsArray(row) || proto__arr_size(row) != k)
 			return proto_fail(c, PROTO_INVALID_PARAMS,
 			                  "uncertainty.correlations.matrix",
 			                  "row %zu must hold %zu numbers", i,
 			                  k);
-		cJSON_ArrayForEach(e, row)
+		PROTO_ARR_FOREACH(e, jt, row)
 		{
 			if (!cJSON_IsNumber(e))
 				return proto_fail(

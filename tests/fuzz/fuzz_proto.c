@@ -1,8 +1,8 @@
 /* libFuzzer target for the request handler: any bytes as one request
  * line through rw_proto_handle, with small limits so deep, wide and
  * batched inputs reach their checks quickly. The response must be empty
- * or one '\n'-terminated line; anything else aborts. Build and run with
- * tests/fuzz/run. */
+ * or one '\n'-terminated line, and the same with the numeric-array
+ * pre-pass off; anything else aborts. Build and run with tests/fuzz/run. */
 #include <stddef.h>
 #include <stdint.h>
 #include <stdlib.h>
@@ -10,6 +10,7 @@
 
 #include <gsl/gsl_errno.h>
 
+#include "proto/internal.h"
 #include "proto/proto.h"
 
 static proto_ctx *ctx;
@@ -32,31 +33,61 @@ int LLVMFuzzerInitialize(int *argc, char ***argv)
 	return ctx ? 0 : 1;
 }
 
-int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
+/* True when the bytes hold the word. */
+static int holds(const uint8_t *data, size_t size, const char *w)
+{
+	size_t n = strlen(w);
+	for (size_t i = 0; i + n <= size; i++)
+		if (memcmp(data + i, w, n) == 0)
+			return 1;
+	return 0;
+}
+
+/* Runs the input (one or two lines) on a fresh session into out. */
+static void run(const uint8_t *data, size_t size, proto_buf *out)
 {
 	proto_session *s = proto_session_new(ctx);
-	proto_buf out;
 	const char *nl;
 
 	if (!s)
-		return 0;
-	proto_buf_init(&out);
+		return;
 	/* Lines never hold '\n' (the framer splits on it): cut there, and
 	 * run the rest as a second request on the same session. */
 	nl = memchr(data, '\n', size);
 	if (nl) {
 		size_t first = (size_t)(nl - (const char *)data);
-		rw_proto_handle(s, (const char *)data, first, &out);
+		rw_proto_handle(s, (const char *)data, first, out);
 		data += first + 1;
 		size -= first + 1;
 		if (memchr(data, '\n', size))
 			size = (size_t)((const char *)memchr(data, '\n', size) -
 			                (const char *)data);
 	}
-	rw_proto_handle(s, (const char *)data, size, &out);
+	rw_proto_handle(s, (const char *)data, size, out);
+	proto_session_free(s);
+}
+
+int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
+{
+	proto_buf out, ref;
+
+	proto_buf_init(&out);
+	proto_buf_init(&ref);
+	run(data, size, &out);
 	if (out.len && out.data[out.len - 1] != '\n')
 		abort();
+	/* The numeric-array pre-pass (inarr.c) must not change any answer:
+	 * the same input with it off gives the same bytes (service.info
+	 * reports times and counters, which differ between the runs). */
+	if (!holds(data, size, "service")) {
+		proto__inarr_off = 1;
+		run(data, size, &ref);
+		proto__inarr_off = 0;
+		if (out.len != ref.len ||
+		    (out.len && memcmp(out.data, ref.data, out.len) != 0))
+			abort();
+	}
+	proto_buf_free(&ref);
 	proto_buf_free(&out);
-	proto_session_free(s);
 	return 0;
 }

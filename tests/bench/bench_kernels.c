@@ -139,6 +139,21 @@ static void logs3(void)
 	}
 }
 
+/* The per-request parameters (mineral, fluids, critical porosity,
+ * coordination number, Eaton exponent) are read at run time at the top of
+ * each loop, as a request's would be: the floor may hoist what depends on
+ * them alone out of its loop (a plain loop over one request would), but
+ * the compiler cannot fold them into constants. Quartz (Mavko, Mukerji &
+ * Dvorkin 2009, table 7.1.1, from memory), a brine and a gas. */
+static volatile double v_par[9] = {36.6e9, 2.8e9, 1030.0, 0.12e9, 250.0,
+                                   45.0e9, 0.40,  9.0,    3.0};
+#define PARAMS                                                                 \
+	const double K_MIN = v_par[0], K_FL1 = v_par[1], R_FL1 = v_par[2],     \
+	             K_FL2 = v_par[3], R_FL2 = v_par[4], MU_MIN = v_par[5],    \
+	             PHI_C = v_par[6], COORD = v_par[7], EATON_N = v_par[8];   \
+	(void)K_MIN, (void)K_FL1, (void)R_FL1, (void)K_FL2, (void)R_FL2,       \
+	    (void)MU_MIN, (void)PHI_C, (void)COORD, (void)EATON_N
+
 /* ---- the kernels: core loop and floor loop over [i0, i1) ---------------- */
 
 /* 1. elastic conversion from vp, vs, rho (rw_elastic_from_velocities). */
@@ -341,14 +356,10 @@ static void oil_floor(size_t i0, size_t i1)
 
 /* 5. Gassmann substitution, brine to gas (Mavko, Mukerji & Dvorkin
  * 2009, ch. 6): K_dry from the brine rock, K_sat with gas. */
-#define K_MIN 36.6e9
-#define K_FL1 2.8e9
-#define R_FL1 1030.0
-#define K_FL2 0.12e9
-#define R_FL2 250.0
 
 static void subst_init(void)
 {
+	PARAMS;
 	/* brine sands whose velocity and density fall with porosity (an
 	 * invented trend), so every sample has a positive dry frame */
 	for (size_t i = 0; i < n; i++) {
@@ -363,6 +374,7 @@ static void subst_init(void)
 
 static void subst_core(size_t i0, size_t i1)
 {
+	PARAMS;
 	int err = 0;
 	rw_rock_subst *o = (rw_rock_subst *)out_core;
 	for (size_t i = i0; i < i1; i++)
@@ -374,6 +386,7 @@ static void subst_core(size_t i0, size_t i1)
 
 static void subst_floor(size_t i0, size_t i1)
 {
+	PARAMS;
 	rw_rock_subst *o = (rw_rock_subst *)out_floor;
 	for (size_t i = i0; i < i1; i++) {
 		double vp = in[0][i], vs = in[1][i], rho = in[2][i];
@@ -554,9 +567,6 @@ static void aki_floor(size_t i0, size_t i1)
 
 /* 9. soft sand (Dvorkin & Nur 1996): Hertz-Mindlin at critical porosity
  * joined to the mineral by the modified lower Hashin-Shtrikman bound. */
-#define MU_MIN 45.0e9
-#define PHI_C  0.40
-#define COORD  9.0
 
 static void sand_init(void)
 {
@@ -569,6 +579,7 @@ static void sand_init(void)
 
 static void sand_core(size_t i0, size_t i1)
 {
+	PARAMS;
 	int err = 0;
 	for (size_t i = i0; i < i1; i++)
 		err += rw_rm_soft_sand(K_MIN, MU_MIN, in[0][i], PHI_C, COORD,
@@ -579,6 +590,7 @@ static void sand_core(size_t i0, size_t i1)
 
 static void sand_floor(size_t i0, size_t i1)
 {
+	PARAMS;
 	const double nu =
 	    (3.0 * K_MIN - 2.0 * MU_MIN) / (2.0 * (3.0 * K_MIN + MU_MIN));
 	for (size_t i = i0; i < i1; i++) {
@@ -615,20 +627,22 @@ static void eaton_init(void)
 
 static void eaton_core(size_t i0, size_t i1)
 {
+	PARAMS;
 	int err = 0;
 	for (size_t i = i0; i < i1; i++)
 		err +=
 		    rw_pres_pore_eaton(in[0][i], in[1][i], in[2][i], in[3][i],
-		                       3.0, &out_core[2 * i],
+		                       EATON_N, &out_core[2 * i],
 		                       &out_core[2 * i + 1], &warn[i]) != RW_OK;
 	errors += err;
 }
 
 static void eaton_floor(size_t i0, size_t i1)
 {
+	PARAMS;
 	for (size_t i = i0; i < i1; i++) {
 		double r = in[3][i] / in[2][i];
-		double sig = (in[0][i] - in[1][i]) * pow(r, 3.0);
+		double sig = (in[0][i] - in[1][i]) * pow(r, EATON_N);
 
 		out_floor[2 * i] = r == 1.0 ? in[1][i] : in[0][i] - sig;
 		out_floor[2 * i + 1] = sig;

@@ -8,6 +8,7 @@
 
 #include "rockwire/reflect.h"
 #include "rockwire/status.h"
+#include "reflect_int.h"
 
 #ifndef M_PI_2
 #define M_PI_2 1.57079632679489661923
@@ -32,8 +33,7 @@ static double rel(double d, double m)
 static int contrast_get(const rw_reflect_medium *u, const rw_reflect_medium *l,
                         struct contrast *c)
 {
-	if (rw_reflect_medium_check(u) != RW_OK ||
-	    rw_reflect_medium_check(l) != RW_OK)
+	if (rw__medium_check(u) != RW_OK || rw__medium_check(l) != RW_OK)
 		return RW_EDOM;
 	c->vp = 0.5 * (u->vp_ms + l->vp_ms);
 	c->vs = 0.5 * (u->vs_ms + l->vs_ms);

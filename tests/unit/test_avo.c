@@ -642,6 +642,45 @@ static void test_inline_terms_bits(void **state)
 	}
 }
 
+/* The linearisations check both media with the inline copy of
+ * rw_reflect_medium_check (reflect_int.h): every medium it refuses is
+ * refused by them too, on either side, with a NaN answer. */
+static void test_inline_medium_check(void **state)
+{
+	const rw_reflect_medium bad[] = {
+	    med(0.0, 0.0, 2300.0),
+	    med(-3000.0, 1500.0, 2300.0),
+	    med(3000.0, -1.0, 2300.0),
+	    med(3000.0, 1500.0, 0.0),
+	    med(NAN, 1500.0, 2300.0),
+	    med(3000.0, INFINITY, 2300.0),
+	    med(3000.0, 1500.0, NAN),
+	    med(3000.0, 3000.0, 2300.0),
+	    med(2000.0, 2000.0 * 0.86602540378443871, 2300.0),
+	};
+	const rw_reflect_medium ok = med(3000.0, 1500.0, 2300.0);
+	int (*const f[3])(const rw_reflect_medium *, const rw_reflect_medium *,
+	                  double, double *) = {
+	    rw_reflect_aki_richards, rw_reflect_shuey2, rw_reflect_shuey3};
+	(void)state;
+	for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
+		assert_int_equal(rw_reflect_medium_check(&bad[i]), RW_EDOM);
+		for (int k = 0; k < 3; k++) {
+			double r = 0.0;
+			assert_int_equal(f[k](&bad[i], &ok, 0.2, &r), RW_EDOM);
+			assert_true(isnan(r));
+			r = 0.0;
+			assert_int_equal(f[k](&ok, &bad[i], 0.2, &r), RW_EDOM);
+			assert_true(isnan(r));
+		}
+	}
+	for (int k = 0; k < 3; k++) {
+		double r;
+		assert_int_equal(f[k](&ok, &ok, 0.2, &r), RW_OK);
+		assert_true(r == 0.0);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -660,6 +699,7 @@ int main(void)
 	    cmocka_unit_test(test_ei_k_and_fluids),
 	    cmocka_unit_test(test_errors),
 	    cmocka_unit_test(test_inline_terms_bits),
+	    cmocka_unit_test(test_inline_medium_check),
 	};
 
 	gsl_set_error_handler_off();

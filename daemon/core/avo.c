@@ -8,6 +8,7 @@
 
 #include "rockwire/reflect.h"
 #include "rockwire/status.h"
+#include "reflect_int.h"
 
 #ifndef M_PI_2
 #define M_PI_2 1.57079632679489661923
@@ -32,8 +33,7 @@ static double rel(double d, double m)
 static int contrast_get(const rw_reflect_medium *u, const rw_reflect_medium *l,
                         struct contrast *c)
 {
-	if (rw_reflect_medium_check(u) != RW_OK ||
-	    rw_reflect_medium_check(l) != RW_OK)
+	if (rw__medium_check(u) != RW_OK || rw__medium_check(l) != RW_OK)
 		return RW_EDOM;
 	c->vp = 0.5 * (u->vp_ms + l->vp_ms);
 	c->vs = 0.5 * (u->vs_ms + l->vs_ms);
@@ -67,21 +67,33 @@ int rw_reflect_aki_richards(const rw_reflect_medium *upper,
                             double *r)
 {
 	struct contrast c;
-	double t, p, g, ct;
+	double s, x, t, p, g, ct;
 	int st;
 
 	st = setup(upper, lower, theta_rad, r, &c);
 	if (st != RW_OK)
 		return st;
-	st = rw_reflect_angle_average(upper, lower, theta_rad, &t);
-	if (st != RW_OK)
-		return st;
-	p = sin(theta_rad) / upper->vp_ms;
+	/* rw_reflect_angle_average's arithmetic, without its second checks
+	 * of the media and angle (setup made them) and second sine. */
+	s = sin(theta_rad);
+	x = lower->vp_ms * s / upper->vp_ms;
+	if (x >= 1.0)
+		return RW_ERANGE;
+	t = 0.5 * (theta_rad + asin(x));
+	p = s / upper->vp_ms;
 	g = c.vs * c.vs * p * p;
 	ct = cos(t);
 	*r = 0.5 * (1.0 - 4.0 * g) * c.drho + c.dvp / (2.0 * ct * ct) -
 	     4.0 * g * c.dvs;
 	return RW_OK;
+}
+
+/* Shuey's A, B, C from the means and contrasts. */
+static void shuey_abc(const struct contrast *m, double *a, double *b, double *c)
+{
+	*a = 0.5 * (m->dvp + m->drho);
+	*b = 0.5 * m->dvp - 2.0 * m->k * m->k * (m->drho + 2.0 * m->dvs);
+	*c = 0.5 * m->dvp;
 }
 
 int rw_reflect_shuey_terms(const rw_reflect_medium *upper,
@@ -93,11 +105,8 @@ int rw_reflect_shuey_terms(const rw_reflect_medium *upper,
 	int st;
 
 	st = contrast_get(upper, lower, &m);
-	if (st == RW_OK) {
-		va = 0.5 * (m.dvp + m.drho);
-		vb = 0.5 * m.dvp - 2.0 * m.k * m.k * (m.drho + 2.0 * m.dvs);
-		vc = 0.5 * m.dvp;
-	}
+	if (st == RW_OK)
+		shuey_abc(&m, &va, &vb, &vc);
 	if (a != NULL)
 		*a = va;
 	if (b != NULL)
@@ -112,13 +121,13 @@ int rw_reflect_shuey2(const rw_reflect_medium *upper,
                       double *r)
 {
 	struct contrast m;
-	double a, b, s;
+	double a, b, c, s;
 	int st;
 
 	st = setup(upper, lower, theta_rad, r, &m);
 	if (st != RW_OK)
 		return st;
-	rw_reflect_shuey_terms(upper, lower, &a, &b, NULL);
+	shuey_abc(&m, &a, &b, &c);
 	s = sin(theta_rad);
 	*r = a + b * s * s;
 	return RW_OK;
@@ -135,7 +144,7 @@ int rw_reflect_shuey3(const rw_reflect_medium *upper,
 	st = setup(upper, lower, theta_rad, r, &m);
 	if (st != RW_OK)
 		return st;
-	rw_reflect_shuey_terms(upper, lower, &a, &b, &c);
+	shuey_abc(&m, &a, &b, &c);
 	s = sin(theta_rad);
 	t = tan(theta_rad);
 	*r = a + b * s * s + c * (t * t - s * s);

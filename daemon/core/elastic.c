@@ -115,6 +115,44 @@ int rw_elastic_from_velocities(double vp, double vs, double rho,
 	return rw_elastic_from_pair(rho, RW_Q_VP, vp, RW_Q_VS, vs, out, why);
 }
 
+/* The usual log case, (vp, vs) of a valid solid, without the general
+ * path's dispatch, its square roots (whose results the given velocities
+ * replace) and its second pass over the derived fields: the same
+ * operations in the same order, so the same bits (tests/unit/
+ * test_elastic.c checks them against the general path). Returns 0, with
+ * nothing written, for anything else: the general path then decides. */
+static int from_vp_vs(double rho, double vp, double vs, rw_elastic *out,
+                      unsigned *why)
+{
+	double m, mu, k;
+
+	if (!(rho > 0) || !(vp >= 0) || !(vs >= 0) || !isfinite(rho) ||
+	    !isfinite(vp) || !isfinite(vs))
+		return 0;
+	m = rho * vp * vp;
+	mu = rho * vs * vs;
+	k = m - 4.0 / 3.0 * mu;
+	if (!isfinite(m) || !isfinite(mu) || !(mu > 0) || !(k > 0))
+		return 0;
+	if (why)
+		*why = 0;
+	out->rho = rho;
+	out->m = m;
+	out->mu = mu;
+	out->k = k;
+	out->lambda = m - 2.0 * mu;
+	out->vp = vp;
+	out->vs = vs;
+	out->nu = (m - 2.0 * mu) / (2.0 * (m - mu));
+	out->e = 2.0 * mu * (1.0 + out->nu);
+	out->ai = rho * vp;
+	out->si = rho * vs;
+	out->vpvs = vp / vs;
+	out->dtp = 1.0 / vp;
+	out->dts = 1.0 / vs;
+	return 1;
+}
+
 /* Converts a member of the P group to M, or of the S group to mu (both
  * rho v^2). Returns NaN for a negative value or a zero slowness. */
 static double group_modulus(double rho, rw_elastic_qty q, double v)
@@ -259,6 +297,8 @@ int rw_elastic_from_pair(double rho, rw_elastic_qty a, double va,
 	enum grp ga, gb;
 	double m = NAN, mu = NAN;
 
+	if (a == RW_Q_VP && b == RW_Q_VS && from_vp_vs(rho, va, vb, out, why))
+		return RW_OK;
 	if ((int)a < 0 || a >= RW_Q_COUNT || (int)b < 0 || b >= RW_Q_COUNT ||
 	    rw_elastic_pair_check(a, b) != RW_PAIR_OK) {
 		if (why)

@@ -41,6 +41,26 @@ static void warn_set(unsigned *warn, unsigned bits)
 		*warn = bits;
 }
 
+/* 1 when p_mpa is above the saturation pressure at t_degc for certain,
+ * so rw_fluid_water_psat need not be evaluated (its square root and
+ * divisions were a third of a brine sample). The bounds are just above
+ * psat at the top of each temperature band (0.101418, 1.55467, 8.58771
+ * and 22.064 MPa from rw_fluid_water_psat) and psat rises with T;
+ * tests/unit/test_fluid.c checks on a fine grid that the warning is
+ * unchanged. */
+static int surely_liquid(double p_mpa, double t_degc)
+{
+	static const double band[4][2] = {{100.0, 0.1015},
+	                                  {200.0, 1.5550},
+	                                  {300.0, 8.5880},
+	                                  {373.946, 22.065}};
+
+	for (int i = 0; i < 4; i++)
+		if (t_degc <= band[i][0])
+			return p_mpa > band[i][1];
+	return 0;
+}
+
 /* Warning bits shared by water and brine for pressure and temperature. */
 static unsigned water_pt_warn(double p_mpa, double t_degc)
 {
@@ -53,7 +73,8 @@ static unsigned water_pt_warn(double p_mpa, double t_degc)
 		w |= RW_FLUID_WARN_P_RANGE;
 	if (t_degc > 373.946)
 		w |= RW_FLUID_WARN_VAPOUR; /* supercritical: no liquid */
-	else if (rw_fluid_water_psat(t_degc, &psat) == RW_OK && p_mpa < psat)
+	else if (!surely_liquid(p_mpa, t_degc) &&
+	         rw_fluid_water_psat(t_degc, &psat) == RW_OK && p_mpa < psat)
 		w |= RW_FLUID_WARN_VAPOUR;
 	return w;
 }

@@ -129,9 +129,7 @@ int rw_rock_fluid_subst(double vp_ms, double vs_ms, double rho_kgm3, double phi,
                         double rho_fl_new_kgm3, rw_rock_subst *out,
                         unsigned *warn)
 {
-	double mu, k1, kdry, k2, rho2;
-	unsigned w1 = 0, w2 = 0;
-	int st;
+	double mu, k1, r, num, den, a, kdry, k2, rho2;
 
 	warn_set(warn, 0);
 	if (!isfinite(vp_ms) || !isfinite(vs_ms) || !isfinite(rho_kgm3) ||
@@ -145,18 +143,30 @@ int rw_rock_fluid_subst(double vp_ms, double vs_ms, double rho_kgm3, double phi,
 	}
 	mu = rho_kgm3 * vs_ms * vs_ms;
 	k1 = rho_kgm3 * vp_ms * vp_ms - 4.0 / 3.0 * mu;
-	if (!(k1 > 0.0)) {
+	if (!(k1 > 0.0) || !isfinite(k1)) {
 		subst_nan(out);
 		return RW_EDOM;
 	}
-	st = rw_rock_gassmann_dry(k1, k_min_pa, k_fl_old_pa, phi, &kdry, &w1);
-	if (st == RW_OK)
-		st = rw_rock_gassmann_sat(kdry, k_min_pa, k_fl_new_pa, phi, &k2,
-		                          &w2);
-	warn_set(warn, w1 | w2);
-	if (st != RW_OK) {
+	/* rw_rock_gassmann_dry, then rw_rock_gassmann_sat with the new
+	 * fluid, inline: their domain checks are the ones above, and both
+	 * warn about the same frame. Same arithmetic, statuses and warnings
+	 * (tests/unit/test_gassmann.c checks them against the two calls). */
+	r = phi * k_min_pa / k_fl_old_pa;
+	num = k1 * (r + 1.0 - phi) - k_min_pa;
+	den = r + k1 / k_min_pa - 1.0 - phi;
+	kdry = den == 0.0 ? NAN : num / den;
+	if (!isfinite(kdry)) {
 		subst_nan(out);
-		return st;
+		return RW_ERANGE;
+	}
+	warn_set(warn, frame_warn(kdry, k_min_pa, phi));
+	a = 1.0 - kdry / k_min_pa;
+	den = phi / k_fl_new_pa + (1.0 - phi) / k_min_pa -
+	      kdry / (k_min_pa * k_min_pa);
+	k2 = den > 0.0 ? kdry + a * a / den : NAN;
+	if (!isfinite(k2)) {
+		subst_nan(out);
+		return RW_ERANGE;
 	}
 	rho2 = rho_kgm3 + phi * (rho_fl_new_kgm3 - rho_fl_old_kgm3);
 	return subst_finish(out, k2, mu, rho2, kdry);

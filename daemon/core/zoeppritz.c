@@ -15,6 +15,7 @@
 
 #include "rockwire/reflect.h"
 #include "rockwire/status.h"
+#include "reflect_int.h"
 
 #ifndef M_PI_2
 #define M_PI_2 1.57079632679489661923
@@ -22,17 +23,7 @@
 
 int rw_reflect_medium_check(const rw_reflect_medium *m)
 {
-	if (m == NULL)
-		return RW_EDOM;
-	if (!isfinite(m->vp_ms) || !isfinite(m->vs_ms) ||
-	    !isfinite(m->rho_kgm3))
-		return RW_EDOM;
-	if (m->vp_ms <= 0.0 || m->rho_kgm3 <= 0.0 || m->vs_ms < 0.0)
-		return RW_EDOM;
-	/* bulk modulus rho (vp^2 - 4/3 vs^2) must be positive */
-	if (3.0 * m->vp_ms * m->vp_ms <= 4.0 * m->vs_ms * m->vs_ms)
-		return RW_EDOM;
-	return RW_OK;
+	return rw__medium_check(m);
 }
 
 /* Vertical slowness sqrt(1/v^2 - p^2) for v > 0, p >= 0 (s/m), on the
@@ -136,7 +127,9 @@ static int solid_solid(const rw_reflect_medium *m1, const rw_reflect_medium *m2,
 	double complex h = a - d * qa2 * qb1;
 	double complex dd = e * f + g * h * p2;
 
-	if (!(cabs(dd) > 0.0) || !cfinite(dd))
+	/* a zero or non-finite denominator (not cabs(dd) > 0: the same
+	 * test for finite dd, without a hypot per sample) */
+	if ((creal(dd) == 0.0 && cimag(dd) == 0.0) || !cfinite(dd))
 		return RW_ERANGE;
 	r[0] = ((b * qa1 - c * qa2) * f - (a + d * qa1 * qb2) * h * p2) / dd;
 	r[1] = -2.0 * qa1 * (a * b + c * d * qa2 * qb2) * p * a1 / (b1 * dd);
@@ -258,8 +251,8 @@ int rw_reflect_zoeppritz(const rw_reflect_medium *upper,
 	if (out == NULL)
 		return RW_EDOM;
 	set_nan(out);
-	if (rw_reflect_medium_check(upper) != RW_OK ||
-	    rw_reflect_medium_check(lower) != RW_OK)
+	if (rw__medium_check(upper) != RW_OK ||
+	    rw__medium_check(lower) != RW_OK)
 		return RW_EDOM;
 	if (!isfinite(theta_rad) || theta_rad < 0.0 || theta_rad > M_PI_2)
 		return RW_EDOM;

@@ -586,6 +586,101 @@ static void test_errors(void **state)
 	assert_true(isnan(r));
 }
 
+/* rw_reflect_aki_richards, _shuey2 and _shuey3 compute the average angle
+ * and the Shuey terms inline (an optimisation); their answers must be to
+ * the bit those composed from the public rw_reflect_angle_average and
+ * rw_reflect_shuey_terms, and their refusals the same. An equivalence
+ * check of the rewrite; the physics is checked above. */
+static void test_inline_terms_bits(void **state)
+{
+	uint64_t s = 77;
+	int i;
+
+	(void)state;
+	for (i = 0; i < 20000; i++) {
+		rw_reflect_medium u, l;
+		double th = urand(&s, 0.0, 1.5), t, a, b, c, p, g, ct;
+		double r, want, sn;
+		int st;
+
+		rand_pair(&s, 0.6, 0.3, 0.6, &u, &l);
+		st = rw_reflect_angle_average(&u, &l, th, &t);
+		assert_int_equal(rw_reflect_aki_richards(&u, &l, th, &r), st);
+		if (st == RW_OK) {
+			struct {
+				double vs, dvp, dvs, drho;
+			} m = {0.5 * (u.vs_ms + l.vs_ms), 0, 0, 0};
+			m.dvp =
+			    (l.vp_ms - u.vp_ms) / (0.5 * (u.vp_ms + l.vp_ms));
+			m.dvs = (l.vs_ms - u.vs_ms) / m.vs;
+			m.drho = (l.rho_kgm3 - u.rho_kgm3) /
+			         (0.5 * (u.rho_kgm3 + l.rho_kgm3));
+			p = sin(th) / u.vp_ms;
+			g = m.vs * m.vs * p * p;
+			ct = cos(t);
+			want = 0.5 * (1.0 - 4.0 * g) * m.drho +
+			       m.dvp / (2.0 * ct * ct) - 4.0 * g * m.dvs;
+			assert_memory_equal(&r, &want, sizeof r);
+		} else {
+			assert_true(isnan(r));
+		}
+		st = rw_reflect_shuey_terms(&u, &l, &a, &b, &c);
+		if (st != RW_OK) { /* a lower medium with K <= 0 */
+			assert_int_equal(rw_reflect_shuey2(&u, &l, th, &r), st);
+			assert_true(isnan(r));
+			assert_int_equal(rw_reflect_shuey3(&u, &l, th, &r), st);
+			assert_true(isnan(r));
+			continue;
+		}
+		sn = sin(th);
+		assert_int_equal(rw_reflect_shuey2(&u, &l, th, &r), RW_OK);
+		want = a + b * sn * sn;
+		assert_memory_equal(&r, &want, sizeof r);
+		assert_int_equal(rw_reflect_shuey3(&u, &l, th, &r), RW_OK);
+		want = a + b * sn * sn + c * (tan(th) * tan(th) - sn * sn);
+		assert_memory_equal(&r, &want, sizeof r);
+	}
+}
+
+/* The linearisations check both media with the inline copy of
+ * rw_reflect_medium_check (reflect_int.h): every medium it refuses is
+ * refused by them too, on either side, with a NaN answer. */
+static void test_inline_medium_check(void **state)
+{
+	const rw_reflect_medium bad[] = {
+	    med(0.0, 0.0, 2300.0),
+	    med(-3000.0, 1500.0, 2300.0),
+	    med(3000.0, -1.0, 2300.0),
+	    med(3000.0, 1500.0, 0.0),
+	    med(NAN, 1500.0, 2300.0),
+	    med(3000.0, INFINITY, 2300.0),
+	    med(3000.0, 1500.0, NAN),
+	    med(3000.0, 3000.0, 2300.0),
+	    med(2000.0, 2000.0 * 0.86602540378443871, 2300.0),
+	};
+	const rw_reflect_medium ok = med(3000.0, 1500.0, 2300.0);
+	int (*const f[3])(const rw_reflect_medium *, const rw_reflect_medium *,
+	                  double, double *) = {
+	    rw_reflect_aki_richards, rw_reflect_shuey2, rw_reflect_shuey3};
+	(void)state;
+	for (size_t i = 0; i < sizeof bad / sizeof bad[0]; i++) {
+		assert_int_equal(rw_reflect_medium_check(&bad[i]), RW_EDOM);
+		for (int k = 0; k < 3; k++) {
+			double r = 0.0;
+			assert_int_equal(f[k](&bad[i], &ok, 0.2, &r), RW_EDOM);
+			assert_true(isnan(r));
+			r = 0.0;
+			assert_int_equal(f[k](&ok, &bad[i], 0.2, &r), RW_EDOM);
+			assert_true(isnan(r));
+		}
+	}
+	for (int k = 0; k < 3; k++) {
+		double r;
+		assert_int_equal(f[k](&ok, &ok, 0.2, &r), RW_OK);
+		assert_true(r == 0.0);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -603,6 +698,8 @@ int main(void)
 	    cmocka_unit_test(test_eei),
 	    cmocka_unit_test(test_ei_k_and_fluids),
 	    cmocka_unit_test(test_errors),
+	    cmocka_unit_test(test_inline_terms_bits),
+	    cmocka_unit_test(test_inline_medium_check),
 	};
 
 	gsl_set_error_handler_off();

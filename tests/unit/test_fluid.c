@@ -449,6 +449,45 @@ static void test_mix_errors(void **state)
 	assert_phase_nan(&out);
 }
 
+/* The boiling warning skips the saturation curve when the pressure is
+ * above it for certain (an optimisation): it must still be set exactly
+ * when p < psat(T) (IAPWS-IF97 eq. 30 as rw_fluid_water_psat gives it),
+ * here on a 0.002 degC grid over the whole liquid range with pressures a
+ * hair either side of the curve and across 0.05-30 MPa. */
+static void test_vapour_shortcut(void **state)
+{
+	rw_fluid_phase ph;
+	unsigned warn;
+	(void)state;
+	for (int i = 0; i <= 186973; i++) {
+		double t = i * 0.002, psat, p[8];
+		if (t > 373.946)
+			t = 373.946;
+		assert_int_equal(rw_fluid_water_psat(t, &psat), RW_OK);
+		p[0] = psat * (1.0 - 1e-12);
+		p[1] = psat * (1.0 + 1e-12);
+		p[2] = psat;
+		for (int j = 3; j < 8; j++)
+			p[j] = 0.05 * pow(600.0, (j - 3 + (i % 7) / 7.0) / 5.0);
+		for (int j = 0; j < 8; j++) {
+			int want = p[j] < psat;
+			assert_int_equal(
+			    rw_fluid_water_props(p[j], t, &ph, &warn), RW_OK);
+			if (!!(warn & RW_FLUID_WARN_VAPOUR) != want)
+				fail_msg("water p %.17g T %.17g: vapour %d, "
+				         "psat %.17g",
+				         p[j], t, !want, psat);
+			assert_int_equal(
+			    rw_fluid_brine_props(p[j], t, 0.1, &ph, &warn),
+			    RW_OK);
+			if (!!(warn & RW_FLUID_WARN_VAPOUR) != want)
+				fail_msg("brine p %.17g T %.17g: vapour %d, "
+				         "psat %.17g",
+				         p[j], t, !want, psat);
+		}
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -465,6 +504,7 @@ int main(void)
 	    cmocka_unit_test(test_wood_is_reuss),
 	    cmocka_unit_test(test_brie),
 	    cmocka_unit_test(test_mix_errors),
+	    cmocka_unit_test(test_vapour_shortcut),
 	};
 
 	gsl_set_error_handler_off();

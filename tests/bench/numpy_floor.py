@@ -163,7 +163,8 @@ def reflect_series(p):
     ni = a1.size
     bad = (a1 <= 0) | (a2 <= 0) | (r1 <= 0) | (r2 <= 0) | (b1 < 0) | (
         b2 < 0) | (3 * a1 ** 2 <= 4 * b1 ** 2) | (3 * a2 ** 2 <= 4 * b2 ** 2)
-    qci = np.where(bad, 1 << 16, 0)
+    qcb = np.where(bad, 1 << 16, 0)
+    qci = qcb
     # no_critical_p (bit 19): vp below not above vp above; no_critical_s
     # (bit 20): vs below not above vp above (qc-flags.md)
     qci = qci | np.where(~bad & (a2 <= a1), 1 << 19, 0) | np.where(
@@ -177,7 +178,7 @@ def reflect_series(p):
         r = rpp_aki_richards(a1, b1, r1, a2, b2, r2, np.sin(th) / a1)
         rre[j] = np.where(bad, np.nan, r.real)
         rim[j] = np.where(bad, np.nan, r.imag)
-        qc[j] = qci | np.where(~bad & (np.sin(th) >= sin_crit), 1 << 17, 0)
+        qc[j] = qcb | np.where(~bad & (np.sin(th) >= sin_crit), 1 << 17, 0)
     am, bm, rm = (a1 + a2) / 2, (b1 + b2) / 2, (r1 + r2) / 2
     dvp, dvs, drho = (a2 - a1) / am, (b2 - b1) / bm, (r2 - r1) / rm
     k = (bm / am) ** 2

@@ -207,9 +207,10 @@ static int take_array(cli_numcols *c, const char *p, const char *e, size_t *n,
 {
 	proto_num_err err;
 	size_t room = c->pool_cap - c->pool_used, cnt, cend;
-	int st =
-	    proto_num_array_parse(p, (size_t)(e - p), PROTO_NUM_NULLS,
-	                          c->pool + c->pool_used, room, n, end, &err);
+	/* no pool yet: a NULL base with no room (no offset on NULL) */
+	double *at = c->pool ? c->pool + c->pool_used : NULL;
+	int st = proto_num_array_parse(p, (size_t)(e - p), PROTO_NUM_NULLS, at,
+	                               room, n, end, &err);
 	if (st != PROTO_NUM_ESIZE)
 		return st == PROTO_NUM_OK;
 	if (proto_num_array_count(p, (size_t)(e - p), &cnt, &cend, &err))

@@ -389,6 +389,11 @@ static cJSON *method_doc(const proto_method *m, cJSON *components)
 			cJSON_AddItemToArray(params, p);
 			p = cJSON_CreateObject();
 			cJSON_AddStringToObject(p, "name", "digits");
+			cJSON_AddStringToObject(
+			    p, "description",
+			    "significant digits of every number in the answer, "
+			    "1 to 17; 0 (the default): the shortest text that "
+			    "reads back to the same double");
 			cJSON_AddItemToObject(p, "schema", ref("digits"));
 			cJSON_AddItemToArray(params, p);
 		}

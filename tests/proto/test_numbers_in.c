@@ -36,7 +36,8 @@ static void put(text *t, const char *fmt, ...)
 
 	for (;;) {
 		va_start(ap, fmt);
-		k = vsnprintf(t->s + t->n, t->cap - t->n, fmt, ap);
+		k = vsnprintf(t->s ? t->s + t->n : NULL, t->cap - t->n, fmt,
+		              ap);
 		va_end(ap);
 		assert_true(k >= 0);
 		if ((size_t)k < t->cap - t->n)

@@ -824,8 +824,11 @@ static void stat_sample(void *arg, size_t i)
 					continue;
 				used++;
 				u |= f[d];
-				for (int b = 0; b < 53; b++)
-					hits[b] += (f[d] >> b) & 1u;
+				/* only the raised bits (most draws raise
+				 * none); flags live in bits 0-52 */
+				for (uint64_t v = f[d] & ((1ull << 53) - 1); v;
+				     v &= v - 1)
+					hits[__builtin_ctzll(v)]++;
 			}
 			st->fl_union[j][e] = u;
 			for (int b = 0; b < 53; b++)

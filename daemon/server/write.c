@@ -3,9 +3,17 @@
  * stream, uv_fs_write on a file, short writes continued). While more than
  * the high-water mark waits unsent the connection is paused: not read and
  * not dispatched; it resumes below half the mark. */
+#include <limits.h>
 #include <stdlib.h>
 
 #include "server/internal.h"
+
+/* The largest piece of one write buffer (and of one file write): a
+ * uv_buf_t length is an unsigned int. Tests build a daemon with small
+ * pieces to reach the several-buffer path. */
+#ifndef SRV_WRITE_PIECE
+#define SRV_WRITE_PIECE 0x40000000
+#endif
 
 void srv__update_pause(conn *c)
 {
@@ -98,8 +106,8 @@ static void on_file_written(uv_fs_t *req)
 static void file_write_next(conn *c)
 {
 	uv_buf_t b = uv_buf_init(c->wdata + c->woff,
-	                         (unsigned)(c->wlen - c->woff > 0x40000000
-	                                        ? 0x40000000
+	                         (unsigned)(c->wlen - c->woff > SRV_WRITE_PIECE
+	                                        ? SRV_WRITE_PIECE
 	                                        : c->wlen - c->woff));
 	int rc;
 
@@ -116,7 +124,8 @@ static void file_write_next(conn *c)
 
 void srv__conn_flush(conn *c)
 {
-	uv_buf_t b;
+	uv_buf_t small[4], *bufs;
+	size_t nb;
 	int rc;
 
 	if (conn_has(c, CF_WRITING) || !c->pending.len || conn_closing(c))
@@ -127,12 +136,34 @@ void srv__conn_flush(conn *c)
 		file_write_next(c);
 		return;
 	}
-	b = uv_buf_init(c->wdata, (unsigned)c->wlen);
+	/* A uv_buf_t holds an unsigned int length: hand more than 1 GiB
+	 * over as several buffers of one write (libuv copies the array), so
+	 * nothing past 4 GiB is cut off. */
+	nb = (c->wlen + (size_t)SRV_WRITE_PIECE - 1) / (size_t)SRV_WRITE_PIECE;
+	bufs = nb <= 4 ? small : malloc(nb * sizeof *bufs);
+	if (!bufs || nb > UINT_MAX) {
+		if (bufs != small)
+			free(bufs);
+		srv__conn_ref(c);
+		conn_set(c, CF_WRITING);
+		write_done(c, UV_ENOMEM, 0);
+		srv__conn_unref(c);
+		return;
+	}
+	for (size_t i = 0; i < nb; i++) {
+		size_t off = i * (size_t)SRV_WRITE_PIECE, n = c->wlen - off;
+		bufs[i] = uv_buf_init(
+		    c->wdata + off,
+		    (unsigned)(n > SRV_WRITE_PIECE ? SRV_WRITE_PIECE : n));
+	}
 	c->wreq.data = c;
 	srv__conn_ref(c);
 	conn_set(c, CF_WRITING);
 	c->out_handed += c->wlen;
-	rc = uv_write(&c->wreq, c->out_stream, &b, 1, on_stream_written);
+	rc = uv_write(&c->wreq, c->out_stream, bufs, (unsigned)nb,
+	              on_stream_written);
+	if (bufs != small)
+		free(bufs);
 	if (rc < 0) {
 		srv__conn_unref(c);
 		c->out_handed -= c->wlen;

@@ -67,6 +67,17 @@ static void fill_nan(rw_elastic *o)
 	o->ai = o->si = o->vpvs = o->dtp = o->dts = NAN;
 }
 
+/* The quantities that follow from out's rho, vp and vs: impedances,
+ * velocity ratio and slownesses. */
+static void velocity_terms(rw_elastic *out)
+{
+	out->ai = out->rho * out->vp;
+	out->si = out->rho * out->vs;
+	out->vpvs = out->vp / out->vs;
+	out->dtp = 1.0 / out->vp;
+	out->dts = 1.0 / out->vs;
+}
+
 int rw_elastic_from_moduli(double rho, double m, double mu, rw_elastic *out,
                            unsigned *why)
 {
@@ -101,11 +112,7 @@ int rw_elastic_from_moduli(double rho, double m, double mu, rw_elastic *out,
 	 * nu = (vp^2 - 2 vs^2) / (2 (vp^2 - vs^2)), E = 2 rho vs^2 (1 + nu). */
 	out->nu = (m - 2.0 * mu) / (2.0 * (m - mu));
 	out->e = 2.0 * mu * (1.0 + out->nu);
-	out->ai = rho * out->vp;
-	out->si = rho * out->vs;
-	out->vpvs = out->vp / out->vs;
-	out->dtp = 1.0 / out->vp;
-	out->dts = 1.0 / out->vs;
+	velocity_terms(out);
 	return RW_OK;
 }
 
@@ -145,11 +152,7 @@ static int from_vp_vs(double rho, double vp, double vs, rw_elastic *out,
 	out->vs = vs;
 	out->nu = (m - 2.0 * mu) / (2.0 * (m - mu));
 	out->e = 2.0 * mu * (1.0 + out->nu);
-	out->ai = rho * vp;
-	out->si = rho * vs;
-	out->vpvs = vp / vs;
-	out->dtp = 1.0 / vp;
-	out->dts = 1.0 / vs;
+	velocity_terms(out);
 	return 1;
 }
 
@@ -355,11 +358,7 @@ int rw_elastic_from_pair(double rho, rw_elastic_qty a, double va,
 		out->vp = a == RW_Q_VP ? va : vb;
 	if (a == RW_Q_VS || b == RW_Q_VS)
 		out->vs = a == RW_Q_VS ? va : vb;
-	out->ai = rho * out->vp;
-	out->si = rho * out->vs;
-	out->vpvs = out->vp / out->vs;
-	out->dtp = 1.0 / out->vp;
-	out->dts = 1.0 / out->vs;
+	velocity_terms(out);
 	*qty_field(out, a) = va;
 	*qty_field(out, b) = vb;
 	return RW_OK;

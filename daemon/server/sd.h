@@ -5,16 +5,9 @@
 #define RW_SRV_SD_H
 
 #include <sys/socket.h>
-
-/* The CMake options RW_WITH_TCP and RW_WITH_SYSTEMD define these 1 or 0;
- * a build without CMake gets everything. */
-#ifndef RW_WITH_TCP
-#define RW_WITH_TCP 1
-#endif
-#ifndef RW_WITH_SYSTEMD
-#define RW_WITH_SYSTEMD 1
-#endif
 #include <sys/un.h>
+
+#include "rw_features.h"
 
 typedef struct srv_notify {
 	int fd; /* datagram socket, or -1 */

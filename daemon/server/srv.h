@@ -7,14 +7,7 @@
 
 #include <stddef.h>
 
-/* The CMake options RW_WITH_TCP and RW_WITH_SYSTEMD define these 1 or 0;
- * a build without CMake gets everything. */
-#ifndef RW_WITH_TCP
-#define RW_WITH_TCP 1
-#endif
-#ifndef RW_WITH_SYSTEMD
-#define RW_WITH_SYSTEMD 1
-#endif
+#include "rw_features.h"
 
 #include "proto/proto.h"
 

@@ -94,6 +94,23 @@ static void assert_same_bits(double a, double b, size_t i)
 		fail_msg("element %zu: sent %.17g, got %.17g back", i, a, b);
 }
 
+/* The result member `name` of r holds want[0..n), bit for bit. */
+static void assert_echo(const cJSON *r, const char *name, const double *want,
+                        size_t n)
+{
+	const cJSON *e, *a = h_result(r, name);
+	size_t i = 0;
+
+	assert_int_equal(h_code(r), 0);
+	cJSON_ArrayForEach(e, a)
+	{
+		assert_true(i < n);
+		assert_same_bits(want[i], e->valuedouble, i);
+		i++;
+	}
+	assert_int_equal(i, n);
+}
+
 /* Every input double comes back bit for bit in its own unit (m/s is the
  * internal velocity unit); most of these need 17 digits to do so. */
 static void test_echo_exact_and_shortest(void **state)
@@ -103,7 +120,6 @@ static void test_echo_exact_and_shortest(void **state)
 	uint64_t s = 42;
 	char *line;
 	cJSON *r;
-	const cJSON *a, *e;
 	size_t i = 0;
 
 	(void)state;
@@ -112,16 +128,7 @@ static void test_echo_exact_and_shortest(void **state)
 	line = convert_line(vp, N, "");
 	r = h_call(&H, line);
 	free(line);
-	assert_int_equal(h_code(r), 0);
-	a = cJSON_GetObjectItemCaseSensitive(
-	    cJSON_GetObjectItemCaseSensitive(r, "result"), "vp");
-	i = 0;
-	cJSON_ArrayForEach(e, a)
-	{
-		assert_same_bits(vp[i], e->valuedouble, i);
-		i++;
-	}
-	assert_int_equal(i, N);
+	assert_echo(r, "vp", vp, N);
 	cJSON_Delete(r);
 }
 
@@ -219,7 +226,6 @@ static void test_echo_through_units(void **state)
 	uint64_t s = 99;
 	char *line;
 	cJSON *r;
-	const cJSON *a, *e;
 	size_t i;
 
 	(void)state;
@@ -232,16 +238,7 @@ static void test_echo_through_units(void **state)
 	line = convert_line(vp, N, "\"units\":{\"velocity\":\"ft/s\"},");
 	r = h_call(&H, line);
 	free(line);
-	assert_int_equal(h_code(r), 0);
-	a = cJSON_GetObjectItemCaseSensitive(
-	    cJSON_GetObjectItemCaseSensitive(r, "result"), "vp");
-	i = 0;
-	cJSON_ArrayForEach(e, a)
-	{
-		assert_same_bits(vp[i], e->valuedouble, i);
-		i++;
-	}
-	assert_int_equal(i, N);
+	assert_echo(r, "vp", vp, N);
 	cJSON_Delete(r);
 
 	r = h_call(&H, "{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
@@ -251,15 +248,7 @@ static void test_echo_through_units(void **state)
 	assert_int_equal(h_code(r), 0);
 	{
 		static const double want[] = {0, 10, 20, 30, 33.3, 41.7};
-		a = cJSON_GetObjectItemCaseSensitive(
-		    cJSON_GetObjectItemCaseSensitive(r, "result"), "angle");
-		i = 0;
-		cJSON_ArrayForEach(e, a)
-		{
-			assert_same_bits(want[i], e->valuedouble, i);
-			i++;
-		}
-		assert_int_equal(i, 6);
+		assert_echo(r, "angle", want, 6);
 	}
 	cJSON_Delete(r);
 }

@@ -53,6 +53,8 @@ function(rw_c_tests dir)
     set(exe ${dir}_${name})
     add_executable(${exe} ${src})
     target_include_directories(${exe} PRIVATE ${PROJECT_SOURCE_DIR}/tests)
+    target_compile_definitions(${exe} PRIVATE
+      RW_SOURCE_DIR="${PROJECT_SOURCE_DIR}")
     target_link_libraries(${exe} PRIVATE PkgConfig::CMOCKA PkgConfig::GSL rwcore)
     foreach(lib rwnum rwproto rwsrv rwcli)
       if(TARGET ${lib})

@@ -207,6 +207,7 @@ static int cov_parse(proto_call *c, const cJSON *v, const char *path, void *dst)
 {
 	proto_pres_cov *cv = dst;
 	const cJSON *row, *e;
+	proto_arr_iter it;
 	int i = 0, j;
 
 	if (!cJSON_IsArray(v) || proto__arr_size(v) != 3)
@@ -223,7 +224,8 @@ static int cov_parse(proto_call *c, const cJSON *v, const char *path, void *dst)
 			    "or null",
 			    i);
 		j = 0;
-		cJSON_ArrayForEach(e, row)
+		/* a row of long numbers may come from the pre-pass */
+		PROTO_ARR_FOREACH(e, it, row)
 		{
 			if (cJSON_IsNull(e))
 				cv->v[i][j] = NAN;

@@ -479,6 +479,25 @@ static void handle_one(proto_session *s, const cJSON *req, const char *line,
 		out->len = mark; /* notifications are run, not answered */
 }
 
+/* cJSON's parse of the whole line (trailing blanks allowed); NULL when
+ * it is not one JSON value, *end at the byte cJSON stopped. */
+static cJSON *parse_line(const char *line, size_t len, const char **end)
+{
+	cJSON *root;
+
+	*end = NULL;
+	root = cJSON_ParseWithLengthOpts(line, len, end, 0);
+	if (root) {
+		while (*end < line + len && (**end == ' ' || **end == '\t'))
+			(*end)++;
+		if (*end != line + len) {
+			cJSON_Delete(root);
+			root = NULL;
+		}
+	}
+	return root;
+}
+
 int rw_proto_handle(proto_session *s, const char *line, size_t len,
                     proto_buf *out)
 {
@@ -511,29 +530,27 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 		                 "out of memory reading the request");
 		return out->oom ? -1 : 0;
 	}
-	if (arrs.text) {
+	root = arrs.text ? parse_line(arrs.text, arrs.len, &end)
+	                 : parse_line(line, len, &end);
+	if (arrs.text && proto__inarr_attach(root, &arrs)) {
+		/* not JSON as sent: cJSON on the line itself names the
+		 * byte where the client wrote the error */
+		cJSON_Delete(root);
+		proto__inarr_free(&arrs);
+		root = parse_line(line, len, &end);
+	} else if (arrs.text) {
 		line = arrs.text;
 		len = arrs.len;
-	}
-	root = cJSON_ParseWithLengthOpts(line, len, &end, 0);
-	if (root) {
-		while (end < line + len && (*end == ' ' || *end == '\t'))
-			end++;
-		if (end != line + len) {
-			cJSON_Delete(root);
-			root = NULL;
-		}
 	}
 	if (!root) {
 		size_t off = end && end >= line ? (size_t)(end - line) : 0;
 		snprintf(why, sizeof why, "not valid JSON near byte offset %zu",
-		         proto__inarr_orig_offset(&arrs, off));
+		         off);
 		proto__inarr_free(&arrs);
 		proto__count_request(ctx, 0);
 		proto_error_line(ctx, out, PROTO_PARSE_ERROR, NULL, why);
 		return out->oom ? -1 : 0;
 	}
-	proto__inarr_attach(root, &arrs);
 	dup = find_duplicate_key(root, &oom);
 	if (dup || oom) {
 		if (dup)
@@ -718,11 +735,14 @@ size_t rw_proto_cost(proto_session *s, const char *line, size_t len)
 		root = cJSON_ParseWithLengthOpts(arrs.text, arrs.len, NULL, 0);
 	else
 		root = cJSON_ParseWithLengthOpts(line, len, NULL, 0);
+	if (proto__inarr_attach(root, &arrs)) {
+		cJSON_Delete(root);
+		root = NULL; /* not JSON as sent */
+	}
 	if (!root) {
 		proto__inarr_free(&arrs);
 		return 1;
 	}
-	proto__inarr_attach(root, &arrs);
 	if (cJSON_IsArray(root)) {
 		cJSON_ArrayForEach(e, root)
 		{

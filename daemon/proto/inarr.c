@@ -14,7 +14,10 @@
  * "numeric arrays from the pre-pass"). An array the fast parse refuses
  * (bad syntax, a number beyond the double range, a string among the
  * numbers) is left as text, so cJSON and the parameter code report it
- * exactly as before. */
+ * exactly as before. A line whose compacted copy cJSON refuses, or in
+ * which a placeholder stands where no value may (an object key: the
+ * line is not JSON), is parsed again as it was sent, so its error names
+ * the byte where the client wrote it. */
 #include <limits.h>
 #include <math.h>
 #include <stdio.h>
@@ -178,14 +181,10 @@ int proto__inarr_scan(proto_ctx *ctx, const char *line, size_t len,
 			}
 			t->arr[t->n].v = v;
 			t->arr[t->n].n = n;
-			t->arr[t->n].orig_at = i;
-			t->arr[t->n].orig_len = end;
 			phn = snprintf(ph, sizeof ph, "\"%c%zu\"",
 			               PLACEHOLDER_BYTE, t->n);
 			memcpy(t->text + out, line + copied, i - copied);
 			out += i - copied;
-			t->arr[t->n].at = out;
-			t->arr[t->n].len = (size_t)phn;
 			memcpy(t->text + out, ph, (size_t)phn);
 			out += (size_t)phn;
 			t->n++;
@@ -217,26 +216,12 @@ void proto__inarr_free(proto_inarr *t)
 	memset(t, 0, sizeof *t);
 }
 
-size_t proto__inarr_orig_offset(const proto_inarr *t, size_t off)
+/* Turns the placeholder strings under v into numeric array nodes;
+ * returns how many. */
+static size_t attach(cJSON *v, proto_inarr *t)
 {
-	size_t shift = 0;
+	size_t n = 0;
 
-	for (size_t k = 0; k < t->n; k++) {
-		const proto_numarr *a = &t->arr[k];
-		/* cJSON parses a placeholder whole; an offset inside one is
-		 * its clamp to the last byte of a line that ends early */
-		if (off > a->at && off < a->at + a->len)
-			return a->orig_at + a->orig_len - 1;
-		if (off < a->at + a->len)
-			break;
-		shift += a->orig_len - a->len;
-	}
-	return off + shift;
-}
-
-/* Turns the placeholder strings under v into numeric array nodes. */
-static void attach(cJSON *v, proto_inarr *t)
-{
 	for (cJSON *e = v->child; e; e = e->next) {
 		if (cJSON_IsString(e) && e->valuestring &&
 		    e->valuestring[0] == PLACEHOLDER_BYTE) {
@@ -246,16 +231,19 @@ static void attach(cJSON *v, proto_inarr *t)
 			e->valuestring = (char *)&t->arr[k];
 			e->type =
 			    cJSON_Array | cJSON_IsReference | PROTO_NUMARR_BIT;
+			n++;
 		} else if (e->child) {
-			attach(e, t);
+			n += attach(e, t);
 		}
 	}
+	return n;
 }
 
-void proto__inarr_attach(cJSON *root, proto_inarr *t)
+int proto__inarr_attach(cJSON *root, proto_inarr *t)
 {
-	if (t->n && root)
-		attach(root, t);
+	if (!t->n)
+		return 0;
+	return root && attach(root, t) == t->n ? 0 : -1;
 }
 
 /* ---- reading --------------------------------------------------------- */

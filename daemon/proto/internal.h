@@ -663,8 +663,6 @@ void proto__parallel(proto_ctx *ctx, size_t nchunks,
 typedef struct proto_numarr {
 	double *v; /* n values, NaN for null; NULL in a count-only scan */
 	size_t n;
-	size_t at, len;           /* the placeholder in the compacted text */
-	size_t orig_at, orig_len; /* the array in the line */
 } proto_numarr;
 typedef struct proto_inarr {
 	proto_numarr *arr;
@@ -681,11 +679,10 @@ int proto__inarr_scan(proto_ctx *ctx, const char *line, size_t len,
                       int count_only, proto_inarr *t);
 /* Tests only: nonzero turns the pre-pass off (inarr.c). */
 extern int proto__inarr_off;
-/* After cJSON parsed t->text: placeholders become numeric array nodes. */
-void proto__inarr_attach(cJSON *root, proto_inarr *t);
+/* After cJSON parsed t->text: placeholders become numeric array nodes;
+ * -1 when one of them was not a value (the line is not JSON as sent). */
+int proto__inarr_attach(cJSON *root, proto_inarr *t);
 void proto__inarr_free(proto_inarr *t);
-/* A byte offset in t->text as the offset in the original line. */
-size_t proto__inarr_orig_offset(const proto_inarr *t, size_t off);
 /* The doubles of a numeric array node, or NULL for any other node. */
 const proto_numarr *proto__numarr(const cJSON *v);
 /* Elements of an array (either kind) or members of an object; 0 else. */

@@ -786,6 +786,47 @@ static void test_covariance_rows(void **state)
 	free(a);
 }
 
+/* A numeric array where JSON allows no value (an object key, a member
+ * without a key) is not JSON: the answer is the parse error cJSON gives
+ * for the line as sent, at the byte the client wrote, never a parameter
+ * named by the placeholder (its 0xFF byte is not UTF-8). Found by the
+ * fuzzer. */
+static void test_array_where_no_value_may(void **state)
+{
+	text a = {0}, b = {0}, c = {0};
+	char *r;
+	(void)state;
+
+	put(&a, HEAD "\"elastic.convert\",\"params\":{");
+	put_array(&a, "%s%.17g", 20, 3000, 1);
+	put(&a, ":1}}");
+	put(&b, HEAD "\"elastic.convert\",\"params\":{\"vs\":1500,");
+	put_array(&b, "%s%.17g", 20, 3000, 1);
+	put(&b, "}}");
+	/* the fuzzer's line: an array for the params' first key, cut */
+	put(&c, HEAD "\"session.set\",\"params\":{");
+	put_array(&c, "%s%.17g", 24, 2.1, 0.01);
+	put(&c, "}00000002],\"vs\":1600}}");
+	/* cJSON stops at the '[' where a key must start, or one past it;
+	 * the old answer was past the whole array, or a parameter named
+	 * by the placeholder */
+	for (int k = 0; k < 3; k++) {
+		const char *line = k == 0 ? a.s : k == 1 ? b.s : c.s;
+		size_t key = (size_t)(strchr(line, '[') - line), off = 0;
+		r = same1(line);
+		assert_int_equal(sscanf(reason_of(r),
+		                        "not valid JSON near byte offset %zu",
+		                        &off),
+		                 1);
+		assert_in_range(off, key, key + 1);
+		assert_null(strchr(r, '\xff'));
+		free(r);
+	}
+	free(a.s);
+	free(b.s);
+	free(c.s);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -803,6 +844,7 @@ int main(void)
 	    cmocka_unit_test(test_cost),
 	    cmocka_unit_test(test_demo_requests_padded),
 	    cmocka_unit_test(test_covariance_rows),
+	    cmocka_unit_test(test_array_where_no_value_may),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

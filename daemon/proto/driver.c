@@ -9,6 +9,7 @@
  * for every method: output selection, warnings, and uncertainty
  * (uncertainty.c). */
 #include <math.h>
+#include <stddef.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -110,12 +111,26 @@ static int parse_fields(proto_call *c)
 
 /* ---- running the kernels ------------------------------------------------ */
 
+/* The cells a request keeps: only the members it writes (its `fields`,
+ * the outputs whose `when` holds, the QC flags), 8 bytes each, packed in
+ * a row of their own. The kernel fills a full cell row in per-chunk
+ * scratch; the kept members are copied out. A heavy reflect.series keeps
+ * 24 of the 180 bytes of each interface x angle until its columns are
+ * written. */
+typedef struct packed {
+	size_t n;      /* kept members (0: the full rows are kept) */
+	size_t size;   /* bytes of a packed row: 8 x n */
+	size_t *from;  /* offset of each kept member in the full row */
+	ptrdiff_t *at; /* per output: its offset in the packed row, -1 */
+} packed;
+
 typedef struct run {
 	proto_call *c;
 	const proto_method *m;
 	const void *args;
 	const proto_shape *shape;
 	unsigned char *rows, *cells[2];
+	packed pk[2];
 	size_t chunk; /* samples per chunk */
 	int failed;   /* a scratch allocation failed */
 } run;
@@ -142,6 +157,7 @@ static void run_chunk(void *arg, size_t chunk)
 	run *r = arg;
 	const proto_method *m = r->m;
 	size_t lo = chunk * r->chunk, hi = lo + r->chunk;
+	unsigned char *scratch[2] = {NULL, NULL};
 	void *ws = NULL;
 
 	if (hi > r->shape->n)
@@ -154,6 +170,12 @@ static void run_chunk(void *arg, size_t chunk)
 			return;
 		}
 	}
+	for (int k = 0; k < 2; k++)
+		if (r->pk[k].n &&
+		    !(scratch[k] = malloc(m->cells[k].row_size))) {
+			r->failed = 1;
+			goto out;
+		}
 	for (size_t i = lo; i < hi; i++) {
 		unsigned char *row = r->rows + i * m->row_size;
 		uint64_t *qc = (uint64_t *)(row + m->qc_offset);
@@ -162,25 +184,78 @@ static void run_chunk(void *arg, size_t chunk)
 		m->kernel(r->args, i, row, qc, ws);
 		for (int k = 0; k < 2; k++) {
 			const proto_cells *cs = &m->cells[k];
+			const packed *pk = &r->pk[k];
 			size_t mm = r->shape->m[k];
 			if (!cs->kernel)
 				continue;
 			for (size_t j = 0; j < mm; j++) {
 				unsigned char *crow =
-				    r->cells[k] + (i * mm + j) * cs->row_size;
+				    pk->n ? scratch[k]
+				          : r->cells[k] +
+				                (i * mm + j) * cs->row_size;
 				uint64_t *cq =
 				    (uint64_t *)(crow + cs->qc_offset);
 				row_clear(m, D_CELL + k, crow);
 				*cq = 0;
 				cs->kernel(r->args, i, j, row, crow, cq, ws);
+				if (pk->n) {
+					unsigned char *to =
+					    r->cells[k] +
+					    (i * mm + j) * pk->size;
+					for (size_t q = 0; q < pk->n; q++)
+						memcpy(to + 8 * q,
+						       crow + pk->from[q], 8);
+				}
 			}
 		}
 	}
+out:
+	free(scratch[0]);
+	free(scratch[1]);
 	if (ws) {
 		if (m->ws_free)
 			m->ws_free(ws);
 		free(ws);
 	}
+}
+
+/* Chooses the members cell set k keeps (see `packed`); leaves pk->n 0,
+ * the full rows, when a member is not an 8-byte number or flag set or
+ * packing saves nothing. */
+static int choose_packed(proto_call *c, const proto_method *m, const void *args,
+                         int k, packed *pk)
+{
+	size_t nout = 0, n = 0;
+
+	memset(pk, 0, sizeof *pk);
+	for (const proto_output *o = m->outputs; o->name; o++)
+		nout++;
+	pk->at = proto_alloc(c, nout * sizeof *pk->at);
+	pk->from = proto_alloc(c, (nout ? nout : 1) * sizeof *pk->from);
+	if (!pk->at || !pk->from)
+		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
+		                  "out of memory");
+	for (size_t i = 0; i < nout; i++) {
+		const proto_output *o = &m->outputs[i];
+		pk->at[i] = -1;
+		/* a vector (the angles) is written from the arguments */
+		if (o->dim != D_CELL + k || o->type == PO_VEC ||
+		    (o->when && !o->when(args)))
+			continue;
+		if (o->type != PO_NUM && o->type != PO_FLAGS) {
+			pk->n = 0;
+			return 0;
+		}
+		if (o->type == PO_NUM && !proto_w_selected(c, o->name))
+			continue;
+		pk->at[i] = (ptrdiff_t)(8 * n);
+		pk->from[n++] = o->offset;
+	}
+	if (8 * n >= m->cells[k].row_size)
+		return 0;
+	pk->n = n;
+	pk->size = 8 * n;
+	return 0;
 }
 
 /* Runs every sample, on the worker threads when the work is large. */
@@ -217,9 +292,18 @@ static int run_samples(run *r)
 static void write_grid(proto_call *c, const proto_method *m, const run *r,
                        const proto_output *o, int k)
 {
+	const packed *pk = &r->pk[k];
+	size_t size = m->cells[k].row_size, offset = o->offset;
+
+	if (pk->n) {
+		ptrdiff_t at = pk->at[o - m->outputs];
+		if (at < 0)
+			return; /* not written: `fields` leaves it out */
+		size = pk->size;
+		offset = (size_t)at;
+	}
 	proto__w_layout(c, o->name, o->kind, o->type == PO_FLAGS, r->cells[k],
-	                m->cells[k].row_size, o->offset, r->shape, k,
-	                m->cells[k].cell_major);
+	                size, offset, r->shape, k, m->cells[k].cell_major);
 }
 
 static void write_strings(proto_call *c, const char *key,
@@ -356,12 +440,14 @@ int proto__run_method(proto_call *c)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
 		                  "out of memory for %zu samples", sh.n);
 	for (int k = 0; k < 2; k++) {
-		size_t cells = sh.n * sh.m[k];
+		size_t cells = sh.n * sh.m[k], size;
 		if (!m->cells[k].kernel)
 			continue;
-		r.cells[k] = cells <= SIZE_MAX / m->cells[k].row_size
-		                 ? proto_alloc(c, (cells ? cells : 1) *
-		                                      m->cells[k].row_size)
+		if (choose_packed(c, m, args, k, &r.pk[k]))
+			return -1;
+		size = r.pk[k].n ? r.pk[k].size : m->cells[k].row_size;
+		r.cells[k] = cells <= SIZE_MAX / size
+		                 ? proto_alloc(c, (cells ? cells : 1) * size)
 		                 : NULL;
 		if (!r.cells[k])
 			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,

@@ -736,6 +736,47 @@ static void test_series(void **state)
 	cJSON_Delete(r);
 }
 
+/* `fields` over per-cell outputs: the cells keep only the selected
+ * members (driver.c packs them), and each is the full answer's value,
+ * null and QC flags included; a member left out is not written. */
+static void test_series_fields(void **state)
+{
+	harness *h = *state;
+	const char *const kept[] = {"rpp_im", "rpp_shuey3", "qc"};
+	cJSON *all, *some;
+
+#define SERIES_IN                                                              \
+	"\"vp\":[2400,2200,2600,null,2500],\"vs\":[1000,1300,1200,1200,1100]," \
+	"\"rho\":[2.25,2.0,2.3,2.3,2.2],\"angle\":[0,15,30,45],"               \
+	"\"methods\":[\"zoeppritz\",\"shuey3\",\"aki_richards\"]"
+	all = ok_call(h, REQ("reflect.series", "{" SERIES_IN "}"));
+	some = ok_call(h, REQ("reflect.series",
+	                      "{" SERIES_IN ",\"fields\":[\"rpp_shuey3\","
+	                      "\"rpp_im\"]}"));
+#undef SERIES_IN
+	for (size_t f = 0; f < sizeof kept / sizeof *kept; f++)
+		for (int j = 0; j < 4; j++)
+			for (int i = 0; i < 4; i++) {
+				const cJSON *a = at(all, kept[f], j, i);
+				const cJSON *b = at(some, kept[f], j, i);
+				if (cJSON_IsNull(a)) {
+					assert_true(cJSON_IsNull(b));
+					continue;
+				}
+				assert_true(cJSON_IsNumber(b));
+				assert_true(a->valuedouble == b->valuedouble);
+			}
+	/* the interface with the null sample is null here too */
+	assert_true(is_null(some, "rpp_im", 1, 2));
+	assert_non_null(h_result(all, "rpp_re"));
+	assert_non_null(h_result(all, "rpp_aki_richards"));
+	assert_null(h_result(some, "rpp_re"));
+	assert_null(h_result(some, "rpp_aki_richards"));
+	assert_null(h_result(some, "intercept"));
+	cJSON_Delete(some);
+	cJSON_Delete(all);
+}
+
 static void test_series_errors(void **state)
 {
 	harness *h = *state;
@@ -1098,6 +1139,7 @@ int main(void)
 	    T(test_avo_classes_fluid_subst),
 	    T(test_avo_class_iv),
 	    T(test_series),
+	    T(test_series_fields),
 	    T(test_series_errors),
 	    T(test_impedance),
 	    T(test_impedance_errors),

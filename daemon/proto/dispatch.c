@@ -498,8 +498,12 @@ static cJSON *parse_line(const char *line, size_t len, const char **end)
 	return root;
 }
 
-int rw_proto_handle(proto_session *s, const char *line, size_t len,
-                    proto_buf *out)
+static size_t cost_of(proto_session *s, const cJSON *root);
+
+/* rw_proto_handle, and rw_proto_handle_light when offload is nonzero: a
+ * line that parses and costs at least offload is left unanswered (1). */
+static int handle_line(proto_session *s, const char *line, size_t len,
+                       proto_buf *out, size_t offload)
 {
 	proto_ctx *ctx = s->ctx;
 	const char *end = NULL, *dup;
@@ -568,6 +572,11 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 		proto__inarr_free(&arrs);
 		return out->oom ? -1 : 0;
 	}
+	if (offload && cost_of(s, root) >= offload) {
+		cJSON_Delete(root);
+		proto__inarr_free(&arrs);
+		return 1;
+	}
 	if (cJSON_IsArray(root)) {
 		size_t n = (size_t)cJSON_GetArraySize(root);
 		const cJSON *e;
@@ -621,6 +630,36 @@ int rw_proto_handle(proto_session *s, const char *line, size_t len,
 	cJSON_Delete(root);
 	proto__inarr_free(&arrs);
 	return out->oom ? -1 : 0;
+}
+
+int rw_proto_handle(proto_session *s, const char *line, size_t len,
+                    proto_buf *out)
+{
+	return handle_line(s, line, len, out, 0);
+}
+
+int rw_proto_handle_light(proto_session *s, const char *line, size_t len,
+                          size_t offload, proto_buf *out)
+{
+	proto_inarr arrs;
+
+	if (!offload)
+		return rw_proto_handle(s, line, len, out);
+	/* Large arrays: counted without parsing them (rw_proto_cost), so a
+	 * heavy line goes to the pool having cost little on the loop. The
+	 * rest, most lines, are parsed once for the estimate and the
+	 * answer. */
+	if (proto__inarr_scan(NULL, line, len, 1, &arrs))
+		return rw_proto_cost(s, line, len) >= offload
+		           ? 1
+		           : rw_proto_handle(s, line, len, out);
+	if (arrs.n) {
+		proto__inarr_free(&arrs);
+		if (rw_proto_cost(s, line, len) >= offload)
+			return 1;
+		return rw_proto_handle(s, line, len, out);
+	}
+	return handle_line(s, line, len, out, offload);
 }
 
 /* ---- work estimate ------------------------------------------------------ */
@@ -725,8 +764,7 @@ size_t rw_proto_cost(proto_session *s, const char *line, size_t len)
 {
 	proto_inarr arrs;
 	cJSON *root;
-	size_t work = 0;
-	const cJSON *e;
+	size_t work;
 
 	/* large arrays are only counted: cJSON parses what is left */
 	if (proto__inarr_scan(NULL, line, len, 1, &arrs))
@@ -743,6 +781,17 @@ size_t rw_proto_cost(proto_session *s, const char *line, size_t len)
 		proto__inarr_free(&arrs);
 		return 1;
 	}
+	work = cost_of(s, root);
+	cJSON_Delete(root);
+	proto__inarr_free(&arrs);
+	return work;
+}
+
+static size_t cost_of(proto_session *s, const cJSON *root)
+{
+	size_t work = 0;
+	const cJSON *e;
+
 	if (cJSON_IsArray(root)) {
 		cJSON_ArrayForEach(e, root)
 		{
@@ -752,7 +801,5 @@ size_t rw_proto_cost(proto_session *s, const char *line, size_t len)
 	} else {
 		work = request_cost(s, root);
 	}
-	cJSON_Delete(root);
-	proto__inarr_free(&arrs);
 	return work ? work : 1;
 }

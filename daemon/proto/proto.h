@@ -124,6 +124,16 @@ void proto_session_free(proto_session *s);
 int rw_proto_handle(proto_session *s, const char *line, size_t len,
                     proto_buf *out);
 
+/* rw_proto_handle for the event loop: answers the line when its work
+ * (rw_proto_cost) is below `offload` and returns 0 (-1 when out of
+ * memory), or leaves `out` alone and returns 1 so the caller can run the
+ * line elsewhere (rw_proto_handle on a worker thread); offload 0 answers
+ * every line. A line without large arrays is parsed once for both; lines
+ * that do not parse are answered here. The same threading rule as
+ * rw_proto_cost. */
+int rw_proto_handle_light(proto_session *s, const char *line, size_t len,
+                          size_t offload, proto_buf *out);
+
 /* Estimates the work of a request line in sample evaluations (samples x
  * angles and other broadcast dimensions, over every request of a batch,
  * counting parameters the session supplies), without running it, so the

@@ -57,11 +57,15 @@ static void dispatch_line(conn *c, const char *line, size_t len)
 {
 	srv *s = c->srv;
 	const srv_config *cfg = s->cfg;
-	int heavy = cfg->offload_bytes && len >= cfg->offload_bytes;
+	int heavy = cfg->offload_bytes && len >= cfg->offload_bytes, rc = 0;
 
-	if (!heavy && cfg->offload_work)
-		heavy =
-		    rw_proto_cost(c->session, line, len) >= cfg->offload_work;
+	if (!heavy) {
+		rc = cfg->offload_work
+		         ? rw_proto_handle_light(c->session, line, len,
+		                                 cfg->offload_work, &c->pending)
+		         : rw_proto_handle(c->session, line, len, &c->pending);
+		heavy = rc == 1;
+	}
 	if (heavy) {
 		if (srv__pool_submit(c, line, len) == 0)
 			return;
@@ -70,7 +74,7 @@ static void dispatch_line(conn *c, const char *line, size_t len)
 		                 "out of memory: cannot take the request");
 		return;
 	}
-	if (rw_proto_handle(c->session, line, len, &c->pending)) {
+	if (rc) {
 		c->pending.oom = 0;
 		proto_error_line(s->ctx, &c->pending, PROTO_INTERNAL_ERROR,
 		                 NULL, "out of memory building the response");

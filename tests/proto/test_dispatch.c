@@ -446,6 +446,93 @@ static void test_cost(void **state)
 	}
 }
 
+/* rw_proto_handle_light answers what costs less than its threshold with
+ * the same bytes as rw_proto_handle (each on a fresh session), and
+ * leaves the rest unanswered (1, nothing written): scalar lines, a batch,
+ * lines that are not JSON or not UTF-8, a line with large arrays, and
+ * short lines made heavy by draws or by an inherited session default. */
+static void test_handle_light(void **state)
+{
+	char big[4096];
+	size_t used;
+	const char *lines[] = {
+	    "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"elastic.convert\","
+	    "\"params\":{\"rho\":2.3,\"vp\":3000,\"vs\":1500}}",
+	    "[{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"elastic.convert\","
+	    "\"params\":{\"rho\":2.3,\"vp\":3000,\"vs\":1500}},{\"jsonrpc\":"
+	    "\"2.0\",\"method\":\"service.ping\"},{\"jsonrpc\":\"2.0\",\"id\":"
+	    "3,\"method\":\"nope\"}]",
+	    "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\"",
+	    "{\"jsonrpc\":\"2.0\",\"id\":\"\xc3\x28\"}",
+	    "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"elastic.convert\","
+	    "\"params\":{\"rho\":2.3,\"vp\":3000,\"vs\":1500,\"bogus\":1}}",
+	    big,
+	};
+	const char *heavy[] = {
+	    "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"elastic.convert\","
+	    "\"params\":{\"rho\":{\"dist\":\"normal\",\"mean\":2.3,\"sd\":0.1},"
+	    "\"vp\":3000,\"vs\":1500,\"uncertainty\":{\"draws\":5000}}}",
+	    big,
+	};
+	(void)state;
+
+	/* 200 samples: above the pre-pass threshold, below 1000 of work */
+	used = (size_t)snprintf(big, sizeof big,
+	                        "{\"jsonrpc\":\"2.0\",\"id\":9,\"method\":"
+	                        "\"elastic.convert\",\"params\":{\"rho\":2.3,"
+	                        "\"vs\":1500,\"vp\":[3000");
+	for (int i = 1; i < 200; i++)
+		used += (size_t)snprintf(big + used, sizeof big - used, ",%d",
+		                         3000 + i);
+	snprintf(big + used, sizeof big - used, "]}}");
+	for (size_t k = 0; k < sizeof lines / sizeof *lines; k++) {
+		harness a, b;
+		h_init(&a);
+		h_init(&b);
+		rw_proto_handle(a.s, lines[k], strlen(lines[k]), &a.out);
+		assert_int_equal(rw_proto_handle_light(b.s, lines[k],
+		                                       strlen(lines[k]), 1000,
+		                                       &b.out),
+		                 0);
+		assert_true(a.out.len > 0);
+		assert_int_equal(a.out.len, b.out.len);
+		assert_memory_equal(a.out.data, b.out.data, a.out.len);
+		h_free(&a);
+		h_free(&b);
+	}
+	for (size_t k = 0; k < sizeof heavy / sizeof *heavy; k++) {
+		harness b;
+		h_init(&b);
+		assert_int_equal(rw_proto_handle_light(b.s, heavy[k],
+		                                       strlen(heavy[k]),
+		                                       k ? 100 : 1000, &b.out),
+		                 1);
+		assert_int_equal(b.out.len, 0);
+		h_free(&b);
+	}
+	/* an inherited 5-sample default makes a scalar line cost 5 */
+	{
+		harness b;
+		const char *inherit =
+		    "{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
+		    "\"elastic.convert\",\"params\":{\"vp\":3000,\"vs\":1500}}";
+		h_init(&b);
+		h_raw(&b, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+		          "\"session.set\",\"params\":{\"rho\":[2.1,2.2,2.3,"
+		          "2.4,2.5]}}");
+		b.out.len = 0;
+		assert_int_equal(rw_proto_handle_light(
+		                     b.s, inherit, strlen(inherit), 5, &b.out),
+		                 1);
+		assert_int_equal(b.out.len, 0);
+		assert_int_equal(rw_proto_handle_light(
+		                     b.s, inherit, strlen(inherit), 6, &b.out),
+		                 0);
+		assert_non_null(strstr(b.out.data, "\"n\":5"));
+		h_free(&b);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -459,6 +546,7 @@ int main(void)
 	    cmocka_unit_test_setup_teardown(test_service_info, setup, teardown),
 	    cmocka_unit_test_setup_teardown(test_session, setup, teardown),
 	    cmocka_unit_test_setup_teardown(test_cost, setup, teardown),
+	    cmocka_unit_test(test_handle_light),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

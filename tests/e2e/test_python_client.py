@@ -100,6 +100,19 @@ with rockwire.spawn() as rw:
     names = rw.qc_names(r["qc"][1])
     t.ok(names == ["input_missing"], "qc_names decodes by the legend: %r"
          % names)
+    # What is not a rectangle of numbers stays as the daemon sent it.
+    from rockwire import _schema
+    conv = _schema.to_numpy(
+        {"a": [1, 2.5, None], "b": [True, 1.0], "c": ["I", None],
+         "d": [[1, None], [2, 3]], "e": [[1, 2], [3]], "f": [1, "2"]},
+        {}, np)
+    t.ok(conv["a"].dtype == np.float64 and np.isnan(conv["a"][2]) and
+         conv["a"][1] == 2.5, "numbers and nulls: float64, NaN for null")
+    t.ok(conv["b"] == [True, 1.0] and conv["c"] == ["I", None] and
+         conv["e"] == [[1, 2], [3]] and conv["f"] == [1, "2"],
+         "booleans, strings, ragged rows and a quoted number stay lists")
+    t.ok(conv["d"].shape == (2, 2) and np.isnan(conv["d"][0, 1]),
+         "a rectangle with nulls: 2-D float64")
     # numpy arrays in, NaN as a missing sample.
     r2 = rw.elastic.convert(rho=np.array([2.3, 2.4, 2.2]),
                             vp=np.array([3000, 3100.5, 2900]),

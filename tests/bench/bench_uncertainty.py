@@ -20,8 +20,10 @@ Cases (both with sensitivities, percentiles 10/50/90):
 numpy draws with plain Monte Carlo (the daemon's Latin hypercube costs
 no more), evaluates over a (draws, samples[, angles]) array, and takes
 the mean, sd, percentiles and Spearman rank correlations along the draw
-axis. Each figure is the median of --reps runs with min and max; the
-ratio numpy / daemon is the speed-up, as is 1 core / 2 cores. Use a
+axis. The three are timed back to back in each of --reps rounds, the
+order reversed every other round; each time is the median of the rounds
+with min and max, and each ratio (numpy / daemon, the speed-up, and 1
+core / 2 cores) the median of the rounds' own ratios. Use a
 release build (a sanitizer build says nothing)."""
 import argparse
 import json
@@ -183,13 +185,27 @@ def avo_numpy(n, draws):
 
 # ---- running ------------------------------------------------------------
 
-def timed(fn, reps):
-    ts = []
-    for _ in range(reps):
-        t = time.perf_counter()
-        fn()
-        ts.append(time.perf_counter() - t)
-    return statistics.median(ts), min(ts), max(ts)
+def interleaved(fns, reps):
+    """Times numpy, the 2-core daemon and the 1-core daemon back to back
+    in each of reps rounds, the order reversed every other round so the
+    machine's drift falls on all three alike. Returns the three (median,
+    min, max) and, over the rounds, (median, min, max) of numpy / 2 cores
+    and of 1 core / 2 cores."""
+    ts = [[] for _ in fns]
+    for r in range(reps):
+        order = range(len(fns)) if r % 2 == 0 else reversed(range(len(fns)))
+        for k in order:
+            t = time.perf_counter()
+            fns[k]()
+            ts[k].append(time.perf_counter() - t)
+
+    def stat(v):
+        return statistics.median(v), min(v), max(v)
+
+    r_np = [a / b for a, b in zip(ts[0], ts[1])]
+    r_cores = [a / b for a, b in zip(ts[2], ts[1])]
+    return (stat(ts[0]), stat(ts[1]), stat(ts[2]), stat(r_np),
+            stat(r_cores))
 
 
 def fmt(t):
@@ -217,9 +233,9 @@ def main():
             line = mk(n, d, 1)
             res = two.call(line)  # warm up, and a sanity check below
             one.call(line)
-            tn = timed(lambda: ref(n, d), a.reps)
-            t2 = timed(lambda: two.call(line), a.reps)
-            t1 = timed(lambda: one.call(line), a.reps)
+            tn, t2, t1, r_np, r_cores = interleaved(
+                [lambda: ref(n, d), lambda: two.call(line),
+                 lambda: one.call(line)], a.reps)
             # the two Monte Carlo runs agree within sampling error: the
             # P50's standard error is about 1.2533 sd / sqrt(N) for a
             # near-normal output (the asymptotic error of a sample median)
@@ -231,10 +247,11 @@ def main():
                                    np.maximum(se, 1e-12)))
             print("%-15s numpy %s  daemon 2 cores %s  1 core %s"
                   % (name, fmt(tn), fmt(t2), fmt(t1)))
-            print("%-15s numpy/daemon %.1fx (target >= 10x)   "
-                  "1 core/2 cores %.2fx (target >= 1.6x)   "
-                  "P50s agree within %.1f standard errors"
-                  % ("", tn[0] / t2[0], t1[0] / t2[0], diff))
+            print("%-15s numpy/daemon %.1fx [%.1f, %.1f] (target >= 10x)"
+                  "   1 core/2 cores %.2fx [%.2f, %.2f] (target >= 1.6x)"
+                  "   P50s agree within %.1f standard errors"
+                  % ("", r_np[0], r_np[1], r_np[2], r_cores[0], r_cores[1],
+                     r_cores[2], diff))
     finally:
         two.close()
         one.close()

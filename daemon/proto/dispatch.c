@@ -649,17 +649,12 @@ int rw_proto_handle_light(proto_session *s, const char *line, size_t len,
 	 * heavy line goes to the pool having cost little on the loop. The
 	 * rest, most lines, are parsed once for the estimate and the
 	 * answer. */
-	if (proto__inarr_scan(NULL, line, len, 1, &arrs))
-		return rw_proto_cost(s, line, len) >= offload
-		           ? 1
-		           : rw_proto_handle(s, line, len, out);
-	if (arrs.n) {
-		proto__inarr_free(&arrs);
-		if (rw_proto_cost(s, line, len) >= offload)
-			return 1;
-		return rw_proto_handle(s, line, len, out);
-	}
-	return handle_line(s, line, len, out, offload);
+	if (proto__inarr_scan(NULL, line, len, 1, &arrs) == 0 && !arrs.n)
+		return handle_line(s, line, len, out, offload);
+	proto__inarr_free(&arrs);
+	return rw_proto_cost(s, line, len) >= offload
+	           ? 1
+	           : rw_proto_handle(s, line, len, out);
 }
 
 /* ---- work estimate ------------------------------------------------------ */

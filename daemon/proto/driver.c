@@ -114,9 +114,9 @@ static int parse_fields(proto_call *c)
 /* The cells a request keeps: only the members it writes (its `fields`,
  * the outputs whose `when` holds, the QC flags), 8 bytes each, packed in
  * a row of their own. The kernel fills a full cell row in per-chunk
- * scratch; the kept members are copied out. A heavy reflect.series keeps
- * 24 of the 180 bytes of each interface x angle until its columns are
- * written. */
+ * scratch; the kept members are copied out. A default Zoeppritz
+ * reflect.series keeps 24 of the 216 bytes of each interface x angle
+ * until its columns are written. */
 typedef struct packed {
 	size_t n;      /* kept members (0: the full rows are kept) */
 	size_t size;   /* bytes of a packed row: 8 x n */

@@ -346,39 +346,52 @@ static uint64_t sort_key(double v)
 int rw_unc_argsort(const double *x, size_t sx, size_t n, size_t *perm,
                    uint64_t *work)
 {
-	enum { BITS = 11, RADIX = 1 << BITS };
+	enum { BITS = 11, RADIX = 1 << BITS, PASSES = (64 + BITS - 1) / BITS };
+	/* ib holds indices as size_t (no wider than 64 bits) */
 	uint64_t *ka = work, *kb = work + n, *ib = work + 2 * n;
-	size_t count[RADIX];
+	size_t count[PASSES][RADIX];
+	int in_perm = 1, first = 1;
 
+	memset(count, 0, sizeof count);
 	for (size_t i = 0; i < n; i++) {
+		uint64_t k;
 		if (!isfinite(x[i * sx]))
 			return RW_EDOM;
-		ka[i] = sort_key(x[i * sx]);
-		perm[i] = i;
+		ka[i] = k = sort_key(x[i * sx]);
+		for (int p = 0; p < PASSES; p++)
+			count[p][(k >> (p * BITS)) & (RADIX - 1)]++;
 	}
-	/* LSD radix sort, 11 bits a pass (6 passes cover 64 bits), stable;
-	 * a pass where every key has the same digit is skipped. */
-	for (int shift = 0; shift < 64; shift += BITS) {
-		size_t sum = 0;
-		memset(count, 0, sizeof count);
-		for (size_t i = 0; i < n; i++)
-			count[(ka[i] >> shift) & (RADIX - 1)]++;
-		if (n && count[(ka[0] >> shift) & (RADIX - 1)] == n)
+	/* LSD radix sort, 11 bits a pass (6 passes cover 64 bits), stable:
+	 * the digits of every pass counted in the one read above; a pass
+	 * where every key has the same digit is skipped; keys and indices
+	 * move between two buffers without copying back. */
+	for (int p = 0; p < PASSES && n; p++) {
+		size_t *c = count[p], sum = 0;
+		int shift = p * BITS;
+		size_t *from_i = in_perm ? perm : (size_t *)ib;
+		size_t *to_i = in_perm ? (size_t *)ib : perm;
+		uint64_t *t;
+		if (c[(ka[0] >> shift) & (RADIX - 1)] == n)
 			continue;
 		for (size_t d = 0; d < RADIX; d++) {
-			size_t c = count[d];
-			count[d] = sum;
-			sum += c;
+			size_t v = c[d];
+			c[d] = sum;
+			sum += v;
 		}
 		for (size_t i = 0; i < n; i++) {
-			size_t to = count[(ka[i] >> shift) & (RADIX - 1)]++;
+			size_t to = c[(ka[i] >> shift) & (RADIX - 1)]++;
 			kb[to] = ka[i];
-			ib[to] = perm[i];
+			to_i[to] = first ? i : from_i[i];
 		}
-		memcpy(ka, kb, n * sizeof *ka);
-		for (size_t i = 0; i < n; i++)
-			perm[i] = (size_t)ib[i];
+		first = 0;
+		in_perm = !in_perm;
+		t = ka, ka = kb, kb = t;
 	}
+	if (first)
+		for (size_t i = 0; i < n; i++)
+			perm[i] = i;
+	else if (!in_perm)
+		memcpy(perm, ib, n * sizeof *perm);
 	return RW_OK;
 }
 
@@ -402,6 +415,28 @@ size_t rw_unc_ranks_sorted(const double *x, size_t sx, const size_t *perm,
 			r[pos ? pos[d] : d] = 0.5 * (double)(first + 1 + m);
 		}
 		k = j;
+	}
+	return m;
+}
+
+int rw_unc_sorted_has_ties(const double *x, size_t sx, const size_t *perm,
+                           size_t n)
+{
+	for (size_t k = 1; k < n; k++)
+		if (x[perm[k] * sx] == x[perm[k - 1] * sx])
+			return 1;
+	return 0;
+}
+
+size_t rw_unc_ranks_kept(const size_t *perm, size_t n, const size_t *pos,
+                         double *r)
+{
+	size_t m = 0;
+
+	for (size_t k = 0; k < n; k++) {
+		size_t p = pos[perm[k]];
+		if (p != SIZE_MAX)
+			r[p] = (double)++m;
 	}
 	return m;
 }

@@ -698,6 +698,7 @@ typedef struct stats {
 	 * request (NULL with a non-finite draw, or without sensitivities) */
 	double *in_rank[MAX_INPUTS];
 	size_t *in_perm[MAX_INPUTS]; /* and their sorts */
+	int in_ties[MAX_INPUTS];     /* whether equal draws are among them */
 	/* categorical outputs: the values seen and their probabilities */
 	const char **cat[8];
 	size_t ncat[8];
@@ -732,6 +733,7 @@ static void stat_sample(void *arg, size_t i)
 	size_t *perm, *pos, *pin;
 	const double *rank_of[MAX_INPUTS];
 	const size_t *perm_of[MAX_INPUTS];
+	int ties_of[MAX_INPUTS];
 	int sens = 0;
 
 	if (!dw || !zw || !kw) {
@@ -751,16 +753,19 @@ static void stat_sample(void *arg, size_t i)
 		if (in->len == 1) {
 			rank_of[k] = st->in_rank[k];
 			perm_of[k] = st->in_perm[k];
+			ties_of[k] = st->in_ties[k];
 			continue;
 		}
 		if (rw_unc_argsort(in->draws + i, in->len, nd, pin + k * nd,
 		                   kw) != RW_OK) {
-			rank_of[k] = NULL, perm_of[k] = NULL;
+			rank_of[k] = NULL, perm_of[k] = NULL, ties_of[k] = 1;
 			continue;
 		}
 		rw_unc_ranks_sorted(in->draws + i, in->len, pin + k * nd, nd,
 		                    NULL, rin + k * nd);
 		rank_of[k] = rin + k * nd, perm_of[k] = pin + k * nd;
+		ties_of[k] = rw_unc_sorted_has_ties(in->draws + i, in->len,
+		                                    perm_of[k], nd);
 	}
 	for (size_t j = 0; j < r->n_num; j++) {
 		size_t nc = r->cells[j], cells = n * nc;
@@ -792,9 +797,15 @@ static void stat_sample(void *arg, size_t i)
 				if (xr && m < nd) {
 					/* the input's ranks among the
 					 * draws kept */
-					rw_unc_ranks_sorted(
-					    in->draws + (in->len > 1 ? i : 0),
-					    in->len, perm_of[k], nd, pos, rx);
+					if (ties_of[k])
+						rw_unc_ranks_sorted(
+						    in->draws +
+						        (in->len > 1 ? i : 0),
+						    in->len, perm_of[k], nd,
+						    pos, rx);
+					else
+						rw_unc_ranks_kept(perm_of[k],
+						                  nd, pos, rx);
 					xr = rx;
 				}
 				if (xr)
@@ -1251,10 +1262,12 @@ int proto__run_uncertain(proto_call *c, void *args, const proto_shape *sh)
 			                  "out of memory");
 		}
 		if (rw_unc_argsort(w->in[k].draws, 1, nd, st.in_perm[k], kw) ==
-		    RW_OK)
+		    RW_OK) {
 			rw_unc_ranks_sorted(w->in[k].draws, 1, st.in_perm[k],
 			                    nd, NULL, st.in_rank[k]);
-		else
+			st.in_ties[k] = rw_unc_sorted_has_ties(
+			    w->in[k].draws, 1, st.in_perm[k], nd);
+		} else
 			st.in_rank[k] = NULL, st.in_perm[k] = NULL;
 		free(kw);
 	}

@@ -124,6 +124,16 @@ int rw_unc_argsort(const double *x, size_t sx, size_t n, size_t *perm,
 size_t rw_unc_ranks_sorted(const double *x, size_t sx, const size_t *perm,
                            size_t n, const size_t *pos, double *r);
 
+/* Whether a sort perm of x[i * sx], i < n, has equal neighbours. */
+int rw_unc_sorted_has_ties(const double *x, size_t sx, const size_t *perm,
+                           size_t n);
+
+/* rw_unc_ranks_sorted with pos, for values known to have no ties: the
+ * kept values in sorted order get ranks 1 to m (no value is read).
+ * Returns m. */
+size_t rw_unc_ranks_kept(const size_t *perm, size_t n, const size_t *pos,
+                         double *r);
+
 /* The same ranks when the values are at hand sorted: sorted[k] is the
  * k-th smallest, at index perm[k]; r[perm[k]] gets its rank (one
  * sequential pass). */

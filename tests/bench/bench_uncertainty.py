@@ -6,7 +6,7 @@ same run, and the daemon on 2 cores against the same daemon pinned to 1
 core (taskset).
 
     /usr/bin/python3 tests/bench/bench_uncertainty.py [BUILD_DIR]
-        [--reps N] [--draws N] [--samples N]
+        [--reps N] [--draws N] [--samples N] [--case substitute|avo]
 
 Cases (both with sensitivities, percentiles 10/50/90):
   substitute: Gassmann 1951 fluid substitution of SAMPLES log samples
@@ -219,6 +219,8 @@ def main():
     ap.add_argument("--reps", type=int, default=5)
     ap.add_argument("--draws", type=int, default=10000)
     ap.add_argument("--samples", type=int, default=100)
+    ap.add_argument("--case", choices=["all", "substitute", "avo"],
+                    default="all")
     a = ap.parse_args()
     exe = os.path.join(a.build, "rockwired")
     n, d = a.samples, a.draws
@@ -226,6 +228,8 @@ def main():
           % (d, n, a.reps))
     cases = [("substitute", sub_request, sub_numpy),
              ("avo (5 angles)", avo_request, avo_numpy)]
+    if a.case != "all":
+        cases = [cs for cs in cases if cs[0].startswith(a.case)]
     two = Daemon(exe)
     one = Daemon(exe, cpus="0")
     try:

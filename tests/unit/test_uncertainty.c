@@ -220,6 +220,12 @@ static void test_ranks_fast_path(void **state)
 	gsl_sort_index(gp, v, 1, N);
 	for (int i = 0; i < N; i++)
 		close_to(v[perm[i]], v[gp[i]], 0);
+	/* stable: equal values keep the order of their indices */
+	assert_int_equal(rw_unc_argsort(x, 2, N, perm, kw), RW_OK);
+	for (int i = 1; i < N; i++)
+		assert_true(x[2 * perm[i - 1]] < x[2 * perm[i]] ||
+		            (x[2 * perm[i - 1]] == x[2 * perm[i]] &&
+		             perm[i - 1] < perm[i]));
 	assert_int_equal(rw_unc_argsort(odd, 1, 8, perm, kw), RW_OK);
 	close_to(odd[perm[0]], -1e308, 0);
 	close_to(odd[perm[7]], 1e308, 0);
@@ -244,6 +250,24 @@ static void test_ranks_fast_path(void **state)
 		                 m);
 		close_to(rw_unc_rank_correlation(rxc, ryc, m),
 		         rw_unc_spearman(x, 2, y, 1, N, w), 1e-12);
+	}
+	{
+		/* without ties the kept ranks need no values: the same as
+		 * rw_unc_ranks_sorted on the draws of y (continuous) */
+		static double ra[N], rb[N];
+		size_t kept = 0;
+		assert_int_equal(rw_unc_argsort(v, 1, N, perm, kw), RW_OK);
+		assert_false(rw_unc_sorted_has_ties(v, 1, perm, N));
+		assert_int_equal(rw_unc_ranks_sorted(v, 1, perm, N, pos, ra),
+		                 m);
+		assert_int_equal(rw_unc_ranks_kept(perm, N, pos, rb), m);
+		for (size_t i = 0; i < m; i++) {
+			close_to(rb[i], ra[i], 0);
+			kept += rb[i] == floor(rb[i]);
+		}
+		assert_int_equal(kept, m);
+		assert_int_equal(rw_unc_argsort(x, 2, N, perm, kw), RW_OK);
+		assert_true(rw_unc_sorted_has_ties(x, 2, perm, N));
 	}
 	{
 		/* ranks of the sorted values equal ranks of the values */

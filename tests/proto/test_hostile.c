@@ -545,6 +545,88 @@ static void test_utf8_errors(void **state)
 	cJSON_Delete(r);
 }
 
+static const char *reason_of(const cJSON *r)
+{
+	const cJSON *e = cJSON_GetObjectItemCaseSensitive(r, "error");
+	const cJSON *d = cJSON_GetObjectItemCaseSensitive(e, "data");
+	const cJSON *why = cJSON_GetObjectItemCaseSensitive(d, "reason");
+	return cJSON_IsString(why) ? why->valuestring : "";
+}
+
+/* The byte check skips 8 plain bytes at a time: whatever the alignment
+ * of a long run of plain bytes before it, a control byte, a bad UTF-8
+ * byte, \u0000, an escaped quote and the nesting are found where they
+ * are, and brackets inside a string do not count. */
+static void test_plain_runs(void **state)
+{
+	fixture *f = *state;
+	static char line[4096], want[64];
+
+	for (int pad = 0; pad < 20; pad++) {
+		char pads[32];
+		size_t at;
+		cJSON *r, *id;
+		memset(pads, 'a', (size_t)pad);
+		pads[pad] = 0;
+		/* a control byte in a string */
+		at = (size_t)snprintf(line, sizeof line,
+		                      "{\"jsonrpc\":\"2.0\",\"id\":\"%s", pads);
+		snprintf(line + at, sizeof line - at, "\x01\",\"method\":1}");
+		r = run(f, line, strlen(line), "plain runs");
+		assert_int_equal(code_of(r), -32700);
+		snprintf(want, sizeof want, "0x01 at offset %zu ", at);
+		assert_non_null(strstr(reason_of(r), want));
+		cJSON_Delete(r);
+		/* a byte that starts no UTF-8 sequence, after array digits */
+		at =
+		    (size_t)snprintf(line, sizeof line,
+		                     "{\"jsonrpc\":\"2.0\",\"id\":1,\"params\":"
+		                     "{\"vp\":[");
+		for (int k = 0; k < pad; k++)
+			at += (size_t)snprintf(line + at, sizeof line - at,
+			                       "3%d.5, ", k);
+		snprintf(line + at, sizeof line - at, "\xff]}}");
+		r = run(f, line, strlen(line), "plain runs");
+		assert_int_equal(code_of(r), -32700);
+		snprintf(want, sizeof want, "offset %zu", at);
+		assert_non_null(strstr(reason_of(r), want));
+		cJSON_Delete(r);
+		/* \u0000 after a run */
+		snprintf(line, sizeof line,
+		         "{\"jsonrpc\":\"2.0\",\"id\":\"%s\\u0000\"}", pads);
+		r = run(f, line, strlen(line), "plain runs");
+		assert_int_equal(code_of(r), -32600);
+		assert_non_null(strstr(reason_of(r), "\\u0000"));
+		cJSON_Delete(r);
+		/* an escaped quote and a backslash between runs, brackets
+		 * inside the string: the id comes back whole */
+		snprintf(line, sizeof line,
+		         "{\"jsonrpc\":\"2.0\",\"id\":\"%s\\\"%s\\\\u0000"
+		         "[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[["
+		         "[[[[[[[[[[[[[[[[[[{|}%s\",\"method\":\"no.such\"}",
+		         pads, pads, pads);
+		r = run(f, line, strlen(line), "plain runs");
+		id = cJSON_GetObjectItemCaseSensitive(r, "id");
+		assert_int_equal(code_of(r), -32601);
+		assert_true(cJSON_IsString(id));
+		snprintf(line, sizeof line, "%s\"%s\\u0000", pads, pads);
+		assert_int_equal(strncmp(id->valuestring, line, strlen(line)),
+		                 0);
+		cJSON_Delete(r);
+		/* nesting past the limit, brackets apart by runs of spaces */
+		at = (size_t)snprintf(
+		    line, sizeof line,
+		    "{\"jsonrpc\":\"2.0\",\"id\":1,\"params\":");
+		for (int k = 0; k < 70; k++)
+			at += (size_t)snprintf(line + at, sizeof line - at,
+			                       "[%*s", pad, "");
+		r = run(f, line, strlen(line), "plain runs");
+		assert_int_equal(code_of(r), -32600);
+		assert_non_null(strstr(reason_of(r), "nesting deeper"));
+		cJSON_Delete(r);
+	}
+}
+
 /* The framer: a line past the limit is reported once and skipped to its
  * newline; the lines around it come out whole; a NUL is just a byte. */
 static void test_framer_oversize(void **state)
@@ -623,6 +705,7 @@ int main(void)
 	    cmocka_unit_test(test_ids_exact),
 	    cmocka_unit_test(test_many_keys),
 	    cmocka_unit_test(test_utf8_errors),
+	    cmocka_unit_test(test_plain_runs),
 	    cmocka_unit_test(test_framer_oversize),
 	    cmocka_unit_test(test_framer_shrinks),
 	};

@@ -83,17 +83,23 @@ static inline uint64_t zero_bytes(uint64_t v)
 	return ~(((v & NUM_LOWS) + NUM_LOWS) | v) & NUM_HIGHS;
 }
 
-static inline int popcount64(uint64_t v)
+/* The count of bytes of v with the high bit set, v holding no other bits
+ * (as zero_bytes gives): the byte sum by one multiply. __builtin_popcount
+ * is a library call on x86-64 without -mpopcnt. */
+static inline size_t high_bytes(uint64_t v)
 {
-#if defined(__GNUC__) || defined(__clang__)
-	return __builtin_popcountll(v);
-#else
-	int n = 0;
-	for (; v; v &= v - 1)
-		n++;
-	return n;
-#endif
+	return (size_t)(((v >> 7) * NUM_ONES) >> 56);
 }
+
+#if defined(__SSE2__)
+/* Adds the 16 byte counters of acc (each at most 255). */
+static inline size_t sum_lanes(__m128i acc)
+{
+	__m128i s = _mm_sad_epu8(acc, _mm_setzero_si128());
+	return (size_t)_mm_cvtsi128_si32(s) +
+	       (size_t)_mm_cvtsi128_si32(_mm_srli_si128(s, 8));
+}
+#endif
 
 static const double num_exact_pow10[23] = {
     1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,  1e8,  1e9,  1e10, 1e11,
@@ -654,16 +660,23 @@ static size_t count_commas(const char *p, const char *end)
 
 #if defined(__SSE2__)
 	const __m128i comma = _mm_set1_epi8(',');
+	__m128i acc = _mm_setzero_si128();
+	int runs = 0;
+	/* per-lane counters (a match is -1), summed before they wrap */
 	while (end - p >= 16) {
 		__m128i x = _mm_loadu_si128((const __m128i *)(const void *)p);
-		n += (size_t)popcount64(
-		    (uint64_t)_mm_movemask_epi8(_mm_cmpeq_epi8(x, comma)));
+		acc = _mm_sub_epi8(acc, _mm_cmpeq_epi8(x, comma));
 		p += 16;
+		if (++runs == 255) {
+			n += sum_lanes(acc);
+			acc = _mm_setzero_si128();
+			runs = 0;
+		}
 	}
+	n += sum_lanes(acc);
 #endif
 	while (end - p >= 8) {
-		n +=
-		    (size_t)popcount64(zero_bytes(load8(p) ^ (NUM_ONES * ',')));
+		n += high_bytes(zero_bytes(load8(p) ^ (NUM_ONES * ',')));
 		p += 8;
 	}
 	for (; p < end; p++)
@@ -691,6 +704,8 @@ int proto_num_array_count(const char *text, size_t len, size_t *n, size_t *end,
 		const __m128i open = _mm_set1_epi8('[');
 		const __m128i brace = _mm_set1_epi8('{');
 		const __m128i comma = _mm_set1_epi8(',');
+		__m128i acc = _mm_setzero_si128();
+		int runs = 0;
 		while (e - p >= 16) {
 			__m128i x =
 			    _mm_loadu_si128((const __m128i *)(const void *)p);
@@ -701,11 +716,15 @@ int proto_num_array_count(const char *text, size_t len, size_t *n, size_t *end,
 			                 _mm_cmpeq_epi8(x, brace)));
 			if (_mm_movemask_epi8(stop))
 				break;
-			commas +=
-			    (size_t)popcount64((uint64_t)_mm_movemask_epi8(
-			        _mm_cmpeq_epi8(x, comma)));
+			acc = _mm_sub_epi8(acc, _mm_cmpeq_epi8(x, comma));
 			p += 16;
+			if (++runs == 255) {
+				commas += sum_lanes(acc);
+				acc = _mm_setzero_si128();
+				runs = 0;
+			}
 		}
+		commas += sum_lanes(acc);
 	}
 #endif
 	while (e - p >= 8) {
@@ -715,7 +734,7 @@ int proto_num_array_count(const char *text, size_t len, size_t *n, size_t *end,
 		    zero_bytes(x ^ (NUM_ONES * '[')) |
 		    zero_bytes(x ^ (NUM_ONES * '{')))
 			break;
-		commas += (size_t)popcount64(zero_bytes(x ^ (NUM_ONES * ',')));
+		commas += high_bytes(zero_bytes(x ^ (NUM_ONES * ',')));
 		p += 8;
 	}
 	for (; p < e; p++) {

@@ -72,6 +72,90 @@ static void check_parse(const char *text)
 		         range ? PROTO_NUM_ERANGE : PROTO_NUM_OK);
 }
 
+static void random_decimal(uint64_t *s, char *buf, size_t size);
+
+/* The same with the number followed by more of an array (",", more
+ * digits): the parser reads whole words past the number's end there, so
+ * it must stop at the number's end and give strtod's double. */
+static void check_followed(const char *text)
+{
+	static const char tail[] = ", 1234567890123456";
+	size_t len = strlen(text), used = 0;
+	char *b = malloc(len + sizeof tail);
+	double v, want = strtod(text, NULL);
+
+	assert_non_null(b);
+	memcpy(b, text, len);
+	memcpy(b + len, tail, sizeof tail - 1);
+	int st = proto_num_parse(b, len + sizeof tail - 1, &v, &used);
+	int range = isinf(want) || (want == 0 && nonzero_digits(text));
+
+	assert_int_equal(st, range ? PROTO_NUM_ERANGE : PROTO_NUM_OK);
+	free(b);
+	if (used != len || num_bits(v) != num_bits(want))
+		fail_msg("%s followed: consumed %zu of %zu, got %.17g, "
+		         "strtod %.17g",
+		         text, used, len, v, want);
+}
+
+/* Log-style numbers, as most arrays carry them: up to 9 integer and 9
+ * fraction digits (one word read each, and the lengths just past it),
+ * each also followed by more array text. */
+static void test_short_decimals(void **state)
+{
+	uint64_t s = num_seed(29);
+	long n = num_iters() / 4, i;
+	static const char *edge[] = {"0",
+	                             "-0",
+	                             "0.0",
+	                             "-0.0",
+	                             "0.5",
+	                             "7",
+	                             "12345678",
+	                             "123456789",
+	                             "12345678.1234567",
+	                             "12345678.12345678",
+	                             "1.12345678",
+	                             "9007199254740992",
+	                             "9007199254740993",
+	                             "90071992.54740993",
+	                             "9.5",
+	                             "-3021.5",
+	                             "1200.1234",
+	                             "99999999.9999999",
+	                             "0.0000001",
+	                             "0.00000001",
+	                             "1.5e3",
+	                             "1.5E-3",
+	                             "12e5",
+	                             "0.1e1"};
+	char buf[64];
+	(void)state;
+	for (size_t k = 0; k < sizeof edge / sizeof *edge; k++)
+		check_followed(edge[k]);
+	for (i = 0; i < n; i++) {
+		char *p = buf;
+		int ni = 1 + (int)(num_rand(&s) % 9);
+		int nf = (int)(num_rand(&s) % 10);
+		if (num_rand(&s) & 1)
+			*p++ = '-';
+		for (int j = 0; j < ni; j++)
+			*p++ = (char)('0' + (j == 0 && ni > 1
+			                         ? 1 + num_rand(&s) % 9
+			                         : num_rand(&s) % 10));
+		if (nf) {
+			*p++ = '.';
+			for (int j = 0; j < nf; j++)
+				*p++ = (char)('0' + num_rand(&s) % 10);
+		}
+		*p = '\0';
+		check_followed(buf);
+		check_parse(buf);
+		random_decimal(&s, buf, sizeof buf);
+		check_followed(buf);
+	}
+}
+
 /* A random JSON number: optional '-', 1-20 digits with a point anywhere
  * inside (or none; a leading zero only as "0.ddd"), and usually an
  * exponent (e or E, optional sign, sometimes leading zeros) chosen so
@@ -819,6 +903,7 @@ int main(void)
 	    cmocka_unit_test(test_halfway),
 	    cmocka_unit_test(test_long_mantissas),
 	    cmocka_unit_test(test_random_decimals),
+	    cmocka_unit_test(test_short_decimals),
 	    cmocka_unit_test(test_random_doubles),
 	    cmocka_unit_test(test_array_basic),
 	    cmocka_unit_test(test_array_errors),

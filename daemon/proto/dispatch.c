@@ -119,23 +119,27 @@ static int plain8(const unsigned char *p)
 #undef ANY_ZERO
 }
 
-/* Checks that the line is UTF-8 without raw control characters other than
- * whitespace, and that its nesting stays within max_depth (tracking
- * strings, so brackets inside strings do not count). Returns 0, or the
- * error code with a reason written to `why`. */
-static int check_bytes(const unsigned char *p, size_t len, int max_depth,
-                       char *why, size_t why_size)
-{
-	int depth = 0, in_str = 0, esc = 0;
+/* Where the byte check stands: nesting depth, inside a string, just
+ * after a backslash. */
+typedef struct byte_state {
+	int depth, in_str, esc;
+} byte_state;
 
-	for (size_t i = 0; i < len; i++) {
-		unsigned char ch;
-		/* runs of plain bytes (an escape's next byte is not) */
-		while (!esc && len - i >= 8 && plain8(p + i))
-			i += 8;
-		if (i == len)
-			break;
-		ch = p[i];
+/* Checks bytes from..to of the line (a multi-byte sequence may run past
+ * to; *next gets where the check stopped). Returns 0, or the error code
+ * with a reason written to `why`. */
+#if defined(__GNUC__) || defined(__clang__)
+__attribute__((always_inline))
+#endif
+static inline int
+check_range(const unsigned char *p, size_t from, size_t to, size_t len,
+            int max_depth, byte_state *st, size_t *next, char *why,
+            size_t why_size)
+{
+	size_t i;
+
+	for (i = from; i < to; i++) {
+		unsigned char ch = p[i];
 		if (ch < 0x80) {
 			if (ch < 0x20 && ch != '\t' && ch != '\n' &&
 			    ch != '\r') {
@@ -145,10 +149,10 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 				         ch, i);
 				return PROTO_PARSE_ERROR;
 			}
-			if (in_str) {
+			if (st->in_str) {
 				/* cJSON ends strings at U+0000, which would
 				 * silently shorten the value: refuse it. */
-				if (esc && ch == 'u' && i + 4 < len &&
+				if (st->esc && ch == 'u' && i + 4 < len &&
 				    memcmp(p + i + 1, "0000", 4) == 0) {
 					snprintf(why, why_size,
 					         "\\u0000 in a string at byte "
@@ -156,16 +160,16 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 					         i - 1);
 					return PROTO_INVALID_REQUEST;
 				}
-				if (esc)
-					esc = 0;
+				if (st->esc)
+					st->esc = 0;
 				else if (ch == '\\')
-					esc = 1;
+					st->esc = 1;
 				else if (ch == '"')
-					in_str = 0;
+					st->in_str = 0;
 			} else if (ch == '"') {
-				in_str = 1;
+				st->in_str = 1;
 			} else if (ch == '[' || ch == '{') {
-				if (++depth > max_depth) {
+				if (++st->depth > max_depth) {
 					snprintf(
 					    why, why_size,
 					    "nesting deeper than %d levels "
@@ -174,7 +178,7 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 					return PROTO_INVALID_REQUEST;
 				}
 			} else if (ch == ']' || ch == '}') {
-				depth--;
+				st->depth--;
 			}
 			continue;
 		}
@@ -206,13 +210,43 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 			if (p[i + j] < 0x80 || p[i + j] > 0xbf)
 				goto bad;
 		i += need;
-		esc = 0;
+		st->esc = 0;
 		continue;
 	bad:
 		snprintf(why, why_size, "invalid UTF-8 at byte offset %zu", i);
 		return PROTO_PARSE_ERROR;
 	}
+	*next = i;
 	return 0;
+}
+
+/* Checks that the line is UTF-8 without raw control characters other than
+ * whitespace, and that its nesting stays within max_depth (tracking
+ * strings, so brackets inside strings do not count). A long line goes a
+ * word at a time: plain words (numeric arrays) pass in one test, the
+ * others byte by byte; a short one (a small request, mostly keys and
+ * quotes) byte by byte. Returns 0, or the error code with a reason
+ * written to `why`. */
+static int check_bytes(const unsigned char *p, size_t len, int max_depth,
+                       char *why, size_t why_size)
+{
+	byte_state st = {0, 0, 0};
+	size_t i = 0;
+	int rc;
+
+	if (len >= 256)
+		while (len - i >= 8) {
+			/* an escape's next byte is not plain */
+			if (!st.esc && plain8(p + i)) {
+				i += 8;
+				continue;
+			}
+			rc = check_range(p, i, i + 8, len, max_depth, &st, &i,
+			                 why, why_size);
+			if (rc)
+				return rc;
+		}
+	return check_range(p, i, len, len, max_depth, &st, &i, why, why_size);
 }
 
 /* ---- duplicate keys ------------------------------------------------------ */

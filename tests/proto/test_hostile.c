@@ -562,15 +562,21 @@ static void test_plain_runs(void **state)
 	fixture *f = *state;
 	static char line[4096], want[64];
 
-	for (int pad = 0; pad < 20; pad++) {
+	for (int c = 0; c < 40; c++) {
+		/* short lines go byte by byte, long ones (after 300 bytes
+		 * of leading whitespace) a word at a time */
+		size_t lead = c < 20 ? 0 : 300;
+		int pad = c % 20;
 		char pads[32];
 		size_t at;
 		cJSON *r, *id;
+		memset(line, ' ', lead);
 		memset(pads, 'a', (size_t)pad);
 		pads[pad] = 0;
 		/* a control byte in a string */
-		at = (size_t)snprintf(line, sizeof line,
-		                      "{\"jsonrpc\":\"2.0\",\"id\":\"%s", pads);
+		at = lead + (size_t)snprintf(line + lead, sizeof line - lead,
+		                             "{\"jsonrpc\":\"2.0\",\"id\":\"%s",
+		                             pads);
 		snprintf(line + at, sizeof line - at, "\x01\",\"method\":1}");
 		r = run(f, line, strlen(line), "plain runs");
 		assert_int_equal(code_of(r), -32700);
@@ -578,10 +584,10 @@ static void test_plain_runs(void **state)
 		assert_non_null(strstr(reason_of(r), want));
 		cJSON_Delete(r);
 		/* a byte that starts no UTF-8 sequence, after array digits */
-		at =
-		    (size_t)snprintf(line, sizeof line,
-		                     "{\"jsonrpc\":\"2.0\",\"id\":1,\"params\":"
-		                     "{\"vp\":[");
+		at = lead + (size_t)snprintf(
+		                line + lead, sizeof line - lead,
+		                "{\"jsonrpc\":\"2.0\",\"id\":1,\"params\":"
+		                "{\"vp\":[");
 		for (int k = 0; k < pad; k++)
 			at += (size_t)snprintf(line + at, sizeof line - at,
 			                       "3%d.5, ", k);
@@ -592,7 +598,7 @@ static void test_plain_runs(void **state)
 		assert_non_null(strstr(reason_of(r), want));
 		cJSON_Delete(r);
 		/* \u0000 after a run */
-		snprintf(line, sizeof line,
+		snprintf(line + lead, sizeof line - lead,
 		         "{\"jsonrpc\":\"2.0\",\"id\":\"%s\\u0000\"}", pads);
 		r = run(f, line, strlen(line), "plain runs");
 		assert_int_equal(code_of(r), -32600);
@@ -600,7 +606,7 @@ static void test_plain_runs(void **state)
 		cJSON_Delete(r);
 		/* an escaped quote and a backslash between runs, brackets
 		 * inside the string: the id comes back whole */
-		snprintf(line, sizeof line,
+		snprintf(line + lead, sizeof line - lead,
 		         "{\"jsonrpc\":\"2.0\",\"id\":\"%s\\\"%s\\\\u0000"
 		         "[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[[["
 		         "[[[[[[[[[[[[[[[[[[{|}%s\",\"method\":\"no.such\"}",

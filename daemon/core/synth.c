@@ -72,7 +72,9 @@ static int coefficient(const rw_reflect_medium *u, const rw_reflect_medium *l,
 
 	*re = *im = 0.0;
 	*post = 0;
-	if (rw_reflect_critical_angles(u, l, &pc, &sc) == RW_OK && th >= pc)
+	/* at normal incidence nothing is past critical (pc > 0) */
+	if (th > 0.0 && rw_reflect_critical_angles(u, l, &pc, &sc) == RW_OK &&
+	    th >= pc)
 		*post = 1;
 	switch (m) {
 	case RW_SEIS_R_ZOEPPRITZ: {
@@ -117,11 +119,12 @@ static int place(const rw_seis_log *log, const rw_seis_td *td, double th,
 	int use_vs = th > 0.0 || method == RW_SEIS_R_GRAY_LMR ||
 	             method == RW_SEIS_R_GRAY_KMR;
 	int any_im = 0;
-	size_t i;
+	size_t i, hint = 0;
 
 	for (i = 0; i + 1 < log->n; i++) {
 		double z = 0.5 * (log->z_m[i] + log->z_m[i + 1]);
-		double u = (rw__seis_td_at(td, z) - t0) / dt, fk, a, r, q;
+		double u = (rw__seis_td_at_from(td, z, &hint) - t0) / dt, fk, a,
+		       r, q;
 		double part[2];
 		rw_reflect_medium m1, m2;
 		unsigned mark = 0;

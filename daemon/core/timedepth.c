@@ -156,8 +156,28 @@ static size_t bracket(const double *x, size_t n, double v)
 	return lo;
 }
 
-/* Sonic time at depth z in [datum, z_{n-1}], linear through the nodes. */
-static double base_time(const rw_seis_td *td, double z)
+/* bracket() for queries that mostly rise: walks up from *hint (the last
+ * answer) a few intervals before falling back to the bisection of the
+ * rest, and stores the answer there. The same index as bracket(): the
+ * largest i <= n - 2 with x_i <= v. */
+static size_t bracket_from(const double *x, size_t n, double v, size_t *hint)
+{
+	size_t i = *hint, steps;
+
+	if (i > n - 2 || !(x[i] <= v))
+		i = 0;
+	for (steps = 0; i < n - 2 && x[i + 1] <= v; i++)
+		if (++steps > 8) {
+			i += bracket(x + i, n - i, v);
+			break;
+		}
+	*hint = i;
+	return i;
+}
+
+/* Sonic time at depth z in [datum, z_{n-1}], linear through the nodes;
+ * hint as for bracket_from (NULL: bisection). */
+static double base_time_from(const rw_seis_td *td, double z, size_t *hint)
 {
 	size_t i;
 
@@ -166,9 +186,15 @@ static double base_time(const rw_seis_td *td, double z)
 		            td->twt_s[0], z);
 	if (td->n == 1)
 		return td->twt_s[0];
-	i = bracket(td->z_m, td->n, z);
+	i = hint ? bracket_from(td->z_m, td->n, z, hint)
+	         : bracket(td->z_m, td->n, z);
 	return lerp(td->z_m[i], td->twt_s[i], td->z_m[i + 1], td->twt_s[i + 1],
 	            z);
+}
+
+static double base_time(const rw_seis_td *td, double z)
+{
+	return base_time_from(td, z, NULL);
 }
 
 /* Drift at depth z from nodes (cz, cd, m): linear, held outside; *held
@@ -260,7 +286,7 @@ static int td_ok(const rw_seis_td *td)
 int rw_seis_td_eval(const rw_seis_td *td, const double *zq, size_t nq,
                     double *twt_s, double *drift_s, unsigned *warn)
 {
-	size_t i;
+	size_t i, hint = 0;
 
 	if (twt_s == NULL)
 		return RW_EDOM;
@@ -282,7 +308,7 @@ int rw_seis_td_eval(const rw_seis_td *td, const double *zq, size_t nq,
 			continue;
 		}
 		d = drift_at(td->cs_z_m, td->cs_drift_s, td->n_cs, z, &held);
-		twt_s[i] = base_time(td, z) + d;
+		twt_s[i] = base_time_from(td, z, &hint) + d;
 		if (drift_s != NULL)
 			drift_s[i] = d;
 		if (held && warn != NULL)
@@ -297,6 +323,14 @@ double rw__seis_td_at(const rw_seis_td *td, double z)
 	int held;
 
 	return base_time(td, z) +
+	       drift_at(td->cs_z_m, td->cs_drift_s, td->n_cs, z, &held);
+}
+
+double rw__seis_td_at_from(const rw_seis_td *td, double z, size_t *hint)
+{
+	int held;
+
+	return base_time_from(td, z, hint) +
 	       drift_at(td->cs_z_m, td->cs_drift_s, td->n_cs, z, &held);
 }
 

@@ -231,6 +231,18 @@ static int fluid_fluid(const rw_reflect_medium *m1, const rw_reflect_medium *m2,
 	/* u_z: a1 qa1 (1 - R) = a2 qa2 T; p: r1 a1 (1 + R) = r2 a2 T */
 	double complex den = r2 * qa1 + r1 * qa2;
 
+	if (cimag(qa1) == 0.0 && cimag(qa2) == 0.0) {
+		/* both waves propagate: real arithmetic, not libgcc's
+		 * complex division (the same values, correctly rounded) */
+		double q1 = creal(qa1), q2 = creal(qa2), d = r2 * q1 + r1 * q2;
+		if (!(fabs(d) > 0.0))
+			return RW_ERANGE;
+		r[0] = (r2 * q1 - r1 * q2) / d;
+		r[1] = 0.0;
+		r[2] = 2.0 * r1 * a1 * q1 / (a2 * d);
+		r[3] = 0.0;
+		return RW_OK;
+	}
 	if (!(cabs(den) > 0.0))
 		return RW_ERANGE;
 	r[0] = (r2 * qa1 - r1 * qa2) / den;

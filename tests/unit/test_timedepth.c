@@ -2,7 +2,8 @@
  * timedepth.c): constant and linear slowness against closed forms, the
  * datum and replacement velocity, bridged nulls, checkshot drift
  * (checkshot times reproduced at their depths), refused checkshots,
- * linear and Steffen resampling with nulls, and the error cases.
+ * linear and Steffen resampling with nulls, the error cases, and the
+ * same times whatever the order of the depths asked.
  * numpy.trapz and numpy.interp are the outside references in
  * tests/reference/test_seismic_numpy.py. */
 #include <stdarg.h>
@@ -373,6 +374,55 @@ static void test_resample(void **state)
 	assert_true(isnan(out[0]));
 }
 
+/* Query order: depths asked in one call, rising (nodes, midpoints, long
+ * jumps), falling and shuffled, get the same time to the bit as each
+ * asked alone, and at the nodes exactly the table's time (linear through
+ * the nodes, common practice). Guards the cursor that walks the table
+ * for rising depths against the bisection it replaces. */
+static void test_query_order(void **state)
+{
+	rw_seis_datum d = {0.0, 0.0, 1800.0};
+	static double zq[3 * N], tq[3 * N];
+	double one;
+	rw_seis_td td = {0};
+	size_t i, n = 1201, nq = 0;
+	uint64_t r = 42;
+
+	(void)state;
+	for (i = 0; i < n; i++) {
+		/* uneven spacing: 0.1524 m and, every 50th, a 3 m step */
+		z[i] = i ? z[i - 1] + (i % 50 ? 0.1524 : 3.0) : 2100.0;
+		v[i] = 2400.0 + 900.0 * sin(0.05 * (double)i);
+	}
+	assert_int_equal(
+	    rw_seis_td_sonic(z, v, n, RW_SEIS_SONIC_VELOCITY, &d, t, NULL),
+	    RW_OK);
+	td.z_m = z;
+	td.twt_s = t;
+	td.n = n;
+	td.datum_z_m = d.z_m;
+	td.datum_twt_s = d.twt_s;
+	for (i = 0; i < n; i++)
+		zq[nq++] = z[i];
+	for (i = 0; i + 1 < n; i++)
+		zq[nq++] = 0.5 * (z[i] + z[i + 1]);
+	for (i = 0; i < 200; i++) {
+		r = r * 6364136223846793005u + 1442695040888963407u;
+		zq[nq++] = z[0] + (z[n - 1] - z[0]) *
+		                      ((double)(r >> 11) / 9007199254740992.0);
+	}
+	for (i = 0; i < 50; i++)
+		zq[nq++] = z[n - 1 - 20 * i]; /* falling */
+	assert_int_equal(rw_seis_td_eval(&td, zq, nq, tq, NULL, NULL), RW_OK);
+	for (i = 0; i < nq; i++) {
+		assert_int_equal(
+		    rw_seis_td_eval(&td, zq + i, 1, &one, NULL, NULL), RW_OK);
+		assert_memory_equal(&one, tq + i, sizeof one);
+	}
+	for (i = 0; i < n; i++)
+		assert_memory_equal(&t[i], tq + i, sizeof t[i]);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -383,6 +433,7 @@ int main(void)
 	    cmocka_unit_test(test_checkshot_errors),
 	    cmocka_unit_test(test_sonic_errors),
 	    cmocka_unit_test(test_resample),
+	    cmocka_unit_test(test_query_order),
 	};
 
 	gsl_set_error_handler_off();

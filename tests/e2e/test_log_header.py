@@ -329,7 +329,7 @@ try:
     # 15. SIGINT removes the .part file.
     o = os.path.join(tmp, "interrupted.las")
     p = subprocess.Popen([rwtest.CLIENT, "--socket", d.path, "log", pg,
-                          "-o", o, "--block", "100", "--inflight", "1"],
+                          "-o", o, "--block", "20", "--inflight", "1"],
                          stdout=subprocess.PIPE, stderr=subprocess.PIPE)
     deadline = time.time() + 20
     while time.time() < deadline and not [
@@ -342,10 +342,16 @@ try:
     t.ok(p.returncode == -signal.SIGINT and not left,
          "SIGINT: killed by the signal, no .part left (%s %r)" %
          (p.returncode, left))
+    # blocks of 20 samples, one in flight: some 15,000 round trips, so
+    # the signal comes well before the end however fast the machine
     p = subprocess.Popen([rwtest.CLIENT, "--socket", d.path, "log", pg,
-                          "-o", o, "--block", "100", "--inflight", "1"],
+                          "-o", o, "--block", "20", "--inflight", "1"],
                          stdout=subprocess.PIPE, stderr=subprocess.PIPE)
-    time.sleep(0.5)
+    deadline = time.time() + 20
+    while time.time() < deadline and not [
+            f for f in os.listdir(tmp) if f.startswith("interrupted.las.part")]:
+        time.sleep(0.01)
+    time.sleep(0.1)
     p.send_signal(signal.SIGTERM)
     p.wait(20)
     left = [f for f in os.listdir(tmp) if f.startswith("interrupted.las")]

@@ -585,9 +585,11 @@ static cJSON *parse_line(const char *line, size_t len, const char **end)
 }
 
 static size_t cost_of(proto_session *s, const cJSON *root);
+static int alone_of(const cJSON *root);
 
 /* rw_proto_handle, and rw_proto_handle_light when offload is nonzero: a
- * line that parses and costs at least offload is left unanswered (1). */
+ * line that parses and costs at least offload is left unanswered (1, or
+ * 2 when it names a session method). */
 static int handle_line(proto_session *s, const char *line, size_t len,
                        proto_buf *out, size_t offload)
 {
@@ -659,9 +661,10 @@ static int handle_line(proto_session *s, const char *line, size_t len,
 		return out->oom ? -1 : 0;
 	}
 	if (offload && cost_of(s, root) >= offload) {
+		int alone = alone_of(root);
 		cJSON_Delete(root);
 		proto__inarr_free(&arrs);
-		return 1;
+		return 1 + alone;
 	}
 	if (cJSON_IsArray(root)) {
 		size_t n = (size_t)cJSON_GetArraySize(root);
@@ -728,6 +731,7 @@ int rw_proto_handle_light(proto_session *s, const char *line, size_t len,
                           size_t offload, proto_buf *out)
 {
 	proto_inarr arrs;
+	int alone;
 
 	if (!offload)
 		return rw_proto_handle(s, line, len, out);
@@ -738,8 +742,8 @@ int rw_proto_handle_light(proto_session *s, const char *line, size_t len,
 	if (proto__inarr_scan(NULL, line, len, 1, &arrs) == 0 && !arrs.n)
 		return handle_line(s, line, len, out, offload);
 	proto__inarr_free(&arrs);
-	return rw_proto_cost(s, line, len) >= offload
-	           ? 1
+	return rw_proto_classify(s, line, len, &alone) >= offload
+	           ? 1 + alone
 	           : rw_proto_handle(s, line, len, out);
 }
 
@@ -843,10 +847,19 @@ static size_t request_cost(proto_session *s, const cJSON *req)
 
 size_t rw_proto_cost(proto_session *s, const char *line, size_t len)
 {
+	int alone;
+
+	return rw_proto_classify(s, line, len, &alone);
+}
+
+size_t rw_proto_classify(proto_session *s, const char *line, size_t len,
+                         int *alone)
+{
 	proto_inarr arrs;
 	cJSON *root;
 	size_t work;
 
+	*alone = 0;
 	/* large arrays are only counted: cJSON parses what is left */
 	if (proto__inarr_scan(NULL, line, len, 1, &arrs))
 		return 1;
@@ -863,9 +876,33 @@ size_t rw_proto_cost(proto_session *s, const char *line, size_t len)
 		return 1;
 	}
 	work = cost_of(s, root);
+	*alone = alone_of(root);
 	cJSON_Delete(root);
 	proto__inarr_free(&arrs);
 	return work;
+}
+
+/* Whether a request names a session method (PM_SESSION): those change or
+ * report the session, so the server runs them alone, after every earlier
+ * line of the connection and before every later one. */
+static int request_alone(const cJSON *req)
+{
+	const cJSON *name = cJSON_GetObjectItemCaseSensitive(req, "method");
+	const proto_method *m;
+
+	return cJSON_IsString(name) &&
+	       (m = proto_method_find(name->valuestring)) &&
+	       (m->flags & PM_SESSION);
+}
+
+static int alone_of(const cJSON *root)
+{
+	const cJSON *e;
+
+	if (!cJSON_IsArray(root))
+		return request_alone(root);
+	cJSON_ArrayForEach(e, root) if (request_alone(e)) return 1;
+	return 0;
 }
 
 static size_t cost_of(proto_session *s, const cJSON *root)

@@ -75,6 +75,8 @@ typedef struct proto_server_stats {
 	uint64_t reads_paused;
 	uint64_t pool_waits;            /* lines that waited for their peer's
 	                                   share of the thread pool */
+	uint64_t pool_overlapped;       /* lines taken while an earlier line
+	                                   of the connection was in the pool */
 	uint64_t memory_rss_bytes;      /* resident size (sampled 4 per s) */
 	uint64_t memory_trims;          /* free memory returned after large
 	                                   requests (malloc_trim) */
@@ -119,17 +121,19 @@ void proto_session_free(proto_session *s);
  * tolerated). Appends the response line, '\n' terminated, to `out`, or
  * nothing for a notification, an all-notification batch or a blank line.
  * Returns 0, or -1 when `out` ran out of memory (out->oom set). Safe to
- * call from a worker thread as long as one session is used by one thread
- * at a time. */
+ * call from worker threads: lines of one session that are not alone
+ * (rw_proto_classify) may run at once, an alone one needs the session to
+ * itself. */
 int rw_proto_handle(proto_session *s, const char *line, size_t len,
                     proto_buf *out);
 
 /* rw_proto_handle for the event loop: answers the line when its work
  * (rw_proto_cost) is below `offload` and returns 0 (-1 when out of
  * memory), or leaves `out` alone and returns 1 so the caller can run the
- * line elsewhere (rw_proto_handle on a worker thread); offload 0 answers
- * every line. A line without large arrays is parsed once for both; lines
- * that do not parse are answered here. The same threading rule as
+ * line elsewhere (rw_proto_handle on a worker thread), 2 when the line
+ * must also run alone (see rw_proto_classify); offload 0 answers every
+ * line. A line without large arrays is parsed once for both; lines that
+ * do not parse are answered here. The same threading rule as
  * rw_proto_cost. */
 int rw_proto_handle_light(proto_session *s, const char *line, size_t len,
                           size_t offload, proto_buf *out);
@@ -139,9 +143,16 @@ int rw_proto_handle_light(proto_session *s, const char *line, size_t len,
  * counting parameters the session supplies), without running it, so the
  * server can decide to run it off the event loop. Lines that do not
  * parse, or name no known method, cost 1. Reads the session: call it
- * from the thread that owns the session, with no request of it in
- * flight. */
+ * from the thread that owns the session, with no alone line (see
+ * rw_proto_classify) of it in flight. */
 size_t rw_proto_cost(proto_session *s, const char *line, size_t len);
+/* rw_proto_cost, and *alone set when a request of the line names a
+ * session method (session.set, service.info, ...): such a line changes
+ * or reports the session, so it must not run while another line of the
+ * session does. Every other line only reads the session, and lines of one
+ * session that are not alone may run side by side on worker threads. */
+size_t rw_proto_classify(proto_session *s, const char *line, size_t len,
+                         int *alone);
 
 /* Appends an error response with id null: used by the server for lines it
  * refuses before parsing (too long). `param` and `reason` go into

@@ -154,6 +154,7 @@ static void write_counters(proto_call *c)
 	proto_w_int(c, "buffered_bytes", (long long)s->buffered_bytes);
 	proto_w_int(c, "reads_paused", (long long)s->reads_paused);
 	proto_w_int(c, "pool_waits", (long long)s->pool_waits);
+	proto_w_int(c, "pool_overlapped", (long long)s->pool_overlapped);
 	proto_w_int(c, "memory_rss_bytes", (long long)s->memory_rss_bytes);
 	proto_w_int(c, "memory_trims", (long long)s->memory_trims);
 	proto_w_int(c, "memory_released_bytes",

@@ -99,7 +99,7 @@ void srv__conn_account(conn *c)
 	srv *s = c->srv;
 	size_t now = conn_closing(c) ? 0
 	                             : srv_lines_buffered(&c->lines) +
-	                                   srv__conn_unsent(c) + c->work_len;
+	                                   srv__conn_unsent(c) + c->job_bytes;
 
 	assert(s->stats->buffered_bytes >= c->acct);
 	s->stats->buffered_bytes -= c->acct;
@@ -128,6 +128,7 @@ void srv__conn_unref(conn *c)
 	assert(conn_closing(c));
 	assert(!conn_has(c, CF_READY | CF_IN_OPEN | CF_OUT_OPEN | CF_FILE_READ |
 	                        CF_WRITING | CF_BUSY));
+	assert(!c->jobs && !c->jobs_head && !c->job_bytes);
 	assert(s->stats->buffered_bytes >= c->acct);
 	s->stats->buffered_bytes -= c->acct;
 	c->acct = 0;
@@ -142,9 +143,7 @@ void srv__conn_unref(conn *c)
 	srv__peer_detach(c);
 	srv_lines_free(&c->lines);
 	proto_buf_free(&c->pending);
-	proto_buf_free(&c->work_out);
 	free(c->wdata);
-	free(c->work_line);
 	free(c->in_buf);
 	proto_session_free(c->session);
 	if (conn_has(c, CF_REFUSED)) {
@@ -192,7 +191,6 @@ conn *srv__conn_new(srv *s, enum conn_kind kind)
 	c->active_ms = c->stall_ms = c->in_stall_ms = uv_now(s->loop);
 	srv_lines_init(&c->lines, s->cfg->limits.max_line);
 	proto_buf_init(&c->pending);
-	proto_buf_init(&c->work_out);
 	snprintf(c->name, sizeof c->name, "%s#%lu", kind_name(kind),
 	         ++s->next_id);
 	c->next = s->conns;

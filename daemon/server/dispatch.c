@@ -1,9 +1,10 @@
 /* Line dispatch: connections with input to take wait on a ready list, and
  * an idle handle takes a bounded number of lines from each per loop turn
  * (--lines-per-turn), so one pipelining client cannot starve the others.
- * Only one line per connection is in flight at a time, which keeps its
- * answers in request order without sequence numbers. A line runs on the
- * loop or, when heavy, in the thread pool (pool.c). */
+ * A line runs on the loop or, when heavy, in the thread pool (pool.c).
+ * While a connection has lines in the pool, the next ones join its window
+ * when they only read the session (the window keeps the answers in
+ * request order); any other line waits until the window is empty. */
 #include <stdio.h>
 
 #include "server/internal.h"
@@ -27,13 +28,25 @@ void srv__ready_remove(conn *c)
 	conn_clear(c, CF_READY);
 }
 
+/* Whether the framer holds something to take: a complete line, a line
+ * past the limit to report, or the tail at the end of input. Half a line
+ * is not: the connection waits for the rest without costing a turn. */
+static int lines_ready(conn *c)
+{
+	size_t held = srv_lines_buffered(&c->lines);
+
+	return srv_lines_has_line(&c->lines) ||
+	       held > c->srv->cfg->limits.max_line || (held && conn_eof(c));
+}
+
 void srv__conn_schedule(conn *c)
 {
 	srv *s = c->srv;
 
-	if (conn_closing(c) || conn_has(c, CF_READY | CF_BUSY | CF_PAUSED))
+	if (conn_closing(c) || conn_has(c, CF_READY | CF_PAUSED) ||
+	    (conn_has(c, CF_BUSY) && !srv__pool_can_join(c)))
 		return;
-	if (!srv_lines_buffered(&c->lines) && !conn_eof(c))
+	if (!lines_ready(c) && !conn_eof(c))
 		return;
 	conn_set(c, CF_READY);
 	c->ready_next = NULL;
@@ -49,25 +62,27 @@ void srv__conn_schedule(conn *c)
 }
 
 /* Runs one line on the loop or hands it to the thread pool. Long lines
- * go to the pool unread; shorter ones are costed (rw_proto_cost: samples
- * x angles, session defaults included) and go there when the work passes
- * --offload-work, so a short line that asks for much never runs on the
- * loop. */
+ * go to the pool unread (to run alone: what they ask is not known);
+ * shorter ones are costed (rw_proto_cost: samples x angles, session
+ * defaults included) and go there when the work passes --offload-work, so
+ * a short line that asks for much never runs on the loop. */
 static void dispatch_line(conn *c, const char *line, size_t len)
 {
 	srv *s = c->srv;
 	const srv_config *cfg = s->cfg;
 	int heavy = cfg->offload_bytes && len >= cfg->offload_bytes, rc = 0;
+	int alone = heavy;
 
 	if (!heavy) {
 		rc = cfg->offload_work
 		         ? rw_proto_handle_light(c->session, line, len,
 		                                 cfg->offload_work, &c->pending)
 		         : rw_proto_handle(c->session, line, len, &c->pending);
-		heavy = rc == 1;
+		heavy = rc >= 1;
+		alone = rc == 2;
 	}
 	if (heavy) {
-		if (srv__pool_submit(c, line, len) == 0)
+		if (srv__pool_submit(c, line, len, alone) == 0)
 			return;
 		proto_error_line(s->ctx, &c->pending, PROTO_INTERNAL_ERROR,
 		                 NULL,
@@ -79,6 +94,42 @@ static void dispatch_line(conn *c, const char *line, size_t len)
 		proto_error_line(s->ctx, &c->pending, PROTO_INTERNAL_ERROR,
 		                 NULL, "out of memory building the response");
 	}
+}
+
+/* The next complete line of a busy connection, when it may join the
+ * window: it must only read the session and not be a long line (those
+ * are not read before they run). It goes to the pool, or is answered on
+ * the loop when light; either way its answer waits for the ones before
+ * it. Returns 1 when the line was taken; 0 when there is none, or it
+ * waits for the window to empty (c->held). */
+static int join_window(conn *c)
+{
+	srv *s = c->srv;
+	const srv_config *cfg = s->cfg;
+	const char *line;
+	size_t len, work;
+	int alone, rc;
+
+	if (!srv_lines_peek(&c->lines, &line, &len))
+		return 0;
+	if (!cfg->offload_work ||
+	    (cfg->offload_bytes && len >= cfg->offload_bytes)) {
+		c->held = 1;
+		return 0;
+	}
+	work = rw_proto_classify(c->session, line, len, &alone);
+	if (alone) {
+		c->held = 1;
+		return 0;
+	}
+	rc = work >= cfg->offload_work ? srv__pool_submit(c, line, len, 0)
+	                               : srv__pool_answer(c, line, len);
+	if (rc) {
+		c->held = 1; /* out of memory: try again once it drains */
+		return 0;
+	}
+	(void)srv_lines_next(&c->lines, &line, &len);
+	return 1;
 }
 
 static void oversize(conn *c)
@@ -101,9 +152,15 @@ static int conn_dispatch(conn *c, int budget)
 	const char *line;
 	size_t len;
 
-	while (budget-- > 0 && !conn_closing(c) &&
-	       !conn_has(c, CF_BUSY | CF_PAUSED)) {
-		srv_line_status st = srv_lines_next(&c->lines, &line, &len);
+	while (budget-- > 0 && !conn_closing(c) && !conn_has(c, CF_PAUSED)) {
+		srv_line_status st;
+		if (conn_has(c, CF_BUSY)) {
+			if (!srv__pool_can_join(c) || !join_window(c))
+				break;
+			srv__update_pause(c);
+			continue;
+		}
+		st = srv_lines_next(&c->lines, &line, &len);
 		if (st == SRV_LINE_NONE && conn_eof(c)) {
 			st = srv_lines_tail(&c->lines, &line, &len);
 			if (st != SRV_LINE_NONE && conn_has(c, CF_DROP_TAIL)) {
@@ -129,8 +186,9 @@ static int conn_dispatch(conn *c, int budget)
 	if (!conn_closing(c))
 		srv__conn_update_read(c);
 	srv__conn_check_done(c);
-	return !conn_closing(c) && !conn_has(c, CF_BUSY | CF_PAUSED) &&
-	       srv_lines_buffered(&c->lines) > 0;
+	return !conn_closing(c) && !conn_has(c, CF_PAUSED) &&
+	       (!conn_has(c, CF_BUSY) || srv__pool_can_join(c)) &&
+	       lines_ready(c);
 }
 
 void srv__on_idle(uv_idle_t *h)

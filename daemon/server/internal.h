@@ -55,6 +55,7 @@
 
 typedef struct srv srv;
 typedef struct conn conn;
+typedef struct srv_job srv_job; /* a line in a window (pool.c) */
 
 enum srv_io { IO_NONE, IO_STREAM, IO_FILE };
 enum srv_lst_kind { LST_UNIX, LST_TCP };
@@ -84,7 +85,7 @@ enum conn_flag {
 	CF_READING = 1u << 3,     /* input is being read */
 	CF_FILE_READ = 1u << 4,   /* a file read is in flight */
 	CF_WRITING = 1u << 5,     /* a write is in flight */
-	CF_BUSY = 1u << 6,        /* a line is in the thread pool */
+	CF_BUSY = 1u << 6,        /* lines in its window (pool.c) */
 	CF_PAUSED = 1u << 7,      /* unsent answers above the high-water */
 	CF_IN_FULL = 1u << 8,     /* input above the high-water, a line in */
 	CF_BUDGET_WAIT = 1u << 9, /* reads wait for the global budget */
@@ -94,8 +95,6 @@ enum conn_flag {
 	CF_REFUSED = 1u << 12,    /* refused at accept: one error, close */
 	CF_LINGER = 1u << 13,     /* written and shut down: input discarded
 	                             until the peer closes (or a timeout) */
-	CF_POOL_WAIT = 1u << 14,  /* its line waits for a pool slot (with
-	                             CF_BUSY) */
 	CF_LAST_WORD = 1u << 15   /* closed by us after one error line:
 	                             lingers so the client can read it */
 };
@@ -171,12 +170,14 @@ struct conn {
 	uint64_t in_stall_ms;   /* start of the input progress window */
 	uint64_t in_stall_mark; /* in_bytes at in_stall_ms */
 
-	uv_work_t work;
-	conn *pool_next; /* the pool queue (CF_POOL_WAIT) */
-	char *work_line;
-	size_t work_len;
-	proto_buf work_out;
-	int work_rc;
+	/* The window (pool.c): lines taken but not yet answered, in request
+	 * order, run in the thread pool (or answered on the loop while
+	 * earlier ones run); answers go out from the head, in order. */
+	srv_job *jobs_head, *jobs_tail;
+	size_t jobs;       /* in the window (CF_BUSY when nonzero) */
+	size_t jobs_alone; /* of them, lines that run alone */
+	size_t job_bytes;  /* their line copies not yet run */
+	int held;          /* the next line waits until the window is empty */
 
 	char name[80];
 };
@@ -220,11 +221,11 @@ struct srv {
 	int fd_warned;   /* "out of file descriptors" logged */
 	size_t refusing; /* refused connections not yet freed */
 	srv_ratelimit rl_refused;
-	conn *pool_head, *pool_tail; /* lines waiting for a pool slot */
-	size_t pool_threads;         /* libuv's thread pool size */
-	size_t pool_per_peer;        /* pool lines per peer at once */
-	size_t pool_running;         /* lines in the pool now */
-	int trim_pending;            /* a large job ended: trim memory */
+	srv_job *pool_head, *pool_tail; /* lines waiting for a pool slot */
+	size_t pool_threads;            /* libuv's thread pool size */
+	size_t pool_per_peer;           /* pool lines per peer at once */
+	size_t pool_running;            /* lines in the pool now */
+	int trim_pending;               /* a large job ended: trim memory */
 	unsigned long next_id;
 	char read_buf[SRV_READ_CHUNK];
 	char transport[320];
@@ -342,12 +343,24 @@ void srv__on_idle(uv_idle_t *h);
 
 /* ---- pool.c ------------------------------------------------------------- */
 
-/* Hands a copy of the line to the thread pool, or to the pool queue when
- * its peer holds its share of the pool already. Returns 0 (the answer,
- * possibly an error, comes back through the connection), or -1 when out
- * of memory, in which case nothing changed. */
-int srv__pool_submit(conn *c, const char *line, size_t len);
-/* A closing connection's line leaves the pool queue. */
+/* Adds a copy of the line to the connection's window and hands it to the
+ * thread pool, or to the pool queue when its peer holds its share of the
+ * pool already. `alone`: the line changes or reports the session
+ * (rw_proto_classify), so no later line joins the window until it is
+ * answered. Returns 0 (the answer, possibly an error, comes back through
+ * the connection, in order), or -1 when out of memory, in which case
+ * nothing changed. */
+int srv__pool_submit(conn *c, const char *line, size_t len, int alone);
+/* Answers a light line on the loop while earlier lines of the connection
+ * are in the pool: the answer waits in the window for theirs. 0, or -1
+ * when out of memory (nothing changed). */
+int srv__pool_answer(conn *c, const char *line, size_t len);
+/* Whether the next line may join a busy connection's window: no line in
+ * it runs alone, the next one was not found to need to, and the window
+ * has room (as many lines as the pool has threads). */
+int srv__pool_can_join(const conn *c);
+/* A closing connection's lines leave the pool queue and its answered
+ * ones are dropped; those running finish and are freed then. */
 void srv__pool_cancel(conn *c);
 /* Reads the pool size (UV_THREADPOOL_SIZE) and sets the per-peer share
  * and fewer malloc arenas. Before the first job. */

@@ -145,3 +145,13 @@ srv_line_status srv_lines_tail(srv_lines *lb, const char **line, size_t *len)
 		return SRV_LINE_OVERSIZE;
 	return SRV_LINE_OK;
 }
+
+int srv_lines_peek(srv_lines *lb, const char **line, size_t *len)
+{
+	if (lb->discarding || !srv_lines_has_line(lb) ||
+	    lb->scan > lb->max_line)
+		return 0;
+	*line = lb->buf + lb->start;
+	*len = lb->scan;
+	return 1;
+}

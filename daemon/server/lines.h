@@ -33,6 +33,10 @@ srv_line_status srv_lines_next(srv_lines *lb, const char **line, size_t *len);
 /* Takes what is left as a final line at end of input (no '\n'); returns
  * SRV_LINE_NONE when nothing is left or the tail is being discarded. */
 srv_line_status srv_lines_tail(srv_lines *lb, const char **line, size_t *len);
+/* The next line without taking it: 1 with *line, *len set when a
+ * complete line of at most max_line bytes is buffered (a later
+ * srv_lines_next returns it), else 0. The same pointer rule. */
+int srv_lines_peek(srv_lines *lb, const char **line, size_t *len);
 /* 1 when a complete line is buffered (a later srv_lines_next returns
  * it). Scans each byte once however often it is called. */
 int srv_lines_has_line(srv_lines *lb);

@@ -1,8 +1,19 @@
 /* The thread pool: a heavy line is copied and run by rw_proto_handle on a
- * libuv worker thread, so the event loop keeps serving other clients. The
- * connection is not dispatched while its line is out (one line in flight
- * per connection keeps answers in order) and holds a reference until the
- * answer is back on the loop thread.
+ * libuv worker thread, so the event loop keeps serving other clients.
+ *
+ * Order: each connection keeps a window of the lines it has taken and
+ * not yet answered, in request order. Lines that only read the session
+ * (every method but the session ones, rw_proto_classify) may run side by
+ * side, so one pipelining client uses every core; an answer that is ready
+ * waits for the answers before it, and goes out from the head of the
+ * window. A line that runs alone (session.set, service.info, ...) is
+ * taken only once the window is empty, and no later line joins the window
+ * until it is answered, so a session change takes effect exactly between
+ * the lines around it. A light line that arrives while heavy ones run is
+ * answered on the loop and its answer waits in the window in the same
+ * way. The window holds as many lines as the pool has threads (or the
+ * peer's share, when larger): those over the peer's share wait in the
+ * pool queue, ready to start the moment one of its lines ends.
  *
  * Fairness: a peer (peer.c) may hold at most --pool-per-peer lines in the
  * pool at once (default: one thread fewer than the pool has), so one
@@ -24,113 +35,212 @@
 
 #include "server/internal.h"
 
+struct srv_job {
+	conn *c;
+	srv_job *next;      /* the connection's window, in request order */
+	srv_job *pool_next; /* the server's pool queue (waiting) */
+	uv_work_t work;
+	char *line; /* the copy to run; NULL once run */
+	size_t len;
+	proto_buf out; /* its answer */
+	int alone;     /* runs with no other line of the connection */
+	int waiting;   /* in the pool queue */
+	int done;      /* answered: out is final */
+};
+
 static int peer_has_room(const srv *s, const conn *c)
 {
 	return !c->peer || c->peer->pool_jobs < s->pool_per_peer;
 }
 
+int srv__pool_can_join(const conn *c)
+{
+	const srv *s = c->srv;
+	size_t room = s->pool_threads > s->pool_per_peer ? s->pool_threads
+	                                                 : s->pool_per_peer;
+
+	return !c->held && !c->jobs_alone && c->jobs < room;
+}
+
+static srv_job *job_new(conn *c, int alone)
+{
+	srv_job *j = calloc(1, sizeof *j);
+
+	if (!j)
+		return NULL;
+	j->c = c;
+	j->alone = alone;
+	proto_buf_init(&j->out);
+	return j;
+}
+
+/* Appends the job to the connection's window. */
+static void window_add(conn *c, srv_job *j)
+{
+	if (c->jobs)
+		c->srv->stats->pool_overlapped++;
+	if (c->jobs_tail)
+		c->jobs_tail->next = j;
+	else
+		c->jobs_head = j;
+	c->jobs_tail = j;
+	c->jobs++;
+	if (j->alone)
+		c->jobs_alone++;
+	c->job_bytes += j->len;
+	conn_set(c, CF_BUSY);
+}
+
+/* Frees the job's line copy (it ran, or never will). */
+static void drop_line(srv_job *j)
+{
+	assert(j->c->job_bytes >= j->len);
+	j->c->job_bytes -= j->len;
+	free(j->line);
+	j->line = NULL;
+	j->len = 0;
+}
+
+/* Unlinks j (prev before it, or NULL at the head) and frees it. */
+static void window_remove(conn *c, srv_job *prev, srv_job *j)
+{
+	if (prev)
+		prev->next = j->next;
+	else
+		c->jobs_head = j->next;
+	if (c->jobs_tail == j)
+		c->jobs_tail = prev;
+	assert(c->jobs > 0);
+	c->jobs--;
+	if (j->alone) {
+		assert(c->jobs_alone > 0);
+		c->jobs_alone--;
+	}
+	drop_line(j);
+	proto_buf_free(&j->out);
+	free(j);
+	if (!c->jobs) {
+		conn_clear(c, CF_BUSY);
+		c->held = 0;
+	}
+}
+
+/* Moves the answers that are ready at the head of the window to the
+ * connection's pending output, in request order. */
+static void deliver(conn *c)
+{
+	srv_job *j;
+
+	while ((j = c->jobs_head) && j->done) {
+		if (j->out.oom)
+			proto_error_line(c->srv->ctx, &c->pending,
+			                 PROTO_INTERNAL_ERROR, NULL,
+			                 "out of memory building the response");
+		else if (!c->pending.len) {
+			proto_buf tmp = c->pending;
+			c->pending = j->out;
+			j->out = tmp;
+		} else {
+			proto_buf_append(&c->pending, j->out.data, j->out.len);
+		}
+		window_remove(c, NULL, j);
+	}
+}
+
 static void on_work(uv_work_t *w)
 {
-	conn *c = w->data;
-	c->work_rc = rw_proto_handle(c->session, c->work_line, c->work_len,
-	                             &c->work_out);
+	srv_job *j = w->data;
+
+	(void)rw_proto_handle(j->c->session, j->line, j->len, &j->out);
 }
 
 static void pool_kick(srv *s);
 
 static void on_work_done(uv_work_t *w, int status)
 {
-	conn *c = w->data;
+	srv_job *j = w->data;
+	conn *c = j->c;
 	srv *s = c->srv;
-	size_t big = c->work_len + c->work_out.cap;
 
 	(void)status;
-	assert(conn_has(c, CF_BUSY) && !conn_has(c, CF_POOL_WAIT));
+	assert(conn_has(c, CF_BUSY) && !j->waiting && !j->done);
 	assert(s->pool_running > 0);
 	s->pool_running--;
 	if (c->peer) {
 		assert(c->peer->pool_jobs > 0);
 		c->peer->pool_jobs--;
 	}
-	if (big >= SRV_TRIM_AFTER)
+	if (j->len + j->out.cap >= SRV_TRIM_AFTER)
 		s->trim_pending = 1;
-	free(c->work_line);
-	c->work_line = NULL;
-	c->work_len = 0;
-	conn_clear(c, CF_BUSY);
+	drop_line(j);
+	j->done = 1;
 	if (!conn_closing(c)) {
-		if (c->work_out.oom)
-			proto_error_line(s->ctx, &c->pending,
-			                 PROTO_INTERNAL_ERROR, NULL,
-			                 "out of memory building the response");
-		else if (!c->pending.len) {
-			proto_buf tmp = c->pending;
-			c->pending = c->work_out;
-			c->work_out = tmp;
-		} else {
-			proto_buf_append(&c->pending, c->work_out.data,
-			                 c->work_out.len);
-		}
-		proto_buf_free(&c->work_out);
+		deliver(c);
 		srv__conn_flush(c);
 		srv__update_pause(c);
 		srv__conn_update_read(c);
 		srv__conn_schedule(c);
 		srv__conn_check_done(c);
 	} else {
-		proto_buf_free(&c->work_out);
+		/* The rest of the window went at the close: only lines that
+		 * were running are left. */
+		srv_job *prev = NULL, *k;
+		for (k = c->jobs_head; k != j; k = k->next)
+			prev = k;
+		window_remove(c, prev, j);
 	}
 	pool_kick(s);
 	srv__conn_unref(c); /* the work request's */
 }
 
-/* Hands the connection's copied line to libuv. Returns 0 or -1. */
-static int queue(conn *c)
+/* Hands the job's line to libuv. Returns 0 or -1. */
+static int queue(srv_job *j)
 {
-	srv *s = c->srv;
+	srv *s = j->c->srv;
 
-	c->work.data = c;
-	proto_buf_init(&c->work_out);
-	if (uv_queue_work(s->loop, &c->work, on_work, on_work_done) < 0)
+	j->work.data = j;
+	if (uv_queue_work(s->loop, &j->work, on_work, on_work_done) < 0)
 		return -1;
 	s->pool_running++;
-	if (c->peer)
-		c->peer->pool_jobs++;
+	if (j->c->peer)
+		j->c->peer->pool_jobs++;
 	return 0;
 }
 
-/* Gives up a line that cannot be run: its answer is an error. */
-static void give_up(conn *c)
+/* Gives up a line that cannot be run: its answer is an error, in its
+ * place in the window. */
+static void give_up(srv_job *j)
 {
-	free(c->work_line);
-	c->work_line = NULL;
-	c->work_len = 0;
-	conn_clear(c, CF_BUSY | CF_POOL_WAIT);
-	proto_error_line(c->srv->ctx, &c->pending, PROTO_INTERNAL_ERROR, NULL,
+	drop_line(j);
+	proto_buf_free(&j->out);
+	proto_error_line(j->c->srv->ctx, &j->out, PROTO_INTERNAL_ERROR, NULL,
 	                 "cannot start the request in the thread pool");
+	j->done = 1;
+	deliver(j->c);
 }
 
 /* Starts waiting lines whose peers have room again, oldest first. */
 static void pool_kick(srv *s)
 {
-	conn *prev = NULL, *c = s->pool_head, *next;
+	srv_job *prev = NULL, *j = s->pool_head, *next;
 
-	for (; c; c = next) {
-		next = c->pool_next;
+	for (; j; j = next) {
+		conn *c = j->c;
+		next = j->pool_next;
 		if (!peer_has_room(s, c)) {
-			prev = c;
+			prev = j;
 			continue;
 		}
 		if (prev)
 			prev->pool_next = next;
 		else
 			s->pool_head = next;
-		if (s->pool_tail == c)
+		if (s->pool_tail == j)
 			s->pool_tail = prev;
-		c->pool_next = NULL;
-		conn_clear(c, CF_POOL_WAIT);
-		if (queue(c) < 0) {
-			give_up(c);
+		j->pool_next = NULL;
+		j->waiting = 0;
+		if (queue(j) < 0) {
+			give_up(j);
 			srv__conn_flush(c);
 			srv__conn_schedule(c);
 			srv__conn_unref(c); /* the queue's */
@@ -138,57 +248,82 @@ static void pool_kick(srv *s)
 	}
 }
 
-int srv__pool_submit(conn *c, const char *line, size_t len)
+int srv__pool_submit(conn *c, const char *line, size_t len, int alone)
 {
 	srv *s = c->srv;
+	srv_job *j;
 
-	assert(!conn_has(c, CF_BUSY));
-	c->work_line = malloc(len ? len : 1);
-	if (!c->work_line)
+	assert(!c->jobs_alone && (!alone || !c->jobs));
+	j = job_new(c, alone);
+	if (!j)
 		return -1;
-	memcpy(c->work_line, line, len);
-	c->work_len = len;
-	conn_set(c, CF_BUSY);
+	j->line = malloc(len ? len : 1);
+	if (!j->line) {
+		free(j);
+		return -1;
+	}
+	memcpy(j->line, line, len);
+	j->len = len;
+	window_add(c, j);
 	srv__conn_ref(c); /* the work's (or the queue's) */
 	if (peer_has_room(s, c)) {
-		if (queue(c) == 0)
+		if (queue(j) == 0)
 			return 0;
-		give_up(c);
+		give_up(j);
 		srv__conn_unref(c);
 		return 0;
 	}
 	/* Over the peer's share: wait for one of its lines to finish. */
-	conn_set(c, CF_POOL_WAIT);
-	c->pool_next = NULL;
+	j->waiting = 1;
 	if (s->pool_tail)
-		s->pool_tail->pool_next = c;
+		s->pool_tail->pool_next = j;
 	else
-		s->pool_head = c;
-	s->pool_tail = c;
+		s->pool_head = j;
+	s->pool_tail = j;
 	s->stats->pool_waits++;
+	return 0;
+}
+
+int srv__pool_answer(conn *c, const char *line, size_t len)
+{
+	srv_job *j;
+
+	assert(c->jobs && !c->jobs_alone);
+	j = job_new(c, 0);
+	if (!j)
+		return -1;
+	window_add(c, j);
+	(void)rw_proto_handle(c->session, line, len, &j->out);
+	j->done = 1;
+	deliver(c);
 	return 0;
 }
 
 void srv__pool_cancel(conn *c)
 {
 	srv *s = c->srv;
-	conn **pp, *prev = NULL;
+	srv_job *j, *next, *prev = NULL;
 
-	if (!conn_has(c, CF_POOL_WAIT))
-		return;
-	for (pp = &s->pool_head; *pp != c; pp = &(*pp)->pool_next) {
-		assert(*pp);
-		prev = *pp;
+	for (j = c->jobs_head; j; j = next) {
+		next = j->next;
+		if (j->waiting) {
+			srv_job **pp, *qprev = NULL;
+			for (pp = &s->pool_head; *pp != j;
+			     pp = &(*pp)->pool_next) {
+				assert(*pp);
+				qprev = *pp;
+			}
+			*pp = j->pool_next;
+			if (s->pool_tail == j)
+				s->pool_tail = qprev;
+			window_remove(c, prev, j);
+			srv__conn_unref(c); /* the queue's */
+		} else if (j->done) {
+			window_remove(c, prev, j);
+		} else {
+			prev = j; /* running: freed when it finishes */
+		}
 	}
-	*pp = c->pool_next;
-	if (s->pool_tail == c)
-		s->pool_tail = prev;
-	c->pool_next = NULL;
-	free(c->work_line);
-	c->work_line = NULL;
-	c->work_len = 0;
-	conn_clear(c, CF_BUSY | CF_POOL_WAIT);
-	srv__conn_unref(c); /* the queue's */
 }
 
 void srv__pool_init(srv *s)

@@ -47,7 +47,7 @@ static int holds(const uint8_t *data, size_t size, const char *w)
 static void handle(proto_session *s, const char *line, size_t len,
                    proto_buf *out, int light)
 {
-	if (!light || rw_proto_handle_light(s, line, len, 1000, out) == 1)
+	if (!light || rw_proto_handle_light(s, line, len, 1000, out) >= 1)
 		rw_proto_handle(s, line, len, out);
 }
 

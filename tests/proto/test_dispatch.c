@@ -446,6 +446,44 @@ static void test_cost(void **state)
 	}
 }
 
+/* rw_proto_classify: a line that names a session method anywhere (alone
+ * in a batch or not) runs alone; other lines, unknown methods and lines
+ * that do not parse only read the session. The estimate is
+ * rw_proto_cost's. */
+static void test_classify(void **state)
+{
+	harness *h = *state;
+	const char *set = "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	                  "\"session.set\",\"params\":{\"vs\":1500}}";
+	const char *info = "{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
+	                   "\"service.info\"}";
+	const char *series = "{\"jsonrpc\":\"2.0\",\"id\":3,\"method\":"
+	                     "\"reflect.series\",\"params\":{\"vp\":[1,2,3,"
+	                     "4],\"vs\":1,\"rho\":1,\"angle\":[0,10,20]}}";
+	const char *nope = "{\"jsonrpc\":\"2.0\",\"id\":4,\"method\":\"nope\"}";
+	char batch[1024];
+	int alone = -1;
+
+	assert_int_equal(
+	    rw_proto_classify(h->s, series, strlen(series), &alone), 24);
+	assert_int_equal(alone, 0);
+	rw_proto_classify(h->s, set, strlen(set), &alone);
+	assert_int_equal(alone, 1);
+	rw_proto_classify(h->s, info, strlen(info), &alone);
+	assert_int_equal(alone, 1);
+	rw_proto_classify(h->s, nope, strlen(nope), &alone);
+	assert_int_equal(alone, 0);
+	rw_proto_classify(h->s, "{", 1, &alone);
+	assert_int_equal(alone, 0);
+	snprintf(batch, sizeof batch, "[%s,%s]", series, nope);
+	rw_proto_classify(h->s, batch, strlen(batch), &alone);
+	assert_int_equal(alone, 0);
+	snprintf(batch, sizeof batch, "[%s,%s,%s]", series, info, nope);
+	assert_int_equal(rw_proto_classify(h->s, batch, strlen(batch), &alone),
+	                 26);
+	assert_int_equal(alone, 1);
+}
+
 /* rw_proto_handle_light answers what costs less than its threshold with
  * the same bytes as rw_proto_handle (each on a fresh session), and
  * leaves the rest unanswered (1, nothing written): scalar lines, a batch,
@@ -510,6 +548,30 @@ static void test_handle_light(void **state)
 		assert_int_equal(b.out.len, 0);
 		h_free(&b);
 	}
+	/* heavy, and naming a session method: left to run alone (2) */
+	{
+		harness b;
+		char batch[8192];
+		snprintf(batch, sizeof batch,
+		         "[%s,{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
+		         "\"session.set\",\"params\":{\"vs\":1400}}]",
+		         heavy[0]);
+		h_init(&b);
+		assert_int_equal(rw_proto_handle_light(
+		                     b.s, batch, strlen(batch), 1000, &b.out),
+		                 2);
+		assert_int_equal(b.out.len, 0);
+		/* the same with large arrays, which are only counted */
+		snprintf(batch, sizeof batch,
+		         "[%s,{\"jsonrpc\":\"2.0\",\"id\":2,\"method\":"
+		         "\"service.info\"}]",
+		         big);
+		assert_int_equal(rw_proto_handle_light(
+		                     b.s, batch, strlen(batch), 100, &b.out),
+		                 2);
+		assert_int_equal(b.out.len, 0);
+		h_free(&b);
+	}
 	/* an inherited 5-sample default makes a scalar line cost 5 */
 	{
 		harness b;
@@ -546,6 +608,7 @@ int main(void)
 	    cmocka_unit_test_setup_teardown(test_service_info, setup, teardown),
 	    cmocka_unit_test_setup_teardown(test_session, setup, teardown),
 	    cmocka_unit_test_setup_teardown(test_cost, setup, teardown),
+	    cmocka_unit_test_setup_teardown(test_classify, setup, teardown),
 	    cmocka_unit_test(test_handle_light),
 	};
 	gsl_set_error_handler_off();

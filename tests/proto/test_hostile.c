@@ -693,6 +693,44 @@ static void test_framer_oversize(void **state)
 }
 
 /* A big buffer is handed back once it empties. */
+/* Peeking shows the next complete line without taking it (the window
+ * looks at a line before it decides to take it); half a line and a line
+ * past the limit are not shown. */
+static void test_framer_peek(void **state)
+{
+	srv_lines lb;
+	const char *line, *seen;
+	size_t len, seen_len;
+	char longer[40];
+
+	(void)state;
+	srv_lines_init(&lb, 16);
+	assert_int_equal(srv_lines_peek(&lb, &seen, &seen_len), 0);
+	assert_int_equal(srv_lines_append(&lb, "abc\nde", 6), 0);
+	assert_int_equal(srv_lines_peek(&lb, &seen, &seen_len), 1);
+	assert_int_equal(seen_len, 3);
+	assert_memory_equal(seen, "abc", 3);
+	assert_int_equal(srv_lines_peek(&lb, &seen, &seen_len), 1);
+	assert_int_equal(srv_lines_next(&lb, &line, &len), SRV_LINE_OK);
+	assert_ptr_equal(line, seen);
+	assert_int_equal(len, 3);
+	assert_int_equal(srv_lines_peek(&lb, &seen, &seen_len), 0);
+	assert_int_equal(srv_lines_append(&lb, "f\n", 2), 0);
+	assert_int_equal(srv_lines_peek(&lb, &seen, &seen_len), 1);
+	assert_int_equal(seen_len, 3);
+	assert_memory_equal(seen, "def", 3);
+	assert_int_equal(srv_lines_next(&lb, &line, &len), SRV_LINE_OK);
+	memset(longer, 'z', sizeof longer);
+	longer[sizeof longer - 1] = '\n';
+	assert_int_equal(srv_lines_append(&lb, longer, sizeof longer), 0);
+	assert_int_equal(srv_lines_peek(&lb, &seen, &seen_len), 0);
+	assert_int_equal(srv_lines_next(&lb, &line, &len), SRV_LINE_OVERSIZE);
+	assert_int_equal(srv_lines_append(&lb, "ok\n", 3), 0);
+	assert_int_equal(srv_lines_peek(&lb, &seen, &seen_len), 1);
+	assert_memory_equal(seen, "ok", 2);
+	srv_lines_free(&lb);
+}
+
 static void test_framer_shrinks(void **state)
 {
 	srv_lines lb;
@@ -725,6 +763,7 @@ int main(void)
 	    cmocka_unit_test(test_utf8_errors),
 	    cmocka_unit_test(test_plain_runs),
 	    cmocka_unit_test(test_framer_oversize),
+	    cmocka_unit_test(test_framer_peek),
 	    cmocka_unit_test(test_framer_shrinks),
 	};
 

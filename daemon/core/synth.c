@@ -118,24 +118,27 @@ static int place(const rw_seis_log *log, const rw_seis_td *td, double th,
 {
 	int use_vs = th > 0.0 || method == RW_SEIS_R_GRAY_LMR ||
 	             method == RW_SEIS_R_GRAY_KMR;
-	int any_im = 0;
+	int any_im = 0, ok1, ok2;
 	size_t i, hint = 0;
+	rw_reflect_medium m1, m2;
 
-	for (i = 0; i + 1 < log->n; i++) {
+	/* each sample's medium is read once: the lower one of an interface
+	 * is the upper one of the next */
+	ok1 = sample_medium(log, 0, use_vs, &m1);
+	for (i = 0; i + 1 < log->n; i++, m1 = m2, ok1 = ok2) {
 		double z = 0.5 * (log->z_m[i] + log->z_m[i + 1]);
 		double u = (rw__seis_td_at_from(td, z, &hint) - t0) / dt, fk, a,
 		       r, q;
 		double part[2];
-		rw_reflect_medium m1, m2;
 		unsigned mark = 0;
 		int ok, post = 0, side;
 
+		ok2 = sample_medium(log, i + 1, use_vs, &m2);
 		fk = floor(u);
 		if (!(fk >= -1.0) || !(fk < (double)ne))
 			continue; /* off the axis */
 		a = u - fk;
-		ok = sample_medium(log, i, use_vs, &m1) &&
-		     sample_medium(log, i + 1, use_vs, &m2) &&
+		ok = ok1 && ok2 &&
 		     coefficient(&m1, &m2, th, method, &r, &q, &post);
 		if (!ok) {
 			/* post stays: Aki-Richards has no value past critical

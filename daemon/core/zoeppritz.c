@@ -268,6 +268,19 @@ int rw_reflect_zoeppritz(const rw_reflect_medium *upper,
 		return RW_EDOM;
 	if (!isfinite(theta_rad) || theta_rad < 0.0 || theta_rad > M_PI_2)
 		return RW_EDOM;
+	if (theta_rad == 0.0) {
+		/* Normal incidence: no converted waves, and the P waves see
+		 * only the impedances (Aki & Richards 1980, sec. 5.2, from
+		 * memory): the limit of every branch below at p = 0, in two
+		 * roundings instead of a solve. */
+		double z1 = upper->rho_kgm3 * upper->vp_ms;
+		double z2 = lower->rho_kgm3 * lower->vp_ms;
+		double zs = z1 + z2;
+		out->rpp = to_pub((z2 - z1) / zs);
+		out->tpp = to_pub(2.0 * z1 / zs);
+		out->rps = out->tps = to_pub(0.0);
+		return RW_OK;
+	}
 	p = sin(theta_rad) / upper->vp_ms;
 	if (upper->vs_ms > 0.0 && lower->vs_ms > 0.0)
 		st = solid_solid(upper, lower, p, r);

@@ -125,7 +125,7 @@ static void test_negative_poisson(void **state)
 
 /* Normal incidence: Rpp = (Z2 - Z1)/(Z2 + Z1), Tpp = 2 Z1/(Z1 + Z2) for
  * displacement, no converted waves (Aki & Richards 1980, sec. 5.2; a fact
- * of the trade). */
+ * of the trade); the solve just off normal incidence tends to it. */
 static void test_normal_incidence(void **state)
 {
 	uint64_t s = 777;
@@ -135,7 +135,7 @@ static void test_normal_incidence(void **state)
 	for (i = 0; i < 200; i++) {
 		rw_reflect_medium u = rand_solid(&s, 0.3, 0.7);
 		rw_reflect_medium l = rand_solid(&s, 0.3, 0.7);
-		rw_reflect_pcoefs c;
+		rw_reflect_pcoefs c, near;
 		double z1, z2;
 
 		if (i % 3 == 1)
@@ -149,6 +149,13 @@ static void test_normal_incidence(void **state)
 		assert_true(fabs(c.tpp.re - 2.0 * z1 / (z1 + z2)) < 1e-13);
 		assert_true(fabs(c.rpp.im) + fabs(c.tpp.im) < 1e-15);
 		assert_true(abs2(c.rps) + abs2(c.tps) < 1e-30);
+		/* the closed form taken at 0 is the limit of the solve of
+		 * each branch (solid and fluid on either side) */
+		assert_int_equal(rw_reflect_zoeppritz(&u, &l, 1e-8, &near),
+		                 RW_OK);
+		assert_true(fabs(near.rpp.re - c.rpp.re) < 1e-12);
+		assert_true(fabs(near.tpp.re - c.tpp.re) < 1e-12);
+		assert_true(abs2(near.rps) + abs2(near.tps) < 1e-14);
 	}
 }
 

@@ -63,6 +63,10 @@ const char *proto_unit_name(const proto_units *u, proto_kind k);
  * back. */
 double proto_to_internal(const proto_units *u, proto_kind k, double v);
 double proto_from_internal(const proto_units *u, proto_kind k, double v);
+/* The next double after a finite y towards +infinity (up) or -infinity:
+ * nextafter(y, up ? INFINITY : -INFINITY), without the library call that
+ * cost a fifth of a large converted response. */
+double proto__units_step(double y, int up);
 /* Sets u to the documented defaults. */
 void proto_units_default(proto_units *u);
 /* Lists the accepted unit names of kind k as "a, b, c" into buf. */

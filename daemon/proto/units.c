@@ -1,7 +1,9 @@
 /* Units: the one place that knows unit names and conversion factors. Each
  * kind has a list of accepted units, the first being the default; a value
  * in a unit converts to internal units as v * scale + offset. */
+#include <float.h>
 #include <math.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -142,6 +144,19 @@ double proto_to_internal(const proto_units *u, proto_kind k, double v)
  * file wrote. With a pure scale this recovers every input of up to 17
  * digits tried (random decimals, every unit here); an offset (degF, K)
  * loses bits in the sum and some inputs come back one ulp off. */
+double proto__units_step(double y, int up)
+{
+	uint64_t b;
+	if (y == 0)
+		return up ? DBL_TRUE_MIN : -DBL_TRUE_MIN;
+	memcpy(&b, &y, sizeof b);
+	/* the bit pattern of a finite double, read as an integer, orders the
+	 * values of one sign: one more is one ulp further from zero */
+	b += ((b >> 63) == (uint64_t)!up) ? 1 : (uint64_t)-1;
+	memcpy(&y, &b, sizeof y);
+	return y;
+}
+
 static double inverse(const unit_def *d, double v)
 {
 	double y = (v - d->offset) / d->scale, best = y, c[2];
@@ -152,8 +167,8 @@ static double inverse(const unit_def *d, double v)
 	if (!isfinite(y))
 		return y;
 	here = y * d->scale + d->offset == v;
-	c[0] = nextafter(y, -INFINITY);
-	c[1] = nextafter(y, INFINITY);
+	c[0] = proto__units_step(y, 0);
+	c[1] = proto__units_step(y, 1);
 	for (int i = 0; i < 2; i++) {
 		size_t n;
 		if (c[i] * d->scale + d->offset != v)

@@ -288,15 +288,30 @@ void proto_w_int(proto_call *c, const char *key, long long v)
 	proto_buf_append(c->out, tmp, (size_t)n);
 }
 
+/* The decimal text of v at out (20 bytes at most, no NUL); returns its
+ * length. A QC column of a large response has one per sample, which
+ * snprintf made 7 % of the whole request. */
+static size_t u64_text(char *out, uint64_t v)
+{
+	char t[20];
+	size_t n = 0;
+	do {
+		t[sizeof t - ++n] = (char)('0' + v % 10);
+		v /= 10;
+	} while (v);
+	memcpy(out, t + sizeof t - n, n);
+	return n;
+}
+
 void proto_w_flags1(proto_call *c, const char *key, uint64_t v)
 {
-	char tmp[32];
-	int n;
+	char tmp[20];
+	size_t n;
 	if (w_value_skip(c, key))
 		return;
-	n = snprintf(tmp, sizeof tmp, "%llu", (unsigned long long)v);
+	n = u64_text(tmp, v);
 	w_sep(c, key);
-	proto_buf_append(c->out, tmp, (size_t)n);
+	proto_buf_append(c->out, tmp, n);
 }
 
 void proto_w_str(proto_call *c, const char *key, const char *s)
@@ -440,7 +455,7 @@ void proto_w_flag_rows(proto_call *c, const char *key, const void *rows,
                        size_t row_size, size_t offset, size_t n, int as_array)
 {
 	const unsigned char *base = (const unsigned char *)rows + offset;
-	char tmp[32];
+	char tmp[21];
 	uint64_t f = 0;
 
 	if (!as_array) {
@@ -455,12 +470,12 @@ void proto_w_flag_rows(proto_call *c, const char *key, const void *rows,
 	if (n < SIZE_MAX / 12)
 		proto_buf_reserve(c->out, n * 11 + 2);
 	proto_buf_append(c->out, "[", 1);
+	tmp[0] = ',';
 	for (size_t i = 0; i < n; i++) {
-		int len;
+		size_t len;
 		memcpy(&f, base + i * row_size, sizeof f);
-		len = snprintf(tmp, sizeof tmp, i ? ",%llu" : "%llu",
-		               (unsigned long long)f);
-		proto_buf_append(c->out, tmp, (size_t)len);
+		len = u64_text(tmp + 1, f);
+		proto_buf_append(c->out, tmp + (i == 0), len + (i != 0));
 	}
 	proto_buf_append(c->out, "]", 1);
 }

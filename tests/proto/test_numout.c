@@ -5,6 +5,7 @@
  * text back is glibc's strtod (through cJSON, which calls it), and for
  * fixed digits glibc's printf ("%.*g"), which rounds the exact binary
  * value half to even (C11 7.21.6.1; glibc documents exact rounding). */
+#include <float.h>
 #include <math.h>
 #include <setjmp.h>
 #include <stdarg.h>
@@ -17,6 +18,7 @@
 #include <cmocka.h>
 
 #include "harness.h"
+#include "proto/internal.h"
 
 static harness H;
 
@@ -253,6 +255,51 @@ static void test_echo_through_units(void **state)
 	cJSON_Delete(r);
 }
 
+/* The unit inverse's neighbour step is C's nextafter (C11 7.12.11.3, as
+ * glibc's libm computes it) towards either infinity: on both zeros, the
+ * subnormal and normal limits, the largest double, powers of two (where
+ * the ulp changes) and random bit patterns of either sign. */
+static void test_unit_step_is_nextafter(void **state)
+{
+	static const double hard[] = {0.0,
+	                              -0.0,
+	                              DBL_TRUE_MIN,
+	                              -DBL_TRUE_MIN,
+	                              DBL_MIN,
+	                              -DBL_MIN,
+	                              DBL_MAX,
+	                              -DBL_MAX,
+	                              1.0,
+	                              -1.0,
+	                              0x1p-1022 - 0x1p-1074,
+	                              2.0,
+	                              -0.5,
+	                              1e9,
+	                              0.3048,
+	                              9007199254740992.0};
+	uint64_t s = 7;
+	(void)state;
+	for (size_t i = 0; i < sizeof hard / sizeof hard[0] + 200000; i++) {
+		double y, a, b;
+		if (i < sizeof hard / sizeof hard[0]) {
+			y = hard[i];
+		} else {
+			uint64_t bits = mix(&s);
+			memcpy(&y, &bits, sizeof y);
+			if (!isfinite(y))
+				continue;
+		}
+		for (int up = 0; up < 2; up++) {
+			a = proto__units_step(y, up);
+			b = nextafter(y, up ? INFINITY : -INFINITY);
+			if (memcmp(&a, &b, sizeof a)) {
+				fail_msg("step(%a, %d) = %a, nextafter %a", y,
+				         up, a, b);
+			}
+		}
+	}
+}
+
 /* A column long enough to be formatted on the worker threads gives the
  * same text as the same samples in requests below the threshold. */
 static void test_threaded_column_text(void **state)
@@ -411,6 +458,7 @@ int main(void)
 	    cmocka_unit_test(test_echo_exact_and_shortest),
 	    cmocka_unit_test(test_shortest_matches_printf_search),
 	    cmocka_unit_test(test_echo_through_units),
+	    cmocka_unit_test(test_unit_step_is_nextafter),
 	    cmocka_unit_test(test_threaded_column_text),
 	    cmocka_unit_test(test_digits),
 	    cmocka_unit_test(test_digits_refused),

@@ -136,14 +136,6 @@ double proto_to_internal(const proto_units *u, proto_kind k, double v)
 	return d ? v * d->scale + d->offset : v;
 }
 
-/* The inverse of v * scale + offset that gives a caller's number back:
- * (v - offset) / scale alone misses it for about one value in ten (30 deg
- * read in, 29.999999999999996 written out). Of that quotient and its two
- * neighbours, those that map to v again are the numbers the caller may
- * have sent; the one with the shortest text is the one a person or a
- * file wrote. With a pure scale this recovers every input of up to 17
- * digits tried (random decimals, every unit here); an offset (degF, K)
- * loses bits in the sum and some inputs come back one ulp off. */
 double proto__units_step(double y, int up)
 {
 	uint64_t b;
@@ -157,6 +149,14 @@ double proto__units_step(double y, int up)
 	return y;
 }
 
+/* The inverse of v * scale + offset that gives a caller's number back:
+ * (v - offset) / scale alone misses it for about one value in ten (30 deg
+ * read in, 29.999999999999996 written out). Of that quotient and its two
+ * neighbours, those that map to v again are the numbers the caller may
+ * have sent; the one with the shortest text is the one a person or a
+ * file wrote. With a pure scale this recovers every input of up to 17
+ * digits tried (random decimals, every unit here); an offset (degF, K)
+ * loses bits in the sum and some inputs come back one ulp off. */
 static double inverse(const unit_def *d, double v)
 {
 	double y = (v - d->offset) / d->scale, best = y, c[2];

@@ -637,8 +637,8 @@ int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
                        proto_units *u);
 /* Frees the call's arena. */
 void proto__arena_free(proto_call *c);
-/* Moves t's arena blocks and kept trees into c's (a scratch call's
- * memory then lives as long as c). */
+/* Gives c the arena and kept trees of t, a copy of c that allocated on
+ * from c's arena (a scratch call's memory then lives as long as c). */
 void proto__arena_adopt(proto_call *c, proto_call *t);
 /* Appends s to b as a JSON string. */
 void proto__buf_json_string(proto_buf *b, const char *s);

@@ -308,8 +308,7 @@ static int prepare_draws(unc_run *r, const void *args)
 			return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
 			                  "out of memory for the draws");
 		memcpy(a, args, m->params->size);
-		t = *c;
-		t.arena = NULL;
+		t = *c; /* allocates on from c's arena */
 		t.err_code = 0;
 		t.n_warnings = 0;
 		t.warnings = NULL;

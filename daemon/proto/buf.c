@@ -123,3 +123,33 @@ void proto__buf_json_string(proto_buf *b, const char *s)
 {
 	buf_json_string(b, s);
 }
+
+void proto__buf_member(proto_buf *b, int comma, const char *key)
+{
+	const unsigned char *q = (const unsigned char *)key;
+	size_t n;
+	char *o;
+
+	while (*q >= 0x20 && *q != '"' && *q != '\\')
+		q++;
+	n = (size_t)(q - (const unsigned char *)key);
+	if (*q || b->oom || b->cap - b->len < n + 5) {
+		/* a key to escape, or no room: piece by piece */
+		if (comma)
+			proto_buf_append(b, ",", 1);
+		buf_json_string(b, key);
+		proto_buf_append(b, ":", 1);
+		return;
+	}
+	/* a plain key (every declared name): one copy */
+	o = b->data + b->len;
+	*o = ',';
+	o += comma;
+	*o++ = '"';
+	memcpy(o, key, n);
+	o += n;
+	*o++ = '"';
+	*o++ = ':';
+	*o = '\0';
+	b->len = (size_t)(o - b->data);
+}

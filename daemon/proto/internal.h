@@ -642,6 +642,19 @@ void proto__arena_free(proto_call *c);
 void proto__arena_adopt(proto_call *c, proto_call *t);
 /* Appends s to b as a JSON string. */
 void proto__buf_json_string(proto_buf *b, const char *s);
+/* Appends a member's start: a comma when `comma`, then "key": (buf.c). */
+void proto__buf_member(proto_buf *b, int comma, const char *key);
+/* Appends one byte (the writer's brackets and commas) without a call
+ * when the buffer has room. */
+static inline void proto__buf_put1(proto_buf *b, char ch)
+{
+	if (b->oom || b->cap - b->len < 2) {
+		proto_buf_append(b, &ch, 1);
+		return;
+	}
+	b->data[b->len++] = ch;
+	b->data[b->len] = '\0';
+}
 /* The OpenRPC document generated from the declarations (schema.c), as a
  * cJSON tree the caller deletes; NULL when out of memory. */
 cJSON *proto__openrpc(void);

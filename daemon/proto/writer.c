@@ -88,7 +88,7 @@ static int w_skip(proto_call *c, const char *key)
 
 static void w_sep(proto_call *c, const char *key)
 {
-	int d = c->depth;
+	int d = c->depth, comma = 0;
 	if (c->key_pending) {
 		/* proto_w_key wrote the separator and the key already. */
 		c->key_pending = 0;
@@ -96,14 +96,13 @@ static void w_sep(proto_call *c, const char *key)
 	}
 	assert(d >= 0 && d < PROTO_W_DEPTH);
 	if (d > 0 && d < PROTO_W_DEPTH) {
-		if (c->need_comma[d])
-			proto_buf_append(c->out, ",", 1);
+		comma = c->need_comma[d];
 		c->need_comma[d] = 1;
 	}
-	if (key) {
-		proto__buf_json_string(c->out, key);
-		proto_buf_append(c->out, ":", 1);
-	}
+	if (key)
+		proto__buf_member(c->out, comma, key);
+	else if (comma)
+		proto__buf_put1(c->out, ',');
 }
 
 static void w_open(proto_call *c, const char *key, char ch)
@@ -118,7 +117,7 @@ static void w_open(proto_call *c, const char *key, char ch)
 		return;
 	}
 	w_sep(c, key);
-	proto_buf_append(c->out, &ch, 1);
+	proto__buf_put1(c->out, ch);
 	assert(d < PROTO_W_DEPTH);
 	if (d < PROTO_W_DEPTH) {
 		c->need_comma[d] = 0;
@@ -136,7 +135,7 @@ static void w_close(proto_call *c, char ch)
 	}
 	assert(c->depth > 0);
 	c->depth--;
-	proto_buf_append(c->out, &ch, 1);
+	proto__buf_put1(c->out, ch);
 }
 
 /* Records that the value at key (inside the open objects) has kind k, for

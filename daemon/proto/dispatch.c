@@ -800,6 +800,15 @@ static size_t axis_len(const cJSON *v)
 	return 1;
 }
 
+/* Counts n samples for field f's broadcast group (nested objects and
+ * the other types count for group 0). */
+static void widen(size_t *len, const proto_field *f, size_t n)
+{
+	int g = f->type == PT_NUMS ? f->group : 0;
+	if (g < PROTO_MAX_GROUPS && n > len[g])
+		len[g] = n;
+}
+
 /* Work of one request: the product over broadcast groups of the longest
  * array given for the group (nested objects count for group 0), times
  * the nodes of every grid axis (PF_AXIS), times the draws when an input
@@ -811,29 +820,44 @@ static size_t request_cost(proto_session *s, const cJSON *req)
 	const proto_method *m;
 	size_t len[PROTO_MAX_GROUPS];
 	double work = 1;
+	int nested = 0, dist = 0;
 
 	if (!cJSON_IsString(method) ||
 	    !(m = proto_method_find(method->valuestring)) || !m->params)
 		return 1;
 	for (int g = 0; g < PROTO_MAX_GROUPS; g++)
 		len[g] = 1;
-	for (const proto_field *f = m->params->fields; f->name; f++) {
-		const cJSON *v =
-		    cJSON_GetObjectItemCaseSensitive(params, f->name);
-		size_t n;
-		int g = f->type == PT_NUMS ? f->group : 0;
-		if (f->flags & PF_AXIS) {
-			if (v)
+	/* One pass over the members given: a scalar counts once whatever
+	 * field it is, so only arrays and objects are looked up. */
+	if (cJSON_IsObject(params))
+		for (const cJSON *v = params->child; v; v = v->next) {
+			const proto_field *f;
+			if (!cJSON_IsArray(v) && !cJSON_IsObject(v)) {
+				if (cJSON_IsString(v) &&
+				    strcmp(v->string, "dist") == 0)
+					dist = 1;
+				continue;
+			}
+			nested = 1;
+			for (f = m->params->fields; f->name; f++)
+				if (strcmp(f->name, v->string) == 0)
+					break;
+			if (!f->name)
+				continue;
+			if (f->flags & PF_AXIS)
 				work *= (double)axis_len(v);
-			continue;
+			else
+				widen(len, f, longest_array(v));
 		}
-		n = v ? longest_array(v) : proto__session_len(s, m, f);
-		if (g < PROTO_MAX_GROUPS && n > len[g])
-			len[g] = n;
-	}
+	/* fields left out that the session holds */
+	if (!proto__session_empty(s))
+		for (const proto_field *f = m->params->fields; f->name; f++)
+			if (!(f->flags & PF_AXIS) &&
+			    !cJSON_GetObjectItemCaseSensitive(params, f->name))
+				widen(len, f, proto__session_len(s, m, f));
 	for (int g = 0; g < PROTO_MAX_GROUPS; g++)
 		work *= (double)len[g];
-	if (has_dist(params, 0)) {
+	if (cJSON_IsObject(params) && !nested ? dist : has_dist(params, 0)) {
 		const cJSON *u =
 		    cJSON_GetObjectItemCaseSensitive(params, "uncertainty");
 		const cJSON *d = cJSON_GetObjectItemCaseSensitive(u, "draws");

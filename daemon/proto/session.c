@@ -102,6 +102,11 @@ static const sess_default *find(const proto_session *s, const proto_method *m,
 	return any;
 }
 
+int proto__session_empty(const proto_session *s)
+{
+	return !s || !s->defaults;
+}
+
 size_t proto__session_len(const proto_session *s, const proto_method *m,
                           const proto_field *f)
 {

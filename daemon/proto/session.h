@@ -6,6 +6,8 @@
 
 #include "proto/internal.h"
 
+/* 1 when s holds no defaults (or is NULL): no field then takes one. */
+int proto__session_empty(const proto_session *s);
 /* Length of the value the session would give field f of method m: the
  * array length, 1 for a scalar, 0 when the session has no such default. */
 size_t proto__session_len(const proto_session *s, const proto_method *m,

@@ -419,6 +419,8 @@ static void test_cost(void **state)
 	assert_int_equal(h_code(r), 0);
 	cJSON_Delete(r);
 	assert_int_equal(rw_proto_cost(h->s, inherit, strlen(inherit)), 5);
+	/* a value given is used, not the session's */
+	assert_int_equal(rw_proto_cost(h->s, small, strlen(small)), 1);
 	/* a short line can be heavy: 5000 draws x 1 sample (elastic.convert,
 	 * cost 1), the default 1000 draws, and a 50 x 40 template grid x
 	 * rock.template's cost of 20 per node */

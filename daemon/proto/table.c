@@ -28,9 +28,11 @@ const proto_method *proto_method_at(size_t i)
 
 const proto_method *proto_method_find(const char *name)
 {
-	const proto_method *m;
-	for (size_t i = 0; (m = proto_method_at(i)); i++)
-		if (strcmp(m->name, name) == 0)
-			return m;
+	/* family by family: every request asks, and proto_method_at walks
+	 * from the start each time */
+	for (size_t f = 0; f < sizeof families / sizeof families[0]; f++)
+		for (const proto_method *const *m = families[f]; *m; m++)
+			if (strcmp((*m)->name, name) == 0)
+				return *m;
 	return NULL;
 }

@@ -6,6 +6,7 @@
  * fixed digits glibc's printf ("%.*g"), which rounds the exact binary
  * value half to even (C11 7.21.6.1; glibc documents exact rounding). */
 #include <float.h>
+#include <limits.h>
 #include <math.h>
 #include <setjmp.h>
 #include <stdarg.h>
@@ -452,6 +453,38 @@ static void test_digits_refused(void **state)
 	}
 }
 
+/* Whole numbers written by the result writer (counts, the QC flags) read
+ * as glibc's printf("%lld") writes them, the ends of the range included
+ * (C11 7.21.6.1). */
+static void test_integers_out(void **state)
+{
+	const long long edge[] = {0,         1,         -1,         9,
+	                          10,        -10,       99,         100,
+	                          LLONG_MAX, LLONG_MIN, -LLONG_MAX, 1000000,
+	                          123456789, -987654321};
+	uint64_t seed = 11;
+	char want[32];
+	(void)state;
+
+	for (size_t i = 0; i < 100000 + sizeof edge / sizeof edge[0]; i++) {
+		proto_call c;
+		proto_buf out;
+		long long v = i < sizeof edge / sizeof edge[0]
+		                  ? edge[i]
+		                  : (long long)(mix(&seed) >> (i % 64));
+		if (i % 2 && v != LLONG_MIN)
+			v = -v;
+		memset(&c, 0, sizeof c);
+		proto_buf_init(&out);
+		c.out = &out;
+		proto_w_int(&c, NULL, v);
+		snprintf(want, sizeof want, "%lld", v);
+		assert_non_null(out.data);
+		assert_string_equal(out.data, want);
+		proto_buf_free(&out);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -462,6 +495,7 @@ int main(void)
 	    cmocka_unit_test(test_threaded_column_text),
 	    cmocka_unit_test(test_digits),
 	    cmocka_unit_test(test_digits_refused),
+	    cmocka_unit_test(test_integers_out),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }

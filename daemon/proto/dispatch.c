@@ -302,7 +302,15 @@ static const char *find_duplicate_key(const cJSON *v, int *oom)
 			n++;
 		while (cap < 2 * n)
 			cap <<= 1;
-		if (n > 1) {
+		if (n > 1 && n <= 8) {
+			/* a few keys (every small request): each against
+			 * the ones before it, no set to allocate */
+			for (a = v->child->next; a; a = a->next)
+				for (const cJSON *b = v->child; b != a;
+				     b = b->next)
+					if (strcmp(a->string, b->string) == 0)
+						return a->string;
+		} else if (n > 1) {
 			set = calloc(cap, sizeof *set);
 			if (!set) {
 				*oom = 1;

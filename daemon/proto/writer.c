@@ -138,43 +138,9 @@ static void w_close(proto_call *c, char ch)
 	proto__buf_put1(c->out, ch);
 }
 
-/* Records that the value at key (inside the open objects) has kind k, for
- * the "units" member. Paths are dotted: "fluid_new.k". */
-static void note_unit(proto_call *c, const char *key, proto_kind k)
+/* Notes kind k for the dotted path, once. */
+static void note_path(proto_call *c, const char *path, proto_kind k)
 {
-	char path[160];
-	size_t used = 0;
-	int top = c->depth < PROTO_W_DEPTH ? c->depth : PROTO_W_DEPTH - 1;
-
-	if (k == PK_NONE)
-		return;
-	if (!key)
-		key = c->keys[top];
-	path[0] = '\0';
-	/* keys[1] is the result object itself (no name). */
-	for (int d = 2; d <= top; d++) {
-		const char *seg = c->keys[d];
-		if (!seg || (d > 2 && c->keys[d - 1] == seg))
-			continue;
-		size_t n = strlen(seg);
-		if (used + n + 2 > sizeof path)
-			return;
-		memcpy(path + used, seg, n);
-		used += n;
-		path[used++] = '.';
-		path[used] = '\0';
-	}
-	if (key && !(top >= 2 && c->keys[top] == key)) {
-		size_t n = strlen(key);
-		if (used + n + 1 > sizeof path)
-			n = sizeof path - used - 1;
-		memcpy(path + used, key, n);
-		path[used + n] = '\0';
-	} else if (used) {
-		path[used - 1] = '\0';
-	}
-	if (!path[0])
-		return;
 	/* FNV-1a (Fowler, Noll, Vo): every number written asks, so the
 	 * notes are told apart by hash before any strcmp. */
 	uint32_t h = 2166136261u;
@@ -205,6 +171,51 @@ static void note_unit(proto_call *c, const char *key, proto_kind k)
 	c->unit_notes[c->n_unit_notes].hash = h;
 	c->unit_notes[c->n_unit_notes].kind = k;
 	c->n_unit_notes++;
+}
+
+/* Records that the value at key (inside the open objects) has kind k, for
+ * the "units" member. Paths are dotted: "fluid_new.k". */
+static void note_unit(proto_call *c, const char *key, proto_kind k)
+{
+	char path[160];
+	size_t used = 0;
+	int top = c->depth < PROTO_W_DEPTH ? c->depth : PROTO_W_DEPTH - 1;
+
+	if (k == PK_NONE)
+		return;
+	if (!key)
+		key = c->keys[top];
+	if (top <= 1) {
+		/* a member of the result itself: its key is the path */
+		if (key && *key)
+			note_path(c, key, k);
+		return;
+	}
+	path[0] = '\0';
+	/* keys[1] is the result object itself (no name). */
+	for (int d = 2; d <= top; d++) {
+		const char *seg = c->keys[d];
+		if (!seg || (d > 2 && c->keys[d - 1] == seg))
+			continue;
+		size_t n = strlen(seg);
+		if (used + n + 2 > sizeof path)
+			return;
+		memcpy(path + used, seg, n);
+		used += n;
+		path[used++] = '.';
+		path[used] = '\0';
+	}
+	if (key && !(top >= 2 && c->keys[top] == key)) {
+		size_t n = strlen(key);
+		if (used + n + 1 > sizeof path)
+			n = sizeof path - used - 1;
+		memcpy(path + used, key, n);
+		path[used + n] = '\0';
+	} else if (used) {
+		path[used - 1] = '\0';
+	}
+	if (path[0])
+		note_path(c, path, k);
 }
 
 void proto_w_note_unit(proto_call *c, const char *key, proto_kind k)

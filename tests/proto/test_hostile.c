@@ -125,6 +125,15 @@ static const hcase corpus[] = {
      EC("{\"rho\":2.4,\"vp\":3000,\"vp\":3100,"
         "\"vs\":1500}"),
      0, -32600, "vp", 0, 0},
+    /* eight members are compared pairwise, nine through a hash set */
+    {"duplicate key of eight",
+     EC("{\"rho\":2.4,\"a\":1,\"b\":1,\"c\":1,\"d\":1,\"e\":1,"
+        "\"vp\":3000,\"rho\":2.5}"),
+     0, -32600, "rho", 0, 0},
+    {"duplicate key of nine",
+     EC("{\"rho\":2.4,\"a\":1,\"b\":1,\"c\":1,\"d\":1,\"e\":1,"
+        "\"f\":1,\"vp\":3000,\"rho\":2.5}"),
+     0, -32600, "rho", 0, 0},
     /* every id type (JSON-RPC 2.0 section 4: string, number, null) */
     {"id string",
      "{\"jsonrpc\":\"2.0\",\"id\":\"a-1\",\"method\":"

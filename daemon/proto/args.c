@@ -30,8 +30,11 @@ static const char *type_name(const cJSON *v)
 
 int proto_field_index(const proto_decl *d, const char *name)
 {
+	/* the first byte first: most names differ there, and a call to
+	 * strcmp costs more than the test */
 	for (int i = 0; d->fields[i].name; i++)
-		if (strcmp(d->fields[i].name, name) == 0)
+		if (d->fields[i].name[0] == name[0] &&
+		    strcmp(d->fields[i].name, name) == 0)
 			return i;
 	return -1;
 }

@@ -126,30 +126,36 @@ void proto__buf_json_string(proto_buf *b, const char *s)
 
 void proto__buf_member(proto_buf *b, int comma, const char *key)
 {
+	enum { ROOM = 64 }; /* the longest key written in one pass */
 	const unsigned char *q = (const unsigned char *)key;
-	size_t n;
-	char *o;
+	char *o, *stop;
 
-	while (*q >= 0x20 && *q != '"' && *q != '\\')
-		q++;
-	n = (size_t)(q - (const unsigned char *)key);
-	if (*q || b->oom || b->cap - b->len < n + 5) {
-		/* a key to escape, or no room: piece by piece */
-		if (comma)
-			proto_buf_append(b, ",", 1);
-		buf_json_string(b, key);
-		proto_buf_append(b, ":", 1);
-		return;
+	/* Near the output limit the exact length decides (the appends
+	 * below), not this scratch room. */
+	if (!b->oom && (b->cap - b->len >= ROOM + 5 ||
+	                ((!b->limit || b->len + ROOM + 5 < b->limit) &&
+	                 !proto_buf_reserve(b, ROOM + 4)))) {
+		/* a plain key (every declared name): scanned and copied in
+		 * one pass, no call */
+		o = b->data + b->len;
+		*o = ',';
+		o += comma;
+		*o++ = '"';
+		stop = o + ROOM;
+		while (*q >= 0x20 && *q != '"' && *q != '\\' && o < stop)
+			*o++ = (char)*q++;
+		if (!*q) {
+			*o++ = '"';
+			*o++ = ':';
+			*o = '\0';
+			b->len = (size_t)(o - b->data);
+			return;
+		}
 	}
-	/* a plain key (every declared name): one copy */
-	o = b->data + b->len;
-	*o = ',';
-	o += comma;
-	*o++ = '"';
-	memcpy(o, key, n);
-	o += n;
-	*o++ = '"';
-	*o++ = ':';
-	*o = '\0';
-	b->len = (size_t)(o - b->data);
+	/* a key to escape or a long one: piece by piece (what the pass
+	 * above wrote lies past len and is overwritten) */
+	if (comma)
+		proto_buf_append(b, ",", 1);
+	buf_json_string(b, key);
+	proto_buf_append(b, ":", 1);
 }

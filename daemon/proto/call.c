@@ -101,8 +101,18 @@ const char *proto_path(proto_call *c, const char *prefix, const char *name,
 {
 	/* Built for every parameter read, error or not: copies, not
 	 * snprintf, which cost a tenth of a small request. */
-	size_t a = strlen(prefix), b = strlen(name), d = strlen(suffix);
-	char *s = proto_alloc(c, a + b + d + 1);
+	size_t a, b, d;
+	char *s;
+
+	if (!*prefix && !*suffix) {
+		/* a top-level parameter: its name (the commonest case) */
+		s = proto_strdup(c, name);
+		return s ? s : "";
+	}
+	a = strlen(prefix);
+	b = strlen(name);
+	d = strlen(suffix);
+	s = proto_alloc(c, a + b + d + 1);
 	if (!s)
 		return "";
 	memcpy(s, prefix, a);

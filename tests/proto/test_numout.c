@@ -485,6 +485,63 @@ static void test_integers_out(void **state)
 	}
 }
 
+/* Member keys written by the result writer read back (through cJSON's
+ * parser) as the same key: plain ones, ones that need escapes, and ones
+ * either side of the writer's one-pass length; near an output limit a
+ * key that fits is written and one that does not sets oom. */
+static void test_member_keys(void **state)
+{
+	char keys[6][200];
+	(void)state;
+
+	strcpy(keys[0], "vp");
+	strcpy(keys[1], "say \"hi\"\\\n\t\x01 end");
+	memset(keys[2], 'a', 64);
+	keys[2][64] = '\0';
+	memset(keys[3], 'b', 65);
+	keys[3][65] = '\0';
+	memset(keys[4], 'c', 150);
+	keys[4][150] = '\0';
+	strcpy(keys[5], "\xc3\xa9t\xc3\xa9"); /* UTF-8 passes */
+	for (size_t i = 0; i < 6; i++)
+		for (int comma = 0; comma < 2; comma++) {
+			proto_buf out;
+			cJSON *o;
+			proto_buf_init(&out);
+			proto_buf_append(&out, "{\"x\":0", comma ? 6 : 1);
+			proto__buf_member(&out, comma, keys[i]);
+			proto_buf_append(&out, "1}", 2);
+			assert_false(out.oom);
+			assert_int_equal(strlen(out.data), out.len);
+			o = cJSON_Parse(out.data);
+			assert_non_null(o);
+			assert_non_null(
+			    cJSON_GetObjectItemCaseSensitive(o, keys[i]));
+			cJSON_Delete(o);
+			proto_buf_free(&out);
+		}
+	for (size_t room = 0; room < 8; room++) {
+		proto_buf out;
+		proto_buf_init(&out);
+		/* 250 bytes in a buffer of 256 (the first size): ,"vp": and
+		 * the NUL make it grow, which the limit governs */
+		proto_buf_reserve(&out, 250);
+		assert_int_equal(out.cap, 256);
+		memset(out.data, ' ', 250);
+		out.len = 250;
+		out.limit = 250 + 6 + room;
+		proto__buf_member(&out, 1, "vp");
+		if (room >= 1) {
+			assert_false(out.oom);
+			assert_int_equal(out.len, 256);
+			assert_memory_equal(out.data + 250, ",\"vp\":", 6);
+		} else {
+			assert_true(out.oom);
+		}
+		proto_buf_free(&out);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -496,6 +553,7 @@ int main(void)
 	    cmocka_unit_test(test_digits),
 	    cmocka_unit_test(test_digits_refused),
 	    cmocka_unit_test(test_integers_out),
+	    cmocka_unit_test(test_member_keys),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }

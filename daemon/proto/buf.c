@@ -68,6 +68,41 @@ void proto_buf_append(proto_buf *b, const char *s, size_t n)
 	b->data[b->len] = '\0';
 }
 
+/* The longest text the fast paths below copy in one pass. */
+enum { ROOM = 64 };
+
+/* 1 when b has n bytes of room past len, growing it if need be; 0 when
+ * out of memory or near the output limit, where the exact length must
+ * decide (proto_buf_append), not this scratch room. */
+static inline int has_room(proto_buf *b, size_t n)
+{
+	if (b->oom)
+		return 0;
+	if (b->cap - b->len >= n)
+		return 1;
+	return (!b->limit || b->len + n < b->limit) &&
+	       !proto_buf_reserve(b, n - 1);
+}
+
+/* Writes s in quotes at o, scanned and copied in one pass with no call,
+ * when it needs no escape and is at most ROOM bytes (ROOM + 2 bytes of
+ * room at o); returns the end, or NULL (what was written is then to be
+ * overwritten). Names, units and most text take this path. */
+static inline char *quote_plain(char *o, const char *s)
+{
+	const unsigned char *q = (const unsigned char *)s;
+	char *stop;
+
+	*o++ = '"';
+	stop = o + ROOM;
+	while (*q >= 0x20 && *q != '"' && *q != '\\' && o < stop)
+		*o++ = (char)*q++;
+	if (*q)
+		return NULL;
+	*o++ = '"';
+	return o;
+}
+
 /* Appends s as a JSON string with the escapes RFC 8259 requires. Input is
  * expected to be UTF-8 (checked on the way in); bytes >= 0x80 pass. */
 static void buf_json_string(proto_buf *b, const char *s)
@@ -76,20 +111,11 @@ static void buf_json_string(proto_buf *b, const char *s)
 	const unsigned char *p = (const unsigned char *)s;
 	char esc[7];
 
-	const unsigned char *q = p;
+	char *e;
 
-	while (*q >= 0x20 && *q != '"' && *q != '\\')
-		q++;
-	if (!*q) {
-		/* nothing to escape (names, units, most text): one copy */
-		size_t n = (size_t)(q - p);
-		if (proto_buf_reserve(b, n + 2))
-			return;
-		b->data[b->len] = '"';
-		memcpy(b->data + b->len + 1, s, n);
-		b->data[b->len + n + 1] = '"';
-		b->len += n + 2;
-		b->data[b->len] = '\0';
+	if (has_room(b, ROOM + 3) && (e = quote_plain(b->data + b->len, s))) {
+		*e = '\0';
+		b->len = (size_t)(e - b->data);
 		return;
 	}
 	proto_buf_append(b, "\"", 1);
@@ -126,34 +152,19 @@ void proto__buf_json_string(proto_buf *b, const char *s)
 
 void proto__buf_member(proto_buf *b, int comma, const char *key)
 {
-	enum { ROOM = 64 }; /* the longest key written in one pass */
-	const unsigned char *q = (const unsigned char *)key;
-	char *o, *stop;
+	char *o, *e;
 
-	/* Near the output limit the exact length decides (the appends
-	 * below), not this scratch room. */
-	if (!b->oom && (b->cap - b->len >= ROOM + 5 ||
-	                ((!b->limit || b->len + ROOM + 5 < b->limit) &&
-	                 !proto_buf_reserve(b, ROOM + 4)))) {
-		/* a plain key (every declared name): scanned and copied in
-		 * one pass, no call */
+	if (has_room(b, ROOM + 5)) {
 		o = b->data + b->len;
 		*o = ',';
-		o += comma;
-		*o++ = '"';
-		stop = o + ROOM;
-		while (*q >= 0x20 && *q != '"' && *q != '\\' && o < stop)
-			*o++ = (char)*q++;
-		if (!*q) {
-			*o++ = '"';
-			*o++ = ':';
-			*o = '\0';
-			b->len = (size_t)(o - b->data);
+		if ((e = quote_plain(o + comma, key))) {
+			*e++ = ':';
+			*e = '\0';
+			b->len = (size_t)(e - b->data);
 			return;
 		}
 	}
-	/* a key to escape or a long one: piece by piece (what the pass
-	 * above wrote lies past len and is overwritten) */
+	/* a key to escape or a long one: piece by piece */
 	if (comma)
 		proto_buf_append(b, ",", 1);
 	buf_json_string(b, key);

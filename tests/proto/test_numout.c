@@ -539,6 +539,19 @@ static void test_member_keys(void **state)
 			assert_true(out.oom);
 		}
 		proto_buf_free(&out);
+		/* the same for a string value: "vp" is 4 bytes */
+		proto_buf_reserve(&out, 252);
+		memset(out.data, ' ', 252);
+		out.len = 252;
+		out.limit = 252 + 4 + room;
+		proto__buf_json_string(&out, "vp");
+		if (room >= 1) {
+			assert_false(out.oom);
+			assert_memory_equal(out.data + 252, "\"vp\"", 4);
+		} else {
+			assert_true(out.oom);
+		}
+		proto_buf_free(&out);
 	}
 }
 

@@ -483,7 +483,7 @@ static void run_method(proto_session *s, const proto_method *m,
 static void handle_one(proto_session *s, const cJSON *req, const char *line,
                        size_t len, size_t p, proto_buf *out)
 {
-	const cJSON *ver, *method, *params = NULL, *m;
+	const cJSON *ver, *method, *params = NULL, *m, *unknown;
 	const proto_method *pm;
 	req_id id = {NULL, NULL, 0};
 	int has_id = 0;
@@ -496,10 +496,23 @@ static void handle_one(proto_session *s, const cJSON *req, const char *line,
 		            "a request must be a JSON object");
 		return;
 	}
-	ver = cJSON_GetObjectItemCaseSensitive(req, "jsonrpc");
-	method = cJSON_GetObjectItemCaseSensitive(req, "method");
-	params = cJSON_GetObjectItemCaseSensitive(req, "params");
-	m = cJSON_GetObjectItemCaseSensitive(req, "id");
+	/* One pass over the members (duplicates were refused): each
+	 * named once, the first unknown one kept for its error. */
+	ver = method = NULL;
+	m = unknown = NULL;
+	for (const cJSON *e = req->child; e; e = e->next) {
+		const char *k = e->string;
+		if (k[0] == 'j' && strcmp(k, "jsonrpc") == 0)
+			ver = e;
+		else if (k[0] == 'm' && strcmp(k, "method") == 0)
+			method = e;
+		else if (k[0] == 'p' && strcmp(k, "params") == 0)
+			params = e;
+		else if (k[0] == 'i' && strcmp(k, "id") == 0)
+			m = e;
+		else if (!unknown)
+			unknown = e;
+	}
 	if (m) {
 		has_id = 1;
 		if (cJSON_IsNumber(m))
@@ -517,19 +530,14 @@ static void handle_one(proto_session *s, const cJSON *req, const char *line,
 		            "must be a string, a number or null");
 		return;
 	}
-	cJSON_ArrayForEach(m, req)
-	{
-		if (strcmp(m->string, "jsonrpc") &&
-		    strcmp(m->string, "method") &&
-		    strcmp(m->string, "params") && strcmp(m->string, "id")) {
-			snprintf(why, sizeof why,
-			         "unknown member '%.64s'; a request has "
-			         "jsonrpc, method, params and id",
-			         m->string);
-			write_error(s->ctx, out, &id, PROTO_INVALID_REQUEST,
-			            m->string, why);
-			return;
-		}
+	if (unknown) {
+		snprintf(why, sizeof why,
+		         "unknown member '%.64s'; a request has "
+		         "jsonrpc, method, params and id",
+		         unknown->string);
+		write_error(s->ctx, out, &id, PROTO_INVALID_REQUEST,
+		            unknown->string, why);
+		return;
 	}
 	if (!cJSON_IsString(ver) || strcmp(ver->valuestring, "2.0") != 0) {
 		write_error(s->ctx, out, &id, PROTO_INVALID_REQUEST, "jsonrpc",

@@ -32,7 +32,8 @@ const proto_method *proto_method_find(const char *name)
 	 * from the start each time */
 	for (size_t f = 0; f < sizeof families / sizeof families[0]; f++)
 		for (const proto_method *const *m = families[f]; *m; m++)
-			if (strcmp((*m)->name, name) == 0)
+			if ((*m)->name[0] == name[0] &&
+			    strcmp((*m)->name, name) == 0)
 				return *m;
 	return NULL;
 }

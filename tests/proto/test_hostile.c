@@ -109,6 +109,10 @@ static const hcase corpus[] = {
      "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
      "\"service.info\",\"extra\":1}",
      0, -32600, "extra", 0, 0},
+    {"unknown member spelt like a known one",
+     "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+     "\"service.info\",\"param\":{}}",
+     0, -32600, "param", 0, 0},
     {"params a string",
      "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
      "\"service.info\",\"params\":\"x\"}",

@@ -11,8 +11,9 @@
 
 /* The arena: a call's memory is carved from blocks that live until the
  * call ends. A small request takes everything it needs from its first
- * block (one malloc a call; one malloc an allocation was a tenth of a
- * scalar request), later blocks double up to ARENA_MAX, and an allocation
+ * block (one malloc an allocation was a tenth of a scalar request; the
+ * context keeps one first block from call to call, so most calls make
+ * none), later blocks double up to ARENA_MAX, and an allocation
  * larger than a quarter of the next block gets a block of its own, linked
  * behind the one being carved. Under AddressSanitizer every allocation is
  * its own block, so an overrun is still caught at the byte. */
@@ -22,7 +23,7 @@ struct proto_arena_block {
 	max_align_t align[];
 };
 
-enum { ARENA_FIRST = 2048, ARENA_MAX = 65536 };
+enum { ARENA_FIRST = 4096, ARENA_MAX = 65536 };
 
 #if defined(__SANITIZE_ADDRESS__)
 #define ARENA_EACH 1
@@ -51,7 +52,9 @@ void *proto_alloc(proto_call *c, size_t bytes)
 	       : b->cap >= ARENA_MAX / 2 ? ARENA_MAX
 	                                 : 2 * b->cap;
 	if (need <= size / 4) {
-		nb = malloc(sizeof *nb + size);
+		nb = !b ? proto__ctx_spare_take(c->ctx) : NULL;
+		if (!nb)
+			nb = malloc(sizeof *nb + size);
 		if (!nb)
 			return NULL;
 		nb->next = b;
@@ -154,7 +157,10 @@ void proto__arena_free(proto_call *c)
 	c->trees = NULL;
 	while (c->arena) {
 		proto_arena_block *next = c->arena->next;
-		free(c->arena);
+		/* the first block of the next call, without a malloc */
+		if (c->arena->cap != ARENA_FIRST ||
+		    !proto__ctx_spare_give(c->ctx, c->arena))
+			free(c->arena);
 		c->arena = next;
 	}
 }

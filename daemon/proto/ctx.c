@@ -27,6 +27,8 @@ struct proto_ctx {
 	pthread_mutex_t pool_mu;
 	proto_pool *pool; /* started on first use */
 	int pool_failed;
+	/* one call arena's first block, kept for the next call */
+	_Atomic(void *) spare;
 };
 
 void proto_limits_default(proto_limits *lim)
@@ -68,7 +70,19 @@ void proto_ctx_free(proto_ctx *ctx)
 		return;
 	proto__pool_free(ctx->pool);
 	pthread_mutex_destroy(&ctx->pool_mu);
+	free(atomic_load(&ctx->spare));
 	free(ctx);
+}
+
+void *proto__ctx_spare_take(proto_ctx *ctx)
+{
+	return ctx ? atomic_exchange(&ctx->spare, NULL) : NULL;
+}
+
+int proto__ctx_spare_give(proto_ctx *ctx, void *block)
+{
+	void *none = NULL;
+	return ctx && atomic_compare_exchange_strong(&ctx->spare, &none, block);
 }
 
 size_t proto_ctx_session_bytes(const proto_ctx *ctx)

@@ -637,6 +637,11 @@ int proto__units_apply(proto_call *c, const cJSON *obj, const char *path,
                        proto_units *u);
 /* Frees the call's arena. */
 void proto__arena_free(proto_call *c);
+/* The context's spare first arena block (NULL when none; ctx may be
+ * NULL), and giving one back: 1 when kept, 0 when the caller frees it
+ * (ctx.c). Any thread. */
+void *proto__ctx_spare_take(proto_ctx *ctx);
+int proto__ctx_spare_give(proto_ctx *ctx, void *block);
 /* Gives c the arena and kept trees of t, a copy of c that allocated on
  * from c's arena (a scratch call's memory then lives as long as c). */
 void proto__arena_adopt(proto_call *c, proto_call *t);

@@ -191,6 +191,8 @@ static int conn_dispatch(conn *c, int budget)
 	       lines_ready(c);
 }
 
+enum { LONE_TURNS = 16 };
+
 void srv__on_idle(uv_idle_t *h)
 {
 	srv *s = h->data;
@@ -206,7 +208,12 @@ void srv__on_idle(uv_idle_t *h)
 		conn_clear(c, CF_READY);
 		done = c == last;
 		srv__conn_ref(c);
-		if (conn_dispatch(c, s->cfg->lines_per_turn))
+		/* With no other connection waiting, a turn is LONE_TURNS
+		 * turns long: the loop still polls for new work every few
+		 * hundred lines, but a lone pipelined client (stdin, one
+		 * socket) no longer pays a poll and a write every 20. */
+		if (conn_dispatch(c, s->cfg->lines_per_turn *
+		                         (s->ready_head ? 1 : LONE_TURNS)))
 			srv__conn_schedule(c);
 		srv__conn_unref(c);
 	}

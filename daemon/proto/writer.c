@@ -496,8 +496,14 @@ void proto_w_flag_rows(proto_call *c, const char *key, const void *rows,
 void proto_w_units(proto_call *c)
 {
 	proto_w_obj_begin(c, "units");
-	for (size_t i = 0; i < c->n_unit_notes; i++)
-		proto_w_str(c, c->unit_notes[i].path,
-		            proto_unit_name(&c->units, c->unit_notes[i].kind));
+	/* Straight into the buffer (the map's members are never left out:
+	 * only the map itself can be, by `fields`). */
+	if (!c->skip_depth)
+		for (size_t i = 0; i < c->n_unit_notes; i++) {
+			proto__buf_member(c->out, i > 0, c->unit_notes[i].path);
+			proto__buf_json_string(
+			    c->out,
+			    proto_unit_name(&c->units, c->unit_notes[i].kind));
+		}
 	proto_w_obj_end(c);
 }

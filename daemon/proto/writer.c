@@ -144,8 +144,11 @@ static void note_path(proto_call *c, const char *path, proto_kind k)
 	/* FNV-1a (Fowler, Noll, Vo): every number written asks, so the
 	 * notes are told apart by hash before any strcmp. */
 	uint32_t h = 2166136261u;
-	for (const unsigned char *q = (const unsigned char *)path; *q; q++)
+	const unsigned char *q = (const unsigned char *)path;
+	size_t len;
+	for (; *q; q++)
 		h = (h ^ *q) * 16777619u;
+	len = (size_t)(q - (const unsigned char *)path);
 	for (size_t i = 0; i < c->n_unit_notes; i++)
 		if (c->unit_notes[i].hash == h &&
 		    strcmp(c->unit_notes[i].path, path) == 0)
@@ -162,7 +165,9 @@ static void note_path(proto_call *c, const char *path, proto_kind k)
 		c->unit_notes = n;
 		c->cap_unit_notes = cap;
 	}
-	char *copy = proto_strdup(c, path);
+	char *copy = proto_alloc(c, len + 1);
+	if (copy)
+		memcpy(copy, path, len + 1);
 	if (!copy) {
 		c->out->oom = 1;
 		return;

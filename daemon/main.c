@@ -125,6 +125,10 @@ static void usage(FILE *f)
 	    "                       UV_THREADPOOL_SIZE; at most 1024)\n"
 	    "  --pool-per-peer N    pool threads one peer may hold at once\n"
 	    "                       (default: the pool size - 1, at least 1)\n"
+	    "  --pool-lines N       a pipelining connection's small lines go\n"
+	    "                       to the pool N at a time, so that one\n"
+	    "                       client uses every core (default 64, at\n"
+	    "                       most 1024; 0 = never)\n"
 	    "  --help, --version\n",
 	    f);
 	fputs("\n"
@@ -218,7 +222,8 @@ int main(int argc, char **argv)
 		O_TCP_IDLE,
 		O_OFFLOAD_WORK,
 		O_THREADS,
-		O_POOL_PEER
+		O_POOL_PEER,
+		O_POOL_LINES
 	};
 	static const struct option opts[] = {
 	    {"stdio", no_argument, NULL, 'i'},
@@ -249,6 +254,7 @@ int main(int argc, char **argv)
 	    {"offload-work", required_argument, NULL, O_OFFLOAD_WORK},
 	    {"threads", required_argument, NULL, O_THREADS},
 	    {"pool-per-peer", required_argument, NULL, O_POOL_PEER},
+	    {"pool-lines", required_argument, NULL, O_POOL_LINES},
 	    {"help", no_argument, NULL, 'h'},
 	    {"version", no_argument, NULL, 'V'},
 	    {NULL, 0, NULL, 0},
@@ -386,6 +392,7 @@ int main(int argc, char **argv)
 		case O_OFFLOAD_WORK: name = "--offload-work"; break;
 		case O_THREADS: name = "--threads"; break;
 		case O_POOL_PEER: name = "--pool-per-peer"; break;
+		case O_POOL_LINES: name = "--pool-lines"; break;
 		case O_HIGH: name = "--high-water"; break;
 		case O_HARD: name = "--max-output"; break;
 		case O_BUDGET: name = "--budget"; break;
@@ -427,6 +434,16 @@ int main(int argc, char **argv)
 		case O_OFFLOAD_WORK: cfg.offload_work = v; break;
 		case O_THREADS: cfg.threads = v; break;
 		case O_POOL_PEER: cfg.pool_per_peer = v; break;
+		case O_POOL_LINES:
+			if (v > SRV_POOL_LINES_MAX) {
+				fprintf(stderr,
+				        "rockwired: --pool-lines must be at "
+				        "most %d (lines a group)\n",
+				        SRV_POOL_LINES_MAX);
+				return 2;
+			}
+			cfg.pool_lines = v;
+			break;
 		case O_HIGH: cfg.limits.out_high_water = v; break;
 		case O_HARD: cfg.limits.out_hard_limit = v; break;
 		case O_BUDGET: cfg.limits.global_budget = v; break;

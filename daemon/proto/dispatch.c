@@ -4,6 +4,7 @@
  * error. Batches and notifications follow the JSON-RPC 2.0 specification;
  * a numeric id is echoed as the text it was given in. */
 #include <math.h>
+#include <pthread.h>
 #include <stdatomic.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -920,6 +921,60 @@ size_t rw_proto_classify(proto_session *s, const char *line, size_t len,
 	cJSON_Delete(root);
 	proto__inarr_free(&arrs);
 	return work;
+}
+
+/* The names of the session methods (PM_SESSION), for the text test of
+ * rw_proto_line_shares; set once. */
+enum { MAX_ALONE = 32 };
+static const char *alone_name[MAX_ALONE];
+static size_t alone_len[MAX_ALONE], alone_dot[MAX_ALONE], n_alone;
+static int alone_overflow;
+static pthread_once_t alone_once = PTHREAD_ONCE_INIT;
+
+static void alone_init(void)
+{
+	const proto_method *m;
+
+	for (size_t i = 0; (m = proto_method_at(i)); i++) {
+		const char *dot;
+		if (!(m->flags & PM_SESSION))
+			continue;
+		dot = strchr(m->name, '.');
+		if (n_alone == MAX_ALONE || !dot) {
+			/* not what the test below can see: no line shares */
+			alone_overflow = 1;
+			return;
+		}
+		alone_name[n_alone] = m->name;
+		alone_dot[n_alone] = (size_t)(dot - m->name);
+		alone_len[n_alone++] = strlen(m->name);
+	}
+}
+
+int rw_proto_line_shares(const char *line, size_t len)
+{
+	const char *p = line, *end = line + len;
+
+	pthread_once(&alone_once, alone_init);
+	/* A JSON string names a method in its own letters unless it uses
+	 * an escape, so a line without a backslash that contains no session
+	 * method's name names none. Each name is "family.name": it is tried
+	 * where the line has a dot, against the dot of the name. */
+	if (alone_overflow || memchr(line, '\\', len))
+		return 0;
+	while ((p = memchr(p, '.', (size_t)(end - p)))) {
+		size_t at = (size_t)(p - line);
+		for (size_t k = 0; k < n_alone; k++) {
+			size_t d = alone_dot[k];
+			if (at >= d && at - d + alone_len[k] <= len &&
+			    line[at - d] == alone_name[k][0] &&
+			    memcmp(line + at - d, alone_name[k],
+			           alone_len[k]) == 0)
+				return 0;
+		}
+		p++;
+	}
+	return 1;
 }
 
 /* Whether a request names a session method (PM_SESSION): those change or

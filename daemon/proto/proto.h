@@ -77,6 +77,8 @@ typedef struct proto_server_stats {
 	                                   share of the thread pool */
 	uint64_t pool_overlapped;       /* lines taken while an earlier line
 	                                   of the connection was in the pool */
+	uint64_t pool_line_groups;      /* groups of --pool-lines small lines
+	                                   handed to the pool as one job */
 	uint64_t memory_rss_bytes;      /* resident size (sampled 4 per s) */
 	uint64_t memory_trims;          /* free memory returned after large
 	                                   requests (malloc_trim) */
@@ -93,6 +95,7 @@ typedef struct proto_server_stats {
 		int lines_per_turn;
 		size_t offload_bytes, offload_work;
 		size_t pool_threads, pool_per_peer;
+		size_t pool_lines; /* small lines handed over at a time */
 		int backlog;
 	} settings;
 } proto_server_stats;
@@ -153,6 +156,12 @@ size_t rw_proto_cost(proto_session *s, const char *line, size_t len);
  * session that are not alone may run side by side on worker threads. */
 size_t rw_proto_classify(proto_session *s, const char *line, size_t len,
                          int *alone);
+/* 1 when the line surely names no session method, from its text alone
+ * (no parse): it holds no backslash (so no escaped name) and no session
+ * method's name anywhere. Such a line only reads the session and may run
+ * beside other lines of it; 0 says nothing (the line may still share).
+ * Any thread. */
+int rw_proto_line_shares(const char *line, size_t len);
 
 /* Appends an error response with id null: used by the server for lines it
  * refuses before parsing (too long). `param` and `reason` go into

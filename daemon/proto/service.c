@@ -83,6 +83,8 @@ static void write_limits(proto_call *c)
 		            (long long)st->settings.pool_threads);
 		proto_w_int(c, "pool_per_peer",
 		            (long long)st->settings.pool_per_peer);
+		proto_w_int(c, "pool_lines",
+		            (long long)st->settings.pool_lines);
 		proto_w_int(c, "backlog", st->settings.backlog);
 	}
 	proto_w_obj_end(c);
@@ -155,6 +157,7 @@ static void write_counters(proto_call *c)
 	proto_w_int(c, "reads_paused", (long long)s->reads_paused);
 	proto_w_int(c, "pool_waits", (long long)s->pool_waits);
 	proto_w_int(c, "pool_overlapped", (long long)s->pool_overlapped);
+	proto_w_int(c, "pool_line_groups", (long long)s->pool_line_groups);
 	proto_w_int(c, "memory_rss_bytes", (long long)s->memory_rss_bytes);
 	proto_w_int(c, "memory_trims", (long long)s->memory_trims);
 	proto_w_int(c, "memory_released_bytes",

@@ -132,6 +132,56 @@ static int join_window(conn *c)
 	return 1;
 }
 
+/* Lines longer than this are not grouped: a group is for small requests
+ * (a large one is split across the pool by itself). */
+#define GROUP_LINE_MAX 8192
+
+/* When the next --pool-lines lines are all buffered, small, and surely
+ * name no session method (rw_proto_line_shares), hands them to the pool
+ * as one job: a client that pipelines small requests then has them
+ * answered on the pool's threads side by side, in order, while the loop
+ * reads and writes. Returns 1 when it took them. One client sending one
+ * line at a time never fills a group, so its latency is unchanged. */
+static int take_group(conn *c)
+{
+	srv *s = c->srv;
+	const srv_config *cfg = s->cfg;
+	size_t k = cfg->pool_lines, n, i, max_len = GROUP_LINE_MAX;
+	const char *line[SRV_POOL_LINES_MAX];
+	size_t len[SRV_POOL_LINES_MAX];
+
+	if (k < 2 || c->group_wait)
+		return 0;
+	if (conn_has(c, CF_BUSY) && !srv__pool_can_join(c))
+		return 0;
+	/* cheap test first: k lines need at least 32 bytes each here */
+	if (srv_lines_buffered(&c->lines) < k * 32)
+		return 0;
+	if (cfg->offload_bytes && cfg->offload_bytes - 1 < max_len)
+		max_len = cfg->offload_bytes - 1;
+	n = srv_lines_peek_many(&c->lines, line, len, k);
+	if (n < k)
+		return 0;
+	for (i = 0; i < n; i++)
+		if (len[i] > max_len || !rw_proto_line_shares(line[i], len[i]))
+			break;
+	if (i < n) {
+		/* that line and those before it go one at a time */
+		c->group_wait = i + 1;
+		return 0;
+	}
+	if (srv__pool_lines(c, line, len, n))
+		return 0; /* out of memory: one at a time */
+	for (i = 0; i < n; i++) {
+		const char *l;
+		size_t ln;
+		srv_line_status st = srv_lines_next(&c->lines, &l, &ln);
+		assert(st == SRV_LINE_OK && l == line[i] && ln == len[i]);
+		(void)st;
+	}
+	return 1;
+}
+
 static void oversize(conn *c)
 {
 	char why[160];
@@ -154,6 +204,12 @@ static int conn_dispatch(conn *c, int budget)
 
 	while (budget-- > 0 && !conn_closing(c) && !conn_has(c, CF_PAUSED)) {
 		srv_line_status st;
+		if (take_group(c)) {
+			srv__update_pause(c);
+			continue;
+		}
+		if (c->group_wait)
+			c->group_wait--;
 		if (conn_has(c, CF_BUSY)) {
 			if (!srv__pool_can_join(c) || !join_window(c))
 				break;

@@ -178,6 +178,9 @@ struct conn {
 	size_t jobs_alone; /* of them, lines that run alone */
 	size_t job_bytes;  /* their line copies not yet run */
 	int held;          /* the next line waits until the window is empty */
+	/* lines to take one at a time before trying a group again: one of
+	 * them cannot join a group (take_group, dispatch.c) */
+	size_t group_wait;
 
 	char name[80];
 };
@@ -351,6 +354,13 @@ void srv__on_idle(uv_idle_t *h);
  * the connection, in order), or -1 when out of memory, in which case
  * nothing changed. */
 int srv__pool_submit(conn *c, const char *line, size_t len, int alone);
+/* Adds copies of n > 1 lines, none of them alone
+ * (rw_proto_line_shares), to the connection's window as one pool job
+ * that answers them in order: a pipelining client's small lines then run
+ * on the pool's threads side by side, while the loop reads and writes.
+ * Returns 0, or -1 when out of memory (nothing changed). */
+int srv__pool_lines(conn *c, const char *const *line, const size_t *len,
+                    size_t n);
 /* Answers a light line on the loop while earlier lines of the connection
  * are in the pool: the answer waits in the window for theirs. 0, or -1
  * when out of memory (nothing changed). */

@@ -155,3 +155,23 @@ int srv_lines_peek(srv_lines *lb, const char **line, size_t *len)
 	*len = lb->scan;
 	return 1;
 }
+
+size_t srv_lines_peek_many(const srv_lines *lb, const char **line, size_t *len,
+                           size_t max)
+{
+	size_t n = 0, at = lb->start;
+
+	if (lb->discarding)
+		return 0;
+	while (n < max && at < lb->len) {
+		const char *p = lb->buf + at;
+		const char *nl = memchr(p, '\n', lb->len - at);
+		if (!nl || (size_t)(nl - p) > lb->max_line)
+			break;
+		line[n] = p;
+		len[n] = (size_t)(nl - p);
+		at += len[n] + 1;
+		n++;
+	}
+	return n;
+}

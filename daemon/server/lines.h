@@ -37,6 +37,13 @@ srv_line_status srv_lines_tail(srv_lines *lb, const char **line, size_t *len);
  * complete line of at most max_line bytes is buffered (a later
  * srv_lines_next returns it), else 0. The same pointer rule. */
 int srv_lines_peek(srv_lines *lb, const char **line, size_t *len);
+/* Up to max complete lines from the next one on, without taking them:
+ * their starts into line[] and lengths into len[]; stops before a line
+ * longer than max_line, and gives none while a line is being discarded.
+ * Returns how many; later srv_lines_next calls return the same lines.
+ * The same pointer rule. */
+size_t srv_lines_peek_many(const srv_lines *lb, const char **line, size_t *len,
+                           size_t max);
 /* 1 when a complete line is buffered (a later srv_lines_next returns
  * it). Scans each byte once however often it is called. */
 int srv_lines_has_line(srv_lines *lb);

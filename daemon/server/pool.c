@@ -13,7 +13,11 @@
  * answered on the loop and its answer waits in the window in the same
  * way. The window holds as many lines as the pool has threads (or the
  * peer's share, when larger): those over the peer's share wait in the
- * pool queue, ready to start the moment one of its lines ends.
+ * pool queue, ready to start the moment one of its lines ends. A job may
+ * also be a group of --pool-lines small lines that surely name no session
+ * method (srv__pool_lines, taken by dispatch.c's take_group): it answers
+ * them one after another, so a client pipelining small requests has them
+ * answered on every thread while the loop reads and writes.
  *
  * Fairness: a peer (peer.c) may hold at most --pool-per-peer lines in the
  * pool at once (default: one thread fewer than the pool has), so one
@@ -42,6 +46,7 @@ struct srv_job {
 	uv_work_t work;
 	char *line; /* the copy to run; NULL once run */
 	size_t len;
+	size_t lines;  /* more than one: that many '\n'-separated lines */
 	proto_buf out; /* its answer */
 	int alone;     /* runs with no other line of the connection */
 	int waiting;   /* in the pool queue */
@@ -147,11 +152,33 @@ static void deliver(conn *c)
 	}
 }
 
+/* Answers the job's lines in order into its output. */
+static void run_lines(srv_job *j)
+{
+	const char *p = j->line, *end = j->line + j->len;
+
+	if (j->lines <= 1) {
+		(void)rw_proto_handle(j->c->session, j->line, j->len, &j->out);
+		return;
+	}
+	while (p < end) {
+		const char *nl = memchr(p, '\n', (size_t)(end - p));
+		size_t n = nl ? (size_t)(nl - p) : (size_t)(end - p);
+		if (rw_proto_handle(j->c->session, p, n, &j->out)) {
+			/* as on the loop (dispatch_line): this answer is an
+			 * error, the others stand */
+			j->out.oom = 0;
+			proto_error_line(j->c->srv->ctx, &j->out,
+			                 PROTO_INTERNAL_ERROR, NULL,
+			                 "out of memory building the response");
+		}
+		p += n + 1;
+	}
+}
+
 static void on_work(uv_work_t *w)
 {
-	srv_job *j = w->data;
-
-	(void)rw_proto_handle(j->c->session, j->line, j->len, &j->out);
+	run_lines(w->data);
 }
 
 static void pool_kick(srv *s);
@@ -211,6 +238,14 @@ static int queue(srv_job *j)
  * place in the window. */
 static void give_up(srv_job *j)
 {
+	if (j->lines > 1) {
+		/* Many requests: answered here instead, none lost. */
+		run_lines(j);
+		drop_line(j);
+		j->done = 1;
+		deliver(j->c);
+		return;
+	}
 	drop_line(j);
 	proto_buf_free(&j->out);
 	proto_error_line(j->c->srv->ctx, &j->out, PROTO_INTERNAL_ERROR, NULL,
@@ -274,6 +309,52 @@ int srv__pool_submit(conn *c, const char *line, size_t len, int alone)
 		return 0;
 	}
 	/* Over the peer's share: wait for one of its lines to finish. */
+	j->waiting = 1;
+	if (s->pool_tail)
+		s->pool_tail->pool_next = j;
+	else
+		s->pool_head = j;
+	s->pool_tail = j;
+	s->stats->pool_waits++;
+	return 0;
+}
+
+int srv__pool_lines(conn *c, const char *const *line, const size_t *len,
+                    size_t n)
+{
+	srv *s = c->srv;
+	srv_job *j;
+	size_t bytes = 0;
+	char *w;
+
+	assert(!c->jobs_alone && n > 1);
+	for (size_t i = 0; i < n; i++)
+		bytes += len[i] + 1;
+	j = job_new(c, 0);
+	if (!j)
+		return -1;
+	j->line = w = malloc(bytes);
+	if (!j->line) {
+		free(j);
+		return -1;
+	}
+	for (size_t i = 0; i < n; i++) {
+		memcpy(w, line[i], len[i]);
+		w += len[i];
+		*w++ = '\n';
+	}
+	j->len = bytes - 1; /* the last '\n' is not a line's */
+	j->lines = n;
+	window_add(c, j);
+	s->stats->pool_line_groups++;
+	srv__conn_ref(c); /* the work's (or the queue's) */
+	if (peer_has_room(s, c)) {
+		if (queue(j) == 0)
+			return 0;
+		give_up(j);
+		srv__conn_unref(c);
+		return 0;
+	}
 	j->waiting = 1;
 	if (s->pool_tail)
 		s->pool_tail->pool_next = j;

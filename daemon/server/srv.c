@@ -23,6 +23,7 @@ void srv_config_default(srv_config *cfg)
 	cfg->lines_per_turn = 20;
 	cfg->offload_bytes = 256 * 1024;
 	cfg->offload_work = 1000;
+	cfg->pool_lines = 64;
 	proto_limits_default(&cfg->limits);
 }
 
@@ -128,6 +129,7 @@ int srv_run(const srv_config *cfg)
 		s->stats->settings.offload_work = cfg->offload_work;
 		s->stats->settings.pool_threads = s->pool_threads;
 		s->stats->settings.pool_per_peer = s->pool_per_peer;
+		s->stats->settings.pool_lines = cfg->pool_lines;
 		s->stats->settings.backlog = cfg->backlog;
 	}
 	if (rc != SRV_EXIT_OK) {

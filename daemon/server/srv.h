@@ -24,6 +24,8 @@
 /* owner_reserve's default: 16, or an eighth of max_conns when less. */
 #define SRV_RESERVE_AUTO ((size_t)-1)
 
+#define SRV_POOL_LINES_MAX 1024
+
 typedef struct srv_config {
 	int use_stdio;       /* serve stdin/stdout */
 	unsigned std_closed; /* from srv_fix_std_fds */
@@ -54,6 +56,9 @@ typedef struct srv_config {
 	size_t pool_per_peer;
 	/* thread pool size (0 = UV_THREADPOOL_SIZE, else libuv's 4) */
 	size_t threads;
+	/* a pipelining connection's small lines go to the pool this many
+	 * at a time (0 = never; at most SRV_POOL_LINES_MAX) */
+	size_t pool_lines;
 	proto_limits limits;
 } srv_config;
 

@@ -16,6 +16,12 @@ pool starvation, idle memory).
   keeps its place; a session.set between them takes effect exactly
   there (the lines before it see the old default, those after the new);
   a connection closed with lines in the pool costs the daemon nothing.
+- Groups (--pool-lines): 2,400 small lines pipelined on one connection,
+  with session.set lines among them (one spelt with a \\u escape), come
+  back in request order, each computed with the session's value at its
+  place, and byte for byte the same as with --pool-lines 0; groups were
+  formed (pool_line_groups), also with groups of 8 and one pool line per
+  peer.
 - Half a line costs no CPU while the rest is awaited (the daemon once
   spun on it).
 - Idle memory: after four large requests run side by side the daemon
@@ -30,8 +36,8 @@ import sys
 import threading
 import time
 
-from rwtest import (DAEMON, Daemon, built_with, check, finish, run_tests,
-                    sanitized)
+from rwtest import (DAEMON, Daemon, built_with, check, finish, run,
+                    run_tests, sanitized)
 
 
 def series(n, m, id="heavy"):
@@ -329,6 +335,76 @@ def test_idle_memory():
     check("memory daemon exit 0", d.stop() == 0)
 
 
+def group_plan(n=2400):
+    """Small lines pipelined on one connection, with session.set lines
+    among them (one spelt with an escape, which only a parse can see):
+    (id, line, the vs the session gives the line, or None)."""
+    plan, vs = [], 1500
+    sets = {0: 1500, 700: 1300, 1401: 1250, 1800: 1100}
+    for i in range(n):
+        if i in sets:
+            vs = sets[i]
+            method = "sess\\u0069on.set" if i == 1401 else "session.set"
+            plan.append(("set%d" % i, (
+                '{"jsonrpc":"2.0","id":"set%d","method":"%s","params":'
+                '{"vs":%d}}\n' % (i, method, vs)).encode(), None))
+            continue
+        plan.append((i, ('{"jsonrpc":"2.0","id":%d,"method":'
+                         '"elastic.convert","params":{"rho":2.4,'
+                         '"vp":%d}}\n' % (i, 3000 + i % 97)).encode(), vs))
+    return plan
+
+
+def test_groups():
+    """--pool-lines: a pipelining client's small lines go to the pool in
+    groups and come back in order, byte for byte as one at a time, each
+    computed with the session as it stood at its place."""
+    plan = group_plan()
+    data = b"".join(line for _, line, _ in plan)
+    answers = {}
+    for args in (("--pool-lines", "0"), ("--threads", "4"),
+                 ("--threads", "4", "--pool-lines", "8",
+                  "--pool-per-peer", "1")):
+        what = "groups (%s)" % " ".join(args)
+        d = Daemon(*args)
+        s = d.connect(120)
+        f = s.makefile("rb")
+        sender = threading.Thread(target=s.sendall, args=(data,),
+                                  daemon=True)
+        sender.start()
+        raw = [f.readline() for _ in plan]
+        sender.join(60)
+        s.close()
+        got = [json.loads(r) for r in raw]
+        answers[args] = raw
+        check("%s: answers in request order" % what,
+              [g.get("id") for g in got] == [p[0] for p in plan],
+              [g.get("id") for g in got][:20])
+        wrong = [(p[0], p[2], g.get("result", {}).get("vs"))
+                 for p, g in zip(plan, got)
+                 if p[2] is not None and g.get("result", {}).get("vs") !=
+                 p[2]]
+        check("%s: every line computed with the session's vs at its "
+              "place" % what, not wrong, wrong[:5])
+        cnt = d.info()["counters"]
+        groups = cnt.get("pool_line_groups", -1)
+        print("%s: pool_line_groups %d" % (what, groups))
+        if args[1] == "0":
+            check("%s: no groups" % what, groups == 0, cnt)
+        else:
+            check("%s: lines went to the pool in groups" % what,
+                  groups >= 1, cnt)
+        check("%s: daemon exit 0" % what, d.stop() == 0)
+    p = run([DAEMON, "--stdio", "--pool-lines", "5000"], input=b"")
+    check("--pool-lines over 1024 refused, naming the option and limit",
+          p.returncode == 2 and b"--pool-lines must be at most 1024" in
+          p.stderr, p.stderr)
+    base = answers[("--pool-lines", "0")]
+    for args, raw in answers.items():
+        check("groups (%s): the same bytes as one line at a time" %
+              " ".join(args), raw == base)
+
+
 def main():
     if not os.path.exists(DAEMON):
         print("no daemon at", DAEMON)
@@ -336,7 +412,8 @@ def main():
     # the starvation test's clients come over TCP
     run_tests([test_small_bytes_heavy] +
               ([test_pool_starvation] if built_with("tcp") else []) +
-              [test_window, test_half_line_idle, test_idle_memory])
+              [test_window, test_groups, test_half_line_idle,
+               test_idle_memory])
     return finish()
 
 

@@ -10,6 +10,7 @@
 #include <cmocka.h>
 #include <math.h>
 #include <stdio.h>
+#include <string.h>
 
 #include <gsl/gsl_errno.h>
 
@@ -18,6 +19,15 @@
 #define REQ(method, params)                                                    \
 	"{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":\"" method                   \
 	"\",\"params\":" params "}"
+
+/* splitmix64 (Steele et al. 2014): a generator of the test's own. */
+static uint64_t mix_next(uint64_t *s)
+{
+	uint64_t z = (*s += 0x9e3779b97f4a7c15ull);
+	z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
+	z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
+	return z ^ (z >> 31);
+}
 
 static int setup(void **state)
 {
@@ -486,6 +496,84 @@ static void test_classify(void **state)
 	assert_int_equal(alone, 1);
 }
 
+/* rw_proto_line_shares: lines naming no session method share; every line
+ * naming one (session.set, session.get, session.reset, service.info,
+ * rpc.discover), or with an escape that could spell one, does not; and
+ * it is never wrong where rw_proto_classify (a full parse) can tell:
+ * 20,000 lines put together from fragments that name, nearly name or
+ * escape session methods, in every order, none said to share when the
+ * parse finds a session method. */
+static void test_line_shares(void **state)
+{
+	harness *h = *state;
+	static const char *const alone[] = {"session.set", "session.get",
+	                                    "session.reset", "service.info",
+	                                    "rpc.discover"};
+	static const char *const frag[] = {"session.set",
+	                                   "session.ge",
+	                                   "sessionset",
+	                                   "service.inf",
+	                                   "rpc.discover",
+	                                   "rpc.discove",
+	                                   "elastic.convert",
+	                                   "\\u0073",
+	                                   "ses",
+	                                   "sion.set",
+	                                   "\\",
+	                                   "service.info",
+	                                   "2.0",
+	                                   "session.reset",
+	                                   ".",
+	                                   "rpc."};
+	char line[512];
+	uint64_t seed = 99;
+
+	assert_int_equal(
+	    rw_proto_line_shares(REQ("elastic.convert", "{\"rho\":2}"),
+	                         strlen(REQ("elastic.convert", "{\"rho\":2}"))),
+	    1);
+	for (size_t i = 0; i < sizeof alone / sizeof alone[0]; i++) {
+		int n = snprintf(line, sizeof line,
+		                 "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+		                 "\"%s\"}",
+		                 alone[i]);
+		assert_int_equal(rw_proto_line_shares(line, (size_t)n), 0);
+		/* the name at either end of the text */
+		assert_int_equal(
+		    rw_proto_line_shares(alone[i], strlen(alone[i])), 0);
+	}
+	/* an escaped name: only a parse sees session.set */
+	strcpy(line, "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+	             "\"sess\\u0069on.set\",\"params\":{\"vs\":1}}");
+	assert_int_equal(rw_proto_line_shares(line, strlen(line)), 0);
+	for (int t = 0; t < 20000; t++) {
+		int n, alone_flag = -1;
+		char method[200] = "";
+		size_t used = 0;
+		for (int k = 0, parts = 1 + (int)(mix_next(&seed) % 4);
+		     k < parts; k++) {
+			const char *f = frag[mix_next(&seed) %
+			                     (sizeof frag / sizeof frag[0])];
+			size_t fl = strlen(f);
+			if (used + fl + 1 < sizeof method) {
+				memcpy(method + used, f, fl + 1);
+				used += fl;
+			}
+		}
+		n = snprintf(line, sizeof line,
+		             "{\"jsonrpc\":\"2.0\",\"id\":1,\"method\":"
+		             "\"%s\",\"params\":{\"note\":\"%s\"}}",
+		             method, t % 3 ? "" : method);
+		if (rw_proto_line_shares(line, (size_t)n)) {
+			rw_proto_classify(h->s, line, (size_t)n, &alone_flag);
+			if (alone_flag != 0)
+				fail_msg("said to share but names a session "
+				         "method: %s",
+				         line);
+		}
+	}
+}
+
 /* rw_proto_handle_light answers what costs less than its threshold with
  * the same bytes as rw_proto_handle (each on a fresh session), and
  * leaves the rest unanswered (1, nothing written): scalar lines, a batch,
@@ -611,6 +699,7 @@ int main(void)
 	    cmocka_unit_test_setup_teardown(test_session, setup, teardown),
 	    cmocka_unit_test_setup_teardown(test_cost, setup, teardown),
 	    cmocka_unit_test_setup_teardown(test_classify, setup, teardown),
+	    cmocka_unit_test_setup_teardown(test_line_shares, setup, teardown),
 	    cmocka_unit_test(test_handle_light),
 	};
 	gsl_set_error_handler_off();

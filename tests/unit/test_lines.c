@@ -195,12 +195,83 @@ static void test_empty(void **state)
 	assert_int_equal(srv_lines_tail(&lb, &line, &len), SRV_LINE_NONE);
 }
 
+/* srv_lines_peek_many sees what srv_lines_next then takes: the stream in
+ * random chunks, at each point up to 4 lines peeked and the same lines
+ * taken one by one; it stops before an oversized line and before an
+ * incomplete one, gives nothing while a line is discarded, and an empty
+ * framer gives nothing. */
+static void test_peek_many(void **state)
+{
+	const char *pl[4], *line;
+	size_t plen[4], len;
+	(void)state;
+
+	for (unsigned seed = 1; seed < 40; seed++) {
+		srv_lines lb;
+		size_t off = 0, total = strlen(stream), taken = 0;
+		unsigned sd = seed;
+
+		srv_lines_init(&lb, 150);
+		assert_int_equal(srv_lines_peek_many(&lb, pl, plen, 4), 0);
+		while (off < total) {
+			size_t n = random_chunk(total - off, &sd), k;
+			assert_int_equal(srv_lines_append(&lb, stream + off, n),
+			                 0);
+			off += n;
+			k = srv_lines_peek_many(&lb, pl, plen, 1 + sd % 4);
+			for (size_t i = 0; i < k; i++) {
+				char copy[200];
+				assert_true(plen[i] <= 150);
+				memcpy(copy, pl[i], plen[i]);
+				assert_int_equal(
+				    srv_lines_next(&lb, &line, &len),
+				    SRV_LINE_OK);
+				assert_int_equal(len, plen[i]);
+				assert_memory_equal(line, copy, len);
+				taken++;
+			}
+			/* what is left is taken the usual way */
+			while (srv_lines_next(&lb, &line, &len) !=
+			       SRV_LINE_NONE)
+				taken++;
+		}
+		/* 7 complete lines (a blank one and the oversized one
+		 * among them); the last has no newline and stays for
+		 * srv_lines_tail */
+		assert_int_equal(taken, 7);
+		assert_int_equal(srv_lines_tail(&lb, &line, &len), SRV_LINE_OK);
+		srv_lines_free(&lb);
+	}
+	{
+		/* stops before an oversized line; nothing while discarding */
+		srv_lines lb;
+		char big[300];
+		srv_lines_init(&lb, 100);
+		memset(big, 'z', sizeof big);
+		srv_lines_append(&lb, "ab\ncd\n", 6);
+		srv_lines_append(&lb, big, 150);
+		srv_lines_append(&lb, "\nef\n", 4);
+		assert_int_equal(srv_lines_peek_many(&lb, pl, plen, 4), 2);
+		assert_memory_equal(pl[1], "cd", 2);
+		srv_lines_free(&lb);
+		srv_lines_init(&lb, 100);
+		srv_lines_append(&lb, big, sizeof big);
+		assert_int_equal(srv_lines_next(&lb, &line, &len),
+		                 SRV_LINE_OVERSIZE);
+		srv_lines_append(&lb, "zz\nok\n", 6);
+		assert_int_equal(srv_lines_peek_many(&lb, pl, plen, 4), 1);
+		assert_memory_equal(pl[0], "ok", 2);
+		srv_lines_free(&lb);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 	    cmocka_unit_test(test_framings_agree),
 	    cmocka_unit_test(test_oversize_streaming),
 	    cmocka_unit_test(test_empty),
+	    cmocka_unit_test(test_peek_many),
 	};
 	gsl_set_error_handler_off();
 	return cmocka_run_group_tests(tests, NULL, NULL);

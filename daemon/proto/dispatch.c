@@ -152,6 +152,24 @@ typedef struct byte_state {
 	int depth, in_str, esc;
 } byte_state;
 
+/* Bytes the check passes over with nothing to do: bit 0 outside strings
+ * (printable ASCII but the quote and brackets), bit 1 inside them
+ * (printable ASCII but the quote and the backslash). Control bytes and
+ * bytes of multi-byte sequences are never plain. */
+static const unsigned char plain_byte[256] = {
+    0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+    0, 0, 0, 0, 0, 0, 0, 0, 3, 3, 0, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3,
+    3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3,
+    3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 2, 1, 2, 3, 3,
+    3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3, 3,
+    3, 3, 3, 2, 3, 2, 3, 3, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+    0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+    0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+    0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+    0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+    0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
+};
+
 /* Checks bytes from..to of the line (a multi-byte sequence may run past
  * to; *next gets where the check stopped). Returns 0, or the error code
  * with a reason written to `why`. */
@@ -164,9 +182,13 @@ check_range(const unsigned char *p, size_t from, size_t to, size_t len,
             size_t why_size)
 {
 	size_t i;
+	/* which plain_byte bit applies: none just after a backslash */
+	unsigned mask = st->esc ? 0 : st->in_str ? 2 : 1;
 
 	for (i = from; i < to; i++) {
 		unsigned char ch = p[i];
+		if (plain_byte[ch] & mask)
+			continue;
 		if (ch < 0x80) {
 			if (ch < 0x20 && ch != '\t' && ch != '\n' &&
 			    ch != '\r') {
@@ -207,6 +229,7 @@ check_range(const unsigned char *p, size_t from, size_t to, size_t len,
 			} else if (ch == ']' || ch == '}') {
 				st->depth--;
 			}
+			mask = st->esc ? 0 : st->in_str ? 2 : 1;
 			continue;
 		}
 		/* Multi-byte sequence: RFC 3629 well-formed ranges. */
@@ -238,6 +261,7 @@ check_range(const unsigned char *p, size_t from, size_t to, size_t len,
 				goto bad;
 		i += need;
 		st->esc = 0;
+		mask = st->esc ? 0 : st->in_str ? 2 : 1;
 		continue;
 	bad:
 		snprintf(why, why_size, "invalid UTF-8 at byte offset %zu", i);

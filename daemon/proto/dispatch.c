@@ -459,6 +459,18 @@ static void run_method(proto_session *s, const proto_method *m,
 	c.session = s;
 	c.method = m;
 	c.params = params;
+	if (cJSON_IsObject(params))
+		for (const cJSON *e = params->child; e; e = e->next) {
+			const char *k = e->string;
+			if (k[0] == 'u' && strcmp(k, "units") == 0)
+				c.p_units = e;
+			else if (k[0] == 'd' && strcmp(k, "digits") == 0)
+				c.p_digits = e;
+			else if (k[0] == 'f' && strcmp(k, "fields") == 0)
+				c.p_fields = e;
+			else if (k[0] == 'u' && strcmp(k, "uncertainty") == 0)
+				c.p_unc = e;
+		}
 	c.out = out;
 	c.units = s->units;
 	c.digits = s->digits;
@@ -470,12 +482,8 @@ static void run_method(proto_session *s, const proto_method *m,
 	if (params && !cJSON_IsObject(params)) {
 		proto_fail(&c, PROTO_INVALID_PARAMS, "params",
 		           "must be an object of named parameters");
-	} else if (!proto__units_apply(
-	               &c, cJSON_GetObjectItemCaseSensitive(params, "units"),
-	               "units", &c.units) &&
-	           !proto__digits_apply(
-	               &c, cJSON_GetObjectItemCaseSensitive(params, "digits"),
-	               "digits", &c.digits) &&
+	} else if (!proto__units_apply(&c, c.p_units, "units", &c.units) &&
+	           !proto__digits_apply(&c, c.p_digits, "digits", &c.digits) &&
 	           !proto__run_method(&c) && !c.err_code && !out->oom) {
 		assert(c.depth == 0 && c.skip_depth == 0);
 		proto_buf_append(out, "}", 1);

@@ -32,7 +32,7 @@ static int selectable(const proto_output *o)
 static int parse_fields(proto_call *c)
 {
 	const proto_method *m = c->method;
-	const cJSON *f = cJSON_GetObjectItemCaseSensitive(c->params, "fields");
+	const cJSON *f = c->p_fields;
 	const cJSON *e;
 	proto_arr_iter it;
 	const char **list, *names[128];
@@ -385,8 +385,7 @@ int proto__run_method(proto_call *c)
 		return proto_fail(c, PROTO_INTERNAL_ERROR, NULL,
 		                  "out of memory");
 	c->args = args;
-	if ((!m->kernel || (m->flags & PM_NO_UNCERTAINTY)) &&
-	    cJSON_GetObjectItemCaseSensitive(c->params, "uncertainty"))
+	if ((!m->kernel || (m->flags & PM_NO_UNCERTAINTY)) && c->p_unc)
 		return proto_fail(c, PROTO_INVALID_PARAMS, "uncertainty",
 		                  "%s is not a per-sample method: it takes no "
 		                  "uncertainty",
@@ -411,8 +410,7 @@ int proto__run_method(proto_call *c)
 	}
 	if (m->prepare && m->prepare(c, args, &sh))
 		return -1;
-	if (cJSON_GetObjectItemCaseSensitive(c->params, "uncertainty") ||
-	    proto__has_dist(m->params, args)) {
+	if (c->p_unc || proto__has_dist(m->params, args)) {
 		if (m->flags & PM_NO_UNCERTAINTY)
 			return proto_fail(
 			    c, PROTO_INVALID_PARAMS, "uncertainty",

@@ -491,6 +491,9 @@ struct proto_call {
 	proto_session *session;
 	const proto_method *method;
 	const cJSON *params; /* the params object (NULL when absent) */
+	/* its members every method reads, found in one pass (NULL when
+	 * absent): units, digits, fields, uncertainty */
+	const cJSON *p_units, *p_digits, *p_fields, *p_unc;
 	void *args;          /* the parsed arguments struct */
 	proto_units units;   /* session units overridden by params */
 	proto_group group[PROTO_MAX_GROUPS];

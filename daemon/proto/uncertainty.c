@@ -1049,8 +1049,7 @@ static void write_result(proto_call *c, unc_run *r, stats *st, const void *args,
 int proto__run_uncertain(proto_call *c, void *args, const proto_shape *sh)
 {
 	const proto_method *m = c->method;
-	const cJSON *uj =
-	    cJSON_GetObjectItemCaseSensitive(c->params, "uncertainty");
+	const cJSON *uj = c->p_unc;
 	unc_args u;
 	walk *w = proto_alloc(c, sizeof *w);
 	unc_run r;

@@ -494,8 +494,8 @@ struct proto_call {
 	/* its members every method reads, found in one pass (NULL when
 	 * absent): units, digits, fields, uncertainty */
 	const cJSON *p_units, *p_digits, *p_fields, *p_unc;
-	void *args;          /* the parsed arguments struct */
-	proto_units units;   /* session units overridden by params */
+	void *args;        /* the parsed arguments struct */
+	proto_units units; /* session units overridden by params */
 	proto_group group[PROTO_MAX_GROUPS];
 	proto_buf *out; /* the result is written here */
 	/* result writer state */

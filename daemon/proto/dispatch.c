@@ -333,7 +333,8 @@ static const char *find_duplicate_key(const cJSON *v, int *oom)
 			for (a = v->child->next; a; a = a->next)
 				for (const cJSON *b = v->child; b != a;
 				     b = b->next)
-					if (strcmp(a->string, b->string) == 0)
+					if (a->string[0] == b->string[0] &&
+					    strcmp(a->string, b->string) == 0)
 						return a->string;
 		} else if (n > 1) {
 			set = calloc(cap, sizeof *set);
@@ -864,13 +865,22 @@ static void widen(size_t *len, const proto_field *f, size_t n)
  * is a distribution, times the method's cost per evaluation. */
 static size_t request_cost(proto_session *s, const cJSON *req)
 {
-	const cJSON *method = cJSON_GetObjectItemCaseSensitive(req, "method");
-	const cJSON *params = cJSON_GetObjectItemCaseSensitive(req, "params");
+	const cJSON *method = NULL, *params = NULL;
 	const proto_method *m;
 	size_t len[PROTO_MAX_GROUPS];
 	double work = 1;
 	int nested = 0, dist = 0;
 
+	/* the first of each, as cJSON_GetObjectItemCaseSensitive finds */
+	if (cJSON_IsObject(req))
+		for (const cJSON *e = req->child; e; e = e->next) {
+			const char *k = e->string;
+			if (!method && k[0] == 'm' && strcmp(k, "method") == 0)
+				method = e;
+			else if (!params && k[0] == 'p' &&
+			         strcmp(k, "params") == 0)
+				params = e;
+		}
 	if (!cJSON_IsString(method) ||
 	    !(m = proto_method_find(method->valuestring)) || !m->params)
 		return 1;

@@ -170,6 +170,13 @@ static const unsigned char plain_byte[256] = {
     0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0, 0,
 };
 
+/* The plain_byte bit that applies in state st: none just after a
+ * backslash. */
+static inline unsigned plain_mask(const byte_state *st)
+{
+	return st->esc ? 0 : st->in_str ? 2 : 1;
+}
+
 /* Checks bytes from..to of the line (a multi-byte sequence may run past
  * to; *next gets where the check stopped). Returns 0, or the error code
  * with a reason written to `why`. */
@@ -182,8 +189,7 @@ check_range(const unsigned char *p, size_t from, size_t to, size_t len,
             size_t why_size)
 {
 	size_t i;
-	/* which plain_byte bit applies: none just after a backslash */
-	unsigned mask = st->esc ? 0 : st->in_str ? 2 : 1;
+	unsigned mask = plain_mask(st);
 
 	for (i = from; i < to; i++) {
 		unsigned char ch = p[i];
@@ -229,7 +235,7 @@ check_range(const unsigned char *p, size_t from, size_t to, size_t len,
 			} else if (ch == ']' || ch == '}') {
 				st->depth--;
 			}
-			mask = st->esc ? 0 : st->in_str ? 2 : 1;
+			mask = plain_mask(st);
 			continue;
 		}
 		/* Multi-byte sequence: RFC 3629 well-formed ranges. */
@@ -261,7 +267,7 @@ check_range(const unsigned char *p, size_t from, size_t to, size_t len,
 				goto bad;
 		i += need;
 		st->esc = 0;
-		mask = st->esc ? 0 : st->in_str ? 2 : 1;
+		mask = plain_mask(st);
 		continue;
 	bad:
 		snprintf(why, why_size, "invalid UTF-8 at byte offset %zu", i);
@@ -891,6 +897,7 @@ static size_t request_cost(proto_session *s, const cJSON *req)
 	if (cJSON_IsObject(params))
 		for (const cJSON *v = params->child; v; v = v->next) {
 			const proto_field *f;
+			int i;
 			if (!cJSON_IsArray(v) && !cJSON_IsObject(v)) {
 				if (cJSON_IsString(v) &&
 				    strcmp(v->string, "dist") == 0)
@@ -898,11 +905,9 @@ static size_t request_cost(proto_session *s, const cJSON *req)
 				continue;
 			}
 			nested = 1;
-			for (f = m->params->fields; f->name; f++)
-				if (strcmp(f->name, v->string) == 0)
-					break;
-			if (!f->name)
+			if ((i = proto_field_index(m->params, v->string)) < 0)
 				continue;
+			f = &m->params->fields[i];
 			if (f->flags & PF_AXIS)
 				work *= (double)axis_len(v);
 			else

@@ -166,12 +166,11 @@ static void note_path(proto_call *c, const char *path, proto_kind k)
 		c->cap_unit_notes = cap;
 	}
 	char *copy = proto_alloc(c, len + 1);
-	if (copy)
-		memcpy(copy, path, len + 1);
 	if (!copy) {
 		c->out->oom = 1;
 		return;
 	}
+	memcpy(copy, path, len + 1);
 	c->unit_notes[c->n_unit_notes].path = copy;
 	c->unit_notes[c->n_unit_notes].hash = h;
 	c->unit_notes[c->n_unit_notes].kind = k;
@@ -501,8 +500,9 @@ void proto_w_flag_rows(proto_call *c, const char *key, const void *rows,
 void proto_w_units(proto_call *c)
 {
 	proto_w_obj_begin(c, "units");
-	/* Straight into the buffer (the map's members are never left out:
-	 * only the map itself can be, by `fields`). */
+	/* Straight into the buffer: its members are never left out one by
+	 * one (`fields` always keeps the map), so only a skip of the map
+	 * itself, as w_open would make it, stops them. */
 	if (!c->skip_depth)
 		for (size_t i = 0; i < c->n_unit_notes; i++) {
 			proto__buf_member(c->out, i > 0, c->unit_notes[i].path);

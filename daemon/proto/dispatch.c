@@ -306,6 +306,33 @@ static int check_bytes(const unsigned char *p, size_t len, int max_depth,
 	return check_range(p, i, len, len, max_depth, &st, &i, why, why_size);
 }
 
+/* One pass over the members of object obj: found[i] gets the first
+ * member named names[i], or NULL (what cJSON_GetObjectItemCaseSensitive
+ * would give, without a pass a name). Returns the first member named none
+ * of them, or NULL. */
+static const cJSON *members(const cJSON *obj, const char *const *names,
+                            size_t n, const cJSON **found)
+{
+	const cJSON *other = NULL;
+
+	for (size_t i = 0; i < n; i++)
+		found[i] = NULL;
+	for (const cJSON *e = obj->child; e; e = e->next) {
+		size_t i;
+		for (i = 0; i < n; i++)
+			if (e->string[0] == names[i][0] &&
+			    strcmp(e->string, names[i]) == 0)
+				break;
+		if (i == n) {
+			if (!other)
+				other = e;
+		} else if (!found[i]) {
+			found[i] = e;
+		}
+	}
+	return other;
+}
+
 /* ---- duplicate keys ------------------------------------------------------ */
 
 /* FNV-1a, for the per-object key set. */
@@ -466,18 +493,16 @@ static void run_method(proto_session *s, const proto_method *m,
 	c.session = s;
 	c.method = m;
 	c.params = params;
-	if (cJSON_IsObject(params))
-		for (const cJSON *e = params->child; e; e = e->next) {
-			const char *k = e->string;
-			if (k[0] == 'u' && strcmp(k, "units") == 0)
-				c.p_units = e;
-			else if (k[0] == 'd' && strcmp(k, "digits") == 0)
-				c.p_digits = e;
-			else if (k[0] == 'f' && strcmp(k, "fields") == 0)
-				c.p_fields = e;
-			else if (k[0] == 'u' && strcmp(k, "uncertainty") == 0)
-				c.p_unc = e;
-		}
+	if (cJSON_IsObject(params)) {
+		static const char *const common[] = {"units", "digits",
+		                                     "fields", "uncertainty"};
+		const cJSON *found[4];
+		(void)members(params, common, 4, found);
+		c.p_units = found[0];
+		c.p_digits = found[1];
+		c.p_fields = found[2];
+		c.p_unc = found[3];
+	}
 	c.out = out;
 	c.units = s->units;
 	c.digits = s->digits;
@@ -536,22 +561,17 @@ static void handle_one(proto_session *s, const cJSON *req, const char *line,
 		            "a request must be a JSON object");
 		return;
 	}
-	/* One pass over the members (duplicates were refused): each
-	 * named once, the first unknown one kept for its error. */
-	ver = method = NULL;
-	m = unknown = NULL;
-	for (const cJSON *e = req->child; e; e = e->next) {
-		const char *k = e->string;
-		if (k[0] == 'j' && strcmp(k, "jsonrpc") == 0)
-			ver = e;
-		else if (k[0] == 'm' && strcmp(k, "method") == 0)
-			method = e;
-		else if (k[0] == 'p' && strcmp(k, "params") == 0)
-			params = e;
-		else if (k[0] == 'i' && strcmp(k, "id") == 0)
-			m = e;
-		else if (!unknown)
-			unknown = e;
+	/* One pass over the members (duplicates were refused), the first
+	 * unknown one kept for its error. */
+	{
+		static const char *const envelope[] = {"jsonrpc", "method",
+		                                       "params", "id"};
+		const cJSON *found[4];
+		unknown = members(req, envelope, 4, found);
+		ver = found[0];
+		method = found[1];
+		params = found[2];
+		m = found[3];
 	}
 	if (m) {
 		has_id = 1;
@@ -877,16 +897,13 @@ static size_t request_cost(proto_session *s, const cJSON *req)
 	double work = 1;
 	int nested = 0, dist = 0;
 
-	/* the first of each, as cJSON_GetObjectItemCaseSensitive finds */
-	if (cJSON_IsObject(req))
-		for (const cJSON *e = req->child; e; e = e->next) {
-			const char *k = e->string;
-			if (!method && k[0] == 'm' && strcmp(k, "method") == 0)
-				method = e;
-			else if (!params && k[0] == 'p' &&
-			         strcmp(k, "params") == 0)
-				params = e;
-		}
+	if (cJSON_IsObject(req)) {
+		static const char *const names[] = {"method", "params"};
+		const cJSON *found[2];
+		(void)members(req, names, 2, found);
+		method = found[0];
+		params = found[1];
+	}
 	if (!cJSON_IsString(method) ||
 	    !(m = proto_method_find(method->valuestring)) || !m->params)
 		return 1;
